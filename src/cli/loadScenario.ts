@@ -1,0 +1,22 @@
+/** Read and validate a scenario file (the file is never modified). */
+import { readFileSync } from 'node:fs';
+import { InputError } from '../errors.js';
+import { parseScenario } from '../scenario/parse.js';
+import type { Scenario } from '../scenario/types.js';
+
+export function loadScenario(path: string): Scenario {
+  let text: string;
+  try {
+    text = readFileSync(path, 'utf8');
+  } catch (e) {
+    const code = (e as NodeJS.ErrnoException).code;
+    throw new InputError(`scenario file "${path}" cannot be read (${code ?? 'error'}); check the path`);
+  }
+  let raw: unknown;
+  try {
+    raw = JSON.parse(text);
+  } catch (e) {
+    throw new InputError(`scenario file "${path}" is not valid JSON (${(e as Error).message}); fix the syntax`);
+  }
+  return parseScenario(raw);
+}

@@ -1,0 +1,74 @@
+/**
+ * Scenario -> images: for every condition, the bright- and dark-field
+ * intensity images (fractions of the incident beam) and the perfect-crystal
+ * background of that condition.
+ */
+import { perfectCrystal, type TwoBeamParams } from '../dynamics/twoBeam.js';
+import type { Scenario } from '../scenario/types.js';
+import { fieldSpecs } from './fieldSpecs.js';
+import { resolveCondition, type ResolvedCondition } from './resolveCondition.js';
+import type { RenderJob } from './renderRows.js';
+import type { Progress, RenderPool } from './workerPool.js';
+
+/** Default integrator tolerance on intensity per column. */
+export const DEFAULT_TOLERANCE = 1e-5;
+
+export interface ConditionImages {
+  readonly condition: ResolvedCondition;
+  readonly width: number;
+  readonly height: number;
+  readonly pixel_nm: number;
+  readonly bf: Float32Array;
+  readonly df: Float32Array;
+  /** Perfect-crystal intensities of this condition. */
+  readonly background: { readonly bf: number; readonly df: number };
+  readonly slices: number;
+}
+
+export function twoBeamParams(c: ResolvedCondition): TwoBeamParams {
+  return { xi_nm: c.xi_nm, xiAbs_nm: c.xiAbs_nm, xiAbs0_nm: c.xiAbs0_nm, s_per_nm: c.s_per_nm };
+}
+
+export function renderJob(sc: Scenario, c: ResolvedCondition, tol = DEFAULT_TOLERANCE): RenderJob {
+  return {
+    width: sc.image.width_px,
+    height: sc.image.height_px,
+    pixel_nm: sc.image.pixel_nm,
+    frame: c.frame,
+    g_cart: c.g_cart,
+    params: twoBeamParams(c),
+    tol,
+    fields: fieldSpecs(sc),
+  };
+}
+
+export function background(c: ResolvedCondition): { bf: number; df: number } {
+  const out = new Float64Array(4);
+  perfectCrystal(out, twoBeamParams(c), c.frame.columnLength_nm);
+  return { bf: out[0] * out[0] + out[1] * out[1], df: out[2] * out[2] + out[3] * out[3] };
+}
+
+export async function renderScenario(
+  sc: Scenario,
+  pool: RenderPool,
+  onProgress?: (conditionIndex: number, doneRows: number, totalRows: number) => void,
+  tol = DEFAULT_TOLERANCE,
+): Promise<ConditionImages[]> {
+  const result: ConditionImages[] = [];
+  for (let i = 0; i < sc.conditions.length; i++) {
+    const c = resolveCondition(sc, sc.conditions[i]);
+    const progress: Progress | undefined = onProgress ? (d, t) => onProgress(i, d, t) : undefined;
+    const img = await pool.render(renderJob(sc, c, tol), progress);
+    result.push({
+      condition: c,
+      width: sc.image.width_px,
+      height: sc.image.height_px,
+      pixel_nm: sc.image.pixel_nm,
+      bf: img.bf,
+      df: img.df,
+      background: background(c),
+      slices: img.slices,
+    });
+  }
+  return result;
+}

@@ -1,0 +1,229 @@
+/**
+ * Scenario validation: raw JSON -> Scenario. Every error names the JSON path
+ * of the offending field and how to fix it.
+ */
+import type { Vec3 } from '../math/vec3.js';
+import { norm, angle, unit } from '../math/vec3.js';
+import type { Material } from '../crystal/material.js';
+import { getMaterial, parseMaterial } from '../crystal/materials.js';
+import { parseIndices, parseVectorWithFraction } from '../crystal/indices.js';
+import { directionFromFour, planeFromFour } from '../crystal/millerBravais.js';
+import { directionToCartesian, planeNormalToCartesian, usesFourIndices } from '../crystal/lattice.js';
+import { parseFamily } from '../crystal/symmetry.js';
+import { InputError } from '../errors.js';
+import { array, fail, isObject, joinPath, number, object, onlyKeys, required, string } from './check.js';
+import type { BeamSet, CandidateSpec, Condition, DefectSpec, Deviation, ImageSpec, Scenario } from './types.js';
+import { MAX_PIXELS, MAX_SIDE_PX } from './types.js';
+
+/** Tolerance on g being perpendicular to its beam (degrees). */
+export const PERPENDICULAR_TOLERANCE_DEG = 5;
+
+const TOP_KEYS = [
+  'name', 'material', 'kV', 'foil', 'beam', 'imageX', 'image', 'absorption', 'conditions', 'defects', 'candidates', 'description',
+] as const;
+
+export function parseScenario(raw: unknown): Scenario {
+  const o = object(raw, '(scenario)');
+  onlyKeys(o, TOP_KEYS, '');
+  const name = o.name === undefined ? 'scenario' : string(o.name, 'name');
+  const material = readMaterial(required(o, 'material', '', '"Ni"'));
+  const kV = number(required(o, 'kV', '', '200'), 'kV', { min: 10, max: 3000, unit: 'kV' });
+
+  const foil = object(required(o, 'foil', '', '{ "thickness_nm": 100, "normal": [0, 0, 1] }'), 'foil');
+  onlyKeys(foil, ['thickness_nm', 'normal'], 'foil');
+  const thickness_nm = number(required(foil, 'thickness_nm', 'foil', '100'), 'foil.thickness_nm', { above: 0, max: 10000, unit: 'nm' });
+
+  const beam = readDirection(required(o, 'beam', '', '[0, 0, 1]'), 'beam', material);
+  const foilNormal = foil.normal === undefined ? beam : readDirection(foil.normal, 'foil.normal', material);
+  const cb = cosCart(material, beam, foilNormal);
+  if (Math.abs(cb) < Math.cos((80 * Math.PI) / 180)) {
+    fail('foil.normal', `is ${deg(Math.acos(Math.abs(cb)))} degrees from the beam; the foil must be tilted by less than 80 degrees`);
+  }
+
+  const image = readImage(o.image);
+  const absorption = o.absorption === undefined ? 0.1 : number(o.absorption, 'absorption', { min: 0, max: 1, unit: "xi_g / xi'_g" });
+
+  const condList = array(required(o, 'conditions', '', '[{ "id": "g200", "g": [2, 0, 0], "s_per_nm": 0 }]'), 'conditions', 1);
+  const conditions = condList.map((c, i) => readCondition(c, joinPath('conditions', i), material, beam));
+  const ids = new Set<string>();
+  conditions.forEach((c, i) => {
+    if (ids.has(c.id)) fail(joinPath(joinPath('conditions', i), 'id'), `"${c.id}" is used twice; give every condition its own id`);
+    ids.add(c.id);
+  });
+
+  // default: the first condition's g points along +x
+  const imageX_cart = unit(
+    o.imageX === undefined
+      ? planeNormalToCartesian(material.lattice, conditions[0].g)
+      : cart(material, readDirection(o.imageX, 'imageX', material)),
+  );
+  if (Math.sin(angle(imageX_cart, cart(material, beam))) < 0.05) {
+    fail('imageX', 'is (nearly) parallel to the beam; choose a crystal direction perpendicular to the beam');
+  }
+
+  const defects = o.defects === undefined ? [] : array(o.defects, 'defects').map((d, i) => readDefect(d, joinPath('defects', i), material, thickness_nm));
+  const candidates = o.candidates === undefined ? [] : array(o.candidates, 'candidates').flatMap((c, i) => readCandidates(c, joinPath('candidates', i), material));
+
+  return { name, material, kV, thickness_nm, foilNormal, beam, imageX_cart, image, absorption, conditions, defects, candidates };
+}
+
+function readMaterial(v: unknown): Material {
+  if (typeof v === 'string') return getMaterial(v);
+  if (isObject(v)) return parseMaterial(v, 'material');
+  fail('material', 'must be a library name such as "Ni" (see `thinfoil materials`) or an inline material object');
+}
+
+function readImage(v: unknown): ImageSpec {
+  if (v === undefined) return { width_px: 256, height_px: 256, pixel_nm: 0.5 };
+  const o = object(v, 'image');
+  onlyKeys(o, ['width_px', 'height_px', 'pixel_nm'], 'image');
+  const width_px = number(required(o, 'width_px', 'image', '256'), 'image.width_px', { integer: true, min: 1, max: MAX_SIDE_PX, unit: 'pixels' });
+  const height_px = number(required(o, 'height_px', 'image', '256'), 'image.height_px', { integer: true, min: 1, max: MAX_SIDE_PX, unit: 'pixels' });
+  const pixel_nm = number(required(o, 'pixel_nm', 'image', '0.5'), 'image.pixel_nm', { above: 0, max: 1000, unit: 'nm' });
+  if (width_px * height_px > MAX_PIXELS) {
+    fail('image', `${width_px} x ${height_px} pixels exceeds the limit of ${MAX_PIXELS} pixels (2048 x 2048); use fewer, larger pixels`);
+  }
+  return { width_px, height_px, pixel_nm };
+}
+
+function readBeamSet(v: unknown, path: string): BeamSet {
+  if (v === undefined || v === 2) return { kind: 'two' };
+  if (isObject(v)) {
+    onlyKeys(v, ['row'], path);
+    const count = number(required(v, 'row', path, '7'), joinPath(path, 'row'), { integer: true, min: 3, max: 31, unit: 'beams' });
+    if (count % 2 === 0) fail(joinPath(path, 'row'), `must be odd (beams -m g .. +m g), got ${count}`);
+    return { kind: 'row', count };
+  }
+  fail(path, 'must be 2 (two-beam) or { "row": N } for a systematic row of N beams (N odd, 3..31)');
+}
+
+function readCondition(v: unknown, path: string, m: Material, refBeam: Vec3): Condition {
+  const o = object(v, path);
+  onlyKeys(o, ['id', 'g', 's_per_nm', 'w', 'beam', 'beams', 'weakBeam'], path);
+  const id = string(required(o, 'id', path, '"g200"'), joinPath(path, 'id'));
+  if (!/^[A-Za-z0-9_.-]+$/.test(id)) fail(joinPath(path, 'id'), `"${id}" is used in file names; use only letters, digits, "-", "_" and "."`);
+  const g = readPlane(required(o, 'g', path, '[2, 0, 0]'), joinPath(path, 'g'), m);
+  if (norm(g) === 0) fail(joinPath(path, 'g'), 'must not be 000; give the reflection used for imaging, e.g. [2, 0, 0]');
+  const beam = o.beam === undefined ? refBeam : readDirection(o.beam, joinPath(path, 'beam'), m);
+  const off = Math.abs(90 - deg(angle(planeNormalToCartesian(m.lattice, g), cart(m, beam))));
+  if (off > PERPENDICULAR_TOLERANCE_DEG) {
+    fail(joinPath(path, 'g'), `makes ${(90 - off).toFixed(1)} degrees with the beam; g must be within ${PERPENDICULAR_TOLERANCE_DEG} degrees of perpendicular to the beam (give this condition its own "beam")`);
+  }
+  const beams = readBeamSet(o.beams, joinPath(path, 'beams'));
+  const given = ['s_per_nm', 'w', 'weakBeam'].filter((k) => o[k] !== undefined);
+  if (given.length !== 1) {
+    fail(path, `must give exactly one of "s_per_nm", "w" and "weakBeam"${given.length ? ` (found ${given.join(' and ')})` : ''}`);
+  }
+  let deviation: Deviation;
+  if (given[0] === 's_per_nm') {
+    deviation = { kind: 's', s_per_nm: number(o.s_per_nm, joinPath(path, 's_per_nm'), { min: -10, max: 10, unit: 'nm^-1' }) };
+  } else if (given[0] === 'w') {
+    deviation = { kind: 'w', w: number(o.w, joinPath(path, 'w'), { min: -1000, max: 1000 }) };
+  } else {
+    deviation = { kind: 'weakBeam', n: number(o.weakBeam, joinPath(path, 'weakBeam'), { integer: true, min: 2, max: 10, unit: 'n of g(ng)' }) };
+  }
+  return { id, g, deviation, beam, beams };
+}
+
+function readDefect(v: unknown, path: string, m: Material, thickness_nm: number): DefectSpec {
+  const o = object(v, path);
+  const type = string(required(o, 'type', path, '"dislocation"'), joinPath(path, 'type'));
+  switch (type) {
+    case 'dislocation': {
+      onlyKeys(o, ['type', 'label', 'b', 'line', 'point_nm', 'core_nm'], path);
+      const label = o.label === undefined ? `dislocation ${path}` : string(o.label, joinPath(path, 'label'));
+      const b = readVector(required(o, 'b', path, '"1/2[1 1 0]"'), joinPath(path, 'b'), m);
+      if (norm(b) === 0) fail(joinPath(path, 'b'), 'is zero; a dislocation needs a nonzero Burgers vector such as "1/2[1 1 0]"');
+      const line = readDirection(required(o, 'line', path, '[1, -1, 0]'), joinPath(path, 'line'), m);
+      const point_nm = readPoint(o.point_nm, joinPath(path, 'point_nm'), thickness_nm);
+      const core = o.core_nm === undefined ? undefined : number(o.core_nm, joinPath(path, 'core_nm'), { above: 0, max: 10, unit: 'nm' });
+      return core === undefined ? { type, label, b, line, point_nm } : { type, label, b, line, point_nm, core_nm: core };
+    }
+    default:
+      fail(joinPath(path, 'type'), `"${type}" is not a defect type thinfoil knows; use "dislocation"`);
+  }
+}
+
+function readPoint(v: unknown, path: string, thickness_nm: number): Vec3 {
+  if (v === undefined) return [0, 0, thickness_nm / 2];
+  const a = array(v, path);
+  if (a.length !== 3) fail(path, 'must be [x, y, z] in nm (x, y from the image centre, z the depth below the entrance surface)');
+  const p = a.map((x, i) => number(x, joinPath(path, i), { unit: 'nm' }));
+  return [p[0], p[1], p[2]];
+}
+
+function readCandidates(v: unknown, path: string, m: Material): CandidateSpec[] {
+  if (typeof v === 'string') return familyCandidates(v, path, m);
+  const o = object(v, path);
+  onlyKeys(o, ['b', 'line', 'family', 'label'], path);
+  if (o.family !== undefined) return familyCandidates(string(o.family, joinPath(path, 'family')), joinPath(path, 'family'), m);
+  const b = readVector(required(o, 'b', path, '"1/2[1 1 0]"'), joinPath(path, 'b'), m);
+  if (norm(b) === 0) fail(joinPath(path, 'b'), 'is zero; give a nonzero Burgers vector');
+  const line = o.line === undefined ? undefined : readDirection(o.line, joinPath(path, 'line'), m);
+  const label = o.label === undefined ? `b = ${formatVector(b)}` : string(o.label, joinPath(path, 'label'));
+  return [line === undefined ? { label, b } : { label, b, line }];
+}
+
+function familyCandidates(text: string, path: string, m: Material): CandidateSpec[] {
+  const vs = parseFamily(text, m, { collapseSign: true, field: path }).members;
+  return vs.map((b) => ({ label: `b = ${formatVector(b)}`, b }));
+}
+
+/** A direction, 3 or 4 (hexagonal) indices, returned in 3-index lattice units. */
+export function readDirection(v: unknown, path: string, m: Material): Vec3 {
+  const idx = parseIndices(v as string | number[], path, usesFourIndices(m.lattice) ? '3or4' : 3);
+  const d = idx.length === 4 ? dirFour(idx, path) : ([idx[0], idx[1], idx[2]] as Vec3);
+  if (norm(d) === 0) fail(path, 'must not be [0 0 0]');
+  return d;
+}
+
+/** A plane / reflection, 3 or 4 (hexagonal) indices, returned in 3-index form. */
+export function readPlane(v: unknown, path: string, m: Material): Vec3 {
+  const idx = parseIndices(v as string | number[], path, usesFourIndices(m.lattice) ? '3or4' : 3);
+  if (idx.length === 4) {
+    try {
+      return planeFromFour([idx[0], idx[1], idx[2], idx[3]]);
+    } catch (e) {
+      throw new InputError(`${path}: ${(e as Error).message}`);
+    }
+  }
+  return [idx[0], idx[1], idx[2]];
+}
+
+/** A vector with an optional fraction prefix ("1/2[1 1 0]"), in lattice units. */
+export function readVector(v: unknown, path: string, m: Material): Vec3 {
+  const idx = parseVectorWithFraction(v as string | number[], path);
+  if (idx.length === 4) {
+    if (!usesFourIndices(m.lattice)) fail(path, 'has four indices, but the material is not hexagonal; use three');
+    return dirFour(idx, path);
+  }
+  return [idx[0], idx[1], idx[2]];
+}
+
+function dirFour(idx: readonly number[], path: string): Vec3 {
+  try {
+    return directionFromFour([idx[0], idx[1], idx[2], idx[3]]);
+  } catch (e) {
+    throw new InputError(`${path}: ${(e as Error).message}`);
+  }
+}
+
+function cart(m: Material, d: Vec3): Vec3 {
+  return directionToCartesian(m.lattice, d);
+}
+
+function cosCart(m: Material, a: Vec3, b: Vec3): number {
+  return Math.cos(angle(cart(m, a), cart(m, b)));
+}
+
+function deg(rad: number): number {
+  return (rad * 180) / Math.PI;
+}
+
+export function formatVector(v: Vec3): string {
+  const f = (x: number) => {
+    const r = Math.round(x * 1e6) / 1e6;
+    return Number.isInteger(r) ? String(r) : r.toFixed(4).replace(/0+$/, '');
+  };
+  return `[${f(v[0])} ${f(v[1])} ${f(v[2])}]`;
+}

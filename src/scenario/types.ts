@@ -1,0 +1,80 @@
+/**
+ * The validated scenario: one foil of one material, its defects and the
+ * imaging conditions. Vectors are in lattice units (3-index; hexagonal input
+ * in 4 indices is converted on reading). Positions are in nm.
+ */
+import type { Vec3 } from '../math/vec3.js';
+import type { Material } from '../crystal/material.js';
+
+export type BeamSet =
+  | { readonly kind: 'two' }
+  /** Systematic row n g for n = -m..m (2m+1 beams). */
+  | { readonly kind: 'row'; readonly count: number };
+
+export interface Condition {
+  readonly id: string;
+  /** Reflection g (plane indices, 3-index). */
+  readonly g: Vec3;
+  /** Deviation of g: given directly, as w = s xi_g, or by the weak-beam condition g(ng). */
+  readonly deviation: Deviation;
+  /** Beam direction for this condition (crystal direction). */
+  readonly beam: Vec3;
+  readonly beams: BeamSet;
+}
+
+export type Deviation =
+  | { readonly kind: 's'; readonly s_per_nm: number }
+  | { readonly kind: 'w'; readonly w: number }
+  /** Ewald sphere through n g: s_g = (n - 1) lambda g^2 / 2. */
+  | { readonly kind: 'weakBeam'; readonly n: number };
+
+export interface DislocationSpec {
+  readonly type: 'dislocation';
+  readonly label: string;
+  /** Burgers vector, lattice units. */
+  readonly b: Vec3;
+  /** Line direction u, lattice units. */
+  readonly line: Vec3;
+  /** A point on the line: x, y from the image centre in the reference image frame, z depth below the entrance surface (nm). */
+  readonly point_nm: Vec3;
+  /** Core radius used to regularise the field (nm). */
+  readonly core_nm?: number;
+}
+
+export type DefectSpec = DislocationSpec;
+
+export interface CandidateSpec {
+  readonly label: string;
+  readonly b: Vec3;
+  /** Optional line direction; otherwise each defect's own line is used. */
+  readonly line?: Vec3;
+}
+
+export interface ImageSpec {
+  readonly width_px: number;
+  readonly height_px: number;
+  readonly pixel_nm: number;
+}
+
+export interface Scenario {
+  readonly name: string;
+  readonly material: Material;
+  readonly kV: number;
+  readonly thickness_nm: number;
+  /** Foil normal as a crystal direction. */
+  readonly foilNormal: Vec3;
+  /** Reference beam direction (defines the frame in which defect points are given). */
+  readonly beam: Vec3;
+  /** Cartesian unit vector (crystal frame) drawn along +x, before projection perpendicular to the beam. */
+  readonly imageX_cart: Vec3;
+  readonly image: ImageSpec;
+  /** xi_g / xi'_g. */
+  readonly absorption: number;
+  readonly conditions: readonly Condition[];
+  readonly defects: readonly DefectSpec[];
+  readonly candidates: readonly CandidateSpec[];
+}
+
+/** Largest image the program will render, in pixels (memory guard: 4 float images of this size are ~ 64 MiB). */
+export const MAX_PIXELS = 2048 * 2048;
+export const MAX_SIDE_PX = 4096;

@@ -1,0 +1,185 @@
+/**
+ * The command line end to end, run as a user runs it: the compiled CLI in a
+ * child process (`npm test` builds dist/ first).
+ */
+import { describe, expect, it, beforeAll } from 'vitest';
+import { spawnSync } from 'node:child_process';
+import { mkdtempSync, writeFileSync, existsSync, readFileSync } from 'node:fs';
+import { tmpdir } from 'node:os';
+import { join } from 'node:path';
+import { createRequire } from 'node:module';
+
+// npm utif (independent TIFF reader); it ships no type declarations
+const UTIF = createRequire(import.meta.url)('utif') as {
+  decode(buf: ArrayBuffer): Record<string, unknown>[];
+  decodeImage(buf: ArrayBuffer, ifd: Record<string, unknown>): void;
+};
+
+const ROOT = join(import.meta.dirname, '..', '..');
+const CLI = join(ROOT, 'dist', 'cli', 'main.js');
+
+function run(...args: string[]) {
+  const r = spawnSync(process.execPath, [CLI, ...args], { cwd: ROOT, encoding: 'utf8' });
+  return { code: r.status, out: r.stdout, err: r.stderr };
+}
+
+beforeAll(() => {
+  if (!existsSync(CLI)) throw new Error('dist/cli/main.js is missing: run `npm run build` (npm test does it)');
+});
+
+describe('thinfoil reflection', () => {
+  it('Al 111 at 100 kV: xi_g near 56 nm (Hirsch et al. 1965 table, from memory, +-10 %)', () => {
+    const r = run('reflection', 'Al', '1,1,1', '--kv', '100', '--json');
+    expect(r.code).toBe(0);
+    const j = JSON.parse(r.out);
+    expect(j.xi_nm).toBeGreaterThan(56 * 0.9);
+    expect(j.xi_nm).toBeLessThan(56 * 1.1);
+    // lambda at 100 kV from CODATA 2018 (physics.md check value 3.7014 pm)
+    expect(j.lambda_pm).toBeCloseTo(3.7014, 3);
+    // d(111) = a/sqrt(3) with a(Al) = 0.40495 nm (handbook, from memory)
+    expect(j.d_nm).toBeCloseTo(0.40495 / Math.sqrt(3), 3);
+    for (const k of ['braggAngle_mrad', 'xiAbs_nm']) expect(Number.isFinite(j[k])).toBe(true);
+    expect(j.xiAbs_nm).toBeCloseTo(j.xi_nm / 0.1, 6);
+  });
+
+  it('prints a readable table without --json', () => {
+    const r = run('reflection', 'Cu', '2 0 0');
+    expect(r.code).toBe(0);
+    expect(r.out).toMatch(/xi_g/);
+  });
+
+  it('takes four indices for a hexagonal material', () => {
+    const r = run('reflection', 'Mg', '1,0,-1,1', '--json');
+    expect(r.code).toBe(0);
+    expect(JSON.parse(r.out).hkl).toEqual([1, 0, 1]);
+  });
+
+  it.each([
+    [['reflection', 'Unobtainium', '1,1,1'], /materials/],
+    [['reflection', 'Al', '1,1'], /indices|index/i],
+    [['reflection', 'Al', 'one,1,1'], /indices|index/i],
+    [['reflection', 'Al', '1,0,0'], /forbidden/i],
+    [['reflection', 'Si', '2,0,0'], /forbidden/i],
+    [['reflection', 'Al', '1,1,1', '--kv', '5'], /kV|--kv/],
+    [['reflection', 'Al', '1,1,1', '--kv', 'abc'], /--kv/],
+    [['reflection', 'Al', '1,1,1', '--kv', '5000'], /--kv/],
+  ])('bad input %j: exit code 2, one clear sentence', (args, pattern) => {
+    const r = run(...(args as string[]));
+    expect(r.code).toBe(2);
+    expect(r.err).toMatch(pattern);
+    expect(r.err).not.toMatch(/\n\s+at /); // no stack trace
+    expect(r.err.trim().split('\n').length).toBe(1);
+  });
+});
+
+describe('thinfoil materials', () => {
+  it('lists at least 20 materials', () => {
+    const r = run('materials', '--json');
+    expect(r.code).toBe(0);
+    expect(JSON.parse(r.out).materials.length).toBeGreaterThanOrEqual(20);
+  });
+});
+
+const GOOD = {
+  name: 'cli test',
+  material: 'Cu',
+  kV: 200,
+  foil: { thickness_nm: 60, normal: [0, 0, 1] },
+  beam: [0, 0, 1],
+  imageX: [1, 0, 0],
+  image: { width_px: 24, height_px: 20, pixel_nm: 1 },
+  conditions: [{ id: 'g200', g: [2, 0, 0], w: 0.5 }],
+  defects: [{ type: 'dislocation', b: '1/2[1 1 0]', line: [1, 1, 2], point_nm: [0, 0, 30] }],
+  candidates: ['1/2<110>'],
+};
+
+function scenarioFile(obj: unknown): { dir: string; file: string } {
+  const dir = mkdtempSync(join(tmpdir(), 'thinfoil-cli-'));
+  const file = join(dir, 'scenario.json');
+  writeFileSync(file, JSON.stringify(obj));
+  return { dir, file };
+}
+
+describe('thinfoil render', () => {
+  it('writes PNG and float TIFF files whose values match the JSON statistics (read back with npm utif)', () => {
+    const { dir, file } = scenarioFile(GOOD);
+    const before = readFileSync(file, 'utf8');
+    const out = join(dir, 'out');
+    const r = run('render', file, '--out', out, '--json');
+    expect(r.code, r.err).toBe(0);
+    const j = JSON.parse(r.out);
+    expect(j.images.length).toBe(2);
+    for (const e of j.images) {
+      expect(existsSync(e.png)).toBe(true);
+      expect(existsSync(e.tiff)).toBe(true);
+      const buf = readFileSync(e.tiff);
+      const ifds = UTIF.decode(buf.buffer.slice(buf.byteOffset, buf.byteOffset + buf.byteLength));
+      UTIF.decodeImage(buf.buffer.slice(buf.byteOffset, buf.byteOffset + buf.byteLength), ifds[0]);
+      const ifd = ifds[0] as unknown as { width: number; height: number; data: Uint8Array };
+      expect(ifd.width).toBe(24);
+      expect(ifd.height).toBe(20);
+      const f = new Float32Array(ifd.data.buffer, ifd.data.byteOffset, 24 * 20);
+      let min = Infinity, max = -Infinity, sum = 0;
+      for (const v of f) { min = Math.min(min, v); max = Math.max(max, v); sum += v; }
+      expect(min).toBeCloseTo(e.min, 6);
+      expect(max).toBeCloseTo(e.max, 6);
+      expect(sum / f.length).toBeCloseTo(e.mean, 6);
+      expect(e.background).toBeGreaterThan(0);
+      expect(e.background).toBeLessThan(1);
+      expect(['bf', 'df']).toContain(e.field);
+    }
+    expect(readFileSync(file, 'utf8')).toBe(before); // the input is never modified
+    expect(existsSync(join(out, 'render.json'))).toBe(true);
+  });
+
+  const bad: [string, (s: any) => void, RegExp][] = [
+    ['missing foil', (s) => delete s.foil, /foil/],
+    ['missing thickness', (s) => delete s.foil.thickness_nm, /foil\.thickness_nm/],
+    ['zero b', (s) => (s.defects[0].b = [0, 0, 0]), /defects\[0\]\.b/],
+    ['g not perpendicular to the beam', (s) => (s.conditions[0].g = [0, 0, 2]), /conditions\[0\]\.g/],
+    ['thickness <= 0', (s) => (s.foil.thickness_nm = 0), /foil\.thickness_nm/],
+    ['negative thickness', (s) => (s.foil.thickness_nm = -5), /foil\.thickness_nm/],
+    ['image above the memory guard', (s) => (s.image = { width_px: 4000, height_px: 4000, pixel_nm: 1 }), /image/],
+    ['both s and w', (s) => (s.conditions[0].s_per_nm = 0.1), /conditions\[0\]/],
+    ['unknown defect type', (s) => (s.defects[0].type = 'wormhole'), /defects\[0\]\.type/],
+    ['misspelt field', (s) => ((s.foil.thicknes_nm = 3), delete s.foil.thickness_nm), /foil\.thicknes_nm|foil\.thickness_nm/],
+    ['forbidden reflection', (s) => (s.conditions[0].g = [1, 0, 0]), /forbidden/],
+    ['unknown material', (s) => (s.material = 'Kryptonite'), /materials/],
+  ];
+  it.each(bad)('bad scenario (%s): exit code 2 naming the field', (_name, mutate, pattern) => {
+    const s = structuredClone(GOOD) as any;
+    mutate(s);
+    const { file } = scenarioFile(s);
+    const r = run('render', file, '--json');
+    expect(r.code).toBe(2);
+    expect(r.err).toMatch(pattern);
+    expect(r.err).not.toMatch(/\n\s+at /);
+  });
+
+  it('a file that is not JSON, and a missing file: exit code 2', () => {
+    const dir = mkdtempSync(join(tmpdir(), 'thinfoil-cli-'));
+    const f = join(dir, 'x.json');
+    writeFileSync(f, '{ not json');
+    expect(run('render', f).code).toBe(2);
+    expect(run('render', join(dir, 'nothing.json')).code).toBe(2);
+  });
+});
+
+describe('thinfoil visibility', () => {
+  it('tabulates the defect and the expanded family with verdicts', () => {
+    const { file } = scenarioFile(GOOD);
+    const r = run('visibility', file, '--json');
+    expect(r.code, r.err).toBe(0);
+    const j = JSON.parse(r.out);
+    // the defect + 6 members of 1/2<110> with signs collapsed
+    expect(j.rows.length).toBe(7);
+    const d = j.rows[0];
+    expect(d.entries[0].gb).toBeCloseTo(1, 12); // (200).1/2[110] = 1
+    expect(d.entries[0].verdict).toBe('visible');
+    const inv = j.rows.filter((row: any) => row.kind === 'candidate' && Math.abs(row.entries[0].gb) < 1e-9);
+    expect(inv.length).toBe(2); // 1/2[011] and 1/2[01-1] have g.b = 0 for g = 200
+    const text = run('visibility', file);
+    expect(text.code).toBe(0);
+    expect(text.out).toMatch(/g200/);
+  });
+});
