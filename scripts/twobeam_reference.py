@@ -11,7 +11,9 @@ rtol = atol = 1e-12.
 beta'(z) is a sum of Lorentzians A / (1 + ((z - z0)/w)^2), the depth profile
 of the strain of a dislocation passing a column at distance w (A = g.b/(2 pi w)).
 The integration is split at every z0 so that the solver cannot step over a
-narrow peak.
+narrow peak. Cases: perfect crystals with absorption, single Lorentzians,
+a dipole, a narrow peak, and 60 random sums of 1-3 Lorentzians (fixed seed).
+Used by test/dynamics/twoBeamPerfect.test.ts and twoBeamAdaptive.test.ts.
 
 Usage:
   /usr/bin/python3 scripts/twobeam_reference.py            # writes test/reference/twobeam-scipy.json

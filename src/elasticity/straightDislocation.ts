@@ -29,11 +29,14 @@
  *   q = rho^2 + rc^2 (1 - rho^2/rm^2)^3   for rho < rm,   q = rho^2 otherwise.
  * Outside rm = 2 rc the field is therefore exactly the singular one; inside it
  * is finite everywhere (on the line R = (-(|b_e|/2pi)(1-2nu)k ln rc^2) e2 and
- * grad R = 0) and continuous with a continuous gradient. `gradient` is the
- * exact derivative of `displacement` everywhere off the cut. Inside the core the
- * jump across the cut is b f(rho), growing from 0 on the line to b at rm (the
- * Burgers vector is spread along the cut over 2 rc, like a Peierls core), and
- * there the gradient itself jumps across the cut by b f'(rho) (a bounded term).
+ * grad R = 0) and continuous. Inside the core the jump of `displacement`
+ * across the cut is b f(rho), growing from 0 on the line to b at rm (the
+ * Burgers vector is spread over 2 rc, like a Peierls core).
+ * `gradient` is the exact derivative of `displacement` outside rm. Inside rm
+ * it leaves out the term theta grad f, which would jump across the cut: the
+ * gradient used for imaging is then smooth everywhere (the angular part is
+ * (-y, x)/q), so a column passing through the core sees a smooth beta' and
+ * the adaptive integrator converges there as anywhere else.
  */
 import { type Vec3, cross, dot, norm, scale, sub } from '../math/vec3.js';
 import { InputError } from '../errors.js';
@@ -169,17 +172,16 @@ export function straightDislocation(opts: StraightDislocationOptions): Displacem
       const r2 = x2 + y2;
       let q = r2;
       let m = 1; // dq/d(rho^2)
-      let gf = 0; // theta * |grad f| / rho, so grad(theta f) = (-y, x)/q + gf (x, y)
       if (r2 < rm2) {
         const o = 1 - r2 / rm2;
         q = r2 + rc2 * o * o * o;
         m = 1 - 3 * rcm * o * o;
-        gf = (theta(lx, ly) * 2 * (q - r2 * m)) / (q * q);
       }
       const iq = 1 / q;
       const iq2 = iq * iq;
-      const tx = -ly * iq + gf * lx;
-      const ty = lx * iq + gf * ly;
+      // smooth angular part: f grad(theta) = (-y, x)/q; the term theta grad f (inside the core only) is left out
+      const tx = -ly * iq;
+      const ty = lx * iq;
       const dxy = x2 - y2;
       // local 3x2 block G_ab = dR_a / dx_b (b = x, y); nothing depends on the coordinate along u
       const g11 = Be * tx + Be2k * ly * (q - 2 * x2 * m) * iq2;

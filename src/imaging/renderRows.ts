@@ -8,6 +8,7 @@ import type { Vec3 } from '../math/vec3.js';
 import type { ImageFrame } from '../geometry/frames.js';
 import { columnEntryOffset, pixelX } from '../geometry/frames.js';
 import { integrateColumn, perfectCrystal, type TwoBeamParams } from '../dynamics/twoBeam.js';
+import { rk4Column } from '../dynamics/rk4Reference.js';
 import { buildField, type FieldSpec } from './fieldSpecs.js';
 
 export interface RenderJob {
@@ -21,6 +22,8 @@ export interface RenderJob {
   /** Integrator tolerance (intensity). */
   readonly tol: number;
   readonly fields: readonly FieldSpec[];
+  /** Baseline for benchmarks only: plain fixed-step RK4 with this many steps per column. */
+  readonly rk4Steps?: number;
 }
 
 export interface RowStats {
@@ -73,7 +76,11 @@ export function renderRows(job: RenderJob, row0: number, row1: number, bf: Float
       cx = x * ex0 + y * ey0 + tau0 * kx;
       cy = x * ex1 + y * ey1 + tau0 * ky;
       cz = x * ex2 + y * ey2 + tau0 * kz;
-      integrateColumn(out, params, L, betaPrime, noFaults, tol, stats);
+      if (job.rk4Steps === undefined) integrateColumn(out, params, L, betaPrime, noFaults, tol, stats);
+      else {
+        rk4Column(out, params, L, betaPrime, job.rk4Steps);
+        stats.slices += job.rk4Steps;
+      }
       bf[k] = out[0] * out[0] + out[1] * out[1];
       df[k] = out[2] * out[2] + out[3] * out[3];
     }

@@ -11,7 +11,7 @@ import type { RenderJob } from './renderRows.js';
 import type { Progress, RenderPool } from './workerPool.js';
 
 /** Default integrator tolerance on intensity per column. */
-export const DEFAULT_TOLERANCE = 1e-5;
+export const DEFAULT_TOLERANCE = 1e-4;
 
 export interface ConditionImages {
   readonly condition: ResolvedCondition;
