@@ -2,6 +2,8 @@
 import type { Vec3 } from '../math/vec3.js';
 import type { Scenario } from '../scenario/types.js';
 import { judge, type VisibilityEntry } from './visibility.js';
+import { directionToCartesian } from '../crystal/lattice.js';
+import { shockleySplit } from '../elasticity/dissociation.js';
 
 export interface VisibilityRow {
   readonly subject: string;
@@ -21,8 +23,20 @@ export function visibilityTable(sc: Scenario): VisibilityRow[] {
     ...(line ? { line } : {}),
     entries: sc.conditions.map((c) => ({ condition: c.id, g: c.g, ...judge(l, c.g, b, line) })),
   });
-  for (const d of sc.defects) rows.push(make(d.label, 'defect', d.b, d.line));
-  const soleLine = sc.defects.length === 1 ? sc.defects[0].line : undefined;
+  const lines: Vec3[] = [];
+  for (const d of sc.defects) {
+    if (d.type === 'dislocation' || d.type === 'partial') {
+      rows.push(make(d.label, 'defect', d.b, d.line));
+      lines.push(d.line);
+    } else if (d.type === 'dissociated') {
+      rows.push(make(`${d.label} (perfect b)`, 'defect', d.b, d.line));
+      const pair = shockleySplit({ lattice: l, b: d.b, planeNormal: d.plane, lineCartesian: directionToCartesian(l, d.line) });
+      rows.push(make(`${d.label}, partial 1`, 'defect', pair.b1, d.line));
+      rows.push(make(`${d.label}, partial 2`, 'defect', pair.b2, d.line));
+      lines.push(d.line);
+    }
+  }
+  const soleLine = lines.length === 1 ? lines[0] : undefined;
   for (const c of sc.candidates) rows.push(make(c.label, 'candidate', c.b, c.line ?? soleLine));
   return rows;
 }

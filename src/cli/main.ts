@@ -8,6 +8,7 @@ import { materialsCommand } from './materialsCommand.js';
 import { renderCommand } from './renderCommand.js';
 import { visibilityCommand } from './visibilityCommand.js';
 import { demoCommand } from './demoCommand.js';
+import { faultCommand } from './faultCommand.js';
 import { InputError } from '../errors.js';
 
 const program = new Command();
@@ -60,6 +61,13 @@ program
   .argument('<scenario>', 'scenario file (JSON)')
   .option('--json', 'JSON on stdout')
   .action(action(visibilityCommand));
+
+program
+  .command('fault')
+  .description('fault nature (intrinsic / extrinsic outer fringes) and inclusion misfit sign, by simulation')
+  .argument('<scenario>', 'scenario file (JSON)')
+  .option('--json', 'JSON on stdout')
+  .action(action(faultCommand));
 
 program
   .command('demo')

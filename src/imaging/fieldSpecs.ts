@@ -1,15 +1,22 @@
 /**
- * Scenario defects -> plain, serialisable field specifications in the crystal
- * Cartesian frame (nm), and the displacement fields built from them. Plain
- * data so that worker threads can rebuild the same fields.
+ * Scenario defects -> a plain, serialisable defect model in the crystal
+ * Cartesian frame (nm): the displacement fields to superpose, and the
+ * surfaces across which R jumps (fault planes and the cuts of dislocations),
+ * which the integrator crosses with an exact phase step (alpha form).
+ * Plain data so that worker threads can rebuild the same model.
  */
 import type { Vec3 } from '../math/vec3.js';
-import { directionToCartesian } from '../crystal/lattice.js';
-import type { Scenario } from '../scenario/types.js';
+import { add, cross, dot, scale, sub, unit } from '../math/vec3.js';
+import { directionToCartesian, planeNormalToCartesian } from '../crystal/lattice.js';
+import type { Material } from '../crystal/material.js';
+import type { DefectSpec, Scenario } from '../scenario/types.js';
 import { imageFrame, imagePointToCrystal, type ImageFrame } from '../geometry/frames.js';
 import type { DisplacementField } from '../elasticity/field.js';
 import { superpose } from '../elasticity/field.js';
-import { straightDislocation } from '../elasticity/straightDislocation.js';
+import { straightDislocation, dislocationFrame } from '../elasticity/straightDislocation.js';
+import { sphericalInclusion } from '../elasticity/inclusion.js';
+import { ribbonWidth_nm, shockleySplit } from '../elasticity/dissociation.js';
+import { InputError } from '../errors.js';
 
 export interface DislocationFieldSpec {
   readonly kind: 'dislocation';
@@ -18,10 +25,39 @@ export interface DislocationFieldSpec {
   readonly point_nm: Vec3;
   readonly poissonRatio: number;
   readonly coreRadius_nm?: number;
-  readonly cutDirection?: Vec3;
+  readonly cutDirection: Vec3;
 }
 
-export type FieldSpec = DislocationFieldSpec;
+export interface InclusionFieldSpec {
+  readonly kind: 'inclusion';
+  readonly centre_nm: Vec3;
+  readonly radius_nm: number;
+  readonly strain: number;
+  readonly poissonRatio: number;
+}
+
+export type FieldSpec = DislocationFieldSpec | InclusionFieldSpec;
+
+/**
+ * A surface across which the displacement jumps. For a column crossing from
+ * the side opposite to `normal` to the side `normal` points to, R changes by
+ * `jump_nm` (R behind minus R in front).
+ */
+export interface JumpSurface {
+  readonly kind: 'plane' | 'half-plane';
+  readonly point_nm: Vec3;
+  /** Unit normal of the plane. */
+  readonly normal: Vec3;
+  readonly jump_nm: Vec3;
+  /** Half-plane only: the bounding line direction (unit) and the in-plane direction (unit) into the half-plane. */
+  readonly edge?: Vec3;
+  readonly into?: Vec3;
+}
+
+export interface DefectModel {
+  readonly fields: readonly FieldSpec[];
+  readonly surfaces: readonly JumpSurface[];
+}
 
 /** The frame in which defect points are given: the scenario's own beam. */
 export function referenceFrame(sc: Scenario): ImageFrame {
@@ -29,25 +65,105 @@ export function referenceFrame(sc: Scenario): ImageFrame {
   return imageFrame(directionToCartesian(l, sc.beam), sc.imageX_cart, directionToCartesian(l, sc.foilNormal), sc.thickness_nm);
 }
 
-export function fieldSpecs(sc: Scenario): FieldSpec[] {
-  const l = sc.material.lattice;
-  const ref = referenceFrame(sc);
-  const nu = sc.material.elastic.poissonRatio;
-  return sc.defects.map((d): FieldSpec => {
-    const spec: DislocationFieldSpec = {
-      kind: 'dislocation',
-      b_nm: directionToCartesian(l, d.b),
-      line: directionToCartesian(l, d.line),
-      point_nm: imagePointToCrystal(ref, d.point_nm),
-      poissonRatio: nu,
-    };
-    return d.core_nm === undefined ? spec : { ...spec, coreRadius_nm: d.core_nm };
-  });
+/** A dislocation with an explicit cut: its field and the half-plane where R jumps by b. */
+function dislocationWithCut(b_nm: Vec3, line: Vec3, point_nm: Vec3, nu: number, cut: Vec3 | undefined, core?: number): { field: DislocationFieldSpec; surface: JumpSurface } {
+  const u = unit(line);
+  const c = cut === undefined ? scale(dislocationFrame(b_nm, u).e1, -1) : unit(sub(cut, scale(u, dot(cut, u))));
+  const field: DislocationFieldSpec = {
+    kind: 'dislocation',
+    b_nm,
+    line: u,
+    point_nm,
+    poissonRatio: nu,
+    cutDirection: c,
+    ...(core === undefined ? {} : { coreRadius_nm: core }),
+  };
+  // Crossing the cut towards +(u x c), R drops by b (FS/RH; see elasticity/straightDislocation.ts).
+  const surface: JumpSurface = { kind: 'half-plane', point_nm, normal: unit(cross(u, c)), jump_nm: scale(b_nm, -1), edge: u, into: c };
+  return { field, surface };
 }
 
-/** The combined displacement field, or null for a perfect crystal. */
+export function defectModel(sc: Scenario): DefectModel {
+  const m = sc.material;
+  const l = m.lattice;
+  const ref = referenceFrame(sc);
+  const nu = m.elastic.poissonRatio;
+  const fields: FieldSpec[] = [];
+  const surfaces: JumpSurface[] = [];
+  const cart = (d: Vec3) => directionToCartesian(l, d);
+  const add1 = (x: { field: DislocationFieldSpec; surface: JumpSurface }) => {
+    fields.push(x.field);
+    surfaces.push(x.surface);
+  };
+  for (const d of sc.defects) {
+    switch (d.type) {
+      case 'dislocation':
+        add1(dislocationWithCut(cart(d.b), cart(d.line), imagePointToCrystal(ref, d.point_nm), nu, undefined, d.core_nm));
+        break;
+      case 'partial': {
+        const n = unit(planeNormalToCartesian(l, d.faultPlane));
+        const side = cart(d.faultSide);
+        const inPlane = sub(side, scale(n, dot(side, n)));
+        add1(dislocationWithCut(cart(d.b), cart(d.line), imagePointToCrystal(ref, d.point_nm), nu, inPlane, d.core_nm));
+        break;
+      }
+      case 'dissociated':
+        for (const p of dissociatedPartials(m, d, ref)) add1(p);
+        break;
+      case 'fault': {
+        // normal oriented to the side behind the fault, as seen along the reference beam
+        let n = unit(planeNormalToCartesian(l, d.plane));
+        if (dot(n, ref.ez) < 0) n = scale(n, -1);
+        surfaces.push({ kind: 'plane', point_nm: imagePointToCrystal(ref, d.point_nm), normal: n, jump_nm: cart(d.vector) });
+        break;
+      }
+      case 'inclusion':
+        fields.push({ kind: 'inclusion', centre_nm: imagePointToCrystal(ref, d.centre_nm), radius_nm: d.radius_nm, strain: d.strain, poissonRatio: nu });
+        break;
+    }
+  }
+  return { fields, surfaces };
+}
+
+/** The two Shockley partials of a dissociated dislocation, each with its cut along the ribbon (intrinsic fault between them). */
+function dissociatedPartials(m: Material, d: Extract<DefectSpec, { type: 'dissociated' }>, ref: ImageFrame) {
+  const l = m.lattice;
+  let pair;
+  try {
+    pair = shockleySplit({ lattice: l, b: d.b, planeNormal: d.plane, lineCartesian: directionToCartesian(l, d.line) });
+  } catch (e) {
+    if (e instanceof InputError) throw new InputError(`${d.label}: ${e.message}`);
+    throw e;
+  }
+  const width =
+    d.separation_nm ??
+    ribbonWidth_nm(pair.b1_nm, pair.b2_nm, pair.line, m.elastic.shearModulus_GPa, m.elastic.poissonRatio, m.stackingFaultEnergy_mJ_per_m2 as number);
+  const centre = imagePointToCrystal(ref, d.point_nm);
+  const p1 = add(centre, scale(pair.ribbonDirection, -width / 2));
+  const p2 = add(centre, scale(pair.ribbonDirection, width / 2));
+  const nu = m.elastic.poissonRatio;
+  return [
+    dislocationWithCut(pair.b1_nm, pair.line, p1, nu, pair.ribbonDirection, d.core_nm),
+    dislocationWithCut(pair.b2_nm, pair.line, p2, nu, pair.ribbonDirection, d.core_nm),
+  ];
+}
+
+/** Width of the ribbon a dissociated defect will get (nm). */
+export function dissociationWidth_nm(m: Material, d: Extract<DefectSpec, { type: 'dissociated' }>): number {
+  if (d.separation_nm !== undefined) return d.separation_nm;
+  const l = m.lattice;
+  const pair = shockleySplit({ lattice: l, b: d.b, planeNormal: d.plane, lineCartesian: directionToCartesian(l, d.line) });
+  return ribbonWidth_nm(pair.b1_nm, pair.b2_nm, pair.line, m.elastic.shearModulus_GPa, m.elastic.poissonRatio, m.stackingFaultEnergy_mJ_per_m2 as number);
+}
+
+/** The combined displacement field, or null when no defect has a field. */
 export function buildField(specs: readonly FieldSpec[]): DisplacementField | null {
   if (specs.length === 0) return null;
-  const fields = specs.map((s) => straightDislocation(s));
+  const fields = specs.map((s) =>
+    s.kind === 'dislocation'
+      ? straightDislocation(s)
+      : sphericalInclusion({ centre_nm: s.centre_nm, radius_nm: s.radius_nm, strain: s.strain, poissonRatio: s.poissonRatio }),
+  );
   return fields.length === 1 ? fields[0] : superpose(fields);
 }
+

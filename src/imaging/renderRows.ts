@@ -1,15 +1,17 @@
 /**
  * The per-column work: for every pixel of a band of rows, integrate the
  * two-beam Howie-Whelan equations down the column through the displacement
- * field and store bright- and dark-field intensities. Pure computation on
- * plain data, so it runs the same in the main thread and in workers.
+ * field, crossing fault planes and dislocation cuts with an exact phase step,
+ * and store bright- and dark-field intensities. Pure computation on plain
+ * data, so it runs the same in the main thread and in workers.
  */
 import type { Vec3 } from '../math/vec3.js';
+import { dot } from '../math/vec3.js';
 import type { ImageFrame } from '../geometry/frames.js';
 import { columnEntryOffset, pixelX } from '../geometry/frames.js';
 import { integrateColumn, perfectCrystal, type TwoBeamParams } from '../dynamics/twoBeam.js';
 import { rk4Column } from '../dynamics/rk4Reference.js';
-import { buildField, type FieldSpec } from './fieldSpecs.js';
+import { buildField, type DefectModel } from './fieldSpecs.js';
 
 export interface RenderJob {
   readonly width: number;
@@ -21,7 +23,7 @@ export interface RenderJob {
   readonly params: TwoBeamParams;
   /** Integrator tolerance (intensity). */
   readonly tol: number;
-  readonly fields: readonly FieldSpec[];
+  readonly model: DefectModel;
   /** Baseline for benchmarks only: plain fixed-step RK4 with this many steps per column. */
   readonly rk4Steps?: number;
 }
@@ -31,23 +33,58 @@ export interface RowStats {
   columns: number;
 }
 
-/**
- * Fill rows [row0, row1) of the image into bf and df (offset 0 = first pixel
- * of row0). Returns slice statistics.
- */
-export function renderRows(job: RenderJob, row0: number, row1: number, bf: Float32Array, df: Float32Array): RowStats {
-  const { width, height, pixel_nm, frame, g_cart, params, tol } = job;
+/** A jump surface reduced to what one image needs: its phase and geometry. */
+interface ActiveSurface {
+  /** alpha = 2 pi g.(R behind - R in front) for a column crossing along +normal. */
+  readonly alpha: number;
+  readonly p: Vec3;
+  readonly n: Vec3;
+  /** k . n */
+  readonly kn: number;
+  readonly halfPlane: boolean;
+  readonly into: Vec3;
+}
+
+/** Surfaces whose phase is not a multiple of 2 pi and that columns actually cross. */
+export function activeSurfaces(job: RenderJob): ActiveSurface[] {
+  const k = job.frame.ez;
+  const out: ActiveSurface[] = [];
+  for (const s of job.model.surfaces) {
+    const gR = dot(job.g_cart, s.jump_nm);
+    if (Math.abs(gR - Math.round(gR)) < 1e-9) continue; // alpha = 2 pi n: invisible
+    const kn = dot(k, s.normal);
+    if (Math.abs(kn) < 1e-12) continue; // the beam runs within the plane: columns never cross it
+    out.push({ alpha: 2 * Math.PI * gR, p: s.point_nm, n: s.normal, kn, halfPlane: s.kind === 'half-plane', into: s.into ?? [0, 0, 0] });
+  }
+  return out;
+}
+
+/** Evaluates single columns of one job: amplitudes at the exit surface for the column through image point (x, y). */
+export interface ColumnEvaluator {
+  /** Writes (re phi0, im phi0, re phig, im phig) into out; returns nothing. */
+  column(out: Float64Array, x: number, y: number): void;
+  /** True when the job has no defect at all (every column is the perfect crystal). */
+  readonly perfect: boolean;
+  readonly stats: { slices: number };
+}
+
+export function columnEvaluator(job: RenderJob): ColumnEvaluator {
+  const { frame, g_cart, params, tol } = job;
   const L = frame.columnLength_nm;
-  const out = new Float64Array(4);
   const stats = { slices: 0 };
-  const field = buildField(job.fields);
-  if (field === null) {
-    perfectCrystal(out, params, L);
-    const i0 = out[0] * out[0] + out[1] * out[1];
-    const ig = out[2] * out[2] + out[3] * out[3];
-    bf.fill(i0, 0, (row1 - row0) * width);
-    df.fill(ig, 0, (row1 - row0) * width);
-    return { slices: (row1 - row0) * width, columns: (row1 - row0) * width };
+  const field = buildField(job.model.fields);
+  const surfaces = activeSurfaces(job);
+  if (field === null && surfaces.length === 0) {
+    const p = new Float64Array(4);
+    perfectCrystal(p, params, L);
+    return {
+      perfect: true,
+      stats,
+      column(out) {
+        out.set(p);
+        stats.slices++;
+      },
+    };
   }
   // beta'(z) = g . (grad R) . ez = sum_ij g_i dR_i/dx_j ez_j
   const [gx, gy, gz] = g_cart;
@@ -56,34 +93,91 @@ export function renderRows(job: RenderJob, row0: number, row1: number, bf: Float
   let cx = 0;
   let cy = 0;
   let cz = 0;
-  const betaPrime = (z: number): number => {
-    field.gradient(grad, cx + z * kx, cy + z * ky, cz + z * kz);
-    return (
-      gx * (grad[0] * kx + grad[1] * ky + grad[2] * kz) +
-      gy * (grad[3] * kx + grad[4] * ky + grad[5] * kz) +
-      gz * (grad[6] * kx + grad[7] * ky + grad[8] * kz)
-    );
-  };
-  const noFaults = new Float64Array(0);
+  const betaPrime =
+    field === null
+      ? () => 0
+      : (z: number): number => {
+          field.gradient(grad, cx + z * kx, cy + z * ky, cz + z * kz);
+          return (
+            gx * (grad[0] * kx + grad[1] * ky + grad[2] * kz) +
+            gy * (grad[3] * kx + grad[4] * ky + grad[5] * kz) +
+            gz * (grad[6] * kx + grad[7] * ky + grad[8] * kz)
+          );
+        };
+  // fault crossings of the current column: [z, alpha] pairs sorted by z, one array per count
+  const crossings = surfaces.map((_, i) => new Float64Array(2 * (i + 1)));
+  const none = new Float64Array(0);
+  const zs = new Float64Array(surfaces.length);
+  const as = new Float64Array(surfaces.length);
   const [ex0, ex1, ex2] = frame.ex;
   const [ey0, ey1, ey2] = frame.ey;
-  let k = 0;
-  for (let j = row0; j < row1; j++) {
-    const y = pixelX(j, height, pixel_nm);
-    for (let i = 0; i < width; i++, k++) {
-      const x = pixelX(i, width, pixel_nm);
+  return {
+    perfect: false,
+    stats,
+    column(out, x, y) {
       const tau0 = columnEntryOffset(frame, x, y);
       cx = x * ex0 + y * ey0 + tau0 * kx;
       cy = x * ex1 + y * ey1 + tau0 * ky;
       cz = x * ex2 + y * ey2 + tau0 * kz;
-      if (job.rk4Steps === undefined) integrateColumn(out, params, L, betaPrime, noFaults, tol, stats);
+      let count = 0;
+      for (let s = 0; s < surfaces.length; s++) {
+        const f = surfaces[s];
+        const zc = ((f.p[0] - cx) * f.n[0] + (f.p[1] - cy) * f.n[1] + (f.p[2] - cz) * f.n[2]) / f.kn;
+        if (!(zc > 0 && zc < L)) continue;
+        if (f.halfPlane) {
+          const t = (cx + zc * kx - f.p[0]) * f.into[0] + (cy + zc * ky - f.p[1]) * f.into[1] + (cz + zc * kz - f.p[2]) * f.into[2];
+          if (t <= 0) continue;
+        }
+        // insertion by depth
+        let q = count++;
+        while (q > 0 && zs[q - 1] > zc) {
+          zs[q] = zs[q - 1];
+          as[q] = as[q - 1];
+          q--;
+        }
+        zs[q] = zc;
+        as[q] = f.kn > 0 ? f.alpha : -f.alpha;
+      }
+      let faults = none;
+      if (count > 0) {
+        faults = crossings[count - 1];
+        for (let q = 0; q < count; q++) {
+          faults[2 * q] = zs[q];
+          faults[2 * q + 1] = as[q];
+        }
+      }
+      if (job.rk4Steps === undefined) integrateColumn(out, params, L, betaPrime, faults, tol, stats);
       else {
         rk4Column(out, params, L, betaPrime, job.rk4Steps);
         stats.slices += job.rk4Steps;
       }
+    },
+  };
+}
+
+/**
+ * Fill rows [row0, row1) of the image into bf and df (offset 0 = first pixel
+ * of row0). Returns slice statistics.
+ */
+export function renderRows(job: RenderJob, row0: number, row1: number, bf: Float32Array, df: Float32Array): RowStats {
+  const { width, height, pixel_nm } = job;
+  const ev = columnEvaluator(job);
+  const out = new Float64Array(4);
+  const n = (row1 - row0) * width;
+  if (ev.perfect) {
+    ev.column(out, 0, 0);
+    bf.fill(out[0] * out[0] + out[1] * out[1], 0, n);
+    df.fill(out[2] * out[2] + out[3] * out[3], 0, n);
+    return { slices: n, columns: n };
+  }
+  let k = 0;
+  for (let j = row0; j < row1; j++) {
+    const y = pixelX(j, height, pixel_nm);
+    for (let i = 0; i < width; i++, k++) {
+      ev.column(out, pixelX(i, width, pixel_nm), y);
       bf[k] = out[0] * out[0] + out[1] * out[1];
       df[k] = out[2] * out[2] + out[3] * out[3];
     }
   }
-  return { slices: stats.slices, columns: (row1 - row0) * width };
+  return { slices: ev.stats.slices, columns: n };
 }

@@ -5,7 +5,7 @@
  */
 import { perfectCrystal, type TwoBeamParams } from '../dynamics/twoBeam.js';
 import type { Scenario } from '../scenario/types.js';
-import { fieldSpecs } from './fieldSpecs.js';
+import { defectModel } from './fieldSpecs.js';
 import { resolveCondition, type ResolvedCondition } from './resolveCondition.js';
 import type { RenderJob } from './renderRows.js';
 import type { Progress, RenderPool } from './workerPool.js';
@@ -38,7 +38,7 @@ export function renderJob(sc: Scenario, c: ResolvedCondition, tol = DEFAULT_TOLE
     g_cart: c.g_cart,
     params: twoBeamParams(c),
     tol,
-    fields: fieldSpecs(sc),
+    model: defectModel(sc),
   };
 }
 

@@ -41,7 +41,68 @@ export interface DislocationSpec {
   readonly core_nm?: number;
 }
 
-export type DefectSpec = DislocationSpec;
+/** A planar fault crossing the whole foil. */
+export interface FaultSpec {
+  readonly type: 'fault';
+  readonly label: string;
+  /** Fault plane (plane indices). */
+  readonly plane: Vec3;
+  /**
+   * Fault vector R_f, lattice units: the displacement of the crystal behind
+   * the fault (the side the electrons reach second) relative to the crystal
+   * in front of it.
+   */
+  readonly vector: Vec3;
+  /** How the vector was given: "intrinsic", "extrinsic" or "vector". */
+  readonly nature: 'intrinsic' | 'extrinsic' | 'vector';
+  /** A point on the fault plane (image frame: x, y, depth). */
+  readonly point_nm: Vec3;
+}
+
+/** A partial dislocation bounding a fault that runs from its line to the foil surfaces. */
+export interface PartialSpec {
+  readonly type: 'partial';
+  readonly label: string;
+  readonly b: Vec3;
+  readonly line: Vec3;
+  readonly point_nm: Vec3;
+  /** Plane of the fault the partial bounds. */
+  readonly faultPlane: Vec3;
+  /** Crystal direction (projected into the fault plane, perpendicular to the line) from the line into the fault. */
+  readonly faultSide: Vec3;
+  readonly core_nm?: number;
+}
+
+/** A perfect fcc dislocation split into two Shockley partials with an intrinsic fault ribbon between them. */
+export interface DissociatedSpec {
+  readonly type: 'dissociated';
+  readonly label: string;
+  /** Perfect Burgers vector (a/2<110>). */
+  readonly b: Vec3;
+  /** Glide plane {111}. */
+  readonly plane: Vec3;
+  readonly line: Vec3;
+  /** Midpoint between the partials (image frame). */
+  readonly point_nm: Vec3;
+  /** Partial separation; omitted: the isotropic equilibrium width from the stacking-fault energy. */
+  readonly separation_nm?: number;
+  readonly core_nm?: number;
+}
+
+/** A coherent spherical inclusion (Ashby & Brown 1963). */
+export interface InclusionSpec {
+  readonly type: 'inclusion';
+  readonly label: string;
+  /** Centre (image frame: x, y, depth). */
+  readonly centre_nm: Vec3;
+  readonly radius_nm: number;
+  /** Constrained strain eps (given directly or from the misfit delta). */
+  readonly strain: number;
+  /** The misfit delta when given. */
+  readonly misfit?: number;
+}
+
+export type DefectSpec = DislocationSpec | FaultSpec | PartialSpec | DissociatedSpec | InclusionSpec;
 
 export interface CandidateSpec {
   readonly label: string;

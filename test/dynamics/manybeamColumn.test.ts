@@ -9,7 +9,7 @@
  * All crystal numbers are invented test inputs (realistic magnitudes).
  */
 import { describe, expect, it } from 'vitest';
-import odex from 'odex';
+import { createRequire } from 'node:module';
 import { amplitudesAt, blochWaves } from '../../src/dynamics/blochWaves.js';
 import {
   integrateColumnN,
@@ -35,6 +35,15 @@ import {
 } from './manybeamFixtures.js';
 
 const K = 1 / LAMBDA_200KV_NM;
+
+/** npm odex, loaded through require: its shipped odex.ts does not pass this repo's strict type-check */
+interface OdexSolver {
+  absoluteTolerance: number;
+  relativeTolerance: number;
+  maxSteps: number;
+  solve(f: (x: number, y: number[]) => number[], x0: number, y0: number[], x1: number): { y: number[]; outcome: number };
+}
+const odex = createRequire(import.meta.url)('odex') as { Solver: new (n: number) => OdexSolver };
 
 /** beta' of a screw dislocation parallel to the surfaces at depth zc, column at distance x: (g.b/2pi) x/(x^2+(z-zc)^2) */
 function screwLike(gb: number, x: number, zc: number): (z: number) => number {
@@ -158,6 +167,7 @@ describe('two beams reproduce the two-beam integration (physics.md section 3)', 
     for (const [zf, alpha] of [...faults, [t, 0]]) {
       if (zf > z0) {
         const r = solver.solve(f, z0, y, zf);
+        expect(r.outcome).toBe(0); // odex Outcome.Converged
         y = r.y;
         z0 = zf;
       }
@@ -194,7 +204,8 @@ describe('two beams reproduce the two-beam integration (physics.md section 3)', 
       const ref = odexTwoBeam(t, bp);
       expect(maxAbsDiff(a, ref)).toBeLessThan(1e-8); // odex on the equations of physics.md section 3
       const c = new Float64Array(4);
-      integrateTwoBeamColumn(c, p, t, bp, new Float64Array(0), 1e-11);
+      // tol 1e-10 for the two-beam engine: at 1e-11 and x = 0.3 nm it reaches its MAX_SLICES guard
+      integrateTwoBeamColumn(c, p, t, bp, new Float64Array(0), 1e-10);
       expect(maxAbsDiff(a, c)).toBeLessThan(1e-8); // src/dynamics/twoBeam.ts
     });
   }
@@ -210,7 +221,7 @@ describe('two beams reproduce the two-beam integration (physics.md section 3)', 
     const a = new Float64Array(4);
     integrateColumnN(a, sys, t, bp, 1e-11, Float64Array.from(faults.flat()));
     const c = new Float64Array(4);
-    integrateTwoBeamColumn(c, p, t, bp, Float64Array.from(faults.flat()), 1e-11);
+    integrateTwoBeamColumn(c, p, t, bp, Float64Array.from(faults.flat()), 1e-10);
     expect(maxAbsDiff(a, c)).toBeLessThan(1e-8); // src/dynamics/twoBeam.ts fault matrix diag(1, e^{+i alpha})
     expect(maxAbsDiff(a, odexTwoBeam(t, bp, faults))).toBeLessThan(1e-8); // odex, same convention
     // the opposite sign is a different image (the test can tell the two conventions apart)
@@ -228,14 +239,20 @@ describe('fault sign: a phase jump equals a step of g.R in the beta\' form (deri
     const t = 90;
     const z0 = 41.3;
     const alpha = (2 * Math.PI) / 3;
-    const width = 0.01; // nm: g.R rises by alpha/(2 pi) over ~ 0.04 nm
-    const ramp = (z: number): number => (alpha / (2 * Math.PI)) * (0.5 / width) / Math.cosh((z - z0) / width) ** 2 / 2;
-    const withRamp = new Float64Array(10);
-    integrateColumnN(withRamp, sys, t, ramp, 1e-11, Float64Array.from([z0 - 0.3, 0])); // a breakpoint before the ramp
     const withFault = new Float64Array(10);
     integrateColumnN(withFault, sys, t, () => 0, 1e-11, Float64Array.from([z0, alpha]));
-    // the ramp's finite width changes the result by O(width * |A0|) ~ 1e-3 at most
-    expect(maxAbsDiff(withRamp, withFault)).toBeLessThan(2e-3);
+    // g.R = (alpha/2pi) (1 + tanh((z - z0)/width))/2, so beta' = (alpha/2pi) sech^2((z - z0)/width) / (2 width)
+    const diffs: number[] = [];
+    const withRamp = new Float64Array(10);
+    for (const width of [0.02, 0.005]) {
+      const ramp = (z: number): number => (alpha / (2 * Math.PI)) * (0.5 / width) / Math.cosh((z - z0) / width) ** 2;
+      // a breakpoint at the ramp: the stepper restarts there with a step scaled to beta'
+      integrateColumnN(withRamp, sys, t, ramp, 1e-11, Float64Array.from([z0, 0]));
+      diffs.push(maxAbsDiff(withRamp, withFault));
+    }
+    // the ramp converges to the fault as the width shrinks (error at least first order in the width)
+    expect(diffs[1]).toBeLessThan(diffs[0] / 3);
+    expect(diffs[1]).toBeLessThan(5e-4);
     const opposite = new Float64Array(10);
     integrateColumnN(opposite, sys, t, () => 0, 1e-11, Float64Array.from([z0, -alpha]));
     expect(maxAbsDiff(withRamp, opposite)).toBeGreaterThan(0.05);
