@@ -33,6 +33,10 @@ export interface RegistrationOptions {
   readonly rotationStep_deg?: number;
   /** The search stops refining below this scale step (default 0.0025). */
   readonly scaleStep?: number;
+  /** Where the rotation / scale search starts (default 0 degrees, scale 1). */
+  readonly start?: { readonly rotation_deg: number; readonly scale: number };
+  /** false: only the shift is searched, rotation and scale stay at `start` (default true). */
+  readonly search?: boolean;
 }
 
 export interface Registration {
@@ -186,7 +190,13 @@ export interface Peak {
 /** Largest value of a map, refined by a parabola along x and along y through the neighbours. */
 export function findPeak(map: Float64Array, w: number, h: number): Peak {
   let best = 0;
-  for (let k = 1; k < w * h; k++) if (map[k] > map[best]) best = k;
+  let low = map[0];
+  for (let k = 1; k < w * h; k++) {
+    if (map[k] > map[best]) best = k;
+    if (map[k] < low) low = map[k];
+  }
+  // a flat map (a flat simulation correlates with nothing): the centred placement
+  if (map[best] === low) return { value: map[best], x: (w - 1) / 2, y: (h - 1) / 2 };
   const ix = best % w;
   const iy = (best - ix) / w;
   const v = map[best];
@@ -270,13 +280,14 @@ export function register(cor: Correlator, tpl: PreparedTemplate, sim: ArrayLike<
     return res;
   };
 
-  let r0 = 0;
-  let s0 = 1;
+  const search = opts.search ?? true;
+  let r0 = opts.start?.rotation_deg ?? 0;
+  let s0 = opts.start?.scale ?? 1;
   let best = evaluate(r0, s0);
   let stepR = maxR / 2;
   let stepS = maxS / 2;
-  const searchR = maxR > 0;
-  const searchS = maxS > 0;
+  const searchR = search && maxR > 0;
+  const searchS = search && maxS > 0;
   for (let iter = 0; iter < 60 && (searchR || searchS); iter++) {
     let moved = false;
     let br = r0;

@@ -7,6 +7,8 @@ import { writeFileAtomic } from '../output/atomicWrite.js';
 import { renderAndWrite } from './renderCommand.js';
 import { formatVisibility } from './visibilityCommand.js';
 import { sig, table } from './run.js';
+import { faultReport, formatFaults, formatInclusions } from './faultCommand.js';
+import { dissociationWidth_nm } from '../imaging/fieldSpecs.js';
 
 export async function demoCommand(opts: { out?: string }): Promise<void> {
   const dir = opts.out ?? join('out', 'demo');
@@ -33,5 +35,16 @@ export async function demoCommand(opts: { out?: string }): Promise<void> {
   writeFileAtomic(join(dir, 'visibility.txt'), visText);
   writeFileAtomic(join(dir, 'visibility.json'), `${JSON.stringify({ scenario: sc.name, rows: vis }, null, 2)}\n`);
   process.stdout.write(`\nvisibility (g.b rule of thumb):\n${visText}`);
+  for (const d of sc.defects) {
+    if (d.type === 'dissociated') {
+      process.stdout.write(`\n${d.label}: partial separation ${sig(dissociationWidth_nm(sc.material, d), 3)} nm (isotropic equilibrium width for ${sc.material.stackingFaultEnergy_mJ_per_m2} mJ/m^2)\n`);
+    }
+  }
+  const fr = faultReport(sc);
+  const frText = formatFaults(fr.faults) + formatInclusions(fr.inclusions);
+  if (frText) {
+    writeFileAtomic(join(dir, 'faults-and-inclusions.txt'), frText);
+    process.stdout.write(`\nfault nature and misfit sign read-outs (simulated):\n${frText}`);
+  }
   process.stdout.write(`\nwritten to ${dir}: <condition>-bf.png / -df.png (viewing), .tif (float intensities), render.json, visibility.txt\n`);
 }

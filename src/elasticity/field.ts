@@ -9,6 +9,12 @@ export interface DisplacementField {
   displacement(out: Float64Array, x: number, y: number, z: number): void;
   /** Gradient dR_i/dx_j into out[3*i + j] (dimensionless). */
   gradient(out: Float64Array, x: number, y: number, z: number): void;
+  /**
+   * The scalar g . (grad R) . k for fixed vectors g and k, as a fast function
+   * of position: beta' = d(g.R)/dz along a column of direction k. Equal to
+   * sum_ij g_i (dR_i/dx_j) k_j computed from `gradient`.
+   */
+  directional(g: readonly [number, number, number], k: readonly [number, number, number]): (x: number, y: number, z: number) => number;
 }
 
 /**
@@ -39,6 +45,19 @@ export function superpose(fields: readonly DisplacementField[]): DisplacementFie
         list[k].gradient(g, x, y, z);
         for (let i = 0; i < 9; i++) out[i] += g[i];
       }
+    },
+    directional(gv, kv) {
+      const fs = list.map((f) => f.directional(gv, kv));
+      if (fs.length === 1) return fs[0];
+      if (fs.length === 2) {
+        const [a, b] = fs;
+        return (x, y, z) => a(x, y, z) + b(x, y, z);
+      }
+      return (x, y, z) => {
+        let s = 0;
+        for (let i = 0; i < fs.length; i++) s += fs[i](x, y, z);
+        return s;
+      };
     },
   };
 }

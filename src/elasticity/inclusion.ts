@@ -77,5 +77,20 @@ export function sphericalInclusion(opts: SphericalInclusionOptions): Displacemen
       out[3] = xy; out[4] = f + h * dy * dy; out[5] = yz;
       out[6] = xz; out[7] = yz; out[8] = f + h * dz * dz;
     },
+    directional(g, k) {
+      // g.G.k = eps g.k inside; outside eps r0^3 (g.k / r^3 - 3 (g.r)(k.r) / r^5)
+      const [gx, gy, gz] = g;
+      const [kx, ky, kz] = k;
+      const gk = gx * kx + gy * ky + gz * kz;
+      return (x, y, z) => {
+        const dx = x - cx, dy = y - cy, dz = z - cz;
+        const r2 = dx * dx + dy * dy + dz * dz;
+        if (r2 <= r02) return eps * gk;
+        const f = a / (r2 * Math.sqrt(r2));
+        const gr = gx * dx + gy * dy + gz * dz;
+        const kr = kx * dx + ky * dy + kz * dz;
+        return f * (gk - (3 * gr * kr) / r2);
+      };
+    },
   };
 }

@@ -204,5 +204,38 @@ export function straightDislocation(opts: StraightDislocationOptions): Displacem
       out[7] = e1z * v1y + e2z * v2y + e3z * v3y;
       out[8] = e1z * v1z + e2z * v2z + e3z * v3z;
     },
+    directional(g, kv) {
+      // g.G.k = sum_a (g.e_a) (G_a1 (k.e1) + G_a2 (k.e2)), the same local block as `gradient`
+      const ga1 = g[0] * e1x + g[1] * e1y + g[2] * e1z;
+      const ga2 = g[0] * e2x + g[1] * e2y + g[2] * e2z;
+      const ga3 = g[0] * e3x + g[1] * e3y + g[2] * e3z;
+      const k1 = kv[0] * e1x + kv[1] * e1y + kv[2] * e1z;
+      const k2 = kv[0] * e2x + kv[1] * e2y + kv[2] * e2z;
+      // coefficients of the local block entries
+      const c1 = ga1 * Be + ga3 * Bs; // multiplies (tx k1 + ty k2)
+      return (x, y, z) => {
+        const dx = x - px, dy = y - py, dz = z - pz;
+        const lx = e1x * dx + e1y * dy + e1z * dz;
+        const ly = e2x * dx + e2y * dy + e2z * dz;
+        const x2 = lx * lx, y2 = ly * ly;
+        const r2 = x2 + y2;
+        let q = r2;
+        let m = 1;
+        if (r2 < rm2) {
+          const o = 1 - r2 / rm2;
+          q = r2 + rc2 * o * o * o;
+          m = 1 - 3 * rcm * o * o;
+        }
+        const iq = 1 / q;
+        const iq2 = iq * iq;
+        const dxy = x2 - y2;
+        const angular = (-ly * k1 + lx * k2) * iq;
+        const e11 = Be2k * ly * (q - 2 * x2 * m) * iq2;
+        const e12 = Be2k * lx * (q - 2 * y2 * m) * iq2;
+        const g21 = -2 * Bek * lx * (lnC * m * iq + (q - dxy * m) * iq2);
+        const g22 = -2 * Bek * ly * (lnC * m * iq - (q + dxy * m) * iq2);
+        return c1 * angular + ga1 * (e11 * k1 + e12 * k2) + ga2 * (g21 * k1 + g22 * k2);
+      };
+    },
   };
 }

@@ -11,6 +11,8 @@ import type { ImageFrame } from '../geometry/frames.js';
 import { columnEntryOffset, pixelX } from '../geometry/frames.js';
 import { integrateColumn, perfectCrystal, type TwoBeamParams } from '../dynamics/twoBeam.js';
 import { rk4Column } from '../dynamics/rk4Reference.js';
+import type { ManyBeamInput } from '../dynamics/manyBeamStructureMatrix.js';
+import { integrateColumnN, prepareColumnSystem } from '../dynamics/manyBeam.js';
 import { buildField, type DefectModel } from './fieldSpecs.js';
 
 export interface RenderJob {
@@ -26,6 +28,17 @@ export interface RenderJob {
   readonly model: DefectModel;
   /** Baseline for benchmarks only: plain fixed-step RK4 with this many steps per column. */
   readonly rk4Steps?: number;
+  /** Present for a systematic row of more than two beams: the many-beam engine is used instead of the two-beam one. */
+  readonly manyBeam?: ManyBeamJob;
+}
+
+export interface ManyBeamJob {
+  readonly input: ManyBeamInput;
+  /** Order n of every beam (beam j is n_j g). */
+  readonly orders: Float64Array;
+  /** Index of the transmitted beam and of the beam g. */
+  readonly incident: number;
+  readonly darkField: number;
 }
 
 export interface RowStats {
@@ -74,9 +87,11 @@ export function columnEvaluator(job: RenderJob): ColumnEvaluator {
   const stats = { slices: 0 };
   const field = buildField(job.model.fields);
   const surfaces = activeSurfaces(job);
+  const mb = job.manyBeam === undefined ? null : manyBeamColumn(job.manyBeam, tol);
   if (field === null && surfaces.length === 0) {
     const p = new Float64Array(4);
-    perfectCrystal(p, params, L);
+    if (mb === null) perfectCrystal(p, params, L);
+    else mb.integrate(p, L, () => 0, new Float64Array(0));
     return {
       perfect: true,
       stats,
@@ -86,29 +101,22 @@ export function columnEvaluator(job: RenderJob): ColumnEvaluator {
       },
     };
   }
-  // beta'(z) = g . (grad R) . ez = sum_ij g_i dR_i/dx_j ez_j
-  const [gx, gy, gz] = g_cart;
+  // beta'(z) = g . (grad R) . ez along the column r(z) = c + z ez
   const [kx, ky, kz] = frame.ez;
-  const grad = new Float64Array(9);
+  const dir = field === null ? null : field.directional(g_cart, frame.ez);
   let cx = 0;
   let cy = 0;
   let cz = 0;
-  const betaPrime =
-    field === null
-      ? () => 0
-      : (z: number): number => {
-          field.gradient(grad, cx + z * kx, cy + z * ky, cz + z * kz);
-          return (
-            gx * (grad[0] * kx + grad[1] * ky + grad[2] * kz) +
-            gy * (grad[3] * kx + grad[4] * ky + grad[5] * kz) +
-            gz * (grad[6] * kx + grad[7] * ky + grad[8] * kz)
-          );
-        };
+  const betaPrime = dir === null ? () => 0 : (z: number): number => dir(cx + z * kx, cy + z * ky, cz + z * kz);
+  // Many-beam only: each dislocation line's depth of closest approach is a breakpoint (a zero phase step),
+  // so that the stepper restarts with a small step where the strain peaks.
+  const lines = mb === null ? [] : job.model.fields.flatMap((f) => (f.kind === 'dislocation' ? [{ p: f.point_nm, u: f.line }] : []));
+  const nMax = surfaces.length + lines.length;
   // fault crossings of the current column: [z, alpha] pairs sorted by z, one array per count
-  const crossings = surfaces.map((_, i) => new Float64Array(2 * (i + 1)));
+  const crossings = Array.from({ length: nMax }, (_, i) => new Float64Array(2 * (i + 1)));
   const none = new Float64Array(0);
-  const zs = new Float64Array(surfaces.length);
-  const as = new Float64Array(surfaces.length);
+  const zs = new Float64Array(nMax);
+  const as = new Float64Array(nMax);
   const [ex0, ex1, ex2] = frame.ex;
   const [ey0, ey1, ey2] = frame.ey;
   return {
@@ -138,6 +146,23 @@ export function columnEvaluator(job: RenderJob): ColumnEvaluator {
         zs[q] = zc;
         as[q] = f.kn > 0 ? f.alpha : -f.alpha;
       }
+      for (let d = 0; d < lines.length; d++) {
+        const { p, u } = lines[d];
+        const b = kx * u[0] + ky * u[1] + kz * u[2];
+        const den = 1 - b * b;
+        if (den < 1e-9) continue; // column parallel to the line
+        const w0x = cx - p[0], w0y = cy - p[1], w0z = cz - p[2];
+        const zc = (b * (u[0] * w0x + u[1] * w0y + u[2] * w0z) - (kx * w0x + ky * w0y + kz * w0z)) / den;
+        if (!(zc > 0 && zc < L)) continue;
+        let q = count++;
+        while (q > 0 && zs[q - 1] > zc) {
+          zs[q] = zs[q - 1];
+          as[q] = as[q - 1];
+          q--;
+        }
+        zs[q] = zc;
+        as[q] = 0;
+      }
       let faults = none;
       if (count > 0) {
         faults = crossings[count - 1];
@@ -146,11 +171,33 @@ export function columnEvaluator(job: RenderJob): ColumnEvaluator {
           faults[2 * q + 1] = as[q];
         }
       }
-      if (job.rk4Steps === undefined) integrateColumn(out, params, L, betaPrime, faults, tol, stats);
+      if (mb !== null) stats.slices += mb.integrate(out, L, betaPrime, faults);
+      else if (job.rk4Steps === undefined) integrateColumn(out, params, L, betaPrime, faults, tol, stats);
       else {
         rk4Column(out, params, L, betaPrime, job.rk4Steps);
         stats.slices += job.rk4Steps;
       }
+    },
+  };
+}
+
+/** Tolerance of the many-beam stepper per unit of the image tolerance (its tol is a local error per step). */
+export const MANY_BEAM_TOL_FACTOR = 0.1;
+
+/** A many-beam column integrator for one job: writes the transmitted and g amplitudes into out[0..3]. */
+function manyBeamColumn(mb: ManyBeamJob, tol: number) {
+  const sys = prepareColumnSystem(mb.input, mb.orders, { incident: mb.incident });
+  const amp = new Float64Array(2 * mb.orders.length);
+  const t0 = 2 * mb.incident;
+  const tg = 2 * mb.darkField;
+  return {
+    integrate(out: Float64Array, L: number, betaPrime: (z: number) => number, faults: Float64Array): number {
+      const steps = integrateColumnN(amp, sys, L, betaPrime, tol * MANY_BEAM_TOL_FACTOR, faults);
+      out[0] = amp[t0];
+      out[1] = amp[t0 + 1];
+      out[2] = amp[tg];
+      out[3] = amp[tg + 1];
+      return steps;
     },
   };
 }

@@ -3,11 +3,12 @@
  * intensity images (fractions of the incident beam) and the perfect-crystal
  * background of that condition.
  */
-import { perfectCrystal, type TwoBeamParams } from '../dynamics/twoBeam.js';
+import type { TwoBeamParams } from '../dynamics/twoBeam.js';
+import { blochRow, blochRowInput } from '../analysis/blochRow.js';
 import type { Scenario } from '../scenario/types.js';
 import { defectModel } from './fieldSpecs.js';
 import { resolveCondition, type ResolvedCondition } from './resolveCondition.js';
-import type { RenderJob } from './renderRows.js';
+import { columnEvaluator, type ManyBeamJob, type RenderJob } from './renderRows.js';
 import type { Progress, RenderPool } from './workerPool.js';
 
 /** Default integrator tolerance on intensity per column. */
@@ -29,8 +30,17 @@ export function twoBeamParams(c: ResolvedCondition): TwoBeamParams {
   return { xi_nm: c.xi_nm, xiAbs_nm: c.xiAbs_nm, xiAbs0_nm: c.xiAbs0_nm, s_per_nm: c.s_per_nm };
 }
 
+/** The many-beam part of a job for a systematic-row condition, or undefined for two beams. */
+export function manyBeamJob(sc: Scenario, c: ResolvedCondition): ManyBeamJob | undefined {
+  if (c.beams.kind !== 'row') return undefined;
+  const row = blochRow(sc.material, c.g, sc.kV, sc.absorption, c.beams.count);
+  return { input: blochRowInput(row, c.s_per_nm), orders: row.orders, incident: row.incident, darkField: row.darkField };
+}
+
 export function renderJob(sc: Scenario, c: ResolvedCondition, tol = DEFAULT_TOLERANCE): RenderJob {
+  const mb = manyBeamJob(sc, c);
   return {
+    ...(mb === undefined ? {} : { manyBeam: mb }),
     width: sc.image.width_px,
     height: sc.image.height_px,
     pixel_nm: sc.image.pixel_nm,
@@ -42,9 +52,10 @@ export function renderJob(sc: Scenario, c: ResolvedCondition, tol = DEFAULT_TOLE
   };
 }
 
-export function background(c: ResolvedCondition): { bf: number; df: number } {
+/** Perfect-crystal intensities of a job's condition (two-beam or many-beam as the job says). */
+export function background(job: RenderJob): { bf: number; df: number } {
   const out = new Float64Array(4);
-  perfectCrystal(out, twoBeamParams(c), c.frame.columnLength_nm);
+  columnEvaluator({ ...job, model: { fields: [], surfaces: [] } }).column(out, 0, 0);
   return { bf: out[0] * out[0] + out[1] * out[1], df: out[2] * out[2] + out[3] * out[3] };
 }
 
@@ -58,7 +69,8 @@ export async function renderScenario(
   for (let i = 0; i < sc.conditions.length; i++) {
     const c = resolveCondition(sc, sc.conditions[i]);
     const progress: Progress | undefined = onProgress ? (d, t) => onProgress(i, d, t) : undefined;
-    const img = await pool.render(renderJob(sc, c, tol), progress);
+    const job = renderJob(sc, c, tol);
+    const img = await pool.render(job, progress);
     result.push({
       condition: c,
       width: sc.image.width_px,
@@ -66,7 +78,7 @@ export async function renderScenario(
       pixel_nm: sc.image.pixel_nm,
       bf: img.bf,
       df: img.df,
-      background: background(c),
+      background: background(job),
       slices: img.slices,
     });
   }

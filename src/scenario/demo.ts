@@ -5,7 +5,7 @@
  * values chosen for the demonstration, not measurements of a real alloy.
  */
 export const DEMO_SCENARIO = {
-  name: 'demo: three dislocations in an invented Ni-Co foil',
+  name: 'demo: dislocations, a fault ribbon and a particle in an invented Ni-Co foil',
   description: 'Invented scenario for demonstration; the alloy, foil and defects are made up.',
   material: {
     name: 'Tenalloy 7 (invented)',
@@ -22,7 +22,7 @@ export const DEMO_SCENARIO = {
       { element: 'Co', position, occupancy: 0.2, debyeWaller_A2: 0.4 },
     ]),
     elastic: { cij_GPa: { C11: 250, C12: 155, C44: 122 } },
-    stackingFaultEnergy_mJ_per_m2: 60,
+    stackingFaultEnergy_mJ_per_m2: 15,
     sources: {
       lattice: 'invented for the demo',
       debyeWaller: 'invented for the demo',
@@ -41,11 +41,15 @@ export const DEMO_SCENARIO = {
     { id: 'g020', g: [0, 2, 0], w: 0.3 },
     { id: 'g220', g: [2, 2, 0], w: 0.3 },
     { id: 'g2m20', g: [2, -2, 0], w: 0.3 },
+    // weak-beam dark field g(3g) with a 5-beam systematic row (-2g .. 2g)
+    { id: 'g220-wb3', g: [2, 2, 0], weakBeam: 3, beams: { row: 5 } },
   ],
   defects: [
     { type: 'dislocation', label: 'A (mixed 60 deg)', b: '1/2[1 1 0]', line: [1, 1, 2], point_nm: [-40, -15, 60] },
     { type: 'dislocation', label: 'B (mixed 60 deg)', b: '1/2[1 -1 0]', line: [-1, 1, 2], point_nm: [30, -20, 60] },
     { type: 'dislocation', label: 'C (screw, parallel to foil)', b: '1/2[1 -1 0]', line: [1, -1, 0], point_nm: [-10, 50, 45] },
+    { type: 'dissociated', label: 'D (dissociated screw)', b: '1/2[1 1 0]', plane: [1, -1, 1], line: [1, 1, 0], point_nm: [-40, 35, 60] },
+    { type: 'inclusion', label: 'E (coherent particle)', centre_nm: [42, 38, 50], radius_nm: 4, misfit: 0.012 },
   ],
   candidates: ['1/2<110>'],
 };

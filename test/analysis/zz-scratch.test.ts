@@ -1,23 +1,54 @@
 import { it } from 'vitest';
-import { createCorrelator, register } from '../../src/analysis/registration.js';
-function rng(seed: number) { let s = seed >>> 0; return () => { s = (s * 1664525 + 1013904223) >>> 0; return s / 4294967296; }; }
-it('reg', () => {
-  const r = rng(3);
-  const blobs = Array.from({ length: 25 }, () => ({ x: 10 + 76 * r(), y: 10 + 76 * r(), s: 2 + 4 * r(), a: r() - 0.3 }));
-  const f = (x: number, y: number) => blobs.reduce((acc, b) => acc + b.a * Math.exp(-((x - b.x) ** 2 + (y - b.y) ** 2) / (2 * b.s * b.s)), 0);
-  const W = 96, w = 64, cs = 47.5, ct = 31.5;
-  const sim = new Float64Array(W * W);
-  for (let y = 0; y < W; y++) for (let x = 0; x < W; x++) sim[y * W + x] = f(x, y);
-  const cor = createCorrelator(w, w, W, W);
-  for (const [dx, dy, th, sc] of [[3, -5, 0, 1], [2.3, 4.6, 0, 1], [-1.5, 2.2, 3.3, 1], [0.7, -2.1, -2.2, 1.03], [4, 4, 4.6, 0.96]]) {
-    const t = new Float64Array(w * w);
-    const c = Math.cos(th * Math.PI / 180) / sc, s = Math.sin(th * Math.PI / 180) / sc;
-    for (let y = 0; y < w; y++) for (let x = 0; x < w; x++) {
-      const px = x - ct - dx, py = y - ct - dy;
-      t[y * w + x] = f(cs + c * px - s * py, cs + s * px + c * py);
-    }
-    const t0 = performance.now();
-    const res = register(cor, cor.prepareTemplate(t), sim);
-    console.log([dx, dy, th, sc].join(' '), '->', res.shiftX_px.toFixed(3), res.shiftY_px.toFixed(3), res.rotation_deg.toFixed(3), res.scale.toFixed(4), res.ncc.toFixed(5), res.evaluations, (performance.now() - t0).toFixed(1), 'ms');
+import { parseScenario } from '../../src/scenario/parse.js';
+import { renderScenario } from '../../src/imaging/renderScenario.js';
+import { createRenderPool } from '../../src/imaging/workerPool.js';
+import { identificationCandidates } from '../../src/analysis/candidates.js';
+import { syntheticMicrographs } from '../../src/analysis/synthetic.js';
+import { prepareMicrographs } from '../../src/analysis/identifyMicrographs.js';
+import { identify, type Renderer } from '../../src/analysis/identify.js';
+import type { MicrographSettings } from '../../src/analysis/identifySettings.js';
+
+it('pipeline', async () => {
+  const line = process.env.LINE ? JSON.parse(process.env.LINE) : [3, 1, 1];
+  const sc = parseScenario({
+    name: 't', material: 'Cu', kV: 200, foil: { thickness_nm: 70, normal: [0, 0, 1] }, beam: [0, 0, 1],
+    conditions: [
+      { id: 'g200', g: [2, 0, 0], w: 0.5 },
+      { id: 'g020', g: [0, 2, 0], w: 0.5 },
+      { id: 'g11m1', g: [1, 1, -1], w: 0.5, beam: [0, 1, 1] },
+      { id: 'g1m11', g: [1, -1, 1], w: 0.5, beam: [0, 1, 1] },
+    ],
+    defects: [{ type: 'dislocation', b: '1/2[1 1 0]', line, point_nm: [0, 0, 35] }],
+    candidates: ['1/2<110>'],
+  });
+  const pool = createRenderPool(1);
+  const cache = new Map<string, any>();
+  let renders = 0, rtime = 0;
+  const render: Renderer = async (s) => {
+    const key = JSON.stringify([s.defects, s.conditions[0].id, s.image, s.imageX_cart]);
+    const hit = cache.get(key); if (hit) return hit;
+    const t = performance.now();
+    const r = await renderScenario(s, pool); renders++; rtime += performance.now() - t;
+    cache.set(key, r); return r;
+  };
+  const cands = identificationCandidates(sc);
+  const angles = [10, 100, 40, -60];
+  const fields: ('bf'|'df')[] = ['bf', 'bf', 'df', 'bf'];
+  let ok = 0, decisive = 0, decisiveWrong = 0;
+  const N = Number(process.env.N ?? 12);
+  const T0 = performance.now();
+  for (let c = 0; c < N; c++) {
+    const truth = cands[(c * 7 + 3) % cands.length];
+    const syn = await syntheticMicrographs(sc, truth, sc.conditions.map((cd, i) => ({ conditionId: cd.id, field: fields[i], gAngle_deg: angles[i] })),
+      { width: 64, height: 64, pixel_nm: 1, snr: 5, blur_nm: 0.7, maxShift_nm: 6, maxRotation_deg: 3, oversample: 1, seed: 100 + c }, render);
+    const settings = new Map<string, MicrographSettings>(sc.conditions.map((cd, i) => [cd.id, { field: fields[i], pixel_nm: 1, gAngle_deg: angles[i], mirrored: false, intensity: 'linear', offset: 0, blur_nm: 0.7, maxShift_nm: 12 }]));
+    const preps = prepareMicrographs(sc, syn.map((s) => ({ conditionId: s.conditionId, image: s, source: 'synthetic-' + s.conditionId, synthetic: true })), settings);
+    const t = performance.now();
+    const res = await identify(sc, preps, render, { bootstrap: Number(process.env.B ?? 20) });
+    const top = res.ranking[0].candidate;
+    if (top === truth.label) ok++;
+    if (res.verdict.decision === 'identified') { decisive++; if (top !== truth.label) decisiveWrong++; }
+    console.log(c, truth.label, '->', res.ranking.slice(0, 3).map((r) => `${r.candidate} ${r.score.toFixed(3)}`).join(' | '), res.verdict.decision, 'gap', res.verdict.gap.toFixed(4), 'sig', res.verdict.gapSigma.toFixed(4), 'truth shift', syn[0].truth.shift_nm.map(v=>v.toFixed(1)).join(','), 'rot', syn[0].truth.rotation_deg.toFixed(2), 'found', res.ranking[0].perCondition[0].shift_nm.map(v=>v.toFixed(1)).join(','), res.ranking[0].perCondition[0].rotation_deg.toFixed(2), JSON.stringify(res.seconds), (performance.now() - t).toFixed(0));
   }
+  console.log('top1', ok, '/', N, 'decisive', decisive, 'wrong decisive', decisiveWrong, 'renders', renders, rtime.toFixed(0), 'total', (performance.now() - T0).toFixed(0));
 });

@@ -44,3 +44,32 @@ describe('superpose (linear elasticity: displacements add)', () => {
     expect([...d, ...g].every((v) => v === 0)).toBe(true);
   });
 });
+
+describe('directional derivative g.(grad R).k used for beta\'', () => {
+  it('equals sum_ij g_i dR_i/dx_j k_j from the full gradient, for dislocations, inclusions and their sum', async () => {
+    const { straightDislocation } = await import('../../src/elasticity/straightDislocation.js');
+    const { sphericalInclusion } = await import('../../src/elasticity/inclusion.js');
+    const { superpose } = await import('../../src/elasticity/field.js');
+    const fields = [
+      straightDislocation({ b_nm: [0.2, 0.1, -0.05], line: [1, 2, 3], point_nm: [1, -2, 0.5], poissonRatio: 0.31, cutDirection: [3, 0, -1] }),
+      sphericalInclusion({ centre_nm: [2, 1, 0], radius_nm: 3, strain: 0.01, poissonRatio: 0.3 }),
+    ];
+    const all = [...fields, superpose(fields)];
+    const g: [number, number, number] = [3.1, -2.2, 0.7];
+    const k: [number, number, number] = [0.3, 0.4, Math.sqrt(1 - 0.25)];
+    const G = new Float64Array(9);
+    let seed = 7;
+    const rnd = () => ((seed = (seed * 16807) % 2147483647) / 2147483647) * 20 - 10;
+    for (const f of all) {
+      const d = f.directional(g, k);
+      for (let n = 0; n < 200; n++) {
+        const x = rnd(), y = rnd(), z = rnd();
+        f.gradient(G, x, y, z);
+        let want = 0;
+        for (let i = 0; i < 3; i++) for (let j = 0; j < 3; j++) want += g[i] * G[3 * i + j] * k[j];
+        // identical algebra in a different order: agreement to rounding (common practice)
+        expect(Math.abs(d(x, y, z) - want)).toBeLessThan(1e-12 * (1 + Math.abs(want)));
+      }
+    }
+  });
+});

@@ -1,6 +1,7 @@
 /** One drawing, two files: run the same drawing code on a raster and an SVG surface. */
 import { rasterSurface } from './raster.js';
 import { svgSurface } from './svg.js';
+import { linePlot, type PlotSpec } from './plot.js';
 import type { RGB, Surface } from './types.js';
 
 export interface Figure {
@@ -17,4 +18,15 @@ export function drawFigure(width: number, height: number, draw: (s: Surface) => 
   const v = svgSurface(width, height, background);
   draw(v);
   return { png: r.toPng(), svg: v.toSvg() };
+}
+
+/** Default figure size, px. */
+export const FIGURE_WIDTH = 820;
+export const FIGURE_HEIGHT = 520;
+
+/** A single line plot filling the figure, as PNG and SVG. */
+export function plotFigure(spec: PlotSpec, width = FIGURE_WIDTH, height = FIGURE_HEIGHT): Figure {
+  return drawFigure(width, height, (s) => {
+    linePlot(s, { x: 0, y: 0, w: width, h: height }, spec);
+  });
 }

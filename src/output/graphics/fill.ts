@@ -79,14 +79,29 @@ export function scanCoverage(
   const r1 = Math.min(clip.y1, Math.ceil(maxY));
   if (cx1 <= cx0 || r1 <= r0) return;
 
-  const order = Array.from({ length: m }, (_, i) => i).sort((a, b) => eYmin[a] - eYmin[b]);
-  const active: number[] = [];
+  // edges in order of the first sample line they meet (counting sort): line K (counted from
+  // row r0) lies at y = r0 + (K + 1/2) / SUBSCANLINES, so an edge starting at ymin meets line
+  // ceil((ymin - r0) SUBSCANLINES - 1/2) first
+  const nLines = (r1 - r0) * SUBSCANLINES;
+  const key = new Int32Array(m);
+  const count = new Int32Array(nLines + 2);
+  for (let e = 0; e < m; e++) {
+    const kk = Math.ceil((eYmin[e] - r0) * SUBSCANLINES - 0.5);
+    key[e] = kk < 0 ? 0 : kk > nLines ? nLines + 1 : kk;
+    count[key[e] + 1]++;
+  }
+  for (let i = 1; i < count.length; i++) count[i] += count[i - 1];
+  const order = new Int32Array(m);
+  for (let e = 0; e < m; e++) order[count[key[e]]++] = e;
+  // active edges, kept in order of their crossing x from one sub-scanline to the next, so
+  // that re-sorting (insertion sort) is nearly linear
+  const act = new Int32Array(m);
+  const ax = new Float64Array(m);
+  let nAct = 0;
   let next = 0;
   const width = cx1 - cx0;
   const cov = new Float64Array(width + 2); // index x - cx0
   const diff = new Float64Array(width + 2);
-  const xs = new Float64Array(m);
-  const ws = new Int8Array(m);
   const wt = 1 / SUBSCANLINES;
   const lo = cx0;
   const hi = cx1;
@@ -113,41 +128,52 @@ export function scanCoverage(
     let any = false;
     for (let k = 0; k < SUBSCANLINES; k++) {
       const y = row + (k + 0.5) * wt;
-      while (next < m && eYmin[order[next]] <= y) active.push(order[next++]);
-      let nx = 0;
-      for (let a = 0; a < active.length; ) {
-        const e = active[a];
-        if (eYmax[e] <= y) {
-          active[a] = active[active.length - 1];
-          active.pop();
-          continue;
-        }
-        // insertion into the sorted crossing list
-        const x = eX[e] + (y - eYmin[e]) * eSlope[e];
-        let p = nx++;
-        while (p > 0 && xs[p - 1] > x) {
-          xs[p] = xs[p - 1];
-          ws[p] = ws[p - 1];
+      const line = (row - r0) * SUBSCANLINES + k;
+      // drop finished edges (keeping the order), update x of the others
+      let kept = 0;
+      for (let a = 0; a < nAct; a++) {
+        const e = act[a];
+        if (eYmax[e] <= y) continue;
+        act[kept] = e;
+        ax[kept] = eX[e] + (y - eYmin[e]) * eSlope[e];
+        kept++;
+      }
+      nAct = kept;
+      while (next < m && key[order[next]] <= line) {
+        const e = order[next++];
+        if (eYmax[e] <= y) continue;
+        act[nAct] = e;
+        ax[nAct] = eX[e] + (y - eYmin[e]) * eSlope[e];
+        nAct++;
+      }
+      // insertion sort by x (nearly sorted already)
+      for (let i = 1; i < nAct; i++) {
+        const x = ax[i];
+        if (ax[i - 1] <= x) continue;
+        const e = act[i];
+        let p = i;
+        while (p > 0 && ax[p - 1] > x) {
+          ax[p] = ax[p - 1];
+          act[p] = act[p - 1];
           p--;
         }
-        xs[p] = x;
-        ws[p] = eDir[e];
-        a++;
+        ax[p] = x;
+        act[p] = e;
       }
       let w = 0;
       let start = 0;
-      for (let i = 0; i < nx; i++) {
+      for (let i = 0; i < nAct; i++) {
         const before = w;
-        w += ws[i];
-        if (before === 0 && w !== 0) start = xs[i];
+        w += eDir[act[i]];
+        if (before === 0 && w !== 0) start = ax[i];
         else if (before !== 0 && w === 0) {
-          addSpan(start, xs[i]);
+          addSpan(start, ax[i]);
           any = true;
         }
       }
     }
     if (!any) {
-      if (next >= m && active.length === 0) break;
+      if (next >= m && nAct === 0) break;
       continue;
     }
     let run = 0;

@@ -98,6 +98,7 @@ export function face(bold = false): Face {
   for (const c of h) if (c.type !== 'Z') top = Math.min(top, c.y);
   let kerning: unknown = null;
   try {
+    // the Latin script's kerning (the script HarfBuzz picks for Latin text; DejaVu's default script has none)
     kerning = font.position.getKerningTables('latn') ?? null;
   } catch {
     kerning = null;

@@ -4,4 +4,4 @@ export { rasterSurface, type RasterSurface } from './raster.js';
 export { svgSurface, type SvgSurface } from './svg.js';
 export { linePlot, clipPolyline, PALETTE, type PlotSpec, type PlotSeries, type PlotMarker, type PlotLayout } from './plot.js';
 export { niceStep, niceRange, ticksIn, formatTick } from './ticks.js';
-export { drawFigure, type Figure } from './figure.js';
+export { drawFigure, plotFigure, FIGURE_WIDTH, FIGURE_HEIGHT, type Figure } from './figure.js';

@@ -63,6 +63,7 @@ export interface PlotLayout {
 }
 
 const TITLE_SIZE = 16;
+const MIN_TITLE_SIZE = 10;
 const LABEL_SIZE = 14;
 const TICK_SIZE = 12;
 const LEGEND_SIZE = 12;
@@ -74,6 +75,11 @@ const GRID: RGB = [228, 228, 228];
 const MARKER: RGB = [120, 120, 120];
 const INK: RGB = [0, 0, 0];
 const DASH = [7, 4];
+
+/** Centre of the pixel column or row containing v: 1-px lines drawn there stay sharp. */
+function crisp(v: number): number {
+  return Math.floor(v + 1e-6) + 0.5;
+}
 const MARKER_DASH = [3, 3];
 
 function dataExtent(series: readonly PlotSeries[], axis: 'x' | 'y'): [number, number] {
@@ -167,6 +173,22 @@ export function clipPolyline(p: readonly number[], x0: number, y0: number, x1: n
   return runs;
 }
 
+/** Smallest distance between kept polyline points, px (finer detail is invisible). */
+const MIN_POINT_SPACING_PX = 0.25;
+
+/** Drop points closer than `spacing` to the last kept one (the last point is always kept). */
+export function thinPolyline(p: readonly number[], spacing = MIN_POINT_SPACING_PX): number[] {
+  const n = p.length >> 1;
+  if (n <= 2) return Array.from(p);
+  const out = [p[0], p[1]];
+  for (let i = 1; i < n - 1; i++) {
+    const k = out.length;
+    if (Math.hypot(p[2 * i] - out[k - 2], p[2 * i + 1] - out[k - 1]) >= spacing) out.push(p[2 * i], p[2 * i + 1]);
+  }
+  out.push(p[2 * n - 2], p[2 * n - 1]);
+  return out;
+}
+
 interface LegendEntry {
   readonly label: string;
   readonly color: RGB;
@@ -229,35 +251,35 @@ export function linePlot(surface: Surface, box: Box, spec: PlotSpec): PlotLayout
 
   // grid
   for (const v of xAxis.ticks) {
-    const px = xToPx(v);
+    const px = crisp(xToPx(v));
     if (px > left + 0.5 && px < right - 0.5) surface.line(px, top, px, bottom, GRID, 1);
   }
   for (const v of yAxis.ticks) {
-    const py = yToPx(v);
+    const py = crisp(yToPx(v));
     if (py > top + 0.5 && py < bottom - 0.5) surface.line(left, py, right, py, GRID, 1);
   }
   // markers
   for (const m of spec.markers ?? []) {
-    const px = xToPx(m.x);
-    if (px >= left - 1e-9 && px <= right + 1e-9) surface.line(px, top, px, bottom, m.color ?? MARKER, 1, MARKER_DASH);
+    const px = Math.min(right, crisp(xToPx(m.x)));
+    if (xToPx(m.x) >= left - 1e-9 && xToPx(m.x) <= right + 1e-9) surface.line(px, top, px, bottom, m.color ?? MARKER, 1, MARKER_DASH);
   }
   // series
   for (const s of spec.series) {
     const pts: number[] = [];
     for (let i = 0; i < s.x.length; i++) pts.push(xToPx(s.x[i]), yToPx(s.y[i]));
     for (const run of clipPolyline(pts, left, top, right, bottom)) {
-      surface.polyline(run, s.color, s.lineWidth ?? 1.75, s.dashed ? DASH : undefined);
+      surface.polyline(thinPolyline(run), s.color, s.lineWidth ?? 1.75, s.dashed ? DASH : undefined);
     }
   }
   // frame, ticks, tick labels
   surface.strokeRect(left, top, right - left, bottom - top, FRAME, 1);
   xAxis.ticks.forEach((v, i) => {
-    const px = xToPx(v);
+    const px = Math.min(right, crisp(xToPx(v)));
     surface.line(px, bottom, px, bottom + TICK_LEN, FRAME, 1);
     surface.text(xLabels[i], px, bottom + TICK_LEN + 3, { size: TICK_SIZE, anchor: 'middle', baseline: 'top', color: INK });
   });
   yAxis.ticks.forEach((v, i) => {
-    const py = yToPx(v);
+    const py = Math.min(bottom, crisp(yToPx(v)));
     surface.line(left - TICK_LEN, py, left, py, FRAME, 1);
     surface.text(yLabels[i], left - TICK_LEN - 4, py, { size: TICK_SIZE, anchor: 'end', baseline: 'middle', color: INK });
   });
@@ -270,7 +292,12 @@ export function linePlot(surface: Surface, box: Box, spec: PlotSpec): PlotLayout
     color: INK,
   });
   if (spec.title) {
-    surface.text(spec.title, (left + right) / 2, box.y + PAD, { size: TITLE_SIZE, anchor: 'middle', baseline: 'top', bold: true, color: INK });
+    // shrink a long title to the width of the box (not below MIN_TITLE_SIZE)
+    const avail = box.w - 2 * PAD;
+    const full = surface.measureText(spec.title, TITLE_SIZE, true);
+    const size = full > avail ? Math.max(MIN_TITLE_SIZE, (TITLE_SIZE * avail) / full) : TITLE_SIZE;
+    const cx = full > avail ? box.x + box.w / 2 : (left + right) / 2;
+    surface.text(spec.title, cx, box.y + PAD, { size, anchor: 'middle', baseline: 'top', bold: true, color: INK });
   }
   // legend
   for (const { e, x, row } of placed) {

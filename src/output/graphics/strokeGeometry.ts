@@ -7,8 +7,17 @@
  * non-zero winding rule.
  */
 
-/** Segments of a disc polygon: enough that its edge stays within 0.02 px of the circle for r <= 4 px. */
+/** Most segments of a disc polygon. */
 const DISC_SEGMENTS = 24;
+/** Largest distance between a disc polygon's edges and its circle, px. */
+const DISC_TOLERANCE_PX = 0.02;
+
+/** Segments of a disc of radius r whose edges stay within DISC_TOLERANCE_PX of the circle (8..24). */
+export function discSegments(r: number): number {
+  if (!(r > DISC_TOLERANCE_PX)) return 8;
+  const n = Math.ceil(Math.PI / Math.acos(1 - DISC_TOLERANCE_PX / r));
+  return Math.max(8, Math.min(DISC_SEGMENTS, n));
+}
 
 /** Signed area (shoelace), positive for counter-clockwise on the page (y down). */
 export function signedArea(poly: readonly number[]): number {
@@ -30,7 +39,7 @@ export function counterClockwise(poly: number[]): number[] {
 }
 
 /** A regular polygon approximating the circle of radius r about (cx, cy). */
-export function discPolygon(cx: number, cy: number, r: number, segments = DISC_SEGMENTS): number[] {
+export function discPolygon(cx: number, cy: number, r: number, segments = discSegments(r)): number[] {
   const out: number[] = [];
   for (let i = 0; i < segments; i++) {
     const a = (-2 * Math.PI * i) / segments; // counter-clockwise on the page
@@ -50,15 +59,62 @@ export function segmentQuad(x0: number, y0: number, x1: number, y1: number, w: n
   return counterClockwise([x0 + nx, y0 + ny, x1 + nx, y1 + ny, x1 - nx, y1 - ny, x0 - nx, y0 - ny]);
 }
 
+/**
+ * The round join at vertex (px, py) between a segment along a and one along
+ * b: the wedge between the two quads' outer corners bounded by the arc of
+ * radius r (null when the direction does not change).
+ */
+export function roundJoin(px: number, py: number, ax: number, ay: number, bx: number, by: number, r: number): number[] | null {
+  const la = Math.hypot(ax, ay);
+  const lb = Math.hypot(bx, by);
+  if (!(la > 0 && lb > 0)) return null;
+  const cross = ax * by - ay * bx;
+  const dot = ax * bx + ay * by;
+  const delta = Math.atan2(cross, dot); // signed turn
+  if (delta === 0) return null;
+  // outer side: left of travel (-perp) for cross > 0, right (+perp) otherwise; perp(v) = (-vy, vx)
+  const side = cross > 0 ? -1 : 1;
+  const ox = (side * -ay * r) / la;
+  const oy = (side * ax * r) / la;
+  const phi = Math.atan2(oy, ox);
+  const step = 2 * Math.acos(Math.max(-1, 1 - DISC_TOLERANCE_PX / r));
+  const n = Math.max(1, Math.ceil(Math.abs(delta) / (step > 0 ? step : Math.PI / 12)));
+  const out = [px, py];
+  for (let k = 0; k <= n; k++) {
+    const f = phi + (delta * k) / n;
+    out.push(px + r * Math.cos(f), py + r * Math.sin(f));
+  }
+  return counterClockwise(out);
+}
+
 /** Polygons of a polyline stroke of width w (butt ends, round joins). */
-export function polylineStroke(points: readonly number[], w: number): number[][] {
+export function polylineStroke(pointsIn: readonly number[], w: number): number[][] {
+  // repeated points carry no direction: drop them so every join sees two real segments
+  const points: number[] = [];
+  for (let i = 0; i + 1 < pointsIn.length; i += 2) {
+    const k = points.length;
+    if (k >= 2 && points[k - 2] === pointsIn[i] && points[k - 1] === pointsIn[i + 1]) continue;
+    points.push(pointsIn[i], pointsIn[i + 1]);
+  }
   const out: number[][] = [];
   const n = points.length >> 1;
   for (let i = 0; i + 1 < n; i++) {
     const q = segmentQuad(points[2 * i], points[2 * i + 1], points[2 * i + 2], points[2 * i + 3], w);
     if (q) out.push(q);
   }
-  for (let i = 1; i + 1 < n; i++) out.push(discPolygon(points[2 * i], points[2 * i + 1], w / 2));
+  const r = w / 2;
+  for (let i = 1; i + 1 < n; i++) {
+    const j = roundJoin(
+      points[2 * i],
+      points[2 * i + 1],
+      points[2 * i] - points[2 * i - 2],
+      points[2 * i + 1] - points[2 * i - 1],
+      points[2 * i + 2] - points[2 * i],
+      points[2 * i + 3] - points[2 * i + 1],
+      r,
+    );
+    if (j) out.push(j);
+  }
   return out;
 }
 

@@ -1,0 +1,140 @@
+import { cross, dot, norm, scale, unit } from '../math/vec3.js';
+import { planeNormalToCartesian, directionToCartesian } from '../crystal/lattice.js';
+import { resolveCondition } from '../imaging/resolveCondition.js';
+import { referenceFrame } from '../imaging/fieldSpecs.js';
+import { imagePointToCrystal } from '../geometry/frames.js';
+import { renderJob } from '../imaging/renderScenario.js';
+import { columnEvaluator } from '../imaging/renderRows.js';
+/** alpha in degrees reduced to (-180, 180]. */
+export function faultPhase_deg(g, R) {
+    const x = dot(g, R);
+    let f = x - Math.round(x);
+    if (f <= -0.5)
+        f += 1;
+    return Object.is(f * 360, -0) ? 0 : f * 360;
+}
+/** The intrinsic and extrinsic readings of a {111} fault in a cubic crystal, else the given vector only. */
+export function faultReadings(f) {
+    const p = f.plane;
+    const is111 = p.every((h) => h !== 0 && Math.abs(Math.abs(h) - Math.abs(p[0])) < 1e-9);
+    if (f.nature === 'vector' || !is111)
+        return [{ reading: 'as given', vector: f.vector }];
+    // the two natures differ by the sign of R_f (physics.md section 5)
+    const other = scale(f.vector, -1);
+    return f.nature === 'intrinsic'
+        ? [{ reading: 'intrinsic', vector: f.vector }, { reading: 'extrinsic', vector: other }]
+        : [{ reading: 'intrinsic', vector: other }, { reading: 'extrinsic', vector: f.vector }];
+}
+export function analyseFaults(sc, samples = 400) {
+    const out = [];
+    for (const d of sc.defects) {
+        if (d.type !== 'fault')
+            continue;
+        for (const c of sc.conditions)
+            out.push(analyseOne(sc, d, resolveCondition(sc, c), samples));
+    }
+    return out;
+}
+/** Where the two surface ends of a fault image lie under one condition. */
+export function faultGeometry(sc, f, c) {
+    const l = sc.material.lattice;
+    const fr = c.frame;
+    const ref = referenceFrame(sc);
+    const P = imagePointToCrystal(ref, f.point_nm);
+    let n = unit(planeNormalToCartesian(l, f.plane));
+    if (dot(n, ref.ez) < 0)
+        n = scale(n, -1);
+    const N = fr.normal;
+    // the fault meets the two surfaces along lines parallel to n x N; their projections are parallel
+    const traceDir = cross(n, N);
+    const edge = { P, n, bottom: [0, 0], topDirection: [0, 0], width_nm: 0, gTowardsTop: 0, edgeOn: true };
+    if (norm(traceDir) < 1e-9 || Math.abs(dot(fr.ez, n)) < 1e-6)
+        return edge;
+    const v = unit(cross(traceDir, n)); // in-plane, perpendicular to the trace
+    const onSurface = (depth) => {
+        const a = (depth - dot(P, N)) / dot(v, N);
+        const Q = [P[0] + a * v[0], P[1] + a * v[1], P[2] + a * v[2]];
+        return [dot(Q, fr.ex), dot(Q, fr.ey)];
+    };
+    const top = onSurface(0);
+    const bottom = onSurface(fr.thickness_nm);
+    const tx = dot(traceDir, fr.ex);
+    const ty = dot(traceDir, fr.ey);
+    const tl = Math.hypot(tx, ty);
+    let perp = [-ty / tl, tx / tl];
+    let width = (top[0] - bottom[0]) * perp[0] + (top[1] - bottom[1]) * perp[1];
+    if (width < 0) {
+        perp = [-perp[0], -perp[1]];
+        width = -width;
+    }
+    if (width < 1e-3)
+        return { ...edge, topDirection: perp, width_nm: width };
+    // start on the bottom trace, on the line through the top point along perp
+    const start = [top[0] - width * perp[0], top[1] - width * perp[1]];
+    const gx = dot(c.g_cart, fr.ex);
+    const gy = dot(c.g_cart, fr.ey);
+    const gt = (gx * perp[0] + gy * perp[1]) / Math.hypot(gx, gy);
+    return { P, n, bottom: start, topDirection: perp, width_nm: width, gTowardsTop: Math.abs(gt) < 0.1 ? 0 : Math.sign(gt), edgeOn: false };
+}
+function analyseOne(sc, f, c, samples) {
+    const geo = faultGeometry(sc, f, c);
+    const base = { fault: f.label, condition: c.id, g: c.g, topDirection: geo.topDirection, width_nm: geo.width_nm, gTowardsTop: geo.gTowardsTop, edgeOn: geo.edgeOn };
+    if (geo.edgeOn)
+        return { ...base, readings: [] };
+    const readings = faultReadings(f).map(({ reading, vector }) => {
+        const p = profileAcross(sc, c, geo.P, geo.n, vector, geo.bottom, geo.topDirection, geo.width_nm, samples);
+        return {
+            reading,
+            vector,
+            alpha_deg: faultPhase_deg(c.g, vector),
+            bf: { top: outerFringe(p.bf, p.background.bf, 'end'), bottom: outerFringe(p.bf, p.background.bf, 'start') },
+            df: { top: outerFringe(p.df, p.background.df, 'end'), bottom: outerFringe(p.df, p.background.df, 'start') },
+        };
+    });
+    return { ...base, readings };
+}
+/** Bright- and dark-field intensity along a line of columns across a fault image (fault alone, no other defect). */
+export function profileAcross(sc, c, P, n, vector, start, dir, length, samples) {
+    const model = {
+        fields: [],
+        surfaces: [{ kind: 'plane', point_nm: P, normal: n, jump_nm: directionToCartesian(sc.material.lattice, vector) }],
+    };
+    const job = { ...renderJob(sc, c), model };
+    const ev = columnEvaluator(job);
+    const bf = [];
+    const df = [];
+    const amp = new Float64Array(4);
+    for (let i = 0; i < samples; i++) {
+        const s = ((i + 0.5) / samples) * length;
+        ev.column(amp, start[0] + s * dir[0], start[1] + s * dir[1]);
+        bf.push(amp[0] ** 2 + amp[1] ** 2);
+        df.push(amp[2] ** 2 + amp[3] ** 2);
+    }
+    columnEvaluator({ ...job, model: { fields: [], surfaces: [] } }).column(amp, 0, 0);
+    return { bf, df, background: { bf: amp[0] ** 2 + amp[1] ** 2, df: amp[2] ** 2 + amp[3] ** 2 } };
+}
+/**
+ * Tone of the outer fringe at one end of a profile: the first local extremum
+ * of I - background met from that end (the fringe's peak).
+ */
+export function outerFringe(profile, bg, from) {
+    const p = from === 'start' ? profile : [...profile].reverse();
+    const d = p.map((v) => v - bg);
+    const scaleD = Math.max(...d.map(Math.abs));
+    if (scaleD < 1e-9)
+        return 'none';
+    for (let i = 1; i < d.length - 1; i++) {
+        const isMax = d[i] >= d[i - 1] && d[i] > d[i + 1];
+        const isMin = d[i] <= d[i - 1] && d[i] < d[i + 1];
+        if ((isMax || isMin) && Math.abs(d[i]) > 0.05 * scaleD)
+            return d[i] > 0 ? 'bright' : 'dark';
+    }
+    return d[0] > 0 ? 'bright' : 'dark';
+}
+/** Unit vector helper kept here for tests: image direction of g for a condition. */
+export function gImageDirection(c) {
+    const x = dot(c.g_cart, c.frame.ex);
+    const y = dot(c.g_cart, c.frame.ey);
+    const l = Math.hypot(x, y);
+    return [x / l, y / l];
+}

@@ -1,0 +1,77 @@
+import { dot } from '../math/vec3.js';
+import { resolveCondition } from '../imaging/resolveCondition.js';
+import { referenceFrame } from '../imaging/fieldSpecs.js';
+import { imagePointToCrystal } from '../geometry/frames.js';
+import { renderJob } from '../imaging/renderScenario.js';
+import { columnEvaluator } from '../imaging/renderRows.js';
+export function analyseInclusions(sc, gridHalf = 24) {
+    const out = [];
+    for (const d of sc.defects) {
+        if (d.type !== 'inclusion')
+            continue;
+        for (const c of sc.conditions) {
+            const rc = resolveCondition(sc, c);
+            const readings = [1, -1].map((sign) => lobes(sc, d, rc, sign * Math.abs(d.strain), gridHalf));
+            out.push({ inclusion: d.label, condition: c.id, g: c.g, readings });
+        }
+    }
+    return out;
+}
+function lobes(sc, d, c, strain, half) {
+    const centre = imagePointToCrystal(referenceFrame(sc), d.centre_nm);
+    const fr = c.frame;
+    const cx = dot(centre, fr.ex);
+    const cy = dot(centre, fr.ey);
+    const gx = dot(c.g_cart, fr.ex);
+    const gy = dot(c.g_cart, fr.ey);
+    const gl = Math.hypot(gx, gy);
+    // window: a few radii, and at least a third of the extinction distance
+    const R = Math.max(3 * d.radius_nm, c.xi_nm / 3);
+    const step = R / half;
+    const job = {
+        ...renderJob(sc, c),
+        model: { fields: [{ kind: 'inclusion', centre_nm: centre, radius_nm: d.radius_nm, strain, poissonRatio: sc.material.elastic.poissonRatio }], surfaces: [] },
+    };
+    const ev = columnEvaluator(job);
+    const perfect = columnEvaluator({ ...job, model: { fields: [], surfaces: [] } });
+    const a = new Float64Array(4);
+    perfect.column(a, 0, 0);
+    const bg0 = a[0] ** 2 + a[1] ** 2;
+    const bgg = a[2] ** 2 + a[3] ** 2;
+    const sum = { bfP: 0, bfM: 0, dfP: 0, dfM: 0, nP: 0, nM: 0 };
+    for (let j = -half; j <= half; j++) {
+        for (let i = -half; i <= half; i++) {
+            const x = i * step;
+            const y = j * step;
+            if (x * x + y * y > R * R)
+                continue;
+            const along = (x * gx + y * gy) / gl;
+            if (Math.abs(along) < step / 2)
+                continue;
+            ev.column(a, cx + x, cy + y);
+            const bf = a[0] ** 2 + a[1] ** 2 - bg0;
+            const df = a[2] ** 2 + a[3] ** 2 - bgg;
+            if (along > 0) {
+                sum.bfP += bf;
+                sum.dfP += df;
+                sum.nP++;
+            }
+            else {
+                sum.bfM += bf;
+                sum.dfM += df;
+                sum.nM++;
+            }
+        }
+    }
+    const bfc = { plus: sum.bfP / sum.nP, minus: sum.bfM / sum.nM };
+    const dfc = { plus: sum.dfP / sum.nP, minus: sum.dfM / sum.nM };
+    const darker = (p, m) => (Math.abs(p - m) < 1e-6 ? 'neither' : p < m ? '+g side' : '-g side');
+    return {
+        misfitSign: strain >= 0 ? 'positive' : 'negative',
+        strain,
+        bfDark: darker(bfc.plus, bfc.minus),
+        dfDark: darker(dfc.plus, dfc.minus),
+        bfContrast: bfc,
+        dfContrast: dfc,
+    };
+}

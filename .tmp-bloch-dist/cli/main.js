@@ -1,0 +1,78 @@
+#!/usr/bin/env node
+/** The thinfoil command line. */
+import { Command, CommanderError } from 'commander';
+import { action, EXIT_USER } from './run.js';
+import { parseAbsorption, parseKv } from './options.js';
+import { reflectionCommand } from './reflectionCommand.js';
+import { materialsCommand } from './materialsCommand.js';
+import { renderCommand } from './renderCommand.js';
+import { visibilityCommand } from './visibilityCommand.js';
+import { demoCommand } from './demoCommand.js';
+import { faultCommand } from './faultCommand.js';
+import { InputError } from '../errors.js';
+const program = new Command();
+program
+    .name('thinfoil')
+    .description('Simulate diffraction-contrast images of crystal defects in a thin foil and identify the defects.')
+    .version('0.1.0')
+    .exitOverride()
+    .configureOutput({ writeErr: (s) => process.stderr.write(s) });
+const lazy = (parse) => (s) => {
+    try {
+        return parse(s);
+    }
+    catch (e) {
+        if (e instanceof InputError) {
+            process.stderr.write(`thinfoil: ${e.message}\n`);
+            process.exit(EXIT_USER);
+        }
+        throw e;
+    }
+};
+program
+    .command('reflection')
+    .description('two-beam parameters of one reflection: d, |g|, Bragg angle, |F_g|, xi_g, xi\'_g')
+    .argument('<material>', 'material name from `thinfoil materials`')
+    .argument('<indices>', 'reflection, e.g. 1,1,1 or "2 0 0"; four indices for hexagonal crystals')
+    .option('--kv <kV>', 'accelerating voltage in kV', lazy(parseKv), 200)
+    .option('--absorption <r>', "absorption ratio xi_g/xi'_g", lazy(parseAbsorption), 0.1)
+    .option('--json', 'one JSON object on stdout')
+    .action(action(reflectionCommand));
+program
+    .command('materials')
+    .description('list the material library')
+    .option('--json', 'JSON on stdout')
+    .action(action(materialsCommand));
+program
+    .command('render')
+    .description('bright- and dark-field images of every condition of a scenario')
+    .argument('<scenario>', 'scenario file (JSON)')
+    .option('--out <dir>', 'output folder (default out/<scenario name>)')
+    .option('--json', 'one JSON object on stdout listing the images')
+    .action(action(renderCommand));
+program
+    .command('visibility')
+    .description('g.b and g.(b x u) of every defect and candidate under every condition, with verdicts')
+    .argument('<scenario>', 'scenario file (JSON)')
+    .option('--json', 'JSON on stdout')
+    .action(action(visibilityCommand));
+program
+    .command('fault')
+    .description('fault nature (intrinsic / extrinsic outer fringes) and inclusion misfit sign, by simulation')
+    .argument('<scenario>', 'scenario file (JSON)')
+    .option('--json', 'JSON on stdout')
+    .action(action(faultCommand));
+program
+    .command('demo')
+    .description('render the built-in invented demo scenario into out/demo')
+    .option('--out <dir>', 'output folder', 'out/demo')
+    .action(action(demoCommand));
+try {
+    await program.parseAsync(process.argv);
+}
+catch (e) {
+    if (e instanceof CommanderError) {
+        process.exit(e.exitCode === 0 ? 0 : EXIT_USER);
+    }
+    throw e;
+}

@@ -1,0 +1,14 @@
+/** Parsers for numeric command-line options: one clear sentence on bad input. */
+import { InputError } from '../errors.js';
+export function numberOption(name, lo, hi, unit) {
+    return (text) => {
+        const v = Number(text);
+        if (text.trim() === '' || !Number.isFinite(v))
+            throw new InputError(`${name}: "${text}" is not a number; give ${unit} between ${lo} and ${hi}`);
+        if (v < lo || v > hi)
+            throw new InputError(`${name}: ${v} is outside ${lo}..${hi}; give ${unit} in that range`);
+        return v;
+    };
+}
+export const parseKv = numberOption('--kv', 10, 3000, 'the accelerating voltage in kV');
+export const parseAbsorption = numberOption('--absorption', 0, 1, "the ratio xi_g/xi'_g");

@@ -1,0 +1,43 @@
+/** `thinfoil reflection <material> <hkl>`: the two-beam parameters of one reflection. */
+import { getMaterial } from '../crystal/materials.js';
+import { readPlane, formatVector } from '../scenario/parse.js';
+import { reflectionParameters } from '../scattering/reflection.js';
+import { printJson, sig, table } from './run.js';
+export function reflectionCommand(materialName, indices, opts) {
+    const m = getMaterial(materialName);
+    const hkl = readPlane(indices, 'reflection indices', m);
+    const r = reflectionParameters(m, hkl, opts.kv, { absorptionRatio: opts.absorption });
+    const result = {
+        material: m.name,
+        structure: m.structure,
+        hkl,
+        kV: opts.kv,
+        absorption: opts.absorption,
+        lambda_pm: r.lambda_nm * 1000,
+        d_nm: r.d_nm,
+        g_per_nm: r.g_per_nm,
+        braggAngle_mrad: r.braggAngle_rad * 1000,
+        absF_A: r.absF_A,
+        F_A: r.F_A,
+        U_per_nm2: r.U_per_nm2,
+        xi_nm: r.xi_nm,
+        xiAbs_nm: r.xiAbs_nm,
+        xiAbs0_nm: r.xiAbs0_nm,
+    };
+    if (opts.json) {
+        printJson(result);
+        return;
+    }
+    const rows = [
+        ['material', `${m.name} (${m.structure})`],
+        ['reflection g', formatVector(hkl).replace('[', '(').replace(']', ')')],
+        ['voltage', `${opts.kv} kV, lambda = ${sig(result.lambda_pm, 5)} pm`],
+        ['d-spacing', `${sig(r.d_nm, 5)} nm`],
+        ['|g|', `${sig(r.g_per_nm, 5)} nm^-1`],
+        ['Bragg angle', `${sig(result.braggAngle_mrad, 4)} mrad`],
+        ['|F_g| (electron)', `${sig(r.absF_A, 4)} A`],
+        ['xi_g', `${sig(r.xi_nm, 4)} nm`],
+        ["xi'_g", `${sig(r.xiAbs_nm, 4)} nm (xi_g/xi'_g = ${opts.absorption})`],
+    ];
+    process.stdout.write(table(['quantity', 'value'], rows));
+}

@@ -1,0 +1,594 @@
+/**
+ * Many-beam column integrator for strained crystal (physics.md section 4):
+ *
+ *     dphi/dz = 2 pi i (A0 + D(z)) phi,   D(z) = diag(g_j . dR/dz)
+ *
+ * A0 is the perfect-crystal structure matrix; D(z) is real and diagonal. For a
+ * systematic row, g_j . dR/dz = n_j beta'(z) with beta' = d(g.R)/dz of the
+ * fundamental g; for a general beam set, g_j . dR/dz with dR/dz a 3-vector.
+ *
+ * Scheme (chosen for accuracy and speed):
+ * - A0 = C Gamma C^-1 is diagonalised once (Bloch waves). The state is the
+ *   vector of Bloch-wave amplitudes psi = C^-1 phi.
+ * - Each step works in the interaction picture of the perfect crystal,
+ *   anchored at the start z0 of the step: u(tau) = exp(-2 pi i Gamma tau)
+ *   psi(z0 + tau), which obeys
+ *       du/dtau = 2 pi i E(tau)^-1 C^-1 D(z0 + tau) C E(tau) u,
+ *       E(tau) = diag(exp(2 pi i gamma_j tau)).
+ *   The perfect-crystal part is thus propagated exactly: where D = 0 the
+ *   right-hand side vanishes and steps grow to maxStep_nm with no error; only
+ *   the strain is integrated numerically.
+ * - Integration: embedded Runge-Kutta of Dormand & Prince 5(4) (Hairer,
+ *   Norsett & Wanner, Solving ODEs I, 2nd ed., section II.5) with local
+ *   extrapolation, FSAL, and step-size control on the local error of the
+ *   Bloch-wave amplitudes at the end of the step (max norm). Step lengths
+ *   are taken from the ladder maxStep_nm 2^(-k/4), so the phase factors
+ *   E(c h) of every stage are computed once per system and reused by all
+ *   columns (only the last step before a fault or the exit is off the
+ *   ladder). Measured on the test cases (test/dynamics/manybeamColumn.test.ts,
+ *   scipy references): the error of the exit amplitudes is 1 to 20 times
+ *   tol for tol = 1e-4 .. 1e-12.
+ * - Cost: 6 evaluations of the strain per step, each O(N^2) (a systematic
+ *   row uses M = C^-1 diag(n_j) C; a general set C^-1 D C, 2 N^2). A
+ *   stretch with beta' = 0 exactly costs no matrix work.
+ * - Planar faults: a phase jump at depth z. Same sign convention as the
+ *   two-beam engine (twoBeam.ts, derived in twoBeamColumn.ts): with
+ *   Delta R = R_below - R_above (R_below on the exit side, larger z),
+ *   beam j is multiplied by exp(+2 pi i g_j . Delta R); for a systematic row
+ *   with alpha = 2 pi g.(R_below - R_above) of the fundamental g, beam n g
+ *   gets exp(+i n alpha). This is exactly what the beta' form gives for a step
+ *   of g.R by alpha/(2 pi) at z (a test checks it). A fault with alpha = 0
+ *   is a breakpoint: a step boundary with a fresh small first step, useful
+ *   at the depth of a dislocation core.
+ *
+ * Example (weak beam g(3g), beams -1..3, one column):
+ *   const input = systematicRowInput({ nMin: -1, nMax: 3, s_g: weakBeamDeviation(3, lambda, g), ... });
+ *   const sys = prepareColumnSystem(input, systematicRowOrders(-1, 3), { incident: 1 });
+ *   const phi = new Float64Array(10);
+ *   integrateColumnN(phi, sys, 100, (z) => betaPrime(z), 1e-6, Float64Array.from([zCore, 0]));
+ *   // bright field phi[2]^2 + phi[3]^2, dark field g: phi[4]^2 + phi[5]^2
+ *
+ * Amplitude vectors are interleaved [re_0, im_0, re_1, im_1, ...].
+ * A ColumnSystem carries its own work arrays: one system per thread of
+ * execution (do not share one between concurrently running integrations).
+ */
+import { InputError } from '../errors.js';
+import { blochWaves, incidentVector } from './blochWaves.js';
+const DEFAULT_MAX_STEP_NM = 5;
+/** steps are taken from the ladder maxStep 2^(-k/4), k = 0..LEVELS (so the phase tables can be reused) */
+const LEVELS = 160;
+/** Prepare a systematic row: beam j has strain factor orders[j] (n_j). */
+export function prepareColumnSystem(input, orders, options) {
+    if (orders.length !== input.excitationErrors_per_nm.length) {
+        throw new InputError(`orders has ${orders.length} entries: give one order n_j per beam (${input.excitationErrors_per_nm.length}).`);
+    }
+    return prepare(input, Float64Array.from(orders), 1, options);
+}
+/** Prepare a general beam set: beamVectors_per_nm holds the Cartesian g_j (N x 3, nm^-1). */
+export function prepareColumnSystemVector(input, beamVectors_per_nm, options) {
+    const n = input.excitationErrors_per_nm.length;
+    if (beamVectors_per_nm.length !== 3 * n) {
+        throw new InputError(`beamVectors_per_nm has ${beamVectors_per_nm.length} numbers: give 3 per beam (${3 * n}).`);
+    }
+    return prepare(input, Float64Array.from(beamVectors_per_nm), 3, options);
+}
+function prepare(input, factors, strainDim, options) {
+    for (let i = 0; i < factors.length; i++) {
+        if (!Number.isFinite(factors[i]))
+            throw new InputError(`beam strain factor [${i}] is not finite: give finite numbers.`);
+    }
+    const maxStep = options.maxStep_nm ?? DEFAULT_MAX_STEP_NM;
+    if (!(Number.isFinite(maxStep) && maxStep > 0)) {
+        throw new InputError(`maxStep_nm is ${maxStep}: give a positive step in nm.`);
+    }
+    const waves = blochWaves(input, options.incident);
+    const n = waves.n;
+    const phi0 = incidentVector(n, options.incident);
+    const psi0Re = new Float64Array(n);
+    const psi0Im = new Float64Array(n);
+    for (let j = 0; j < n; j++) {
+        let sr = 0;
+        let si = 0;
+        for (let i = 0; i < n; i++) {
+            const a = waves.cInvRe[j * n + i];
+            const b = waves.cInvIm[j * n + i];
+            sr += a * phi0[2 * i] - b * phi0[2 * i + 1];
+            si += a * phi0[2 * i + 1] + b * phi0[2 * i];
+        }
+        psi0Re[j] = sr;
+        psi0Im[j] = si;
+    }
+    // M = C^-1 diag(n_j) C for a systematic row
+    const mRe = new Float64Array(strainDim === 1 ? n * n : 0);
+    const mIm = new Float64Array(strainDim === 1 ? n * n : 0);
+    if (strainDim === 1) {
+        for (let i = 0; i < n; i++) {
+            for (let j = 0; j < n; j++) {
+                let a = 0;
+                let b = 0;
+                for (let k = 0; k < n; k++) {
+                    // cInv[i,k] f_k C[k,j]
+                    const xr = waves.cInvRe[i * n + k] * factors[k];
+                    const xi = waves.cInvIm[i * n + k] * factors[k];
+                    a += xr * waves.cRe[k * n + j] - xi * waves.cIm[k * n + j];
+                    b += xr * waves.cIm[k * n + j] + xi * waves.cRe[k * n + j];
+                }
+                mRe[i * n + j] = a;
+                mIm[i * n + j] = b;
+            }
+        }
+    }
+    const f = () => new Float64Array(n);
+    const work = {
+        ur: f(),
+        ui: f(),
+        yr: f(),
+        yi: f(),
+        kr: Array.from({ length: 7 }, f),
+        ki: Array.from({ length: 7 }, f),
+        d: f(),
+        w: new Float64Array(strainDim),
+        vr: f(),
+        vi: f(),
+        pr: f(),
+        pi: f(),
+        levels: new Array(LEVELS + 1).fill(null),
+        custom: new Float64Array(20 * n),
+        tab: new Float64Array(20 * n),
+        fr: f(),
+        fi: f(),
+        betaPrime: null,
+        dRdz: null,
+        stats: { accepted: 0, rejected: 0, evaluations: 0 },
+    };
+    return {
+        n,
+        strainDim,
+        factors,
+        gammaRe: waves.gammaRe_per_nm,
+        gammaIm: waves.gammaIm_per_nm,
+        cRe: waves.cRe,
+        cIm: waves.cIm,
+        cInvRe: waves.cInvRe,
+        cInvIm: waves.cInvIm,
+        mRe,
+        mIm,
+        psi0Re,
+        psi0Im,
+        maxStep_nm: maxStep,
+        work,
+    };
+}
+/**
+ * Integrate one column of a systematic row through thickness_nm with
+ * beta'(z) = d(g.R)/dz of the fundamental g (beam j gets n_j beta').
+ * Writes phi(t) interleaved into out (2N). tol is the local error allowed per
+ * step on the Bloch-wave amplitudes (absolute; amplitudes are of order 1).
+ * faults holds pairs [z_nm, alpha_rad] sorted by depth (the two-beam
+ * engine's format): beam j gets exp(+i n_j alpha) at z, alpha =
+ * 2 pi g.(R_below - R_above); alpha = 0 marks a breakpoint. Depths must lie in
+ * [0, thickness]. Returns the number of accepted steps.
+ */
+export function integrateColumnN(out, system, thickness_nm, betaPrime, tol = 1e-6, faults = NO_JUMPS) {
+    if (system.strainDim !== 1)
+        throw new InputError('this column system was prepared for a general beam set: use integrateColumnNVector.');
+    return integrate(out, system, thickness_nm, betaPrime, null, tol, faults, 2);
+}
+/**
+ * Integrate one column of a general beam set with dR/dz (Cartesian, nm/nm)
+ * supplied by dRdz(z, out3). Beam j gets g_j . dR/dz. faults holds records
+ * [z_nm, dRx, dRy, dRz] (Delta R = R_below - R_above, Cartesian nm) sorted by
+ * depth: beam j gets exp(+2 pi i g_j . Delta R) at z. Otherwise as
+ * integrateColumnN.
+ */
+export function integrateColumnNVector(out, system, thickness_nm, dRdz, tol = 1e-6, faults = NO_JUMPS) {
+    if (system.strainDim !== 3)
+        throw new InputError('this column system was prepared for a systematic row: use integrateColumnN.');
+    return integrate(out, system, thickness_nm, null, dRdz, tol, faults, 4);
+}
+const NO_JUMPS = new Float64Array(0);
+// Dormand-Prince 5(4) coefficients (Hairer, Norsett & Wanner, Table 5.2)
+const C2 = 1 / 5, C3 = 3 / 10, C4 = 4 / 5, C5 = 8 / 9;
+const A21 = 1 / 5;
+const A31 = 3 / 40, A32 = 9 / 40;
+const A41 = 44 / 45, A42 = -56 / 15, A43 = 32 / 9;
+const A51 = 19372 / 6561, A52 = -25360 / 2187, A53 = 64448 / 6561, A54 = -212 / 729;
+const A61 = 9017 / 3168, A62 = -355 / 33, A63 = 46732 / 5247, A64 = 49 / 176, A65 = -5103 / 18656;
+const A71 = 35 / 384, A73 = 500 / 1113, A74 = 125 / 192, A75 = -2187 / 6784, A76 = 11 / 84;
+const E1 = 71 / 57600, E3 = -71 / 16695, E4 = 71 / 1920, E5 = -17253 / 339200, E6 = 22 / 525, E7 = -1 / 40;
+const TWO_PI = 2 * Math.PI;
+function strainError(z) {
+    return new InputError(`the strain term (beta' or dR/dz) is not finite near depth ${z.toPrecision(6)} nm: check the displacement field of the defects.`);
+}
+/** Stage offsets c of the 5 distinct non-zero stage depths (c6 = c7 = 1). */
+const STAGE_C = [C2, C3, C4, C5, 1];
+/** Tabulate E(c h) and its inverse for the 5 stage offsets c into tab (layout of Work.levels). */
+function tabulateE(sys, h, tab) {
+    const n = sys.n;
+    const { gammaRe, gammaIm } = sys;
+    for (let s = 0; s < 5; s++) {
+        const tau = STAGE_C[s] * h;
+        for (let j = 0; j < n; j++) {
+            const a = TWO_PI * gammaIm[j] * tau;
+            const ph = TWO_PI * gammaRe[j] * tau;
+            const c = Math.cos(ph);
+            const sn = Math.sin(ph);
+            const m = Math.exp(-a);
+            const mi = 1 / m;
+            const at = s * n + j;
+            tab[at] = m * c;
+            tab[5 * n + at] = m * sn;
+            tab[10 * n + at] = mi * c;
+            tab[15 * n + at] = -mi * sn;
+        }
+    }
+}
+/** Step length of ladder level k. */
+function ladderStep(hmax, k) {
+    return hmax * Math.pow(2, -k / 4);
+}
+/** Ladder level of the largest ladder step not longer than h. */
+function levelFor(hmax, h) {
+    if (!(h < hmax))
+        return 0;
+    const k = Math.ceil(-4 * Math.log2(h / hmax) - 1e-9);
+    return k > LEVELS ? LEVELS : k;
+}
+/** The phase table of ladder level k (computed on first use). */
+function levelTable(sys, k) {
+    const levels = sys.work.levels;
+    let t = levels[k];
+    if (t === null) {
+        t = new Float64Array(20 * sys.n);
+        tabulateE(sys, ladderStep(sys.maxStep_nm, k), t);
+        levels[k] = t;
+    }
+    return t;
+}
+/** General beam set: the strain term g_j . dR/dz of every beam at depth z into work.d. */
+function fillStrain(sys, z) {
+    const wk = sys.work;
+    const n = sys.n;
+    const d = wk.d;
+    const f = sys.factors;
+    const w = wk.w;
+    wk.dRdz(z, w);
+    const w0 = w[0], w1 = w[1], w2 = w[2];
+    for (let j = 0; j < n; j++)
+        d[j] = f[3 * j] * w0 + f[3 * j + 1] * w1 + f[3 * j + 2] * w2;
+}
+/**
+ * Right-hand side f = 2 pi i E^-1 C^-1 D(z) C E u at depth z, with E = E(c_s h)
+ * from the table (s = -1: E = I, the start of the step).
+ */
+function rhs(sys, z, s, ur, ui, fr, fi) {
+    const wk = sys.work;
+    const n = sys.n;
+    wk.stats.evaluations++;
+    // strain: a scalar beta' (systematic row, M = C^-1 diag(n_j) C precomputed) or per-beam d_j
+    let scale = TWO_PI;
+    let mRe;
+    let mIm;
+    const d = wk.d;
+    if (sys.strainDim === 1) {
+        const b = wk.betaPrime(z);
+        wk.w[0] = b;
+        if (b === 0) {
+            fr.fill(0);
+            fi.fill(0);
+            return;
+        }
+        scale *= b;
+        mRe = sys.mRe;
+        mIm = sys.mIm;
+    }
+    else {
+        fillStrain(sys, z);
+        let any = false;
+        for (let j = 0; j < n; j++)
+            if (d[j] !== 0)
+                any = true; // NaN counts as non-zero
+        if (!any) {
+            fr.fill(0);
+            fi.fill(0);
+            return;
+        }
+        mRe = sys.cRe;
+        mIm = sys.cIm;
+    }
+    const { vr, vi, pr, pi, tab } = wk;
+    const off = s * n;
+    const offIm = off + 5 * n;
+    if (s < 0) {
+        for (let j = 0; j < n; j++) {
+            vr[j] = ur[j];
+            vi[j] = ui[j];
+        }
+    }
+    else {
+        for (let j = 0; j < n; j++) {
+            const er = tab[off + j];
+            const ei = tab[offIm + j];
+            vr[j] = er * ur[j] - ei * ui[j];
+            vi[j] = er * ui[j] + ei * ur[j];
+        }
+    }
+    // p = M v (row) or p = D C v (general)
+    for (let i = 0; i < n; i++) {
+        let a = 0;
+        let b = 0;
+        const row = i * n;
+        for (let j = 0; j < n; j++) {
+            const cr = mRe[row + j];
+            const ci = mIm[row + j];
+            a += cr * vr[j] - ci * vi[j];
+            b += cr * vi[j] + ci * vr[j];
+        }
+        pr[i] = a;
+        pi[i] = b;
+    }
+    if (sys.strainDim === 3) {
+        // v = C^-1 D p
+        const { cInvRe, cInvIm } = sys;
+        for (let j = 0; j < n; j++) {
+            pr[j] *= d[j];
+            pi[j] *= d[j];
+        }
+        for (let i = 0; i < n; i++) {
+            let a = 0;
+            let b = 0;
+            const row = i * n;
+            for (let j = 0; j < n; j++) {
+                const cr = cInvRe[row + j];
+                const ci = cInvIm[row + j];
+                a += cr * pr[j] - ci * pi[j];
+                b += cr * pi[j] + ci * pr[j];
+            }
+            vr[i] = a;
+            vi[i] = b;
+        }
+    }
+    else {
+        for (let i = 0; i < n; i++) {
+            vr[i] = pr[i];
+            vi[i] = pi[i];
+        }
+    }
+    // f = i scale E^-1 v
+    const offInvRe = off + 10 * n;
+    const offInvIm = off + 15 * n;
+    for (let i = 0; i < n; i++) {
+        let qr = vr[i];
+        let qi = vi[i];
+        if (s >= 0) {
+            const er = tab[offInvRe + i];
+            const ei = tab[offInvIm + i];
+            const a = qr;
+            qr = er * a - ei * qi;
+            qi = er * qi + ei * a;
+        }
+        fr[i] = -scale * qi;
+        fi[i] = scale * qr;
+    }
+}
+function integrate(out, sys, thickness, betaPrime, dRdz, tol, jumps, stride) {
+    if (!(Number.isFinite(thickness) && thickness >= 0)) {
+        throw new InputError(`thickness_nm is ${thickness}: give a non-negative thickness in nm.`);
+    }
+    if (!(Number.isFinite(tol) && tol > 0))
+        throw new InputError(`tol is ${tol}: give a positive tolerance such as 1e-6.`);
+    if (out.length < 2 * sys.n)
+        throw new InputError(`out has ${out.length} numbers: give at least 2N = ${2 * sys.n}.`);
+    const n = sys.n;
+    const wk = sys.work;
+    const { ur, ui, yr, yi, kr, ki } = wk;
+    const hmax = sys.maxStep_nm;
+    wk.betaPrime = betaPrime;
+    wk.dRdz = dRdz;
+    wk.stats.accepted = 0;
+    wk.stats.rejected = 0;
+    wk.stats.evaluations = 0;
+    // jumps (faults, breakpoints), validated and in depth order
+    if (jumps.length % stride !== 0) {
+        throw new InputError(`faults has ${jumps.length} numbers: give records of ${stride} numbers (depth first).`);
+    }
+    const nJumps = jumps.length / stride;
+    for (let q = 0; q < nJumps; q++) {
+        const z = jumps[q * stride];
+        if (!(Number.isFinite(z) && z >= 0 && z <= thickness)) {
+            throw new InputError(`fault depth ${z} nm lies outside the column: give a depth from 0 to ${thickness} nm.`);
+        }
+        if (q > 0 && z < jumps[(q - 1) * stride])
+            throw new InputError('faults must be sorted by increasing depth: sort them.');
+        for (let k = 1; k < stride; k++) {
+            if (!Number.isFinite(jumps[q * stride + k]))
+                throw new InputError(`fault ${q} has a non-finite phase or shift: give finite numbers.`);
+        }
+    }
+    // psi (Bloch amplitudes) lives in ur/ui between steps
+    ur.set(sys.psi0Re);
+    ui.set(sys.psi0Im);
+    let z = 0;
+    let jumpIdx = 0;
+    let accepted = 0;
+    let rejected = 0;
+    let fsalValid = false;
+    let level = -1; // ladder level of the next step; -1: choose a fresh first step
+    let h = 0;
+    const k1r = kr[0], k1i = ki[0], k2r = kr[1], k2i = ki[1], k3r = kr[2], k3i = ki[2];
+    const k4r = kr[3], k4i = ki[3], k5r = kr[4], k5i = ki[4], k6r = kr[5], k6i = ki[5], k7r = kr[6], k7i = ki[6];
+    const tol2 = tol * tol;
+    for (;;) {
+        // apply the jumps sitting at the current depth
+        while (jumpIdx < nJumps && jumps[jumpIdx * stride] <= z) {
+            applyJump(sys, jumps, jumpIdx * stride);
+            jumpIdx++;
+            fsalValid = false;
+            level = -1;
+        }
+        if (z >= thickness)
+            break;
+        const zEnd = jumpIdx < nJumps ? jumps[jumpIdx * stride] : thickness;
+        if (!fsalValid) {
+            rhs(sys, z, -1, ur, ui, k1r, k1i);
+            if (level < 0) {
+                // largest |g_j . dR/dz| at z (left by rhs in w or d)
+                let dmax = 0;
+                if (sys.strainDim === 1) {
+                    for (let j = 0; j < n; j++)
+                        dmax = Math.max(dmax, Math.abs(sys.factors[j] * wk.w[0]));
+                }
+                else {
+                    for (let j = 0; j < n; j++)
+                        dmax = Math.max(dmax, Math.abs(wk.d[j]));
+                }
+                if (!Number.isFinite(dmax))
+                    throw strainError(z);
+                level = levelFor(hmax, 0.05 / (TWO_PI * dmax + 1e-300));
+            }
+            fsalValid = true;
+        }
+        h = ladderStep(hmax, level);
+        let lastStep = false;
+        if (z + h >= zEnd || zEnd - (z + h) < 1e-12 * Math.max(1, zEnd)) {
+            h = zEnd - z;
+            lastStep = true;
+            tabulateE(sys, h, wk.custom);
+            wk.tab = wk.custom;
+        }
+        else {
+            wk.tab = levelTable(sys, level);
+        }
+        const tab = wk.tab;
+        for (let j = 0; j < n; j++) {
+            yr[j] = ur[j] + h * A21 * k1r[j];
+            yi[j] = ui[j] + h * A21 * k1i[j];
+        }
+        rhs(sys, z + C2 * h, 0, yr, yi, k2r, k2i);
+        for (let j = 0; j < n; j++) {
+            yr[j] = ur[j] + h * (A31 * k1r[j] + A32 * k2r[j]);
+            yi[j] = ui[j] + h * (A31 * k1i[j] + A32 * k2i[j]);
+        }
+        rhs(sys, z + C3 * h, 1, yr, yi, k3r, k3i);
+        for (let j = 0; j < n; j++) {
+            yr[j] = ur[j] + h * (A41 * k1r[j] + A42 * k2r[j] + A43 * k3r[j]);
+            yi[j] = ui[j] + h * (A41 * k1i[j] + A42 * k2i[j] + A43 * k3i[j]);
+        }
+        rhs(sys, z + C4 * h, 2, yr, yi, k4r, k4i);
+        for (let j = 0; j < n; j++) {
+            yr[j] = ur[j] + h * (A51 * k1r[j] + A52 * k2r[j] + A53 * k3r[j] + A54 * k4r[j]);
+            yi[j] = ui[j] + h * (A51 * k1i[j] + A52 * k2i[j] + A53 * k3i[j] + A54 * k4i[j]);
+        }
+        rhs(sys, z + C5 * h, 3, yr, yi, k5r, k5i);
+        for (let j = 0; j < n; j++) {
+            yr[j] = ur[j] + h * (A61 * k1r[j] + A62 * k2r[j] + A63 * k3r[j] + A64 * k4r[j] + A65 * k5r[j]);
+            yi[j] = ui[j] + h * (A61 * k1i[j] + A62 * k2i[j] + A63 * k3i[j] + A64 * k4i[j] + A65 * k5i[j]);
+        }
+        const zNext = lastStep ? zEnd : z + h;
+        rhs(sys, zNext, 4, yr, yi, k6r, k6i);
+        for (let j = 0; j < n; j++) {
+            yr[j] = ur[j] + h * (A71 * k1r[j] + A73 * k3r[j] + A74 * k4r[j] + A75 * k5r[j] + A76 * k6r[j]);
+            yi[j] = ui[j] + h * (A71 * k1i[j] + A73 * k3i[j] + A74 * k4i[j] + A75 * k5i[j] + A76 * k6i[j]);
+        }
+        rhs(sys, zNext, 4, yr, yi, k7r, k7i);
+        // local error, weighted by |E(h)| so that it measures the Bloch amplitudes at z + h
+        let err2 = 0;
+        const off = 4 * n;
+        const offIm = 9 * n;
+        for (let j = 0; j < n; j++) {
+            const xr = h * (E1 * k1r[j] + E3 * k3r[j] + E4 * k4r[j] + E5 * k5r[j] + E6 * k6r[j] + E7 * k7r[j]);
+            const xi = h * (E1 * k1i[j] + E3 * k3i[j] + E4 * k4i[j] + E5 * k5i[j] + E6 * k6i[j] + E7 * k7i[j]);
+            const e2 = (xr * xr + xi * xi) * (tab[off + j] * tab[off + j] + tab[offIm + j] * tab[offIm + j]);
+            err2 = Math.max(err2, e2); // propagates NaN
+        }
+        const err = Math.sqrt(err2 / tol2);
+        if (!Number.isFinite(err))
+            throw strainError(z);
+        if (err <= 1 || level >= LEVELS) {
+            // accept: re-anchor, psi(z + h) = E(h) u(h); FSAL derivative k7 -> E(h) k7
+            for (let j = 0; j < n; j++) {
+                const er = tab[off + j];
+                const ei = tab[offIm + j];
+                const a = yr[j], b = yi[j];
+                ur[j] = er * a - ei * b;
+                ui[j] = er * b + ei * a;
+                const c = k7r[j], e = k7i[j];
+                k1r[j] = er * c - ei * e;
+                k1i[j] = er * e + ei * c;
+            }
+            accepted++;
+            z = zNext;
+            const fac = err < 3e-4 ? 5 : Math.min(5, 0.9 * Math.pow(err, -0.2));
+            level = levelFor(hmax, h * fac);
+        }
+        else {
+            rejected++;
+            level = Math.max(level + 1, levelFor(hmax, h * Math.max(0.2, 0.9 * Math.pow(err, -0.2))));
+            if (level > LEVELS)
+                level = LEVELS;
+        }
+    }
+    wk.stats.accepted = accepted;
+    wk.stats.rejected = rejected;
+    wk.betaPrime = null;
+    wk.dRdz = null;
+    // phi = C psi
+    const { cRe, cIm } = sys;
+    for (let i = 0; i < n; i++) {
+        let a = 0;
+        let b = 0;
+        for (let j = 0; j < n; j++) {
+            const cr = cRe[i * n + j];
+            const ci = cIm[i * n + j];
+            a += cr * ur[j] - ci * ui[j];
+            b += cr * ui[j] + ci * ur[j];
+        }
+        out[2 * i] = a;
+        out[2 * i + 1] = b;
+    }
+    return accepted;
+}
+/** psi <- C^-1 diag(phase) C psi for the fault record jumps[at..]. */
+function applyJump(sys, jumps, at) {
+    const n = sys.n;
+    const { ur, ui, vr, vi, fr, fi } = sys.work;
+    const f = sys.factors;
+    let trivial = true;
+    for (let j = 0; j < n; j++) {
+        // phase angle of beam j: n_j alpha (row) or 2 pi g_j . Delta R (general)
+        const ang = sys.strainDim === 3
+            ? TWO_PI * (f[3 * j] * jumps[at + 1] + f[3 * j + 1] * jumps[at + 2] + f[3 * j + 2] * jumps[at + 3])
+            : f[j] * jumps[at + 1];
+        fr[j] = Math.cos(ang);
+        fi[j] = Math.sin(ang);
+        if (ang !== 0)
+            trivial = false;
+    }
+    if (trivial)
+        return; // a breakpoint
+    const { cRe, cIm, cInvRe, cInvIm } = sys;
+    for (let i = 0; i < n; i++) {
+        let a = 0;
+        let b = 0;
+        for (let j = 0; j < n; j++) {
+            a += cRe[i * n + j] * ur[j] - cIm[i * n + j] * ui[j];
+            b += cRe[i * n + j] * ui[j] + cIm[i * n + j] * ur[j];
+        }
+        vr[i] = fr[i] * a - fi[i] * b;
+        vi[i] = fr[i] * b + fi[i] * a;
+    }
+    for (let i = 0; i < n; i++) {
+        let a = 0;
+        let b = 0;
+        for (let j = 0; j < n; j++) {
+            a += cInvRe[i * n + j] * vr[j] - cInvIm[i * n + j] * vi[j];
+            b += cInvRe[i * n + j] * vi[j] + cInvIm[i * n + j] * vr[j];
+        }
+        ur[i] = a;
+        ui[i] = b;
+    }
+}
+/** Statistics of the last integration with this system (accepted, rejected steps, right-hand-side evaluations). */
+export function lastIntegrationStats(system) {
+    return { ...system.work.stats };
+}

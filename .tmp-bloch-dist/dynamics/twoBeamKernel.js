@@ -1,0 +1,107 @@
+/**
+ * The propagator of one slice of a column for the two-beam Howie-Whelan
+ * equations (physics.md section 3), written out on real scalars.
+ *
+ * The equations are d(phi)/dz = A(z) phi with
+ *   A(z) = pi i M(z) - (pi/xi'0) I,   M(z) = [[0, q], [q, 2 (s + beta'(z))]],
+ *   q = 1/xi_g + i/xi'_g.
+ *
+ * For a constant s_e = s + beta' the exact slice matrix is
+ *   exp(A D) = e^{-pi D/xi'0} e^{pi i s_e D} [cos(pi sigma D) I
+ *              + i sin(pi sigma D)/sigma (M - s_e I)],  sigma^2 = s_e^2 + q^2
+ * (physics.md section 3; (M - s_e I)^2 = sigma^2 I).
+ *
+ * For a varying beta' the slice uses the fourth-order Magnus step with the
+ * two Gauss-Legendre nodes z_{1,2} = z + D (1/2 -+ sqrt(3)/6)
+ * (Iserles & Norsett 1999, Phil. Trans. R. Soc. A 357, 983; Blanes, Casas,
+ * Oteo & Ros 2009, Phys. Rep. 470, 151):
+ *   Omega = D/2 (A1 + A2) + sqrt(3) D^2 / 12 [A2, A1].
+ * The first term is the slab with s_e = s + (b1 + b2)/2, the Gauss-Legendre
+ * mean of beta' over the slice. With b_k = beta'(z_k) and P = diag(0, 1),
+ *   [M2, M1] = 2 (b2 - b1) [P, M] = 2 (b2 - b1) q J,  J = [[0, -1], [1, 0]],
+ * so [A2, A1] = -2 pi^2 (b2 - b1) q J and
+ *   Omega = pi i D ( M_e - i eps q J ) - (pi D/xi'0) I,
+ *   eps = -(sqrt(3)/6) pi D (b2 - b1),   M_e = [[0, q], [q, 2 s_e]].
+ * M_e - i eps q J = [[0, q (1 + i eps)], [q (1 - i eps), 2 s_e]] has the same
+ * structure as M, so the exact exponential above applies with the two
+ * off-diagonal elements q(1 + i eps), q(1 - i eps) and
+ *   sigma^2 = s_e^2 + q^2 (1 + eps^2).
+ * eps = 0 (constant beta') gives the exact slab matrix.
+ */
+const PI = Math.PI;
+/**
+ * Multiplies the amplitudes st[o..o+3] = (re phi0, im phi0, re phig, im phig)
+ * in place by exp(Omega) of one slice of length h (nm).
+ * qr, qi: real and imaginary parts of q (nm^-1); se: s + mean beta' (nm^-1);
+ * eps: the Magnus correction (0 for a constant s_e); invXi0: 1/xi'_0 (nm^-1).
+ */
+export function stepSlice(st, o, qr, qi, se, eps, h, invXi0) {
+    const e2 = 1 + eps * eps;
+    // sigma^2 = se^2 + q^2 (1 + eps^2) = X + iY
+    const X = se * se + (qr * qr - qi * qi) * e2;
+    const Y = 2 * qr * qi * e2;
+    // complex square root (either branch: the matrix is even in sigma)
+    const r = Math.sqrt(X * X + Y * Y);
+    let sr;
+    let si;
+    if (X >= 0) {
+        sr = Math.sqrt(0.5 * (r + X));
+        si = sr > 0 ? Y / (2 * sr) : 0;
+    }
+    else {
+        si = Math.sqrt(0.5 * (r - X));
+        sr = Y / (2 * si);
+    }
+    // z = pi h sigma = a + i b; damping d = pi h / xi'0 folded into cosh/sinh
+    const ph = PI * h;
+    const a = ph * sr;
+    const b = ph * si;
+    const d = ph * invXi0;
+    const ep = Math.exp(b - d);
+    const em = Math.exp(-b - d);
+    const ch = 0.5 * (ep + em);
+    const sh = 0.5 * (ep - em);
+    const ca = Math.cos(a);
+    const sa = Math.sin(a);
+    // C = cos(z) e^{-d}, S = sin(z) e^{-d}
+    const Cr = ca * ch;
+    const Ci = -sa * sh;
+    const Sr = sa * ch;
+    const Si = ca * sh;
+    // iK = i sin(z) e^{-d} / sigma
+    const den = sr * sr + si * si;
+    const Kr = (Sr * sr + Si * si) / den;
+    const Ki = (Si * sr - Sr * si) / den;
+    const iKr = -Ki;
+    const iKi = Kr;
+    // diagonal: C -+ iK se
+    const t00r = Cr - iKr * se;
+    const t00i = Ci - iKi * se;
+    const t11r = Cr + iKr * se;
+    const t11i = Ci + iKi * se;
+    // off-diagonal: iK q (1 + i eps) and iK q (1 - i eps)
+    const upr = qr - qi * eps;
+    const upi = qi + qr * eps;
+    const lor = qr + qi * eps;
+    const loi = qi - qr * eps;
+    const t01r = iKr * upr - iKi * upi;
+    const t01i = iKr * upi + iKi * upr;
+    const t10r = iKr * lor - iKi * loi;
+    const t10i = iKr * loi + iKi * lor;
+    // common phase e^{i pi h se}
+    const th = ph * se;
+    const cp = Math.cos(th);
+    const sp = Math.sin(th);
+    const x0r = st[o];
+    const x0i = st[o + 1];
+    const xgr = st[o + 2];
+    const xgi = st[o + 3];
+    const n0r = t00r * x0r - t00i * x0i + t01r * xgr - t01i * xgi;
+    const n0i = t00r * x0i + t00i * x0r + t01r * xgi + t01i * xgr;
+    const ngr = t10r * x0r - t10i * x0i + t11r * xgr - t11i * xgi;
+    const ngi = t10r * x0i + t10i * x0r + t11r * xgi + t11i * xgr;
+    st[o] = cp * n0r - sp * n0i;
+    st[o + 1] = cp * n0i + sp * n0r;
+    st[o + 2] = cp * ngr - sp * ngi;
+    st[o + 3] = cp * ngi + sp * ngr;
+}

@@ -1,0 +1,356 @@
+/**
+ * TIFF (TIFF 6.0 specification, Adobe 1992) to grey values. The first page
+ * only. The directory is read by tiffDirectory.ts; the strips or tiles are
+ * decompressed by utif (uncompressed, LZW, Deflate, PackBits). This module
+ * then turns the bytes into samples in the file's byte order, undoes
+ * horizontal differencing (Predictor 2, TIFF 6.0 section 14) itself, and
+ * makes one grey value per pixel:
+ *   BlackIsZero: the first sample as stored (extra samples such as alpha are ignored);
+ *   WhiteIsZero (unsigned only): 2^bits - 1 - stored value, so bright stays bright;
+ *   RGB: Rec. 601 luma of the first three samples (luminance.ts);
+ *   palette: Rec. 601 luma of the 16-bit ColorMap entries.
+ * Samples: 8, 16 or 32-bit unsigned or signed integers, 32-bit IEEE float.
+ * 32-bit integers above 2^24 in magnitude are rounded to the nearest float.
+ */
+import { createRequire } from 'node:module';
+import { InputError } from '../errors.js';
+import { lumaRec601 } from './luminance.js';
+import { readFirstDirectory } from './tiffDirectory.js';
+import { MAX_PIXELS } from './types.js';
+const require = createRequire(import.meta.url);
+const UTIF = require('utif');
+/** Field tags (TIFF 6.0, sections 8, 14, 15, 19). */
+const T = {
+    width: 256,
+    height: 257,
+    bitsPerSample: 258,
+    compression: 259,
+    photometric: 262,
+    stripOffsets: 273,
+    orientation: 274,
+    samplesPerPixel: 277,
+    rowsPerStrip: 278,
+    stripByteCounts: 279,
+    xResolution: 282,
+    yResolution: 283,
+    planar: 284,
+    resolutionUnit: 296,
+    predictor: 317,
+    colorMap: 320,
+    tileWidth: 322,
+    tileLength: 323,
+    tileOffsets: 324,
+    tileByteCounts: 325,
+    sampleFormat: 339,
+};
+/** Compression schemes utif decodes and this reader accepts; 32946 is the older code for Deflate. */
+const READABLE_COMPRESSION = new Set([1, 5, 8, 32946, 32773]);
+const COMPRESSION_NAME = {
+    2: 'CCITT modified Huffman',
+    3: 'CCITT Group 3',
+    4: 'CCITT Group 4',
+    6: 'old-style JPEG',
+    7: 'JPEG',
+    32809: 'ThunderScan',
+    34712: 'JPEG 2000',
+    34925: 'LZMA',
+    50000: 'Zstandard',
+    50001: 'WebP',
+};
+const PHOTOMETRIC_NAME = {
+    4: 'transparency mask',
+    5: 'CMYK',
+    6: 'YCbCr',
+    8: 'CIE L*a*b*',
+    9: 'ICC L*a*b*',
+    10: 'ITU L*a*b*',
+    32803: 'colour filter array (camera raw)',
+    32844: 'LogL',
+    32845: 'LogLuv',
+    34892: 'linear raw',
+};
+function cannot(name, what, fix) {
+    return new InputError(`${name} ${what}, which thinfoil cannot read; ${fix}.`);
+}
+const LITTLE_ENDIAN_HOST = new Uint8Array(new Uint16Array([1]).buffer)[0] === 1;
+/** Undo horizontal differencing in place, row by row, restarting every `segment` pixels (tile width). */
+function undoPredictor(s, width, height, spp, segment) {
+    for (let y = 0; y < height; y++) {
+        const row = y * width * spp;
+        for (let x0 = 0; x0 < width; x0 += segment) {
+            const x1 = Math.min(width, x0 + segment);
+            for (let k = row + (x0 + 1) * spp; k < row + x1 * spp; k++)
+                s[k] = s[k] + s[k - spp]; // wraps modulo 2^bits
+        }
+    }
+}
+/**
+ * Samples in host byte order as unsigned integers of the file's width. `raw`
+ * is owned by the caller and may be reused; `le16`/`le32` give the byte order
+ * of 16- and 32-bit samples in `raw`.
+ */
+function samplesFrom(raw, count, bps, le16, le32) {
+    if (bps === 8)
+        return raw.subarray(0, count);
+    const le = bps === 16 ? le16 : le32;
+    const aligned = raw.byteOffset % (bps / 8) === 0;
+    if (LITTLE_ENDIAN_HOST === le && aligned) {
+        return bps === 16 ? new Uint16Array(raw.buffer, raw.byteOffset, count) : new Uint32Array(raw.buffer, raw.byteOffset, count);
+    }
+    const dv = new DataView(raw.buffer, raw.byteOffset, raw.byteLength);
+    if (bps === 16) {
+        const out = new Uint16Array(count);
+        for (let i = 0; i < count; i++)
+            out[i] = dv.getUint16(2 * i, le);
+        return out;
+    }
+    const out = new Uint32Array(count);
+    for (let i = 0; i < count; i++)
+        out[i] = dv.getUint32(4 * i, le);
+    return out;
+}
+/** Decompress strips or tiles with utif; returns the pixel bytes row by row. */
+function decompressWithUtif(bytes, L, damaged) {
+    const ifd = {
+        t256: [L.width],
+        t257: [L.height],
+        t258: new Array(L.spp).fill(L.bps),
+        t259: [L.compression],
+        t262: [L.photometric],
+        t277: [L.spp],
+        t284: [1],
+    };
+    if (L.tiled)
+        Object.assign(ifd, { t322: [L.tileWidth], t323: [L.tileLength], t324: L.offsets, t325: L.counts });
+    else
+        Object.assign(ifd, { t273: L.offsets, t278: [L.rowsPerStrip], t279: L.counts });
+    // utif views its input through `.buffer`, so hand it a buffer holding just this
+    // file (a copy when `bytes` is a view into a larger buffer, such as a pooled Buffer)
+    const whole = bytes.byteOffset === 0 && bytes.byteLength === bytes.buffer.byteLength;
+    const buffer = (whole ? bytes.buffer : new Uint8Array(bytes).buffer);
+    try {
+        UTIF.decodeImage(buffer, ifd);
+    }
+    catch (err) {
+        throw damaged(`the pixel data cannot be decompressed: ${err instanceof Error ? err.message : String(err)}`);
+    }
+    if (ifd.data === undefined)
+        throw damaged('there is no pixel data');
+    return ifd.data;
+}
+/** The same bits read as the file's sample format. */
+function typedView(s, format) {
+    if (format === 1)
+        return s;
+    if (format === 3)
+        return new Float32Array(s.buffer, s.byteOffset, s.length);
+    if (s instanceof Uint8Array)
+        return new Int8Array(s.buffer, s.byteOffset, s.length);
+    if (s instanceof Uint16Array)
+        return new Int16Array(s.buffer, s.byteOffset, s.length);
+    return new Int32Array(s.buffer, s.byteOffset, s.length);
+}
+function pixelSize_nm(dir) {
+    const x = dir.numbers.get(T.xResolution)?.[0];
+    if (x === undefined || !(x > 0) || !Number.isFinite(x))
+        return undefined;
+    const y = dir.numbers.get(T.yResolution)?.[0] ?? x;
+    if (Math.abs(x - y) > 1e-9 * x)
+        return undefined; // non-square pixels: no single size
+    const unit = dir.numbers.get(T.resolutionUnit)?.[0] ?? 2; // default: inch (TIFF 6.0, section 8)
+    if (unit === 2)
+        return 2.54e7 / x;
+    if (unit === 3)
+        return 1e7 / x;
+    return undefined;
+}
+export function decodeTiff(bytes, name) {
+    const dir = readFirstDirectory(bytes, name);
+    const damaged = (why) => new InputError(`${name} is a damaged or truncated TIFF file (${why}); save it again.`);
+    const list = (tag) => dir.numbers.get(tag);
+    const one = (tag, fallback) => {
+        const v = list(tag)?.[0] ?? fallback;
+        if (v === undefined)
+            throw damaged(`field ${tag} is missing`);
+        return v;
+    };
+    const width = one(T.width);
+    const height = one(T.height);
+    if (width === 0 || height === 0)
+        throw new InputError(`${name} is a TIFF file with no pixels; save the micrograph again.`);
+    if (width * height > MAX_PIXELS) {
+        throw new InputError(`${name} has ${width} x ${height} pixels, more than thinfoil reads (${MAX_PIXELS}); crop or bin it first.`);
+    }
+    const spp = one(T.samplesPerPixel, 1);
+    if (spp < 1)
+        throw damaged('SamplesPerPixel is 0');
+    const bpsList = list(T.bitsPerSample) ?? [1];
+    const bps = bpsList[0];
+    if (bpsList.some((b) => b !== bps)) {
+        throw cannot(name, `uses different bit depths per channel (${bpsList.join(', ')})`, 'save it as greyscale with 8, 16 or 32 bit');
+    }
+    if (bps !== 8 && bps !== 16 && bps !== 32) {
+        throw cannot(name, `uses ${bps}-bit samples`, 'save it as 8, 16 or 32 bit');
+    }
+    let format = list(T.sampleFormat)?.[0] ?? 1;
+    if (format === 4)
+        format = 1; // "undefined" data: treat as unsigned
+    if (format !== 1 && format !== 2 && format !== 3) {
+        throw cannot(name, `uses sample format ${format} (complex numbers)`, 'save it as integers or 32-bit float');
+    }
+    if (format === 3 && bps !== 32) {
+        throw cannot(name, `uses ${bps}-bit floating-point samples`, 'save it as 32-bit float or as 8 or 16-bit integers');
+    }
+    let compression = one(T.compression, 1);
+    if (!READABLE_COMPRESSION.has(compression)) {
+        const label = COMPRESSION_NAME[compression] ?? 'an unknown scheme';
+        throw cannot(name, `uses TIFF compression ${compression} (${label})`, 'save it uncompressed or with LZW, Deflate or PackBits compression');
+    }
+    if (compression === 32946)
+        compression = 8; // same zlib stream (TIFF technical note 2)
+    const photometric = one(T.photometric, 1);
+    if (photometric === 0 || photometric === 1) {
+        if (photometric === 0 && format !== 1) {
+            throw cannot(name, 'stores signed or float samples with white as zero', 'save it with black as zero (BlackIsZero)');
+        }
+    }
+    else if (photometric === 2) {
+        if (spp < 3)
+            throw damaged(`an RGB image with ${spp} sample(s) per pixel`);
+    }
+    else if (photometric === 3) {
+        if (spp !== 1 || format !== 1 || bps === 32)
+            throw cannot(name, `uses a ${bps}-bit palette`, 'save it as greyscale');
+    }
+    else {
+        const label = PHOTOMETRIC_NAME[photometric] ?? `number ${photometric}`;
+        throw cannot(name, `uses the ${label} colour model`, 'save it as greyscale or RGB');
+    }
+    const orientation = one(T.orientation, 1);
+    if (orientation !== 1) {
+        throw cannot(name, `has orientation ${orientation} (rows not stored top to bottom, left to right)`, 'save it with the default orientation');
+    }
+    if (spp > 1 && one(T.planar, 1) === 2) {
+        throw cannot(name, 'stores each channel in a separate plane', 'save it as greyscale or as ordinary (chunky) RGB');
+    }
+    const predictor = one(T.predictor, 1);
+    if (predictor === 3 || (predictor === 2 && format === 3)) {
+        throw cannot(name, 'uses the floating-point predictor', 'save it without a predictor');
+    }
+    if (predictor !== 1 && predictor !== 2 && predictor !== 3)
+        throw damaged(`unknown predictor ${predictor}`);
+    const tiled = dir.numbers.has(T.tileWidth);
+    if (tiled && !dir.littleEndian && bps === 16) {
+        throw cannot(name, 'is a big-endian tiled 16-bit TIFF', 'save it little-endian or with strips');
+    }
+    // strip or tile layout, checked against the file size
+    const rowBytes = width * spp * (bps / 8);
+    const offsets = list(tiled ? T.tileOffsets : T.stripOffsets);
+    const counts = list(tiled ? T.tileByteCounts : T.stripByteCounts);
+    let blockCount;
+    let blockBytes; // uncompressed size of a full strip or tile
+    let rowsPerStrip = height;
+    let tileWidth = width;
+    let tileLength = height;
+    if (tiled) {
+        tileWidth = one(T.tileWidth);
+        tileLength = one(T.tileLength);
+        if (tileWidth === 0 || tileLength === 0)
+            throw damaged('the tile size is 0');
+        blockCount = Math.ceil(width / tileWidth) * Math.ceil(height / tileLength);
+        blockBytes = tileWidth * tileLength * spp * (bps / 8);
+    }
+    else {
+        rowsPerStrip = Math.min(one(T.rowsPerStrip, height), height);
+        if (rowsPerStrip === 0)
+            throw damaged('RowsPerStrip is 0');
+        blockCount = Math.ceil(height / rowsPerStrip);
+        blockBytes = rowsPerStrip * rowBytes;
+    }
+    if (offsets === undefined || offsets.length < blockCount)
+        throw damaged('the pixel data offsets are missing');
+    if (compression !== 1 && (counts === undefined || counts.length < blockCount))
+        throw damaged('the pixel data sizes are missing');
+    for (let i = 0; i < blockCount; i++) {
+        const stored = compression === 1 ? blockBytes : counts[i];
+        // the last strip of an uncompressed file may be shorter than a full strip
+        const need = compression === 1 && !tiled && i === blockCount - 1 ? (height - i * rowsPerStrip) * rowBytes : stored;
+        if (offsets[i] + need > bytes.length)
+            throw damaged('the pixel data runs past the end of the file');
+    }
+    const count = width * height * spp;
+    const sampleBytes = bps / 8;
+    let raw;
+    let order16LE = dir.littleEndian;
+    if (compression === 1 && !tiled) {
+        // uncompressed strips: plain copies, in the file's byte order
+        raw = new Uint8Array(height * rowBytes);
+        for (let i = 0; i < blockCount; i++) {
+            const start = i * rowsPerStrip * rowBytes;
+            const len = Math.min(blockBytes, raw.length - start);
+            raw.set(bytes.subarray(offsets[i], offsets[i] + len), start);
+        }
+    }
+    else {
+        const layout = {
+            width,
+            height,
+            spp,
+            bps,
+            compression,
+            photometric,
+            tiled,
+            tileWidth,
+            tileLength,
+            rowsPerStrip,
+            offsets,
+            counts: counts ?? new Array(blockCount).fill(blockBytes),
+        };
+        raw = decompressWithUtif(bytes, layout, damaged);
+        order16LE = true; // utif puts 16-bit samples of big-endian files into little-endian order
+        if (raw.length < count * sampleBytes)
+            throw damaged('there is too little pixel data');
+    }
+    const samples = samplesFrom(raw, count, bps, order16LE, dir.littleEndian);
+    if (predictor === 2)
+        undoPredictor(samples, width, height, spp, tiled ? tileWidth : width);
+    const values = typedView(samples, format);
+    const n = width * height;
+    const data = new Float32Array(n);
+    let bitDepth = bps;
+    if (photometric === 2) {
+        for (let i = 0; i < n; i++)
+            data[i] = lumaRec601(values[i * spp], values[i * spp + 1], values[i * spp + 2]);
+    }
+    else if (photometric === 3) {
+        const map = list(T.colorMap);
+        const entries = 2 ** bps;
+        if (map === undefined || map.length < 3 * entries)
+            throw damaged('the colour map is missing or short');
+        for (let i = 0; i < n; i++) {
+            const v = values[i];
+            data[i] = lumaRec601(map[v], map[entries + v], map[2 * entries + v]);
+        }
+        bitDepth = 16; // ColorMap entries are 16-bit (TIFF 6.0, section 5)
+    }
+    else if (photometric === 0) {
+        const white = 2 ** bps - 1;
+        for (let i = 0; i < n; i++)
+            data[i] = white - values[i * spp];
+    }
+    else {
+        for (let i = 0; i < n; i++)
+            data[i] = values[i * spp];
+    }
+    if (format === 3) {
+        let bad = 0;
+        for (let i = 0; i < n; i++)
+            if (data[i] - data[i] !== 0)
+                bad++;
+        if (bad > 0) {
+            throw new InputError(`${name} has ${bad} NaN or infinite pixel values; replace them with numbers before importing it.`);
+        }
+    }
+    const pixel_nm = pixelSize_nm(dir);
+    return { width, height, data, bitDepth, kind: 'tiff', ...(pixel_nm !== undefined ? { pixel_nm } : {}) };
+}

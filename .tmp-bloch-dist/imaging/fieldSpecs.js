@@ -1,0 +1,113 @@
+import { add, cross, dot, scale, sub, unit } from '../math/vec3.js';
+import { directionToCartesian, planeNormalToCartesian } from '../crystal/lattice.js';
+import { imageFrame, imagePointToCrystal } from '../geometry/frames.js';
+import { superpose } from '../elasticity/field.js';
+import { straightDislocation, dislocationFrame } from '../elasticity/straightDislocation.js';
+import { sphericalInclusion } from '../elasticity/inclusion.js';
+import { ribbonWidth_nm, shockleySplit } from '../elasticity/dissociation.js';
+import { InputError } from '../errors.js';
+/** The frame in which defect points are given: the scenario's own beam. */
+export function referenceFrame(sc) {
+    const l = sc.material.lattice;
+    return imageFrame(directionToCartesian(l, sc.beam), sc.imageX_cart, directionToCartesian(l, sc.foilNormal), sc.thickness_nm);
+}
+/** A dislocation with an explicit cut: its field and the half-plane where R jumps by b. */
+function dislocationWithCut(b_nm, line, point_nm, nu, cut, core) {
+    const u = unit(line);
+    const c = cut === undefined ? scale(dislocationFrame(b_nm, u).e1, -1) : unit(sub(cut, scale(u, dot(cut, u))));
+    const field = {
+        kind: 'dislocation',
+        b_nm,
+        line: u,
+        point_nm,
+        poissonRatio: nu,
+        cutDirection: c,
+        ...(core === undefined ? {} : { coreRadius_nm: core }),
+    };
+    // Crossing the cut towards +(u x c), R drops by b (FS/RH; see elasticity/straightDislocation.ts).
+    const surface = { kind: 'half-plane', point_nm, normal: unit(cross(u, c)), jump_nm: scale(b_nm, -1), edge: u, into: c };
+    return { field, surface };
+}
+export function defectModel(sc) {
+    const m = sc.material;
+    const l = m.lattice;
+    const ref = referenceFrame(sc);
+    const nu = m.elastic.poissonRatio;
+    const fields = [];
+    const surfaces = [];
+    const cart = (d) => directionToCartesian(l, d);
+    const add1 = (x) => {
+        fields.push(x.field);
+        surfaces.push(x.surface);
+    };
+    for (const d of sc.defects) {
+        switch (d.type) {
+            case 'dislocation':
+                add1(dislocationWithCut(cart(d.b), cart(d.line), imagePointToCrystal(ref, d.point_nm), nu, undefined, d.core_nm));
+                break;
+            case 'partial': {
+                const n = unit(planeNormalToCartesian(l, d.faultPlane));
+                const side = cart(d.faultSide);
+                const inPlane = sub(side, scale(n, dot(side, n)));
+                add1(dislocationWithCut(cart(d.b), cart(d.line), imagePointToCrystal(ref, d.point_nm), nu, inPlane, d.core_nm));
+                break;
+            }
+            case 'dissociated':
+                for (const p of dissociatedPartials(m, d, ref))
+                    add1(p);
+                break;
+            case 'fault': {
+                // normal oriented to the side behind the fault, as seen along the reference beam
+                let n = unit(planeNormalToCartesian(l, d.plane));
+                if (dot(n, ref.ez) < 0)
+                    n = scale(n, -1);
+                surfaces.push({ kind: 'plane', point_nm: imagePointToCrystal(ref, d.point_nm), normal: n, jump_nm: cart(d.vector) });
+                break;
+            }
+            case 'inclusion':
+                fields.push({ kind: 'inclusion', centre_nm: imagePointToCrystal(ref, d.centre_nm), radius_nm: d.radius_nm, strain: d.strain, poissonRatio: nu });
+                break;
+        }
+    }
+    return { fields, surfaces };
+}
+/** The two Shockley partials of a dissociated dislocation, each with its cut along the ribbon (intrinsic fault between them). */
+function dissociatedPartials(m, d, ref) {
+    const l = m.lattice;
+    let pair;
+    try {
+        pair = shockleySplit({ lattice: l, b: d.b, planeNormal: d.plane, lineCartesian: directionToCartesian(l, d.line) });
+    }
+    catch (e) {
+        if (e instanceof InputError)
+            throw new InputError(`${d.label}: ${e.message}`);
+        throw e;
+    }
+    const width = d.separation_nm ??
+        ribbonWidth_nm(pair.b1_nm, pair.b2_nm, pair.line, m.elastic.shearModulus_GPa, m.elastic.poissonRatio, m.stackingFaultEnergy_mJ_per_m2);
+    const centre = imagePointToCrystal(ref, d.point_nm);
+    const p1 = add(centre, scale(pair.ribbonDirection, -width / 2));
+    const p2 = add(centre, scale(pair.ribbonDirection, width / 2));
+    const nu = m.elastic.poissonRatio;
+    return [
+        dislocationWithCut(pair.b1_nm, pair.line, p1, nu, pair.ribbonDirection, d.core_nm),
+        dislocationWithCut(pair.b2_nm, pair.line, p2, nu, pair.ribbonDirection, d.core_nm),
+    ];
+}
+/** Width of the ribbon a dissociated defect will get (nm). */
+export function dissociationWidth_nm(m, d) {
+    if (d.separation_nm !== undefined)
+        return d.separation_nm;
+    const l = m.lattice;
+    const pair = shockleySplit({ lattice: l, b: d.b, planeNormal: d.plane, lineCartesian: directionToCartesian(l, d.line) });
+    return ribbonWidth_nm(pair.b1_nm, pair.b2_nm, pair.line, m.elastic.shearModulus_GPa, m.elastic.poissonRatio, m.stackingFaultEnergy_mJ_per_m2);
+}
+/** The combined displacement field, or null when no defect has a field. */
+export function buildField(specs) {
+    if (specs.length === 0)
+        return null;
+    const fields = specs.map((s) => s.kind === 'dislocation'
+        ? straightDislocation(s)
+        : sphericalInclusion({ centre_nm: s.centre_nm, radius_nm: s.radius_nm, strain: s.strain, poissonRatio: s.poissonRatio }));
+    return fields.length === 1 ? fields[0] : superpose(fields);
+}

@@ -1,0 +1,173 @@
+import { dot } from '../math/vec3.js';
+import { columnEntryOffset, pixelX } from '../geometry/frames.js';
+import { integrateColumn, perfectCrystal } from '../dynamics/twoBeam.js';
+import { rk4Column } from '../dynamics/rk4Reference.js';
+import { integrateColumnN, prepareColumnSystem } from '../dynamics/manyBeam.js';
+import { buildField } from './fieldSpecs.js';
+/** Surfaces whose phase is not a multiple of 2 pi and that columns actually cross. */
+export function activeSurfaces(job) {
+    const k = job.frame.ez;
+    const out = [];
+    for (const s of job.model.surfaces) {
+        const gR = dot(job.g_cart, s.jump_nm);
+        if (Math.abs(gR - Math.round(gR)) < 1e-9)
+            continue; // alpha = 2 pi n: invisible
+        const kn = dot(k, s.normal);
+        if (Math.abs(kn) < 1e-12)
+            continue; // the beam runs within the plane: columns never cross it
+        out.push({ alpha: 2 * Math.PI * gR, p: s.point_nm, n: s.normal, kn, halfPlane: s.kind === 'half-plane', into: s.into ?? [0, 0, 0] });
+    }
+    return out;
+}
+export function columnEvaluator(job) {
+    const { frame, g_cart, params, tol } = job;
+    const L = frame.columnLength_nm;
+    const stats = { slices: 0 };
+    const field = buildField(job.model.fields);
+    const surfaces = activeSurfaces(job);
+    const mb = job.manyBeam === undefined ? null : manyBeamColumn(job.manyBeam, tol);
+    if (field === null && surfaces.length === 0) {
+        const p = new Float64Array(4);
+        if (mb === null)
+            perfectCrystal(p, params, L);
+        else
+            mb.integrate(p, L, () => 0, new Float64Array(0));
+        return {
+            perfect: true,
+            stats,
+            column(out) {
+                out.set(p);
+                stats.slices++;
+            },
+        };
+    }
+    // beta'(z) = g . (grad R) . ez along the column r(z) = c + z ez
+    const [kx, ky, kz] = frame.ez;
+    const dir = field === null ? null : field.directional(g_cart, frame.ez);
+    let cx = 0;
+    let cy = 0;
+    let cz = 0;
+    const betaPrime = dir === null ? () => 0 : (z) => dir(cx + z * kx, cy + z * ky, cz + z * kz);
+    // Many-beam only: each dislocation line's depth of closest approach is a breakpoint (a zero phase step),
+    // so that the stepper restarts with a small step where the strain peaks.
+    const lines = mb === null ? [] : job.model.fields.flatMap((f) => (f.kind === 'dislocation' ? [{ p: f.point_nm, u: f.line }] : []));
+    const nMax = surfaces.length + lines.length;
+    // fault crossings of the current column: [z, alpha] pairs sorted by z, one array per count
+    const crossings = Array.from({ length: nMax }, (_, i) => new Float64Array(2 * (i + 1)));
+    const none = new Float64Array(0);
+    const zs = new Float64Array(nMax);
+    const as = new Float64Array(nMax);
+    const [ex0, ex1, ex2] = frame.ex;
+    const [ey0, ey1, ey2] = frame.ey;
+    return {
+        perfect: false,
+        stats,
+        column(out, x, y) {
+            const tau0 = columnEntryOffset(frame, x, y);
+            cx = x * ex0 + y * ey0 + tau0 * kx;
+            cy = x * ex1 + y * ey1 + tau0 * ky;
+            cz = x * ex2 + y * ey2 + tau0 * kz;
+            let count = 0;
+            for (let s = 0; s < surfaces.length; s++) {
+                const f = surfaces[s];
+                const zc = ((f.p[0] - cx) * f.n[0] + (f.p[1] - cy) * f.n[1] + (f.p[2] - cz) * f.n[2]) / f.kn;
+                if (!(zc > 0 && zc < L))
+                    continue;
+                if (f.halfPlane) {
+                    const t = (cx + zc * kx - f.p[0]) * f.into[0] + (cy + zc * ky - f.p[1]) * f.into[1] + (cz + zc * kz - f.p[2]) * f.into[2];
+                    if (t <= 0)
+                        continue;
+                }
+                // insertion by depth
+                let q = count++;
+                while (q > 0 && zs[q - 1] > zc) {
+                    zs[q] = zs[q - 1];
+                    as[q] = as[q - 1];
+                    q--;
+                }
+                zs[q] = zc;
+                as[q] = f.kn > 0 ? f.alpha : -f.alpha;
+            }
+            for (let d = 0; d < lines.length; d++) {
+                const { p, u } = lines[d];
+                const b = kx * u[0] + ky * u[1] + kz * u[2];
+                const den = 1 - b * b;
+                if (den < 1e-9)
+                    continue; // column parallel to the line
+                const w0x = cx - p[0], w0y = cy - p[1], w0z = cz - p[2];
+                const zc = (b * (u[0] * w0x + u[1] * w0y + u[2] * w0z) - (kx * w0x + ky * w0y + kz * w0z)) / den;
+                if (!(zc > 0 && zc < L))
+                    continue;
+                let q = count++;
+                while (q > 0 && zs[q - 1] > zc) {
+                    zs[q] = zs[q - 1];
+                    as[q] = as[q - 1];
+                    q--;
+                }
+                zs[q] = zc;
+                as[q] = 0;
+            }
+            let faults = none;
+            if (count > 0) {
+                faults = crossings[count - 1];
+                for (let q = 0; q < count; q++) {
+                    faults[2 * q] = zs[q];
+                    faults[2 * q + 1] = as[q];
+                }
+            }
+            if (mb !== null)
+                stats.slices += mb.integrate(out, L, betaPrime, faults);
+            else if (job.rk4Steps === undefined)
+                integrateColumn(out, params, L, betaPrime, faults, tol, stats);
+            else {
+                rk4Column(out, params, L, betaPrime, job.rk4Steps);
+                stats.slices += job.rk4Steps;
+            }
+        },
+    };
+}
+/** Tolerance of the many-beam stepper per unit of the image tolerance (its tol is a local error per step). */
+export const MANY_BEAM_TOL_FACTOR = 0.1;
+/** A many-beam column integrator for one job: writes the transmitted and g amplitudes into out[0..3]. */
+function manyBeamColumn(mb, tol) {
+    const sys = prepareColumnSystem(mb.input, mb.orders, { incident: mb.incident });
+    const amp = new Float64Array(2 * mb.orders.length);
+    const t0 = 2 * mb.incident;
+    const tg = 2 * mb.darkField;
+    return {
+        integrate(out, L, betaPrime, faults) {
+            const steps = integrateColumnN(amp, sys, L, betaPrime, tol * MANY_BEAM_TOL_FACTOR, faults);
+            out[0] = amp[t0];
+            out[1] = amp[t0 + 1];
+            out[2] = amp[tg];
+            out[3] = amp[tg + 1];
+            return steps;
+        },
+    };
+}
+/**
+ * Fill rows [row0, row1) of the image into bf and df (offset 0 = first pixel
+ * of row0). Returns slice statistics.
+ */
+export function renderRows(job, row0, row1, bf, df) {
+    const { width, height, pixel_nm } = job;
+    const ev = columnEvaluator(job);
+    const out = new Float64Array(4);
+    const n = (row1 - row0) * width;
+    if (ev.perfect) {
+        ev.column(out, 0, 0);
+        bf.fill(out[0] * out[0] + out[1] * out[1], 0, n);
+        df.fill(out[2] * out[2] + out[3] * out[3], 0, n);
+        return { slices: n, columns: n };
+    }
+    let k = 0;
+    for (let j = row0; j < row1; j++) {
+        const y = pixelX(j, height, pixel_nm);
+        for (let i = 0; i < width; i++, k++) {
+            ev.column(out, pixelX(i, width, pixel_nm), y);
+            bf[k] = out[0] * out[0] + out[1] * out[1];
+            df[k] = out[2] * out[2] + out[3] * out[3];
+        }
+    }
+    return { slices: ev.stats.slices, columns: n };
+}

@@ -1,0 +1,15 @@
+/** Worker thread: renders bands of rows on request (see workerPool.ts). */
+import { parentPort } from 'node:worker_threads';
+import { renderRows } from './renderRows.js';
+parentPort?.on('message', (msg) => {
+    try {
+        const n = (msg.row1 - msg.row0) * msg.job.width;
+        const bf = new Float32Array(n);
+        const df = new Float32Array(n);
+        const stats = renderRows(msg.job, msg.row0, msg.row1, bf, df);
+        parentPort.postMessage({ ok: true, row0: msg.row0, row1: msg.row1, bf, df, slices: stats.slices }, [bf.buffer, df.buffer]);
+    }
+    catch (e) {
+        parentPort.postMessage({ ok: false, error: e instanceof Error ? e.message : String(e) });
+    }
+});

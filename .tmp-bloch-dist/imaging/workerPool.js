@@ -1,0 +1,84 @@
+/**
+ * Renders images on all cores: the rows are cut into bands, handed out to
+ * worker threads one band at a time (so fast and slow bands balance), and
+ * written into the final image. When running from TypeScript sources (tests)
+ * the work is done in this thread instead.
+ */
+import { Worker } from 'node:worker_threads';
+import { availableParallelism } from 'node:os';
+import { existsSync } from 'node:fs';
+import { fileURLToPath } from 'node:url';
+import { renderRows } from './renderRows.js';
+function workerFile() {
+    const url = new URL('./renderWorker.js', import.meta.url);
+    const path = fileURLToPath(url);
+    return import.meta.url.endsWith('.js') && existsSync(path) ? path : null;
+}
+export function createRenderPool(threads = availableParallelism()) {
+    const file = workerFile();
+    if (file === null || threads <= 1)
+        return inThreadPool();
+    const workers = Array.from({ length: threads }, () => new Worker(file));
+    return {
+        threads,
+        async render(job, onProgress) {
+            const n = job.width * job.height;
+            const bf = new Float32Array(n);
+            const df = new Float32Array(n);
+            const bandRows = Math.max(1, Math.floor(job.height / (threads * 8)));
+            let next = 0;
+            let done = 0;
+            let slices = 0;
+            await Promise.all(workers.map((w) => new Promise((resolve, reject) => {
+                const ask = () => {
+                    if (next >= job.height) {
+                        w.off('message', onMessage);
+                        w.off('error', onError);
+                        resolve();
+                        return;
+                    }
+                    const row0 = next;
+                    const row1 = Math.min(job.height, next + bandRows);
+                    next = row1;
+                    w.postMessage({ job, row0, row1 });
+                };
+                const onMessage = (m) => {
+                    if (!m.ok) {
+                        w.off('message', onMessage);
+                        w.off('error', onError);
+                        reject(new Error(m.error));
+                        return;
+                    }
+                    bf.set(m.bf, m.row0 * job.width);
+                    df.set(m.df, m.row0 * job.width);
+                    slices += m.slices;
+                    done += m.row1 - m.row0;
+                    onProgress?.(done, job.height);
+                    ask();
+                };
+                const onError = (e) => reject(e);
+                w.on('message', onMessage);
+                w.on('error', onError);
+                ask();
+            })));
+            return { bf, df, slices };
+        },
+        async close() {
+            await Promise.all(workers.map((w) => w.terminate()));
+        },
+    };
+}
+function inThreadPool() {
+    return {
+        threads: 1,
+        async render(job, onProgress) {
+            const n = job.width * job.height;
+            const bf = new Float32Array(n);
+            const df = new Float32Array(n);
+            const stats = renderRows(job, 0, job.height, bf, df);
+            onProgress?.(job.height, job.height);
+            return { bf, df, slices: stats.slices };
+        },
+        async close() { },
+    };
+}

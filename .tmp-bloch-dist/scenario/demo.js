@@ -1,0 +1,53 @@
+/**
+ * The built-in demo: an INVENTED scenario. "Tenalloy 7" is a made-up fcc
+ * nickel-cobalt solid solution (80 at.% Ni, 20 at.% Co on every site); its
+ * lattice parameter, Debye-Waller factor and elastic constants are plausible
+ * values chosen for the demonstration, not measurements of a real alloy.
+ */
+export const DEMO_SCENARIO = {
+    name: 'demo: dislocations, a fault ribbon and a particle in an invented Ni-Co foil',
+    description: 'Invented scenario for demonstration; the alloy, foil and defects are made up.',
+    material: {
+        name: 'Tenalloy 7 (invented)',
+        description: 'invented fcc Ni-20Co solid solution for the demo; numbers are plausible, not measured',
+        structure: 'custom',
+        lattice: { system: 'cubic', a_nm: 0.353 },
+        sites: [
+            [0, 0, 0],
+            [0, 0.5, 0.5],
+            [0.5, 0, 0.5],
+            [0.5, 0.5, 0],
+        ].flatMap((position) => [
+            { element: 'Ni', position, occupancy: 0.8, debyeWaller_A2: 0.4 },
+            { element: 'Co', position, occupancy: 0.2, debyeWaller_A2: 0.4 },
+        ]),
+        elastic: { cij_GPa: { C11: 250, C12: 155, C44: 122 } },
+        stackingFaultEnergy_mJ_per_m2: 15,
+        sources: {
+            lattice: 'invented for the demo',
+            debyeWaller: 'invented for the demo',
+            elastic: 'invented for the demo',
+            stackingFault: 'invented for the demo',
+        },
+    },
+    kV: 200,
+    foil: { thickness_nm: 120, normal: [0, 0, 1] },
+    beam: [0, 0, 1],
+    imageX: [1, 0, 0],
+    image: { width_px: 256, height_px: 256, pixel_nm: 0.5 },
+    absorption: 0.1,
+    conditions: [
+        { id: 'g200', g: [2, 0, 0], w: 0.3 },
+        { id: 'g020', g: [0, 2, 0], w: 0.3 },
+        { id: 'g220', g: [2, 2, 0], w: 0.3 },
+        { id: 'g2m20', g: [2, -2, 0], w: 0.3 },
+    ],
+    defects: [
+        { type: 'dislocation', label: 'A (mixed 60 deg)', b: '1/2[1 1 0]', line: [1, 1, 2], point_nm: [-40, -15, 60] },
+        { type: 'dislocation', label: 'B (mixed 60 deg)', b: '1/2[1 -1 0]', line: [-1, 1, 2], point_nm: [30, -20, 60] },
+        { type: 'dislocation', label: 'C (screw, parallel to foil)', b: '1/2[1 -1 0]', line: [1, -1, 0], point_nm: [-10, 50, 45] },
+        { type: 'dissociated', label: 'D (dissociated screw)', b: '1/2[1 1 0]', plane: [1, -1, 1], line: [1, 1, 0], point_nm: [-40, 35, 60] },
+        { type: 'inclusion', label: 'E (coherent particle)', centre_nm: [42, 38, 50], radius_nm: 4, misfit: 0.012 },
+    ],
+    candidates: ['1/2<110>'],
+};

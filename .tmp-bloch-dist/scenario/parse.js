@@ -1,0 +1,297 @@
+import { add, angle, dot, norm, scale, sub, unit } from '../math/vec3.js';
+import { getMaterial, parseMaterial } from '../crystal/materials.js';
+import { parseIndices, parseVectorWithFraction } from '../crystal/indices.js';
+import { directionFromFour, planeFromFour } from '../crystal/millerBravais.js';
+import { directionToCartesian, planeNormalToCartesian, usesFourIndices } from '../crystal/lattice.js';
+import { parseFamily } from '../crystal/symmetry.js';
+import { InputError } from '../errors.js';
+import { array, fail, isObject, joinPath, number, object, onlyKeys, required, string } from './check.js';
+import { MAX_PIXELS, MAX_SIDE_PX } from './types.js';
+/** Tolerance on g being perpendicular to its beam (degrees). */
+export const PERPENDICULAR_TOLERANCE_DEG = 5;
+const TOP_KEYS = [
+    'name', 'material', 'kV', 'foil', 'beam', 'imageX', 'image', 'absorption', 'conditions', 'defects', 'candidates', 'description',
+];
+export function parseScenario(raw) {
+    const o = object(raw, '(scenario)');
+    onlyKeys(o, TOP_KEYS, '');
+    const name = o.name === undefined ? 'scenario' : string(o.name, 'name');
+    const material = readMaterial(required(o, 'material', '', '"Ni"'));
+    const kV = number(required(o, 'kV', '', '200'), 'kV', { min: 10, max: 3000, unit: 'kV' });
+    const foil = object(required(o, 'foil', '', '{ "thickness_nm": 100, "normal": [0, 0, 1] }'), 'foil');
+    onlyKeys(foil, ['thickness_nm', 'normal'], 'foil');
+    const thickness_nm = number(required(foil, 'thickness_nm', 'foil', '100'), 'foil.thickness_nm', { above: 0, max: 10000, unit: 'nm' });
+    const beam = readDirection(required(o, 'beam', '', '[0, 0, 1]'), 'beam', material);
+    const foilNormal = foil.normal === undefined ? beam : readDirection(foil.normal, 'foil.normal', material);
+    const cb = cosCart(material, beam, foilNormal);
+    if (Math.abs(cb) < Math.cos((80 * Math.PI) / 180)) {
+        fail('foil.normal', `is ${deg(Math.acos(Math.abs(cb)))} degrees from the beam; the foil must be tilted by less than 80 degrees`);
+    }
+    const image = readImage(o.image);
+    const absorption = o.absorption === undefined ? 0.1 : number(o.absorption, 'absorption', { min: 0, max: 1, unit: "xi_g / xi'_g" });
+    const condList = array(required(o, 'conditions', '', '[{ "id": "g200", "g": [2, 0, 0], "s_per_nm": 0 }]'), 'conditions', 1);
+    const conditions = condList.map((c, i) => readCondition(c, joinPath('conditions', i), material, beam));
+    const ids = new Set();
+    conditions.forEach((c, i) => {
+        if (ids.has(c.id))
+            fail(joinPath(joinPath('conditions', i), 'id'), `"${c.id}" is used twice; give every condition its own id`);
+        ids.add(c.id);
+    });
+    // default: the first condition's g points along +x
+    const imageX_cart = unit(o.imageX === undefined
+        ? planeNormalToCartesian(material.lattice, conditions[0].g)
+        : cart(material, readDirection(o.imageX, 'imageX', material)));
+    if (Math.sin(angle(imageX_cart, cart(material, beam))) < 0.05) {
+        fail('imageX', 'is (nearly) parallel to the beam; choose a crystal direction perpendicular to the beam');
+    }
+    const defects = o.defects === undefined ? [] : array(o.defects, 'defects').map((d, i) => readDefect(d, joinPath('defects', i), material, thickness_nm, beam));
+    const candidates = o.candidates === undefined ? [] : array(o.candidates, 'candidates').flatMap((c, i) => readCandidates(c, joinPath('candidates', i), material));
+    return { name, material, kV, thickness_nm, foilNormal, beam, imageX_cart, image, absorption, conditions, defects, candidates };
+}
+function readMaterial(v) {
+    if (typeof v === 'string')
+        return getMaterial(v);
+    if (isObject(v))
+        return parseMaterial(v, 'material');
+    fail('material', 'must be a library name such as "Ni" (see `thinfoil materials`) or an inline material object');
+}
+function readImage(v) {
+    if (v === undefined)
+        return { width_px: 256, height_px: 256, pixel_nm: 0.5 };
+    const o = object(v, 'image');
+    onlyKeys(o, ['width_px', 'height_px', 'pixel_nm'], 'image');
+    const width_px = number(required(o, 'width_px', 'image', '256'), 'image.width_px', { integer: true, min: 1, max: MAX_SIDE_PX, unit: 'pixels' });
+    const height_px = number(required(o, 'height_px', 'image', '256'), 'image.height_px', { integer: true, min: 1, max: MAX_SIDE_PX, unit: 'pixels' });
+    const pixel_nm = number(required(o, 'pixel_nm', 'image', '0.5'), 'image.pixel_nm', { above: 0, max: 1000, unit: 'nm' });
+    if (width_px * height_px > MAX_PIXELS) {
+        fail('image', `${width_px} x ${height_px} pixels exceeds the limit of ${MAX_PIXELS} pixels (2048 x 2048); use fewer, larger pixels`);
+    }
+    return { width_px, height_px, pixel_nm };
+}
+function readBeamSet(v, path) {
+    if (v === undefined || v === 2)
+        return { kind: 'two' };
+    if (isObject(v)) {
+        onlyKeys(v, ['row'], path);
+        const count = number(required(v, 'row', path, '7'), joinPath(path, 'row'), { integer: true, min: 3, max: 31, unit: 'beams' });
+        if (count % 2 === 0)
+            fail(joinPath(path, 'row'), `must be odd (beams -m g .. +m g), got ${count}`);
+        return { kind: 'row', count };
+    }
+    fail(path, 'must be 2 (two-beam) or { "row": N } for a systematic row of N beams (N odd, 3..31)');
+}
+function readCondition(v, path, m, refBeam) {
+    const o = object(v, path);
+    onlyKeys(o, ['id', 'g', 's_per_nm', 'w', 'beam', 'beams', 'weakBeam'], path);
+    const id = string(required(o, 'id', path, '"g200"'), joinPath(path, 'id'));
+    if (!/^[A-Za-z0-9_.-]+$/.test(id))
+        fail(joinPath(path, 'id'), `"${id}" is used in file names; use only letters, digits, "-", "_" and "."`);
+    const g = readPlane(required(o, 'g', path, '[2, 0, 0]'), joinPath(path, 'g'), m);
+    if (norm(g) === 0)
+        fail(joinPath(path, 'g'), 'must not be 000; give the reflection used for imaging, e.g. [2, 0, 0]');
+    const beam = o.beam === undefined ? refBeam : readDirection(o.beam, joinPath(path, 'beam'), m);
+    const off = Math.abs(90 - deg(angle(planeNormalToCartesian(m.lattice, g), cart(m, beam))));
+    if (off > PERPENDICULAR_TOLERANCE_DEG) {
+        fail(joinPath(path, 'g'), `makes ${(90 - off).toFixed(1)} degrees with the beam; g must be within ${PERPENDICULAR_TOLERANCE_DEG} degrees of perpendicular to the beam (give this condition its own "beam")`);
+    }
+    const beams = readBeamSet(o.beams, joinPath(path, 'beams'));
+    const given = ['s_per_nm', 'w', 'weakBeam'].filter((k) => o[k] !== undefined);
+    if (given.length !== 1) {
+        fail(path, `must give exactly one of "s_per_nm", "w" and "weakBeam"${given.length ? ` (found ${given.join(' and ')})` : ''}`);
+    }
+    let deviation;
+    if (given[0] === 's_per_nm') {
+        deviation = { kind: 's', s_per_nm: number(o.s_per_nm, joinPath(path, 's_per_nm'), { min: -10, max: 10, unit: 'nm^-1' }) };
+    }
+    else if (given[0] === 'w') {
+        deviation = { kind: 'w', w: number(o.w, joinPath(path, 'w'), { min: -1000, max: 1000 }) };
+    }
+    else {
+        deviation = { kind: 'weakBeam', n: number(o.weakBeam, joinPath(path, 'weakBeam'), { integer: true, min: 2, max: 10, unit: 'n of g(ng)' }) };
+    }
+    return { id, g, deviation, beam, beams };
+}
+function readDefect(v, path, m, thickness_nm, refBeam) {
+    const o = object(v, path);
+    const type = string(required(o, 'type', path, '"dislocation"'), joinPath(path, 'type'));
+    const at = (k) => joinPath(path, k);
+    const label = (kind) => (o.label === undefined ? `${kind} ${path}` : string(o.label, at('label')));
+    const core = () => (o.core_nm === undefined ? {} : { core_nm: number(o.core_nm, at('core_nm'), { above: 0, max: 10, unit: 'nm' }) });
+    const burgers = (example) => {
+        const b = readVector(required(o, 'b', path, `"${example}"`), at('b'), m);
+        if (norm(b) === 0)
+            fail(at('b'), `is zero; a dislocation needs a nonzero Burgers vector such as "${example}"`);
+        return b;
+    };
+    switch (type) {
+        case 'dislocation': {
+            onlyKeys(o, ['type', 'label', 'b', 'line', 'point_nm', 'core_nm'], path);
+            const b = burgers('1/2[1 1 0]');
+            const line = readDirection(required(o, 'line', path, '[1, -1, 0]'), at('line'), m);
+            return { type, label: label('dislocation'), b, line, point_nm: readPoint(o.point_nm, at('point_nm'), thickness_nm), ...core() };
+        }
+        case 'fault': {
+            onlyKeys(o, ['type', 'label', 'plane', 'vector', 'nature', 'point_nm'], path);
+            const plane = readPlane(required(o, 'plane', path, '[1, 1, 1]'), at('plane'), m);
+            if (norm(plane) === 0)
+                fail(at('plane'), 'must not be (0 0 0)');
+            const point_nm = readPoint(o.point_nm, at('point_nm'), thickness_nm);
+            if ((o.vector === undefined) === (o.nature === undefined)) {
+                fail(path, 'must give exactly one of "vector" (e.g. "1/3[1 1 1]") and "nature" ("intrinsic" or "extrinsic")');
+            }
+            if (o.vector !== undefined) {
+                const vector = readVector(o.vector, at('vector'), m);
+                return { type, label: label('fault'), plane, vector, nature: 'vector', point_nm };
+            }
+            const nature = string(o.nature, at('nature'));
+            if (nature !== 'intrinsic' && nature !== 'extrinsic')
+                fail(at('nature'), `"${nature}" is not a fault nature; use "intrinsic" or "extrinsic"`);
+            return { type, label: label(`${nature} fault`), plane, vector: natureVector(m, plane, nature, refBeam, at('nature')), nature, point_nm };
+        }
+        case 'partial': {
+            onlyKeys(o, ['type', 'label', 'b', 'line', 'point_nm', 'faultPlane', 'faultSide', 'core_nm'], path);
+            const b = burgers('1/6[1 1 -2]');
+            const line = readDirection(required(o, 'line', path, '[1, -1, 0]'), at('line'), m);
+            const faultPlane = readPlane(required(o, 'faultPlane', path, '[1, 1, 1]'), at('faultPlane'), m);
+            const faultSide = readDirection(required(o, 'faultSide', path, '[1, 1, -2]'), at('faultSide'), m);
+            const n = unit(planeNormalToCartesian(m.lattice, faultPlane));
+            const u = unit(cart(m, line));
+            if (Math.abs(dot(n, u)) > 0.02)
+                fail(at('line'), 'must lie in the fault plane (perpendicular to the plane normal)');
+            const side = cart(m, faultSide);
+            const inPlane = sub(side, add(scale(n, dot(side, n)), scale(u, dot(side, u))));
+            if (norm(inPlane) < 1e-6 * norm(side))
+                fail(at('faultSide'), 'must point from the line into the fault, within the fault plane and not along the line');
+            return { type, label: label('partial'), b, line, point_nm: readPoint(o.point_nm, at('point_nm'), thickness_nm), faultPlane, faultSide, ...core() };
+        }
+        case 'dissociated': {
+            onlyKeys(o, ['type', 'label', 'b', 'line', 'plane', 'point_nm', 'separation_nm', 'core_nm'], path);
+            if (m.lattice.system !== 'cubic')
+                fail(at('type'), 'dissociation into Shockley partials is available for fcc (cubic) materials only');
+            const b = burgers('1/2[1 -1 0]');
+            const plane = readPlane(required(o, 'plane', path, '[1, 1, 1]'), at('plane'), m);
+            const line = readDirection(required(o, 'line', path, '[1, -1, 0]'), at('line'), m);
+            const sep = o.separation_nm === undefined ? {} : { separation_nm: number(o.separation_nm, at('separation_nm'), { above: 0, max: 1000, unit: 'nm' }) };
+            if (o.separation_nm === undefined && m.stackingFaultEnergy_mJ_per_m2 === undefined) {
+                fail(at('separation_nm'), `is needed because material "${m.name}" has no stacking-fault energy; give the partial separation in nm`);
+            }
+            return { type, label: label('dissociated dislocation'), b, plane, line, point_nm: readPoint(o.point_nm, at('point_nm'), thickness_nm), ...sep, ...core() };
+        }
+        case 'inclusion': {
+            onlyKeys(o, ['type', 'label', 'centre_nm', 'radius_nm', 'misfit', 'strain'], path);
+            const centre_nm = readPoint(required(o, 'centre_nm', path, '[0, 0, 50]'), at('centre_nm'), thickness_nm);
+            const radius_nm = number(required(o, 'radius_nm', path, '5'), at('radius_nm'), { above: 0, max: 1000, unit: 'nm' });
+            if ((o.misfit === undefined) === (o.strain === undefined))
+                fail(path, 'must give exactly one of "misfit" (delta) and "strain" (constrained strain eps)');
+            if (o.misfit !== undefined) {
+                const misfit = number(o.misfit, at('misfit'), { min: -0.2, max: 0.2 });
+                const nu = m.elastic.poissonRatio;
+                // eps = delta (1 + nu) / (3 (1 - nu)) (Eshelby; Ashby & Brown 1963)
+                return { type, label: label('inclusion'), centre_nm, radius_nm, strain: (misfit * (1 + nu)) / (3 * (1 - nu)), misfit };
+            }
+            return { type, label: label('inclusion'), centre_nm, radius_nm, strain: number(o.strain, at('strain'), { min: -0.2, max: 0.2 }) };
+        }
+        default:
+            fail(at('type'), `"${type}" is not a defect type thinfoil knows; use "dislocation", "partial", "dissociated", "fault" or "inclusion"`);
+    }
+}
+/**
+ * Fault vector from the fault nature for an fcc {111} fault: removing a plane
+ * (intrinsic) moves the crystal behind the fault towards the front by one
+ * plane spacing, inserting one (extrinsic) moves it away: R_f = -/+ (1/3)<111>
+ * with <111> the plane normal pointing to the side behind the fault (along the beam).
+ */
+function natureVector(m, plane, nature, refBeam, path) {
+    const isFcc111 = m.lattice.system === 'cubic' && plane.every((h) => Math.abs(Math.abs(h) - Math.abs(plane[0])) < 1e-9 && h !== 0);
+    if (!isFcc111)
+        fail(path, 'is defined here for {111} faults in cubic crystals only; give the fault "vector" instead');
+    const n = planeNormalToCartesian(m.lattice, plane);
+    const c = dot(n, cart(m, refBeam));
+    if (Math.abs(c) < 1e-9 * norm(n))
+        fail(path, 'cannot be turned into a vector for a fault plane seen edge-on (it contains the beam); give the fault "vector"');
+    const h = plane.map((x) => x / Math.abs(plane[0])); // (+-1 +-1 +-1)
+    const k = (Math.sign(c) * (nature === 'intrinsic' ? -1 : 1)) / 3;
+    return [h[0] * k, h[1] * k, h[2] * k];
+}
+function readPoint(v, path, thickness_nm) {
+    if (v === undefined)
+        return [0, 0, thickness_nm / 2];
+    const a = array(v, path);
+    if (a.length !== 3)
+        fail(path, 'must be [x, y, z] in nm (x, y from the image centre, z the depth below the entrance surface)');
+    const p = a.map((x, i) => number(x, joinPath(path, i), { unit: 'nm' }));
+    return [p[0], p[1], p[2]];
+}
+function readCandidates(v, path, m) {
+    if (typeof v === 'string')
+        return familyCandidates(v, path, m);
+    const o = object(v, path);
+    onlyKeys(o, ['b', 'line', 'family', 'label'], path);
+    if (o.family !== undefined)
+        return familyCandidates(string(o.family, joinPath(path, 'family')), joinPath(path, 'family'), m);
+    const b = readVector(required(o, 'b', path, '"1/2[1 1 0]"'), joinPath(path, 'b'), m);
+    if (norm(b) === 0)
+        fail(joinPath(path, 'b'), 'is zero; give a nonzero Burgers vector');
+    const line = o.line === undefined ? undefined : readDirection(o.line, joinPath(path, 'line'), m);
+    const label = o.label === undefined ? `b = ${formatVector(b)}` : string(o.label, joinPath(path, 'label'));
+    return [line === undefined ? { label, b } : { label, b, line }];
+}
+function familyCandidates(text, path, m) {
+    const vs = parseFamily(text, m, { collapseSign: true, field: path }).members;
+    return vs.map((b) => ({ label: `b = ${formatVector(b)}`, b }));
+}
+/** A direction, 3 or 4 (hexagonal) indices, returned in 3-index lattice units. */
+export function readDirection(v, path, m) {
+    const idx = parseIndices(v, path, usesFourIndices(m.lattice) ? '3or4' : 3);
+    const d = idx.length === 4 ? dirFour(idx, path) : [idx[0], idx[1], idx[2]];
+    if (norm(d) === 0)
+        fail(path, 'must not be [0 0 0]');
+    return d;
+}
+/** A plane / reflection, 3 or 4 (hexagonal) indices, returned in 3-index form. */
+export function readPlane(v, path, m) {
+    const idx = parseIndices(v, path, usesFourIndices(m.lattice) ? '3or4' : 3);
+    if (idx.length === 4) {
+        try {
+            return planeFromFour([idx[0], idx[1], idx[2], idx[3]]);
+        }
+        catch (e) {
+            throw new InputError(`${path}: ${e.message}`);
+        }
+    }
+    return [idx[0], idx[1], idx[2]];
+}
+/** A vector with an optional fraction prefix ("1/2[1 1 0]"), in lattice units. */
+export function readVector(v, path, m) {
+    const idx = parseVectorWithFraction(v, path);
+    if (idx.length === 4) {
+        if (!usesFourIndices(m.lattice))
+            fail(path, 'has four indices, but the material is not hexagonal; use three');
+        return dirFour(idx, path);
+    }
+    return [idx[0], idx[1], idx[2]];
+}
+function dirFour(idx, path) {
+    try {
+        return directionFromFour([idx[0], idx[1], idx[2], idx[3]]);
+    }
+    catch (e) {
+        throw new InputError(`${path}: ${e.message}`);
+    }
+}
+function cart(m, d) {
+    return directionToCartesian(m.lattice, d);
+}
+function cosCart(m, a, b) {
+    return Math.cos(angle(cart(m, a), cart(m, b)));
+}
+function deg(rad) {
+    return (rad * 180) / Math.PI;
+}
+export function formatVector(v) {
+    const f = (x) => {
+        const r = Math.round(x * 1e6) / 1e6;
+        return Number.isInteger(r) ? String(r) : r.toFixed(4).replace(/0+$/, '');
+    };
+    return `[${f(v[0])} ${f(v[1])} ${f(v[2])}]`;
+}

@@ -1,0 +1,89 @@
+/**
+ * Many-beam images: the systematic-row engine inside the renderer.
+ */
+import { describe, expect, it } from 'vitest';
+import { scenario, render, row } from './helpers.js';
+import { resolveCondition } from '../../src/imaging/resolveCondition.js';
+import { renderJob } from '../../src/imaging/renderScenario.js';
+import { columnEvaluator } from '../../src/imaging/renderRows.js';
+import { readFileSync } from 'node:fs';
+import { join } from 'node:path';
+import { blochRow, blochRowInput } from '../../src/analysis/blochRow.js';
+
+describe('many-beam engine in the renderer', () => {
+  it('two beams through the many-beam engine reproduce the two-beam engine (to 1e-8, column intensities)', () => {
+    const sc = scenario({
+      image: { width_px: 32, height_px: 6, pixel_nm: 1 },
+      conditions: [{ id: 'c', g: [2, 0, 0], w: 0.4 }],
+      defects: [{ type: 'dislocation', b: '1/2[1 0 1]', line: [1, 1, 2], point_nm: [0, 0, 50] }],
+    });
+    const c = resolveCondition(sc, sc.conditions[0]);
+    const two = columnEvaluator(renderJob(sc, c, 1e-10));
+    const r = blochRow(sc.material, c.g, sc.kV, sc.absorption, 2);
+    const many = columnEvaluator({ ...renderJob(sc, c, 1e-9), manyBeam: { input: blochRowInput(r, c.s_per_nm), orders: r.orders, incident: r.incident, darkField: r.darkField } });
+    const a = new Float64Array(4);
+    const b = new Float64Array(4);
+    let worst = 0;
+    for (let x = -16; x <= 16; x += 1.7) {
+      for (const y of [-3, 0, 2.5]) {
+        two.column(a, x, y);
+        many.column(b, x, y);
+        worst = Math.max(worst, Math.abs(a[0] ** 2 + a[1] ** 2 - b[0] ** 2 - b[1] ** 2), Math.abs(a[2] ** 2 + a[3] ** 2 - b[2] ** 2 - b[3] ** 2));
+      }
+    }
+    // both engines integrate the same equations (physics.md section 4: two beams reduce exactly to section 3)
+    expect(worst).toBeLessThan(1e-8);
+  });
+
+  it('weak beam g(3g): s_g = lambda g^2 (physics.md section 4; Williams & Carter)', () => {
+    const sc = scenario({ conditions: [{ id: 'wb', g: [2, 2, 0], weakBeam: 3, beams: { row: 5 } }] });
+    const c = resolveCondition(sc, sc.conditions[0]);
+    expect(c.s_per_nm).toBeCloseTo(c.lambda_nm * c.g_per_nm ** 2, 12);
+  });
+
+  it('weak-beam g(3g) dark-field peak of a screw parallel to the surfaces: position against the kinematical integral', async () => {
+    // Cockayne, Ray & Whelan (1969): the image lies where s + d(g.R)/dz = 0 near the dislocation depth, i.e. at
+    // |x| <= |g.b|/(2 pi |s|) (the rule of thumb of physics.md is this bound). The peak of the dark-field
+    // intensity itself lies at kappa_peak |g.b|/(2 pi |s|) with kappa_peak from the kinematical integral,
+    // computed independently with scipy.integrate.quad by scripts/ref_weakbeam_kinematic.py
+    // (test/reference/weakbeam-kinematic.json): 0.315 for g.b = 1, 0.50 for g.b = 2. Tolerance 25 %.
+    const ref = JSON.parse(readFileSync(join(import.meta.dirname, '..', 'reference', 'weakbeam-kinematic.json'), 'utf8'));
+    // Cu, beam [001], screw b = 1/2[1 -1 0] along [1 -1 0] at mid-depth, image x along [1 1 0] (across the line)
+    for (const [g, gb] of [[[2, 0, 0], 1], [[2, -2, 0], 2]] as const) {
+      const sc = scenario({
+        imageX: [1, 1, 0],
+        foil: { thickness_nm: 60, normal: [0, 0, 1] },
+        image: { width_px: 200, height_px: 1, pixel_nm: 0.04 },
+        conditions: [{ id: 'wb', g, weakBeam: 3 }],
+        defects: [{ type: 'dislocation', b: '1/2[1 -1 0]', line: [1, -1, 0], point_nm: [0, 0, 30] }],
+      });
+      const [ci] = await render(sc, 1e-6);
+      const prof = row(ci.df, ci.width, 0);
+      let k = 0;
+      prof.forEach((v, i) => { if (v > prof[k]) k = i; });
+      const x = (k + 0.5 - ci.width / 2) * ci.pixel_nm;
+      const bound = gb / (2 * Math.PI * Math.abs(ci.condition.s_per_nm));
+      const predicted = ref.kappaPeak[String(gb)] * bound;
+      expect(Math.abs(Math.abs(x) - predicted) / predicted).toBeLessThan(0.25);
+      expect(Math.abs(x)).toBeLessThan(bound); // inside the s + beta' = 0 bound
+      expect(prof[k]).toBeGreaterThan(5 * ci.background.df); // a bright, narrow weak-beam peak on a dark background
+    }
+  });
+
+  it('a 5-beam image of an inclined dislocation is finite and differs from two beams only modestly at s ~ 0.3/xi', async () => {
+    const make = (beams: unknown) => scenario({
+      image: { width_px: 24, height_px: 24, pixel_nm: 1 },
+      conditions: [{ id: 'c', g: [2, 0, 0], w: 0.3, beams }],
+      defects: [{ type: 'dislocation', b: '1/2[1 0 1]', line: [1, 1, 2], point_nm: [0, 0, 50] }],
+    });
+    const [two] = await render(make(2));
+    const [five] = await render(make({ row: 5 }));
+    let diff = 0;
+    for (let i = 0; i < two.bf.length; i++) {
+      expect(Number.isFinite(five.bf[i]) && Number.isFinite(five.df[i])).toBe(true);
+      diff = Math.max(diff, Math.abs(two.bf[i] - five.bf[i]));
+    }
+    expect(diff).toBeGreaterThan(1e-4); // many beams do change the image
+    expect(diff).toBeLessThan(0.5);
+  });
+});
