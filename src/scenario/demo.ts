@@ -49,7 +49,7 @@ export const DEMO_SCENARIO = {
     { type: 'dislocation', label: 'B (mixed 60 deg)', b: '1/2[1 -1 0]', line: [-1, 1, 2], point_nm: [30, -20, 60] },
     { type: 'dislocation', label: 'C (screw, parallel to foil)', b: '1/2[1 -1 0]', line: [1, -1, 0], point_nm: [-10, 50, 45] },
     { type: 'dissociated', label: 'D (dissociated screw)', b: '1/2[1 1 0]', plane: [1, -1, 1], line: [1, 1, 0], point_nm: [-40, 35, 60] },
-    { type: 'inclusion', label: 'E (coherent particle)', centre_nm: [42, 38, 50], radius_nm: 4, misfit: 0.012 },
+    { type: 'inclusion', label: 'E (coherent particle)', centre_nm: [42, 38, 50], radius_nm: 6, misfit: 0.02 },
   ],
   candidates: ['1/2<110>'],
 };
