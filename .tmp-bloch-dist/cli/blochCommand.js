@@ -197,7 +197,7 @@ export function computeBloch(materialName, indices, opts) {
             if (p + k >= PROFILE_VIEW[0] && p + k <= PROFILE_VIEW[1])
                 planeMarks.push(p + k);
     const profileSpec = {
-        title: `Bloch waves across the planes: ${head}, ${sText}`,
+        title: `Bloch waves across the planes, ${head}, ${sText}`,
         xLabel: 'position across the planes x/d',
         yLabel: 'Bloch-wave intensity (mean 1)',
         series: tbl.waves.map((r, k) => ({

@@ -41,13 +41,15 @@ export const DEMO_SCENARIO = {
         { id: 'g020', g: [0, 2, 0], w: 0.3 },
         { id: 'g220', g: [2, 2, 0], w: 0.3 },
         { id: 'g2m20', g: [2, -2, 0], w: 0.3 },
+        // weak-beam dark field g(3g) with a 5-beam systematic row (-2g .. 2g)
+        { id: 'g220-wb3', g: [2, 2, 0], weakBeam: 3, beams: { row: 5 } },
     ],
     defects: [
         { type: 'dislocation', label: 'A (mixed 60 deg)', b: '1/2[1 1 0]', line: [1, 1, 2], point_nm: [-40, -15, 60] },
         { type: 'dislocation', label: 'B (mixed 60 deg)', b: '1/2[1 -1 0]', line: [-1, 1, 2], point_nm: [30, -20, 60] },
         { type: 'dislocation', label: 'C (screw, parallel to foil)', b: '1/2[1 -1 0]', line: [1, -1, 0], point_nm: [-10, 50, 45] },
         { type: 'dissociated', label: 'D (dissociated screw)', b: '1/2[1 1 0]', plane: [1, -1, 1], line: [1, 1, 0], point_nm: [-40, 35, 60] },
-        { type: 'inclusion', label: 'E (coherent particle)', centre_nm: [42, 38, 50], radius_nm: 4, misfit: 0.012 },
+        { type: 'inclusion', label: 'E (coherent particle)', centre_nm: [42, 38, 50], radius_nm: 6, misfit: 0.02 },
     ],
     candidates: ['1/2<110>'],
 };

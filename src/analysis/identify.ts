@@ -122,14 +122,16 @@ export async function identify(sc: Scenario, micrographs: readonly PreparedMicro
   // 2. shift-only registration of everything
   const cors: Correlator[] = micrographs.map((m) => createCorrelator(m.width, m.height, m.width + 2 * m.margin, m.height + 2 * m.margin, 1e-5));
   const tpls: PreparedTemplate[] = micrographs.map((m, i) => cors[i].prepareTemplate(m.contrast));
-  const pairFor = (k: number, i: number, full: boolean, start?: { rotation_deg: number; scale: number }): Pair => {
+  const pairFor = (k: number, i: number, full: boolean, start?: { rotation_deg: number; scale: number }, close = false): Pair => {
     const m = micrographs[i];
-    const reg = register(cors[i], tpls[i], sims[k][i], { ...regOpts, search: full, ...(start ? { start } : {}) });
+    const fine = close ? { initialRotationStep_deg: 1, initialScaleStep: 0.01 } : {};
+    const reg = register(cors[i], tpls[i], sims[k][i], { ...regOpts, ...fine, search: full, ...(start ? { start } : {}) });
     const window = removePlane(new Float64Array(reg.window.length), reg.window, m.width, m.height);
     return { reg, window, stats: pairStats(m.contrast, window), full };
   };
   progress('registering', 0);
   const pairs: Pair[][] = candidates.map((_, k) => micrographs.map((_, i) => pairFor(k, i, false)));
+  const viewOf = (k: number, i: number) => ({ rotation_deg: pairs[k][i].reg.rotation_deg, scale: pairs[k][i].reg.scale });
   const scoreOf = (k: number) => fitAmplitudes(pairs[k].map((p) => p.stats), linear, spread);
   const rank = () => candidates.map((_, k) => ({ k, score: scoreOf(k).score })).sort((a, b) => b.score - a.score || a.k - b.k).map((e) => e.k);
 
@@ -139,7 +141,12 @@ export async function identify(sc: Scenario, micrographs: readonly PreparedMicro
   for (let round = 0; round < 4; round++) {
     const leaders = order.slice(0, top);
     if (round > 0 && leaders.every((k) => pairs[k][0].full)) break;
-    for (const k of leaders) if (!pairs[k][0].full) pairs[k] = micrographs.map((_, i) => pairFor(k, i, true));
+    for (const k of leaders) {
+      if (pairs[k][0].full) continue;
+      // the first full search starts from no rotation; later ones start near the best view found so far
+      const near = order.find((j) => pairs[j][0].full);
+      pairs[k] = micrographs.map((_, i) => (near === undefined ? pairFor(k, i, true) : pairFor(k, i, true, viewOf(near, i), true)));
+    }
     const bestFull = order.find((k) => pairs[k][0].full)!;
     const view = pairs[bestFull].map((p) => ({ rotation_deg: p.reg.rotation_deg, scale: p.reg.scale }));
     const same = applied !== null && view.every((v, i) => v.rotation_deg === applied![i].rotation_deg && v.scale === applied![i].scale);
@@ -150,7 +157,8 @@ export async function identify(sc: Scenario, micrographs: readonly PreparedMicro
     order = rank();
     progress('registering', (round + 1) / 4);
   }
-  for (const k of order.slice(0, top)) if (!pairs[k][0].full) pairs[k] = micrographs.map((_, i) => pairFor(k, i, true));
+  const anchor = order.find((j) => pairs[j][0].full)!;
+  for (const k of order.slice(0, top)) if (!pairs[k][0].full) pairs[k] = micrographs.map((_, i) => pairFor(k, i, true, viewOf(anchor, i), true));
   order = rank();
   const t2 = performance.now();
 

@@ -37,6 +37,9 @@ export interface RegistrationOptions {
   readonly start?: { readonly rotation_deg: number; readonly scale: number };
   /** false: only the shift is searched, rotation and scale stay at `start` (default true). */
   readonly search?: boolean;
+  /** First steps of the pattern search (default half the ranges); smaller when `start` is already close. */
+  readonly initialRotationStep_deg?: number;
+  readonly initialScaleStep?: number;
 }
 
 export interface Registration {
@@ -284,8 +287,8 @@ export function register(cor: Correlator, tpl: PreparedTemplate, sim: ArrayLike<
   let r0 = opts.start?.rotation_deg ?? 0;
   let s0 = opts.start?.scale ?? 1;
   let best = evaluate(r0, s0);
-  let stepR = maxR / 2;
-  let stepS = maxS / 2;
+  let stepR = Math.min(maxR / 2, opts.initialRotationStep_deg ?? Infinity);
+  let stepS = Math.min(maxS / 2, opts.initialScaleStep ?? Infinity);
   const searchR = search && maxR > 0;
   const searchS = search && maxS > 0;
   for (let iter = 0; iter < 60 && (searchR || searchS); iter++) {

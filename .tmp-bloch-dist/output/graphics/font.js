@@ -45,6 +45,7 @@ export function face(bold = false) {
             top = Math.min(top, c.y);
     let kerning = null;
     try {
+        // the Latin script's kerning (the script HarfBuzz picks for Latin text; DejaVu's default script has none)
         kerning = font.position.getKerningTables('latn') ?? null;
     }
     catch {

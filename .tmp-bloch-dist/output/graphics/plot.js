@@ -20,6 +20,7 @@ export const PALETTE = [
     [70, 155, 220], // sky blue
 ];
 const TITLE_SIZE = 16;
+const MIN_TITLE_SIZE = 10;
 const LABEL_SIZE = 14;
 const TICK_SIZE = 12;
 const LEGEND_SIZE = 12;
@@ -248,7 +249,12 @@ export function linePlot(surface, box, spec) {
         color: INK,
     });
     if (spec.title) {
-        surface.text(spec.title, (left + right) / 2, box.y + PAD, { size: TITLE_SIZE, anchor: 'middle', baseline: 'top', bold: true, color: INK });
+        // shrink a long title to the width of the box (not below MIN_TITLE_SIZE)
+        const avail = box.w - 2 * PAD;
+        const full = surface.measureText(spec.title, TITLE_SIZE, true);
+        const size = full > avail ? Math.max(MIN_TITLE_SIZE, (TITLE_SIZE * avail) / full) : TITLE_SIZE;
+        const cx = full > avail ? box.x + box.w / 2 : (left + right) / 2;
+        surface.text(spec.title, cx, box.y + PAD, { size, anchor: 'middle', baseline: 'top', bold: true, color: INK });
     }
     // legend
     for (const { e, x, row } of placed) {

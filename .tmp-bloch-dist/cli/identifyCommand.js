@@ -1,0 +1,204 @@
+/**
+ * `thinfoil identify <scenario> --micrograph <conditionId>=<file> [...]`:
+ * rank the candidates against the micrographs, print the ranking and the
+ * verdict, write the comparison figure (PNG, SVG), the HTML report and the
+ * result as JSON into the output folder.
+ */
+import { readFileSync } from 'node:fs';
+import { basename, join, resolve } from 'node:path';
+import { InputError } from '../errors.js';
+import { parseScenario } from '../scenario/parse.js';
+import { isObject } from '../scenario/check.js';
+import { renderScenario } from '../imaging/renderScenario.js';
+import { createRenderPool } from '../imaging/workerPool.js';
+import { decodeImage } from '../imageio/readImage.js';
+import { identify } from '../analysis/identify.js';
+import { prepareMicrographs } from '../analysis/identifyMicrographs.js';
+import { parseMicrographArgument, parseMicrographSettings } from '../analysis/identifySettings.js';
+import { isSyntheticName } from '../analysis/synthetic.js';
+import { comparisonFigure, comparisonFigureData } from '../output/comparisonFigure.js';
+import { identifyReportHtml } from '../output/report.js';
+import { writeFileAtomic } from '../output/atomicWrite.js';
+import { progressBar } from './progress.js';
+import { printJson, sig, table } from './run.js';
+import { slug } from './renderCommand.js';
+/** The scenario key this command reads besides the ones parseScenario knows. */
+export const MICROGRAPHS_KEY = 'micrographs';
+function readJson(path) {
+    let text;
+    try {
+        text = readFileSync(path, 'utf8');
+    }
+    catch (err) {
+        const code = err.code;
+        throw new InputError(`scenario file "${path}" cannot be read (${code ?? 'error'}); check the path`);
+    }
+    let raw;
+    try {
+        raw = JSON.parse(text);
+    }
+    catch (err) {
+        throw new InputError(`scenario file "${path}" is not valid JSON (${err.message}); fix the syntax`);
+    }
+    if (!isObject(raw))
+        throw new InputError(`scenario file "${path}" must hold one JSON object { ... }`);
+    return raw;
+}
+function intOption(name, v, lo, hi, fallback) {
+    if (v === undefined)
+        return fallback;
+    const n = typeof v === 'number' ? v : Number(v);
+    if (typeof v === 'string' && v.trim() === '')
+        throw new InputError(`${name} needs a whole number between ${lo} and ${hi}`);
+    if (!Number.isInteger(n) || n < lo || n > hi)
+        throw new InputError(`${name} "${v}" must be a whole number between ${lo} and ${hi}`);
+    return n;
+}
+function readMicrograph(arg) {
+    const { conditionId, file } = parseMicrographArgument(arg);
+    let bytes;
+    try {
+        bytes = readFileSync(file);
+    }
+    catch (err) {
+        const code = err.code;
+        throw new InputError(`micrograph file "${file}" for ${conditionId} cannot be read (${code ?? 'error'}); check the path`);
+    }
+    const img = decodeImage(bytes, `micrograph file "${file}"`);
+    return {
+        conditionId,
+        image: img,
+        ...(img.pixel_nm === undefined ? {} : { filePixel_nm: img.pixel_nm }),
+        source: file,
+        synthetic: isSyntheticName(file),
+    };
+}
+/** The whole command without printing; returns what it wrote. */
+export async function runIdentify(scenarioFile, opts, onProgress) {
+    const raw = readJson(scenarioFile);
+    const { [MICROGRAPHS_KEY]: micrographsRaw, ...rest } = raw;
+    const sc = parseScenario(rest);
+    const settings = parseMicrographSettings(micrographsRaw, sc.conditions.map((c) => c.id));
+    const args = opts.micrograph === undefined ? [] : Array.isArray(opts.micrograph) ? opts.micrograph : [opts.micrograph];
+    const defectIndex = intOption('--defect', opts.defect, 0, Math.max(0, sc.defects.length - 1), 0);
+    const top = intOption('--top', opts.top, 1, 8, 4);
+    const B = intOption('--bootstrap', opts.bootstrap, 0, 10000, 50);
+    const seed = intOption('--seed', opts.seed, 0, 2 ** 31 - 1, 1);
+    const inputs = args.map(readMicrograph);
+    const micrographs = prepareMicrographs(sc, inputs, settings);
+    const dir = opts.out ?? join('out', `${slug(sc.name)}-identify`);
+    const inputsToProtect = [scenarioFile, ...inputs.map((m) => m.source)];
+    const pool = createRenderPool(opts.threads);
+    let result;
+    try {
+        result = await identify(sc, micrographs, (s) => renderScenario(s, pool), {
+            defectIndex,
+            top,
+            bootstrap: B,
+            seed,
+            ...(onProgress ? { onProgress } : {}),
+        });
+    }
+    finally {
+        await pool.close();
+    }
+    const fig = comparisonFigure(comparisonFigureData(result));
+    const files = {
+        figurePng: join(dir, 'identify-figure.png'),
+        figureSvg: join(dir, 'identify-figure.svg'),
+        report: join(dir, 'identify-report.html'),
+        json: join(dir, 'identify.json'),
+    };
+    const w = (path, data) => writeFileAtomic(path, data, { protectedPaths: inputsToProtect });
+    w(files.figurePng, fig.png);
+    w(files.figureSvg, fig.svg);
+    w(files.report, identifyReportHtml(result, { scenarioFile: basename(scenarioFile), figurePng: fig.png, figureFiles: [basename(files.figurePng), basename(files.figureSvg)] }));
+    w(files.json, `${JSON.stringify(resultJson(result, files), null, 2)}\n`);
+    return { result, dir, files };
+}
+/** The JSON form of a result (what --json prints, plus details in identify.json). */
+export function resultJson(res, files) {
+    return {
+        scenario: res.scenario,
+        note: 'Simulated images are a model, not a measurement.',
+        synthetic: res.micrographs.filter((m) => m.synthetic).map((m) => m.conditionId),
+        defect: { index: res.defectIndex, label: res.defectLabel },
+        ranking: res.ranking.map((r) => ({
+            candidate: r.candidate,
+            kind: r.kind,
+            score: r.score,
+            amplitude: r.amplitude,
+            perCondition: r.perCondition.map((p) => ({
+                condition: p.condition,
+                r2: p.r2,
+                ncc: p.ncc,
+                amplitude: p.amplitude,
+                shift_nm: p.shift_nm,
+                rotation_deg: p.rotation_deg,
+                scale: p.scale,
+                visibility: p.visibility,
+            })),
+        })),
+        verdict: {
+            decision: res.verdict.decision,
+            best: res.verdict.best,
+            runnerUp: res.verdict.runnerUp,
+            gap: res.verdict.gap,
+            gapSigma: res.verdict.gapSigma,
+            threshold: res.verdict.threshold,
+            indistinguishable: res.verdict.indistinguishable,
+            statement: res.verdict.statement,
+            rule: res.verdict.rule,
+        },
+        conditions: res.micrographs.map((m) => ({
+            id: m.conditionId,
+            g: m.condition.g,
+            field: m.settings.field,
+            xi_nm: m.resolved.xi_nm,
+            xiAbs_nm: m.resolved.xiAbs_nm,
+            s_per_nm: m.resolved.s_per_nm,
+            w: m.resolved.w,
+            thickness_nm: m.resolved.frame.thickness_nm,
+            micrograph: m.source,
+            synthetic: m.synthetic,
+            pixel_nm: m.pixel_nm,
+            bin: m.bin,
+            crop: m.crop,
+            gAngle_deg: m.gAngle_deg,
+        })),
+        settings: res.settings,
+        seconds: res.seconds,
+        ...(files ? { files } : {}),
+    };
+}
+export async function identifyCommand(scenarioFile, opts) {
+    const bar = progressBar(!opts.json);
+    let out;
+    try {
+        out = await runIdentify(scenarioFile, opts, (msg, f) => bar.update(msg.length > 48 ? `${msg.slice(0, 45)}...` : msg, f));
+    }
+    finally {
+        bar.done();
+    }
+    const { result: res, files, dir } = out;
+    if (opts.json) {
+        const j = resultJson(res, files);
+        printJson({ ranking: j.ranking.map(({ candidate, score, perCondition }) => ({ candidate, score, perCondition })), verdict: j.verdict, synthetic: j.synthetic, files });
+        return;
+    }
+    const synth = res.micrographs.filter((m) => m.synthetic);
+    if (synth.length > 0)
+        process.stdout.write(`NOTE: ${synth.map((m) => m.source).join(', ')} ${synth.length === 1 ? 'is a SYNTHETIC micrograph' : 'are SYNTHETIC micrographs'} (not measured).\n`);
+    process.stdout.write(`${res.scenario}: ${res.defectLabel}, ${res.candidates.length} candidates, ${res.micrographs.length} micrograph(s)\n\n`);
+    const ids = res.micrographs.map((m) => m.conditionId);
+    process.stdout.write(table(['#', 'candidate', 'score', ...ids.map((id) => `R2 ${id}`), ...ids.map((id) => `g.b ${id}`)], res.ranking.map((r, i) => [
+        String(i + 1),
+        r.candidate,
+        sig(r.score, 3),
+        ...r.perCondition.map((p) => sig(p.r2, 3)),
+        ...r.perCondition.map((p) => (p.visibility.value === undefined ? '-' : sig(p.visibility.value, 3))),
+    ])));
+    process.stdout.write(`\n${res.verdict.decision === 'identified' ? 'IDENTIFIED' : 'CANNOT TELL'}: ${res.verdict.statement}\n`);
+    process.stdout.write(`rule: ${res.verdict.rule}\n`);
+    process.stdout.write(`written to ${resolve(dir)}: ${basename(files.figurePng)}, ${basename(files.figureSvg)}, ${basename(files.report)}, ${basename(files.json)}\n`);
+}

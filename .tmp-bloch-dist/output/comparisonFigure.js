@@ -1,0 +1,248 @@
+import { drawFigure } from './graphics/figure.js';
+import { textAdvance } from './graphics/font.js';
+import { autoStretch, stretchToBytes } from './png.js';
+/** Our colours (not taken from any other program): ink, a teal frame for the identified candidate, amber for candidates it cannot exclude. */
+const INK = [28, 28, 32];
+const SOFT = [95, 95, 105];
+const TEAL = [0, 122, 112];
+const AMBER = [205, 125, 0];
+const WHITE = [255, 255, 255];
+const BLACK = [0, 0, 0];
+const PAPER = [255, 255, 255];
+export const FIGURE_PX = 2000;
+const CAPTION_SIZE = 22;
+const CAPTION_LEAD = 30;
+export function figureLayout(data, width = FIGURE_PX, measure) {
+    const n = Math.max(1, data.columns.length);
+    const margin = 40;
+    const labelWidth = 330;
+    const gap = 18;
+    const cellW = Math.max(60, Math.min(560, Math.floor((width - 2 * margin - labelWidth - (n - 1) * gap) / n)));
+    const aspect = Math.max(...data.columns.map((c) => c.height / c.width), 0.25);
+    const cellH = Math.round(cellW * Math.min(aspect, 1.5));
+    const titleH = 110;
+    const headerH = 110;
+    const rowsTop = margin + titleH + headerH;
+    const nRows = 1 + data.rows.length;
+    const captionTop = rowsTop + nRows * cellH + (nRows - 1) * gap + 36;
+    const captionLines = wrap(data.caption, width - 2 * margin, CAPTION_SIZE, measure);
+    const height = Math.ceil(captionTop + captionLines.length * CAPTION_LEAD + margin);
+    return {
+        width,
+        height,
+        margin,
+        labelWidth,
+        cellW,
+        cellH,
+        gap,
+        titleH,
+        headerH,
+        captionTop,
+        captionLines,
+        cell: (row, col) => ({ x: margin + labelWidth + col * (cellW + gap), y: rowsTop + row * (cellH + gap) }),
+    };
+}
+/** Greedy word wrap to a width in px. */
+export function wrap(text, maxWidth, size, measure) {
+    const out = [];
+    for (const para of text.split('\n')) {
+        let line = '';
+        for (const word of para.split(/\s+/).filter((w) => w !== '')) {
+            const trial = line === '' ? word : `${line} ${word}`;
+            if (line !== '' && measure(trial, size) > maxWidth) {
+                out.push(line);
+                line = word;
+            }
+            else
+                line = trial;
+        }
+        out.push(line);
+    }
+    return out;
+}
+/** Draw the whole figure on a surface of layout.width x layout.height. */
+export function drawComparison(s, data, L) {
+    const { margin } = L;
+    s.text(data.title, margin, margin + 34, { size: 34, bold: true, color: INK });
+    s.text(data.subtitle, margin, margin + 80, { size: 25, color: INK });
+    data.columns.forEach((c, j) => {
+        const { x } = L.cell(0, j);
+        const top = margin + L.titleH;
+        s.text(c.id, x, top + 30, { size: 28, bold: true, color: INK });
+        s.text(`g = (${c.g.map(fmtIndex).join(' ')})   ${c.field === 'bf' ? 'bright field' : 'dark field'}`, x, top + 64, { size: 22, color: INK });
+        s.text(c.deviation, x, top + 94, { size: 22, color: SOFT });
+    });
+    // row 0: micrographs
+    const anySynthetic = data.columns.some((c) => c.synthetic);
+    rowLabel(s, L, 0, [anySynthetic ? 'micrographs' : 'micrographs', anySynthetic ? '(SYNTHETIC)' : ''], 'none');
+    data.columns.forEach((c, j) => {
+        const { x, y } = L.cell(0, j);
+        const box = drawImage(s, c.micrograph, c.width, c.height, x, y, L.cellW, L.cellH);
+        if (c.synthetic)
+            tag(s, 'synthetic', box.x + 10, box.y + box.h - 14, 20);
+        gArrow(s, c.gAngle_deg, box.x + box.w - 58, box.y + 58, 70);
+        scaleBar(s, c.pixel_nm * c.width, box, 20);
+    });
+    data.rows.forEach((r, i) => {
+        const row = i + 1;
+        rowLabel(s, L, row, [`${i + 1}. ${r.label}`, `score ${fmtScore(r.score)}`], r.mark);
+        r.cells.forEach((cell, j) => {
+            const c = data.columns[j];
+            const { x, y } = L.cell(row, j);
+            const box = drawImage(s, cell.image, c.width, c.height, x, y, L.cellW, L.cellH);
+            if (cell.note !== '')
+                tag(s, cell.note, box.x + 10, box.y + 34, 24);
+            tag(s, `R² ${fmtScore(cell.r2)}`, box.x + 10, box.y + box.h - 14, 20);
+            if (r.mark !== 'none')
+                s.strokeRect(box.x - 4, box.y - 4, box.w + 8, box.h + 8, r.mark === 'best' ? TEAL : AMBER, 6);
+        });
+    });
+    L.captionLines.forEach((line, k) => s.text(line, margin, L.captionTop + k * CAPTION_LEAD, { size: CAPTION_SIZE, color: INK }));
+}
+function rowLabel(s, L, row, lines, mark) {
+    const { y } = L.cell(row, 0);
+    const x = L.margin;
+    const maxW = L.labelWidth - 24;
+    let yy = y + 36;
+    const main = wrap(lines[0], maxW, 26, (t, z) => s.measureText(t, z, true));
+    for (const t of main) {
+        s.text(t, x, yy, { size: 26, bold: true, color: INK });
+        yy += 34;
+    }
+    if (lines[1]) {
+        s.text(lines[1], x, yy, { size: 23, color: INK });
+        yy += 32;
+    }
+    if (mark === 'best')
+        s.text('identified', x, yy, { size: 23, bold: true, color: TEAL });
+    if (mark === 'tie')
+        s.text('not excluded', x, yy, { size: 23, bold: true, color: AMBER });
+}
+/** Image fitted into the cell (aspect kept, centred), own contrast stretch; returns where it went. */
+function drawImage(s, img, w, h, x, y, cw, ch) {
+    const k = Math.min(cw / w, ch / h);
+    const dw = w * k;
+    const dh = h * k;
+    const bx = x + (cw - dw) / 2;
+    const by = y + (ch - dh) / 2;
+    const f = Float32Array.from(img);
+    const win = autoStretch(f);
+    s.greyImage(stretchToBytes(f, win.lo, win.hi), w, h, bx, by, dw, dh);
+    return { x: bx, y: by, w: dw, h: dh };
+}
+/** Text on a white plate, for legibility over an image. */
+function tag(s, text, x, y, size) {
+    const w = s.measureText(text, size);
+    s.fillRect(x - 5, y - size * 0.95, w + 10, size * 1.25, WHITE);
+    s.text(text, x, y, { size, color: INK });
+}
+/** g arrow centred at (cx, cy): screen angle counter-clockwise from +x (y down on the page). */
+function gArrow(s, angle_deg, cx, cy, len) {
+    const a = (angle_deg * Math.PI) / 180;
+    const dx = (Math.cos(a) * len) / 2;
+    const dy = (-Math.sin(a) * len) / 2;
+    s.arrow(cx - dx, cy - dy, cx + dx, cy + dy, BLACK, 8, 22);
+    s.arrow(cx - dx, cy - dy, cx + dx, cy + dy, WHITE, 4, 18);
+    const lx = cx + dx * 1.45;
+    const ly = cy + dy * 1.45;
+    s.text('g', lx + 1, ly + 1, { size: 28, bold: true, color: BLACK, anchor: 'middle', baseline: 'middle' });
+    s.text('g', lx, ly, { size: 28, bold: true, color: WHITE, anchor: 'middle', baseline: 'middle' });
+}
+/** Scale bar of a 1-2-5 length near a quarter of the field, bottom right. */
+function scaleBar(s, field_nm, box, size) {
+    const len_nm = niceLength(field_nm / 4);
+    const len = (len_nm / field_nm) * box.w;
+    const x1 = box.x + box.w - 14;
+    const x0 = x1 - len;
+    const y = box.y + box.h - 16;
+    s.fillRect(x0 - 2, y - 8, len + 4, 12, BLACK);
+    s.fillRect(x0, y - 6, len, 8, WHITE);
+    const label = `${len_nm} nm`;
+    const tw = s.measureText(label, size, true);
+    s.fillRect(x0 + len / 2 - tw / 2 - 4, y - 16 - size, tw + 8, size + 6, WHITE);
+    s.text(label, x0 + len / 2, y - 14, { size, bold: true, color: INK, anchor: 'middle' });
+}
+/** Largest 1, 2 or 5 times a power of ten not above x. */
+export function niceLength(x) {
+    if (!(x > 0))
+        return 1;
+    const p = 10 ** Math.floor(Math.log10(x));
+    for (const m of [5, 2, 1])
+        if (m * p <= x)
+            return Number((m * p).toPrecision(6));
+    return p;
+}
+function fmtIndex(x) {
+    const r = Math.round(x * 1e6) / 1e6;
+    return Number.isInteger(r) ? String(r + 0) : String(r);
+}
+function fmtScore(x) {
+    return Number(x.toFixed(3)).toString();
+}
+/** A value such as g.b: whole numbers plainly, thirds and halves as fractions. */
+export function fmtFraction(x) {
+    for (const d of [1, 2, 3, 6]) {
+        const n = x * d;
+        if (Math.abs(n - Math.round(n)) < 1e-6)
+            return d === 1 ? String(Math.round(n) + 0) : `${Math.round(n)}/${d}`;
+    }
+    return Number(x.toPrecision(3)).toString();
+}
+/** The figure's content from an identification result. */
+export function comparisonFigureData(res) {
+    const v = res.verdict;
+    const columns = res.micrographs.map((m) => ({
+        id: m.conditionId,
+        g: m.condition.g,
+        field: m.settings.field,
+        deviation: `${m.resolved.deviationSource === 'w' ? `w = ${sig(m.resolved.w)}` : m.resolved.deviationSource === 's' ? `s = ${sig(m.resolved.s_per_nm)} /nm` : `${m.resolved.deviationSource}, s = ${sig(m.resolved.s_per_nm)} /nm`}, t = ${sig(m.resolved.frame.thickness_nm)} nm`,
+        gAngle_deg: m.gAngle_deg,
+        pixel_nm: m.pixel_nm,
+        width: m.width,
+        height: m.height,
+        micrograph: m.image.data,
+        synthetic: m.synthetic,
+    }));
+    const rows = res.leaderImages.map((imgs, r) => {
+        const rc = res.ranking[r];
+        const mark = v.decision === 'identified' ? (r === 0 ? 'best' : 'none') : v.indistinguishable.includes(rc.candidate) ? 'tie' : 'none';
+        return {
+            label: rc.candidate,
+            score: rc.score,
+            mark,
+            cells: imgs.map((image, j) => {
+                const pc = rc.perCondition[j];
+                const note = pc.visibility.quantity === '' || pc.visibility.value === undefined ? '' : `${pc.visibility.quantity} = ${fmtFraction(pc.visibility.value)}`;
+                return { image, note, r2: pc.r2 };
+            }),
+        };
+    });
+    const synth = res.micrographs.filter((m) => m.synthetic).map((m) => m.conditionId);
+    const micrographNote = synth.length === 0
+        ? 'Top row: the micrographs as given (cropped, binned).'
+        : synth.length === res.micrographs.length
+            ? 'Top row: SYNTHETIC micrographs, made by thinfoil from a hidden candidate with added blur, background gradient and noise; they are not measurements.'
+            : `Top row: the micrographs as given; ${synth.join(', ')} ${synth.length === 1 ? 'is' : 'are'} SYNTHETIC (made by thinfoil, not measured).`;
+    const caption = [
+        micrographNote,
+        `Rows below: simulated images of the ${rows.length} leading candidates (two-beam Howie-Whelan equations, column approximation, isotropic elasticity: a model, not a measurement), each registered to its micrograph (shift, rotation up to 5 degrees, scale up to 5 %). ` +
+            'Every image is contrast-stretched on its own (0.5 % of the pixels clipped at each end). Arrow: direction of g in the micrograph. ' +
+            "R²: fraction of the micrograph's contrast variance explained by the simulation; score: its mean over the micrographs, with one contrast scale shared by the micrographs.",
+        `Verdict: ${v.statement}`,
+    ].join('\n');
+    return {
+        title: `${res.scenario}: which candidate explains the micrographs?`,
+        subtitle: `${res.defectLabel}; ${res.candidates.length} candidates compared over ${res.micrographs.length} micrograph${res.micrographs.length === 1 ? '' : 's'}; verdict: ${v.decision === 'identified' ? `identified ${v.best}` : 'cannot tell'}`,
+        columns,
+        rows,
+        caption,
+    };
+}
+function sig(x) {
+    return Number(x.toPrecision(3)).toString();
+}
+/** The figure as PNG bytes and SVG text, drawn once per surface. */
+export function comparisonFigure(data, width = FIGURE_PX) {
+    const layout = figureLayout(data, width, (t, z) => textAdvance(t, z));
+    return { ...drawFigure(layout.width, layout.height, (s) => drawComparison(s, data, layout), PAPER), layout };
+}

@@ -1,0 +1,150 @@
+import { fmtFraction } from './comparisonFigure.js';
+export function escapeHtml(s) {
+    return s.replace(/&/g, '&amp;').replace(/</g, '&lt;').replace(/>/g, '&gt;').replace(/"/g, '&quot;').replace(/'/g, '&#39;');
+}
+const e = escapeHtml;
+function num(x, digits = 4) {
+    if (!Number.isFinite(x))
+        return String(x);
+    if (x === 0)
+        return '0';
+    return Number(x.toPrecision(digits)).toString();
+}
+function vec(v) {
+    return `(${v.map((x) => fmtFraction(x)).join(' ')})`;
+}
+function table(head, rows, cls = '') {
+    const th = head.map((h) => `<th>${h}</th>`).join('');
+    const tr = rows.map((r) => `<tr>${r.map((c) => `<td>${c}</td>`).join('')}</tr>`).join('\n');
+    return `<table${cls ? ` class="${cls}"` : ''}><thead><tr>${th}</tr></thead><tbody>\n${tr}\n</tbody></table>`;
+}
+export function identifyReportHtml(res, inp) {
+    const v = res.verdict;
+    const synth = res.micrographs.filter((m) => m.synthetic);
+    const png64 = Buffer.from(inp.figurePng).toString('base64');
+    const conds = res.micrographs;
+    const syntheticNote = synth.length === 0
+        ? '<p>All micrographs were supplied by the user; thinfoil has not checked where they come from.</p>'
+        : `<p class="warn"><strong>Synthetic micrographs:</strong> ${synth.map((m) => `${e(m.conditionId)} (${e(m.source)})`).join(', ')} ${synth.length === 1 ? 'was' : 'were'} made by thinfoil from a simulated hidden candidate with added blur, background gradient and noise. ${synth.length === conds.length ? 'Nothing in this report is a measurement.' : 'They are not measurements.'}</p>`;
+    const conditionRows = conds.map((m) => {
+        const r = m.resolved;
+        return [
+            e(m.conditionId),
+            vec(m.condition.g),
+            `[${m.condition.beam.map((x) => fmtFraction(x)).join(' ')}]`,
+            m.settings.field === 'bf' ? 'bright field' : 'dark field',
+            num(r.xi_nm),
+            num(r.xiAbs_nm),
+            num(r.s_per_nm, 3),
+            num(r.w, 3),
+            e(r.deviationSource),
+            num(r.frame.thickness_nm),
+            num(r.frame.columnLength_nm),
+            `${e(m.source)}${m.synthetic ? ' <strong>(synthetic)</strong>' : ''}`,
+            `${num(m.filePixel_nm)} (${m.pixelFrom})`,
+            `[${m.crop.join(', ')}], bin ${m.bin}`,
+            `${m.width} x ${m.height} at ${num(m.pixel_nm)}`,
+            `${num(m.gAngle_deg, 3)}${m.settings.mirrored ? ', mirrored' : ''}`,
+            m.settings.intensity === 'linear' ? `linear, offset ${num(m.settings.offset)}` : 'display (scale fitted freely)',
+            num(m.settings.blur_nm),
+        ];
+    });
+    const rankingRows = res.ranking.map((r, i) => {
+        const cmp = v.comparisons.find((c) => c.candidate === r.candidate);
+        const status = i === 0 ? (v.decision === 'identified' ? '<strong>identified</strong>' : '<strong>best, not decisive</strong>') : cmp?.excluded ? 'excluded' : '<strong>not excluded</strong>';
+        return [
+            String(i + 1),
+            e(r.candidate),
+            num(r.score, 4),
+            i === 0 ? '' : num(cmp?.gap ?? NaN, 3),
+            i === 0 || cmp?.gapSigma === undefined ? '' : num(cmp.gapSigma, 2),
+            status,
+            ...r.perCondition.map((p) => `${num(p.r2, 3)} <span class="dim">/ ${num(p.ncc, 3)}</span>`),
+            r.fullySearched ? 'own' : 'from best',
+        ];
+    });
+    const quantity = res.ranking[0]?.perCondition[0]?.visibility.quantity ?? '';
+    const gbRows = res.ranking.map((r) => [
+        e(r.candidate),
+        ...r.perCondition.map((p) => {
+            const vis = p.visibility;
+            if (vis.quantity === '' || vis.value === undefined)
+                return '-';
+            const extra = vis.gbxu === undefined ? '' : `, g.(b x u) = ${num(vis.gbxu, 3)}`;
+            return `${fmtFraction(vis.value)} <span class="dim">${e(vis.verdict ?? '')}${extra}</span>`;
+        }),
+    ]);
+    const best = res.ranking[0];
+    const regRows = best.perCondition.map((p) => [
+        e(p.condition),
+        `${num(p.shift_nm[0], 3)}, ${num(p.shift_nm[1], 3)}`,
+        num(p.rotation_deg, 3),
+        num(p.scale, 4),
+        num(p.amplitude, 3),
+        num(p.ncc, 3),
+        num(p.r2, 3),
+    ]);
+    const condHead = conds.map((m) => e(m.conditionId));
+    const svgNote = inp.figureFiles && inp.figureFiles.length > 0 ? `<p class="dim">Figure files: ${inp.figureFiles.map(e).join(', ')}.</p>` : '';
+    return `<!DOCTYPE html>
+<html lang="en">
+<head>
+<meta charset="utf-8">
+<title>${e(res.scenario)}: identification report</title>
+<style>
+body { font-family: "DejaVu Sans", Helvetica, Arial, sans-serif; color: #1c1c20; max-width: 1180px; margin: 2em auto; padding: 0 1em; line-height: 1.45; }
+h1 { font-size: 1.6em; margin-bottom: 0.2em; }
+h2 { font-size: 1.2em; margin-top: 1.8em; border-bottom: 1px solid #ccc; }
+table { border-collapse: collapse; margin: 0.6em 0; font-size: 0.88em; }
+th, td { border: 1px solid #c8c8cc; padding: 0.25em 0.5em; text-align: left; vertical-align: top; }
+th { background: #eef3f2; }
+.dim { color: #66666f; }
+.model { border-left: 5px solid #007a70; background: #f2f8f7; padding: 0.6em 1em; }
+.warn { border-left: 5px solid #cd7d00; background: #fdf6ea; padding: 0.6em 1em; }
+.verdict { font-size: 1.15em; padding: 0.7em 1em; border: 2px solid ${v.decision === 'identified' ? '#007a70' : '#cd7d00'}; }
+img { max-width: 100%; border: 1px solid #ddd; }
+</style>
+</head>
+<body>
+<h1>${e(res.scenario)}: which candidate explains the micrographs?</h1>
+<p class="dim">Target: ${e(res.defectLabel)} (defect ${res.defectIndex} of the scenario file ${e(inp.scenarioFile)}); ${res.candidates.length} candidates; ${conds.length} micrograph${conds.length === 1 ? '' : 's'}.${inp.date ? ` Made ${e(inp.date)}.` : ''}${inp.version ? ` thinfoil ${e(inp.version)}.` : ''}</p>
+
+<div class="model"><strong>Simulations are a model, not a measurement.</strong> The simulated images come from the two-beam Howie-Whelan equations in the column approximation with isotropic elasticity in an infinite medium (no surface relaxation), one absorption ratio, no beam convergence and no detector response beyond the blur given per micrograph. A good match supports a candidate under these assumptions; it does not prove it.</div>
+${syntheticNote}
+
+<h2>Verdict</h2>
+<p class="verdict">${v.decision === 'identified' ? '<strong>Identified:</strong> ' : '<strong>Cannot tell:</strong> '}${e(v.statement)}</p>
+<p><strong>Rule.</strong> ${e(v.rule)} Gap to the runner-up: ${num(v.gap, 3)}; bootstrap standard deviation of that gap: ${num(v.gapSigma, 2)}; gap needed: ${num(v.threshold, 3)}.</p>
+${v.decision === 'cannot tell' ? `<p>Not excluded by the best candidate: ${v.indistinguishable.map(e).join(', ')}. More micrographs under conditions where these candidates differ (a g with different g.b for them, or the opposite sign of g or s) would separate them.</p>` : ''}
+
+<h2>Comparison figure</h2>
+<img alt="micrographs (top row) and simulated images of the leading candidates" src="data:image/png;base64,${png64}">
+${svgNote}
+
+<h2>Ranking</h2>
+<p>Score: the mean over the micrographs of R², the fraction of the micrograph's contrast variance (relative contrast I/I<sub>background</sub> - 1, background plane removed) explained by the registered simulation times its contrast scale. One contrast scale is shared by all micrographs with linear intensities (each may differ from it by at most a factor ${num(res.settings.amplitudeSpread)}), so a candidate that predicts contrast where a micrograph shows none is penalised; R² can then be negative. Per micrograph the table shows R² / normalised cross-correlation. The ${res.settings.top} leading candidates had their own rotation and scale searched; the others use the rotation and scale found for the best of them (these belong to the micrograph), with their own shift.</p>
+${table(['#', 'candidate', 'score', 'gap to best', 'sigma of gap', 'status', ...condHead.map((h) => `${h}: R² / NCC`), 'rotation, scale'], rankingRows)}
+
+<h2>${quantity === 'g.R' ? 'g.R' : 'g.b'} table</h2>
+<p>The rule of thumb beside the simulations (Hirsch et al. 1965; Howie &amp; Whelan 1962): g.b = 0 (and g.(b x u) = 0) predicts invisibility; a residual contrast remains for edge and mixed dislocations when |g.(b x u)| is large.</p>
+${table(['candidate', ...condHead.map((h, i) => `${h} ${vec(conds[i].condition.g)}`)], gbRows)}
+
+<h2>Conditions</h2>
+${table(['id', 'g', 'beam', 'field', 'xi_g (nm)', "xi'_g (nm)", 's (1/nm)', 'w = s xi_g', 's from', 'thickness t (nm)', 'column length (nm)', 'micrograph', 'file pixel (nm)', 'crop, bin', 'compared (px, nm)', 'g angle (deg)', 'intensity', 'blur (nm)'], conditionRows)}
+
+<h2>Registration of the best candidate</h2>
+<p>Shift: where the simulation's centre lies in the micrograph relative to the crop centre (nm, +y down). Rotation: counter-clockwise on the screen. Contrast scale: simulated relative contrast is multiplied by it.</p>
+${table(['condition', 'shift (nm)', 'rotation (deg)', 'scale', 'contrast scale', 'NCC', 'R²'], regRows)}
+
+<h2>Method and settings</h2>
+<ul>
+<li>Each candidate is simulated under each micrograph's condition, with g turned to the micrograph's direction and at its pixel size, on the crop plus a margin for the shift search.</li>
+<li>Registration: normalised cross-correlation over all shifts by FFT (Lewis 1995), sub-pixel peak by parabola; rotation (up to 5 degrees) and scale (up to 5 %) by a coarse-to-fine search on the correlation peak.</li>
+<li>Noise of the scores: ${res.settings.bootstrap} bootstrap copies of the micrographs (the best candidate's fitted image plus its residual resampled in blocks, seed ${res.settings.seed}); each leading candidate re-registered (shift) and re-scored on every copy.</li>
+<li>Exclusion rule: gap &gt; ${num(res.settings.sigmas)} standard deviations of the bootstrap gap and &gt; 0.002.</li>
+<li>Time: simulation ${num(res.seconds.render, 3)} s, registration ${num(res.seconds.register, 3)} s, bootstrap ${num(res.seconds.bootstrap, 3)} s.</li>
+</ul>
+</body>
+</html>
+`;
+}
