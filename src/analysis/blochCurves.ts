@@ -10,7 +10,7 @@
 import { amplitudesAt } from '../dynamics/blochWaves.js';
 import { blochWaveProfile } from '../dynamics/blochWaveProfile.js';
 import { InputError } from '../errors.js';
-import { blochRowWaves, type BlochRow } from './blochRow.js';
+import { blochRowWaves, type BlochRow } from '../imaging/blochRow.js';
 
 /** n evenly spaced values from a to b inclusive. */
 export function linspace(a: number, b: number, n: number): Float64Array {

@@ -14,7 +14,7 @@
  */
 import type { BlochWaves } from '../dynamics/blochWaves.js';
 import { blochWaveProfile } from '../dynamics/blochWaveProfile.js';
-import { blochRowWaves, type BlochRow } from './blochRow.js';
+import { blochRowWaves, type BlochRow } from '../imaging/blochRow.js';
 
 /**
  * Harmonics |m| <= this enter the projected potential used to place the

@@ -174,14 +174,16 @@ export function standardise(out: Float64Array, data: ArrayLike<number>): number 
 
 /**
  * Separable Gaussian blur with standard deviation sigma_px (pixels), kernel
- * truncated at 4 sigma and normalised, edges clamped. sigma 0 copies.
+ * of radius floor(4 sigma + 0.5) normalised to 1, edges extended with the
+ * nearest pixel (the same kernel and edges as scipy.ndimage.gaussian_filter
+ * with truncate=4, mode='nearest'). sigma 0 copies.
  */
 export function gaussianBlur(out: Float64Array, data: ArrayLike<number>, w: number, h: number, sigma_px: number): Float64Array {
   if (!(sigma_px > 0)) {
     for (let k = 0; k < w * h; k++) out[k] = data[k];
     return out;
   }
-  const r = Math.max(1, Math.ceil(4 * sigma_px));
+  const r = Math.max(1, Math.floor(4 * sigma_px + 0.5));
   const kern = new Float64Array(2 * r + 1);
   let s = 0;
   for (let i = -r; i <= r; i++) s += kern[i + r] = Math.exp(-(i * i) / (2 * sigma_px * sigma_px));

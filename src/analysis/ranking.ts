@@ -61,7 +61,7 @@ export const DEFAULT_SPREAD = 1.5;
 
 function r2(a: number, p: PairStats): number {
   if (!(p.cc > 0)) return 0;
-  return (2 * a * p.cs - a * a * p.ss) / p.cc;
+  return (2 * a * p.cs - a * a * p.ss) / p.cc + 0;
 }
 
 /**

@@ -125,7 +125,7 @@ export function createCorrelator(templateWidth: number, templateHeight: number, 
           ss += v * v;
         }
       }
-      plan.forward(spec);
+      plan.forwardReal(spec, templateHeight);
       for (let k = 1; k < spec.length; k += 2) spec[k] = -spec[k];
       return { width: templateWidth, height: templateHeight, conjSpectrum: spec, norm: Math.sqrt(ss) };
     },
@@ -133,7 +133,7 @@ export function createCorrelator(templateWidth: number, templateHeight: number, 
     prepareImage(s) {
       const spec = new Float64Array(2 * N * M);
       for (let y = 0; y < imageHeight; y++) for (let x = 0; x < imageWidth; x++) spec[2 * (y * N + x)] = s[y * imageWidth + x];
-      plan.forward(spec);
+      plan.forwardReal(spec, imageHeight);
       // summed-area tables of s and s^2 (Lewis 1995, section 3)
       const W1 = imageWidth + 1;
       for (let y = 0; y < imageHeight; y++) {
@@ -171,7 +171,7 @@ export function createCorrelator(templateWidth: number, templateHeight: number, 
         work[k] = a[k] * b[k] - a[k + 1] * b[k + 1];
         work[k + 1] = a[k] * b[k + 1] + a[k + 1] * b[k];
       }
-      plan.inverse(work);
+      plan.inverseRows(work, mapHeight);
       for (let v = 0; v < mapHeight; v++) {
         for (let u = 0; u < mapWidth; u++) {
           const d = img.windowNorm[v * mapWidth + u] * tpl.norm;

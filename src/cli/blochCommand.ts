@@ -8,7 +8,7 @@ import path from 'node:path';
 import { getMaterial } from '../crystal/materials.js';
 import { readPlane } from '../scenario/parse.js';
 import { InputError } from '../errors.js';
-import { beamName, blochRow, type BlochRow } from '../analysis/blochRow.js';
+import { beamName, blochRow, type BlochRow } from '../imaging/blochRow.js';
 import { blochTable, projectedPotential, type BlochTable } from '../analysis/blochTables.js';
 import { linspace, rockingCurves, thicknessCurves, waveProfiles } from '../analysis/blochCurves.js';
 import { toCsv, type CsvCell } from '../output/csv.js';
@@ -56,6 +56,8 @@ function periodicExtension(x: Float64Array, ys: Float64Array[], view: [number, n
   return { x: xs, y: ys.map((a) => Float64Array.from(xs, (_, i) => a[(((k0 + i) % n) + n) % n])) };
 }
 const MAX_THICKNESS_NM = 1e5;
+/** Budget of rocking-curve samples times N^3 (N beams): keeps a 41-beam run to a few seconds. */
+const ROCKING_BUDGET = 4e6;
 
 function numberFrom(v: number | string, name: string, what: string): number {
   const x = typeof v === 'number' ? v : Number(v);
@@ -207,7 +209,8 @@ export function computeBloch(materialName: string, indices: string, opts: BlochO
 
   // rocking curve at thickness T
   const half = Math.max(5 / xi, 1.5 * Math.abs(s));
-  let ns = clampInt(2 * half * T * 40 + 1, 801, 8001);
+  // about 40 samples per fringe (period 1/t in s), within a budget of eigen-solutions (cost ~ N^3)
+  let ns = clampInt(Math.min(2 * half * T * 40 + 1, ROCKING_BUDGET / row.beams ** 3), 801, 8001);
   if (ns % 2 === 0) ns++;
   const sv = linspace(-half, half, ns);
   const rc = rockingCurves(row, sv, T);

@@ -9,6 +9,7 @@ import { renderCommand } from './renderCommand.js';
 import { visibilityCommand } from './visibilityCommand.js';
 import { demoCommand } from './demoCommand.js';
 import { faultCommand } from './faultCommand.js';
+import { blochCommand } from './blochCommand.js';
 import { InputError } from '../errors.js';
 
 const program = new Command();
@@ -63,6 +64,21 @@ program
   .action(action(visibilityCommand));
 
 program
+  .command('bloch')
+  .description('Bloch waves of a perfect crystal (two-beam or systematic row): table, thickness profile, rocking curve and wave intensity across the planes, as CSV and PNG/SVG plots')
+  .argument('<material>', 'material name from `thinfoil materials`')
+  .argument('<indices>', 'reflection g, e.g. 1,1,1 or "2 0 0"; four indices for hexagonal crystals')
+  .option('--kv <kV>', 'accelerating voltage in kV', lazy(parseKv), 200)
+  .option('--absorption <r>', "absorption ratio xi_g/xi'_g", lazy(parseAbsorption), 0.1)
+  .option('--s <s>', 'deviation parameter s of g in nm^-1 (default 0)')
+  .option('--w <w>', 'deviation as w = s xi_g (instead of --s)')
+  .option('--beams <N>', '2 (two-beam) or an odd number 3..41 (systematic row -m g .. m g)', '2')
+  .option('--thickness <nm>', 'range of the thickness profile and thickness of the rocking curve, nm (default 3 xi_g)')
+  .option('--out <dir>', 'output folder (default out/bloch-<material>-<hkl>)')
+  .option('--json', 'one JSON object on stdout')
+  .action(action(blochCommand));
+
+program
   .command('fault')
   .description('fault nature (intrinsic / extrinsic outer fringes) and inclusion misfit sign, by simulation')
   .argument('<scenario>', 'scenario file (JSON)')
@@ -75,8 +91,20 @@ program
   .option('--out <dir>', 'output folder', 'out/demo')
   .action(action(demoCommand));
 
+/** Options that take a value: the token after them is never a positional argument. */
+const VALUE_OPTIONS = new Set(['--kv', '--absorption', '--s', '--w', '--beams', '--thickness', '--out', '--micrograph', '--candidates', '--top']);
+
+/**
+ * Indices may start with a minus sign ("-1,1,1"); commander would take such a
+ * positional argument for an unknown option. Prefix it with a space (the index
+ * parsers ignore surrounding white space).
+ */
+export function protectNegativeIndices(argv: readonly string[]): string[] {
+  return argv.map((a, i) => (/^-[0-9.]/.test(a) && !VALUE_OPTIONS.has(argv[i - 1] ?? '') ? ` ${a}` : a));
+}
+
 try {
-  await program.parseAsync(process.argv);
+  await program.parseAsync(protectNegativeIndices(process.argv));
 } catch (e) {
   if (e instanceof CommanderError) {
     process.exit(e.exitCode === 0 ? 0 : EXIT_USER);

@@ -4,7 +4,7 @@
  * background of that condition.
  */
 import type { TwoBeamParams } from '../dynamics/twoBeam.js';
-import { blochRow, blochRowInput } from '../analysis/blochRow.js';
+import { blochRow, blochRowInput } from './blochRow.js';
 import type { Scenario } from '../scenario/types.js';
 import { defectModel } from './fieldSpecs.js';
 import { resolveCondition, type ResolvedCondition } from './resolveCondition.js';

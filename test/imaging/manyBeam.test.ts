@@ -8,7 +8,7 @@ import { renderJob } from '../../src/imaging/renderScenario.js';
 import { columnEvaluator } from '../../src/imaging/renderRows.js';
 import { readFileSync } from 'node:fs';
 import { join } from 'node:path';
-import { blochRow, blochRowInput } from '../../src/analysis/blochRow.js';
+import { blochRow, blochRowInput } from '../../src/imaging/blochRow.js';
 
 describe('many-beam engine in the renderer', () => {
   it('two beams through the many-beam engine reproduce the two-beam engine (to 1e-8, column intensities)', () => {

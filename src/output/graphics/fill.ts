@@ -84,7 +84,7 @@ export function scanCoverage(
   // ceil((ymin - r0) SUBSCANLINES - 1/2) first
   const nLines = (r1 - r0) * SUBSCANLINES;
   const key = new Int32Array(m);
-  const count = new Int32Array(nLines + 2);
+  const count = new Int32Array(nLines + 3);
   for (let e = 0; e < m; e++) {
     const kk = Math.ceil((eYmin[e] - r0) * SUBSCANLINES - 0.5);
     key[e] = kk < 0 ? 0 : kk > nLines ? nLines + 1 : kk;

@@ -63,7 +63,7 @@ export interface PlotLayout {
 }
 
 const TITLE_SIZE = 16;
-const MIN_TITLE_SIZE = 10;
+const MIN_TITLE_SIZE = 8;
 const LABEL_SIZE = 14;
 const TICK_SIZE = 12;
 const LEGEND_SIZE = 12;

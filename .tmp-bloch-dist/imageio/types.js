@@ -1,2 +1,0 @@
-/** Largest image accepted (2^28 pixels, 1 GiB as Float32). */
-export const MAX_PIXELS = 2 ** 28;
