@@ -1,0 +1,92 @@
+/**
+ * fault, bloch and demo end to end through the compiled CLI (`npm test` builds dist/ first).
+ */
+import { describe, expect, it } from 'vitest';
+import { spawnSync } from 'node:child_process';
+import { existsSync, mkdtempSync, readFileSync, writeFileSync } from 'node:fs';
+import { tmpdir } from 'node:os';
+import { join } from 'node:path';
+
+const ROOT = join(import.meta.dirname, '..', '..');
+const CLI = join(ROOT, 'dist', 'cli', 'main.js');
+const run = (...args: string[]) => {
+  const r = spawnSync(process.execPath, [CLI, ...args], { cwd: ROOT, encoding: 'utf8' });
+  return { code: r.status, out: r.stdout, err: r.stderr };
+};
+
+describe('thinfoil fault', () => {
+  it('reads the example scenario and gives both readings of the fault with opposite bright-field outer fringes', () => {
+    const r = run('fault', 'scenarios/copper-faults.json', '--json');
+    expect(r.code, r.err).toBe(0);
+    const j = JSON.parse(r.out);
+    const g111 = j.faults.find((f: any) => f.condition === 'g1m11');
+    const [intr, extr] = g111.readings;
+    expect(intr.reading).toBe('intrinsic');
+    expect(Math.abs(intr.alpha_deg)).toBeCloseTo(120, 6); // alpha = 2 pi g.R = +-2 pi/3 (physics.md section 5)
+    expect(intr.bf.top).not.toBe(extr.bf.top); // alpha -> -alpha reverses BF outer fringes (Hashimoto et al. 1962)
+    // g.R integer: no fringes
+    const g022 = j.faults.find((f: any) => f.condition === 'g02m2');
+    expect(g022.readings[0].bf.top).toBe('none');
+    expect(j.inclusions.length).toBe(3);
+  });
+  it('says so when there is nothing to analyse', () => {
+    const r = run('fault', 'scenarios/copper-dislocations.json');
+    expect(r.code).toBe(0);
+    expect(r.out).toMatch(/nothing to analyse/);
+  });
+});
+
+describe('thinfoil bloch', () => {
+  it('writes the table, CSV and plots for a 5-beam row; two waves at s = 0 in two-beam', () => {
+    const out = mkdtempSync(join(tmpdir(), 'thinfoil-bloch-'));
+    const r = run('bloch', 'Cu', '2,0,0', '--beams', '5', '--w', '-0.5', '--out', out, '--json');
+    expect(r.code, r.err).toBe(0);
+    const j = JSON.parse(r.out);
+    expect(j.waves.length).toBe(5);
+    for (const f of ['bloch-waves.csv', 'thickness.png', 'rocking.svg', 'profiles.csv']) expect(existsSync(join(out, f))).toBe(true);
+    const two = JSON.parse(run('bloch', 'Al', '1,1,1', '--out', out, '--json').out);
+    expect(two.waves.length).toBe(2);
+  });
+  it.each([
+    [['bloch', 'Cu', '1,0,0'], /forbidden/],
+    [['bloch', 'Cu', '2,0,0', '--beams', '4'], /--beams/],
+    [['bloch', 'Cu', '2,0,0', '--s', '0.01', '--w', '1'], /--s|--w/],
+    [['bloch', 'Cu', '2,0,0', '--thickness', '-3'], /--thickness/],
+  ])('bad input %j: exit code 2', (args, pattern) => {
+    const r = run(...(args as string[]));
+    expect(r.code).toBe(2);
+    expect(r.err).toMatch(pattern);
+    expect(r.err).not.toMatch(/\n\s+at /);
+  });
+});
+
+describe('thinfoil demo', () => {
+  it('renders the invented demo, says it is invented, and writes images and tables', () => {
+    const out = mkdtempSync(join(tmpdir(), 'thinfoil-demo-'));
+    const r = run('demo', '--out', out);
+    expect(r.code, r.err).toBe(0);
+    expect(r.out).toMatch(/invented/);
+    const summary = JSON.parse(readFileSync(join(out, 'render.json'), 'utf8'));
+    expect(summary.images.length).toBeGreaterThanOrEqual(8);
+    for (const e of summary.images) {
+      expect(existsSync(e.png)).toBe(true);
+      expect(existsSync(e.tiff)).toBe(true);
+    }
+    expect(existsSync(join(out, 'visibility.txt'))).toBe(true);
+  }, 300_000);
+});
+
+describe('commands refuse a scenario that is not an object', () => {
+  it('an array or a number: exit code 2', () => {
+    const dir = mkdtempSync(join(tmpdir(), 'thinfoil-bad-'));
+    for (const text of ['[]', '3', 'null']) {
+      const f = join(dir, 's.json');
+      writeFileSync(f, text);
+      for (const cmd of ['render', 'visibility', 'fault']) {
+        const r = run(cmd, f);
+        expect(r.code).toBe(2);
+        expect(r.err).not.toMatch(/\n\s+at /);
+      }
+    }
+  });
+});
