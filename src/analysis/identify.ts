@@ -15,6 +15,7 @@
  *  4. bootstrap the leaders' scores for the verdict.
  */
 import type { Scenario } from '../scenario/types.js';
+import { InputError } from '../errors.js';
 import type { ConditionImages } from '../imaging/renderScenario.js';
 import { identificationCandidates, variantScenario, visibilityNote, type Candidate, type VisibilityNote } from './candidates.js';
 import { conditionView } from './identifyView.js';
@@ -221,7 +222,11 @@ export async function simulateView(vsc: Scenario, m: PreparedMicrograph, render:
   const field = m.settings.field;
   const src = field === 'bf' ? ci.bf : ci.df;
   const bg = ci.background[field];
-  if (!(bg > 0)) throw new RangeError(`simulateView: the perfect-crystal ${field} intensity of ${m.conditionId} is ${bg}`);
+  if (!(bg > 1e-9)) {
+    throw new InputError(
+      `micrographs.${m.conditionId}.field: the perfect crystal gives no ${field === 'df' ? 'dark' : 'bright'}-field intensity under ${m.conditionId} at this thickness, so relative contrast is undefined; compare the ${field === 'df' ? 'bright' : 'dark'}-field micrograph instead`,
+    );
+  }
   const rel = new Float64Array(W * H);
   for (let y = 0; y < H; y++) {
     const sy = m.settings.mirrored ? H - 1 - y : y;

@@ -126,19 +126,27 @@ export function robustPlane(data: ArrayLike<number>, w: number, h: number): [num
 }
 
 /**
- * Relative contrast c = (v - offset) / B - 1, B the robust background plane of
- * (v - offset). Returns null when B is not positive over the whole image (the
- * offset is wrong or the values are not proportional to intensity).
+ * Relative contrast c = (v - offset) / B - 1, B the background of
+ * (v - offset): the robust plane; if that is not positive everywhere (very
+ * few counts), the plain least-squares plane; if that is not either, the
+ * mean. Returns null when even the mean is not positive (the offset is wrong
+ * or the values are not proportional to intensity).
  */
 export function relativeContrast(src: Grid, offset: number): Grid | null {
   const { width: w, height: h } = src;
-  const v = new Float64Array(w * h);
-  for (let k = 0; k < v.length; k++) v[k] = src.data[k] - offset;
-  const B = planeValues(new Float64Array(w * h), robustPlane(v, w, h), w, h);
-  for (let k = 0; k < v.length; k++) {
-    if (!(B[k] > 0)) return null;
-    v[k] = v[k] / B[k] - 1;
-  }
+  const n = w * h;
+  const v = new Float64Array(n);
+  for (let k = 0; k < n; k++) v[k] = src.data[k] - offset;
+  let mean = 0;
+  for (let k = 0; k < n; k++) mean += v[k];
+  mean /= n;
+  const B = new Float64Array(n);
+  const positive = () => B.every((b) => b > 0);
+  planeValues(B, robustPlane(v, w, h), w, h);
+  if (!positive()) planeValues(B, fitPlane(v, w, h), w, h);
+  if (!positive()) B.fill(mean);
+  if (!positive()) return null;
+  for (let k = 0; k < n; k++) v[k] = v[k] / B[k] - 1;
   return { width: w, height: h, data: v };
 }
 

@@ -134,6 +134,8 @@ export function fitAmplitudes(stats: readonly PairStats[], linear: readonly bool
 /** Rule constants (see the module comment). */
 export const DEFAULT_SIGMAS = 3;
 export const SCORE_FLOOR = 0.002;
+/** Below this best score the statement warns that hardly anything is explained. */
+export const WEAK_SCORE = 0.02;
 
 export interface Comparison {
   readonly candidate: string;
@@ -202,6 +204,10 @@ export function decide(labels: readonly string[], scores: readonly number[], rep
     decision === 'identified'
       ? `${labels[0]} explains the micrographs best; the runner-up ${runner ? `(${runner.candidate}) scores ${fmt(gap)} lower, ${gapSigma > 0 ? `${fmt(gap / gapSigma)} standard deviations of the noise` : 'beyond the noise'}` : 'does not exist'}.`
       : `Cannot tell: ${indistinguishable.join(', ')} explain the micrographs equally well within the noise (gap to the runner-up ${fmt(gap)}, needed ${fmt(threshold)}).`;
+  const weak =
+    scores[0] < WEAK_SCORE
+      ? ` The best candidate explains only ${fmt(100 * Math.max(0, scores[0]))} % of the micrographs' contrast variance: the micrographs may show no contrast from this defect, or no candidate fits.`
+      : '';
   return {
     decision,
     best: labels[0],
@@ -213,7 +219,7 @@ export function decide(labels: readonly string[], scores: readonly number[], rep
     comparisons,
     replicates: B,
     rule,
-    statement,
+    statement: statement + weak,
   };
 }
 

@@ -35,6 +35,15 @@ export function gDotBCrossU(lattice: Lattice, g: Vec3, b: Vec3, line: Vec3): num
   return dot(gc, cross(bc, uc));
 }
 
+/** g.b_edge with b_edge = b - (b.u) u, the edge component of b. */
+export function gDotEdge(lattice: Lattice, g: Vec3, b: Vec3, line: Vec3): number {
+  const gc = planeNormalToCartesian(lattice, g);
+  const bc = directionToCartesian(lattice, b);
+  const uc = unit(directionToCartesian(lattice, line));
+  const bu = dot(bc, uc);
+  return dot(gc, [bc[0] - bu * uc[0], bc[1] - bu * uc[1], bc[2] - bu * uc[2]]);
+}
+
 export function judge(lattice: Lattice, g: Vec3, b: Vec3, line?: Vec3): VisibilityEntry {
   const gb = clean(gDotB(g, b));
   const gbxu = line === undefined ? undefined : clean(gDotBCrossU(lattice, g, b, line));
@@ -42,7 +51,13 @@ export function judge(lattice: Lattice, g: Vec3, b: Vec3, line?: Vec3): Visibili
   if (agb < EPS) {
     if (gbxu === undefined) return { gb, verdict: 'invisible', rule: 'g.b = 0 (line unknown: residual contrast from g.(b x u) not assessed)' };
     const r = Math.abs(gbxu);
-    if (r < EPS) return { gb, gbxu, verdict: 'invisible', rule: 'g.b = 0 and g.(b x u) = 0 (Hirsch et al. 1965)' };
+    if (r < EPS) {
+      // g.b = 0 and g.(b x u) = 0 leave the x y / rho^2 term of the edge component unless g.b_edge = 0 too
+      // (isotropic field, Hirth & Lothe 1982 ch. 3): a mixed dislocation with g.u != 0 keeps some contrast.
+      const ge = Math.abs(clean(gDotEdge(lattice, g, b, line as Vec3)));
+      if (ge < EPS) return { gb, gbxu, verdict: 'invisible', rule: 'g.b = 0 and g.(b x u) = 0 (Hirsch et al. 1965)' };
+      return { gb, gbxu, verdict: 'weak residual', rule: `g.b = 0 and g.(b x u) = 0, but g.b_edge = ${fmt(ge)}: the edge component's x y term remains (Hirth & Lothe 1982)` };
+    }
     if (r < RESIDUAL_THRESHOLD) return { gb, gbxu, verdict: 'weak residual', rule: `g.b = 0, |g.(b x u)| = ${fmt(r)} < 0.64 (m < 0.08, Hirsch et al. 1965)` };
     return { gb, gbxu, verdict: 'visible', rule: `g.b = 0 but |g.(b x u)| = ${fmt(r)} >= 0.64: residual contrast (Hirsch et al. 1965)` };
   }

@@ -10,6 +10,7 @@ import { visibilityCommand } from './visibilityCommand.js';
 import { demoCommand } from './demoCommand.js';
 import { faultCommand } from './faultCommand.js';
 import { blochCommand } from './blochCommand.js';
+import { identifyCommand } from './identifyCommand.js';
 import { InputError } from '../errors.js';
 
 const program = new Command();
@@ -85,6 +86,20 @@ program
   .option('--json', 'JSON on stdout')
   .action(action(faultCommand));
 
+const collect = (v: string, prev: string[]) => [...prev, v];
+program
+  .command('identify')
+  .description('rank candidate defects against micrographs: simulate, register, score, verdict; writes a comparison figure and an HTML report')
+  .argument('<scenario>', 'scenario file (JSON); per-micrograph settings under "micrographs"')
+  .option('--micrograph <conditionId=file>', 'a micrograph (PNG or TIFF) taken under one condition; repeat for each', collect, [])
+  .option('--out <dir>', 'output folder (default out/<scenario name>-identify)')
+  .option('--json', 'one JSON object on stdout: ranking and verdict')
+  .option('--defect <index>', 'which defect to identify (default 0)')
+  .option('--top <n>', 'leading candidates fully registered, resampled and shown (default 4)')
+  .option('--bootstrap <n>', 'bootstrap copies for the noise of the scores (default 50)')
+  .option('--seed <n>', 'seed of the bootstrap (default 1)')
+  .action(action(identifyCommand));
+
 program
   .command('demo')
   .description('render the built-in invented demo scenario into out/demo')
@@ -92,7 +107,7 @@ program
   .action(action(demoCommand));
 
 /** Options that take a value: the token after them is never a positional argument. */
-const VALUE_OPTIONS = new Set(['--kv', '--absorption', '--s', '--w', '--beams', '--thickness', '--out', '--micrograph', '--candidates', '--top']);
+const VALUE_OPTIONS = new Set(['--kv', '--absorption', '--s', '--w', '--beams', '--thickness', '--out', '--micrograph', '--defect', '--top', '--bootstrap', '--seed']);
 
 /**
  * Indices may start with a minus sign ("-1,1,1"); commander would take such a

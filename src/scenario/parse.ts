@@ -20,6 +20,8 @@ export const PERPENDICULAR_TOLERANCE_DEG = 5;
 
 const TOP_KEYS = [
   'name', 'material', 'kV', 'foil', 'beam', 'imageX', 'image', 'absorption', 'conditions', 'defects', 'candidates', 'description',
+  // settings of micrographs, read by `thinfoil identify` (src/analysis/identifySettings.ts)
+  'micrographs',
 ] as const;
 
 export function parseScenario(raw: unknown): Scenario {

@@ -134,6 +134,39 @@ describe('a set built to be ambiguous gets "cannot tell"', () => {
   });
 });
 
+describe('mirrored micrographs', () => {
+  it('a micrograph that is the mirror image of the view along the beam is identified when "mirrored" is set, and fits worse when it is not', async () => {
+    const sc = parseScenario({
+      ...CU,
+      conditions: [
+        { id: 'g200', g: [2, 0, 0], w: 0.5 },
+        { id: 'g020', g: [0, 2, 0], w: 0.5 },
+        { id: 'g11m1', g: [1, 1, -1], w: 0.5, beam: [0, 1, 1] },
+      ],
+      defects: [{ type: 'dislocation', b: '1/2[1 1 0]', line: [3, 1, 1], point_nm: [0, 0, 35] }],
+      candidates: [{ b: '1/2[1 1 0]' }, { b: '1/2[1 0 1]' }],
+    });
+    const truth = identificationCandidates(sc).find((c) => c.label === 'b = 1/2[1 0 1]')!;
+    const angles = [30, 120, -45];
+    const syn = await syntheticMicrographs(sc, truth, sc.conditions.map((c, i) => ({ conditionId: c.id, field: 'bf' as const, gAngle_deg: angles[i], mirrored: true })), {
+      width: 56, height: 56, pixel_nm: 1, snr: 6, blur_nm: 0.6, maxShift_nm: 3, maxRotation_deg: 1.5, oversample: 1, seed: 12,
+    }, cachedRender);
+    const run = async (mirrored: boolean) => {
+      const settings = new Map(sc.conditions.map((c, i) => [c.id, { ...DEFAULT_SETTINGS, pixel_nm: 1, gAngle_deg: angles[i], blur_nm: 0.6, maxShift_nm: 8, mirrored }]));
+      const preps = prepareMicrographs(sc, syn.map((m) => ({ conditionId: m.conditionId, image: m, source: 'synthetic' })), settings);
+      return identify(sc, preps, cachedRender, { bootstrap: 10 });
+    };
+    const right = await run(true);
+    const wrong = await run(false);
+    console.log(`mirrored micrographs, scores with "mirrored": ${right.ranking.map((r) => `${r.candidate} ${r.score.toFixed(3)}`).join(', ')}; without: ${wrong.ranking.map((r) => `${r.candidate} ${r.score.toFixed(3)}`).join(', ')}`);
+    expect(right.ranking[0].candidate).toBe(truth.label);
+    const truthScore = (r: typeof right) => r.ranking.find((x) => x.candidate === truth.label)!.score;
+    expect(truthScore(right)).toBeGreaterThan(truthScore(wrong) + 0.05);
+    // the rotation found stays within the synthetic rotation range (1.5 degrees) plus the search precision
+    for (const p of right.ranking[0].perCondition) expect(Math.abs(p.rotation_deg)).toBeLessThan(2.5);
+  });
+});
+
 describe('bad micrograph input: one clear InputError', () => {
   const sc = parseScenario({ ...CU, conditions: [{ id: 'g200', g: [2, 0, 0], w: 0.5 }], defects: [{ type: 'dislocation', b: '1/2[1 1 0]', line: [3, 1, 1] }] });
   const img = { width: 40, height: 30, data: Float32Array.from({ length: 1200 }, (_, i) => 100 + (i % 7)) };

@@ -87,6 +87,11 @@ describe('decide: the verdict rule', () => {
     expect(v.indistinguishable).toEqual(['A', 'B']);
     expect(v.threshold).toBeCloseTo(0.002, 12);
   });
+
+  it('warns when even the best candidate explains almost nothing', () => {
+    expect(decide(labels, [0.004, 0.003, 0.001], []).statement).toMatch(/explains only 0\.4 % of the micrographs' contrast variance/);
+    expect(decide(labels, [0.5, 0.4, 0.1], []).statement).not.toMatch(/explains only/);
+  });
 });
 
 describe('block bootstrap helpers', () => {

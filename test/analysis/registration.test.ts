@@ -137,7 +137,7 @@ describe('registration recovers known transforms (Lewis 1995 NCC; rotation and s
     return t;
   }
 
-  // requirement of the brief: 1 pixel, 0.5 degree, 1 %; the shift-only cases are held to 0.1 px
+  // required accuracy (task specification): 1 pixel, 0.5 degree, 1 %; the shift-only cases are held to 0.1 px
   it.each([
     [3, -5, 0, 1],
     [-7, 2, 0, 1],

@@ -1,0 +1,223 @@
+/**
+ * `thinfoil identify` in process (identifyCommand is wired into main.ts by
+ * the lead): synthetic micrograph files at several bit depths (float TIFF by
+ * our writer; 16-bit and 8-bit PNG by Debian's python3-pil, an independent
+ * writer), the JSON on stdout, the figure, the report, and bad input turned
+ * into exit code 2 with one sentence.
+ */
+import { afterAll, beforeAll, describe, expect, it, vi } from 'vitest';
+import { spawnSync } from 'node:child_process';
+import { createHash } from 'node:crypto';
+import { mkdtempSync, readFileSync, rmSync, writeFileSync, existsSync } from 'node:fs';
+import { tmpdir } from 'node:os';
+import { join } from 'node:path';
+import pngjs from 'pngjs';
+import { parseScenario } from '../../src/scenario/parse.js';
+import { renderScenario } from '../../src/imaging/renderScenario.js';
+import { createRenderPool } from '../../src/imaging/workerPool.js';
+import { identificationCandidates } from '../../src/analysis/candidates.js';
+import { syntheticMicrographs, syntheticFileName, type SyntheticMicrograph } from '../../src/analysis/synthetic.js';
+import { encodeFloatTiff } from '../../src/output/tiff.js';
+import { identifyCommand } from '../../src/cli/identifyCommand.js';
+import { action } from '../../src/cli/run.js';
+
+const PYTHON = '/usr/bin/python3';
+const IN_CI = process.env.CI === 'true';
+const hasPil = spawnSync(PYTHON, ['-c', 'import PIL, numpy'], { encoding: 'utf8' }).status === 0;
+if (!hasPil && !IN_CI) console.warn('python3-pil / numpy missing: the micrographs are written as float TIFF only');
+
+const RAW = {
+  name: 'cli identify test',
+  material: 'Cu',
+  kV: 200,
+  foil: { thickness_nm: 60, normal: [0, 0, 1] },
+  beam: [0, 0, 1],
+  conditions: [
+    { id: 'g200', g: [2, 0, 0], w: 0.5 },
+    { id: 'g020', g: [0, 2, 0], w: 0.5 },
+    { id: 'g11m1', g: [1, 1, -1], w: 0.5, beam: [0, 1, 1] },
+  ],
+  defects: [{ type: 'dislocation', b: '1/2[1 0 1]', line: [3, 1, 1], point_nm: [0, 0, 30] }],
+  candidates: [{ b: '1/2[1 1 0]' }, { b: '1/2[1 0 1]' }],
+};
+
+let dir: string;
+let scenarioFile: string;
+let args: string[];
+let syn: SyntheticMicrograph[];
+const hashes = new Map<string, string>();
+const sha = (p: string) => createHash('sha256').update(readFileSync(p)).digest('hex');
+
+/** 16-bit or 8-bit PNG through PIL from linear values scaled to the range. */
+function pilPng(path: string, m: SyntheticMicrograph, bits: 8 | 16, gamma = 1): void {
+  const script = [
+    'import json, sys, numpy as np',
+    'from PIL import Image',
+    'd = json.load(sys.stdin)',
+    'a = np.array(d["data"], dtype=np.float64).reshape(d["h"], d["w"])',
+    'a = (a / a.max()) ** d["gamma"]',
+    'if d["bits"] == 16:',
+    '    Image.fromarray(np.round(a * 65535).astype(np.uint16), "I;16").save(d["path"])',
+    'else:',
+    '    Image.fromarray(np.round(a * 255).astype(np.uint8), "L").save(d["path"])',
+  ].join('\n');
+  const r = spawnSync(PYTHON, ['-c', script], { input: JSON.stringify({ data: Array.from(m.data), w: m.width, h: m.height, bits, gamma, path }), encoding: 'utf8' });
+  if (r.status !== 0) throw new Error(`PIL failed: ${r.stderr}`);
+}
+
+beforeAll(async () => {
+  if (!hasPil && IN_CI) throw new Error('CI: Debian python3-pil / python3-numpy are required for this test');
+  dir = mkdtempSync(join(tmpdir(), 'thinfoil-identify-'));
+  const sc = parseScenario(RAW);
+  const truth = identificationCandidates(sc).find((c) => c.label === 'b = 1/2[1 0 1]')!;
+  const pool = createRenderPool(1);
+  syn = await syntheticMicrographs(
+    sc,
+    truth,
+    [
+      { conditionId: 'g200', field: 'bf', gAngle_deg: 20 },
+      { conditionId: 'g020', field: 'bf', gAngle_deg: 110 },
+      { conditionId: 'g11m1', field: 'df', gAngle_deg: -30 },
+    ],
+    { width: 52, height: 48, pixel_nm: 1, snr: 6, blur_nm: 0.6, maxShift_nm: 3, maxRotation_deg: 2, oversample: 1, seed: 5 },
+    (s) => renderScenario(s, pool),
+  );
+  await pool.close();
+  const files = [join(dir, syntheticFileName('g200', 'bf')), join(dir, syntheticFileName('g020', 'bf', 'png')), join(dir, syntheticFileName('g11m1', 'df', 'png'))];
+  writeFileSync(files[0], encodeFloatTiff(syn[0].data, syn[0].width, syn[0].height, { pixel_nm: 1 }));
+  if (hasPil) {
+    pilPng(files[1], syn[1], 16);
+    pilPng(files[2], syn[2], 8, 0.6); // a display mapping (gamma 0.6): not proportional to intensity
+  } else {
+    files[1] = files[1].replace(/\.png$/, '.tif');
+    files[2] = files[2].replace(/\.png$/, '.tif');
+    writeFileSync(files[1], encodeFloatTiff(syn[1].data, syn[1].width, syn[1].height, { pixel_nm: 1 }));
+    writeFileSync(files[2], encodeFloatTiff(syn[2].data, syn[2].width, syn[2].height, { pixel_nm: 1 }));
+  }
+  args = [`g200=${files[0]}`, `g020=${files[1]}`, `g11m1=${files[2]}`];
+  scenarioFile = join(dir, 'scenario.json');
+  writeFileSync(
+    scenarioFile,
+    JSON.stringify({
+      ...RAW,
+      micrographs: {
+        // g200: pixel size from the TIFF resolution tags
+        g200: { field: 'bf', gAngle_deg: 20, blur_nm: 0.6, maxShift_nm: 8 },
+        g020: { field: 'bf', gAngle_deg: 110, pixel_nm: 1, blur_nm: 0.6, maxShift_nm: 8 },
+        g11m1: { field: 'df', gAngle_deg: -30, pixel_nm: 1, blur_nm: 0.6, maxShift_nm: 8, intensity: hasPil ? 'display' : 'linear' },
+      },
+    }),
+  );
+  for (const f of [scenarioFile, ...files]) hashes.set(f, sha(f));
+});
+
+afterAll(() => {
+  if (dir) rmSync(dir, { recursive: true, force: true });
+});
+
+function capture() {
+  const out: string[] = [];
+  const err: string[] = [];
+  const so = vi.spyOn(process.stdout, 'write').mockImplementation((s: string | Uint8Array) => (out.push(String(s)), true));
+  const se = vi.spyOn(process.stderr, 'write').mockImplementation((s: string | Uint8Array) => (err.push(String(s)), true));
+  return { out, err, restore: () => (so.mockRestore(), se.mockRestore()) };
+}
+
+describe('thinfoil identify', () => {
+  it('--json: ranking with candidate, score and perCondition, and a verdict; the hidden b ranks first', async () => {
+    const outDir = join(dir, 'out');
+    const cap = capture();
+    try {
+      await identifyCommand(scenarioFile, { micrograph: args, json: true, out: outDir, bootstrap: '12', threads: 1 });
+    } finally {
+      cap.restore();
+    }
+    const j = JSON.parse(cap.out.join(''));
+    expect(j.ranking.length).toBe(4);
+    for (const r of j.ranking) {
+      expect(Object.keys(r).sort()).toEqual(['candidate', 'perCondition', 'score']);
+      expect(r.perCondition.map((p: { condition: string }) => p.condition)).toEqual(['g200', 'g020', 'g11m1']);
+    }
+    expect(j.ranking[0].candidate).toBe('b = 1/2[1 0 1]');
+    expect(['identified', 'cannot tell']).toContain(j.verdict.decision);
+    expect(j.synthetic).toEqual(['g200', 'g020', 'g11m1']);
+    // g.b beside the scores (g = 200, b = 1/2[1 0 1]: 1)
+    expect(j.ranking[0].perCondition[0].visibility).toMatchObject({ quantity: 'g.b', value: 1 });
+
+    // files: figure PNG at publication width, SVG and report label the synthetic micrographs
+    for (const f of Object.values(j.files) as string[]) expect(existsSync(f)).toBe(true);
+    const png = pngjs.PNG.sync.read(readFileSync(j.files.figurePng));
+    expect(png.width).toBe(2000);
+    const svg = readFileSync(j.files.figureSvg, 'utf8');
+    expect(svg.startsWith('<svg') || svg.startsWith('<?xml')).toBe(true);
+    const html = readFileSync(j.files.report, 'utf8');
+    expect(html).toMatch(/Simulations are a model, not a measurement/);
+    expect(html).toMatch(/Synthetic micrographs:/);
+    expect(html).toMatch(/synthetic-g200-bf\.tif/);
+    expect(html).toMatch(/<img alt="[^"]*" src="data:image\/png;base64,/);
+    expect(html).toMatch(/xi_g \(nm\)/);
+    expect(html).not.toMatch(/<script|<link |src="http/); // self-contained
+    const full = JSON.parse(readFileSync(j.files.json, 'utf8'));
+    expect(full.conditions[0]).toMatchObject({ id: 'g200', pixel_nm: 1, synthetic: true });
+    // inputs are never modified
+    for (const [f, h] of hashes) expect(sha(f)).toBe(h);
+  });
+
+  it('prints a table and the verdict without --json', async () => {
+    const cap = capture();
+    try {
+      await identifyCommand(scenarioFile, { micrograph: args, out: join(dir, 'out2'), bootstrap: '8', threads: 1 });
+    } finally {
+      cap.restore();
+    }
+    const text = cap.out.join('');
+    expect(text).toMatch(/SYNTHETIC/);
+    expect(text).toMatch(/b = 1\/2\[1 0 1\]/);
+    expect(text).toMatch(/IDENTIFIED|CANNOT TELL/);
+  });
+});
+
+describe('thinfoil identify: bad input gives exit code 2 and one sentence', () => {
+  async function runAction(file: string, opts: Record<string, unknown>) {
+    const cap = capture();
+    const exit = vi.spyOn(process, 'exit').mockImplementation(((code?: number) => {
+      throw new Error(`exit ${code}`);
+    }) as never);
+    let thrown = '';
+    try {
+      await action(identifyCommand)(file, { threads: 1, bootstrap: '2', out: join(dir, 'bad'), ...opts });
+    } catch (e) {
+      thrown = (e as Error).message;
+    } finally {
+      exit.mockRestore();
+      cap.restore();
+    }
+    return { thrown, err: cap.err.join('') };
+  }
+
+  it.each([
+    ['an unreadable micrograph file', () => ({ micrograph: [`g200=${join(dir, 'missing.tif')}`] }), /micrograph file ".*missing\.tif" for g200 cannot be read \(ENOENT\); check the path/],
+    ['a file that is not an image', () => ({ micrograph: [`g200=${scenarioFile}`] }), /is not a PNG or TIFF file/],
+    ['a condition id that does not exist', () => ({ micrograph: [args[0].replace('g200=', 'g222=')] }), /"g222" is not a condition of the scenario/],
+    ['a malformed --micrograph', () => ({ micrograph: ['g200'] }), /--micrograph "g200" must be <conditionId>=<file>/],
+    ['no micrograph', () => ({}), /no micrograph given/],
+    ['a bad --top', () => ({ micrograph: args, top: 'x' }), /--top "x" must be a whole number/],
+  ])('%s', async (_what, opts, pattern) => {
+    const r = await runAction(scenarioFile, opts());
+    expect(r.thrown).toBe('exit 2');
+    expect(r.err).toMatch(pattern);
+    expect(r.err.trim().split('\n').length).toBe(1);
+  });
+
+  it.each([
+    ['a crop outside the image', { crop: [40, 0, 30, 30] }, /micrographs\.g200\.crop \[40, 0, 30, 30\] reaches outside the 52 x 48 pixel image/],
+    ['a pixel size of zero', { pixel_nm: 0 }, /micrographs\.g200\.pixel_nm: must be greater than 0/],
+  ])('%s in the scenario', async (_what, g200, pattern) => {
+    const f = join(dir, `bad-${Object.keys(g200)[0]}.json`);
+    writeFileSync(f, JSON.stringify({ ...RAW, micrographs: { g200 } }));
+    const r = await runAction(f, { micrograph: [args[0]] });
+    expect(r.thrown).toBe('exit 2');
+    expect(r.err).toMatch(pattern);
+    expect(r.err.trim().split('\n').length).toBe(1);
+  });
+});
