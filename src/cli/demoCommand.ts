@@ -9,6 +9,13 @@ import { formatVisibility } from './visibilityCommand.js';
 import { sig, table } from './run.js';
 import { faultReport, formatFaults, formatInclusions } from './faultCommand.js';
 import { dissociationWidth_nm } from '../imaging/fieldSpecs.js';
+import { DEMO_HIDDEN_CANDIDATE, DEMO_IDENTIFY_SCENARIO, DEMO_MICROGRAPHS, DEMO_SYNTHESIS } from '../scenario/demoIdentify.js';
+import { identificationCandidates } from '../analysis/candidates.js';
+import { syntheticFileName, syntheticMicrographs } from '../analysis/synthetic.js';
+import { renderScenario } from '../imaging/renderScenario.js';
+import { createRenderPool } from '../imaging/workerPool.js';
+import { encodeFloatTiff } from '../output/tiff.js';
+import { formatIdentify, runIdentify } from './identifyCommand.js';
 
 export async function demoCommand(opts: { out?: string }): Promise<void> {
   const dir = opts.out ?? join('out', 'demo');
@@ -47,4 +54,39 @@ export async function demoCommand(opts: { out?: string }): Promise<void> {
     process.stdout.write(`\nfault nature and misfit sign read-outs (simulated):\n${frText}`);
   }
   process.stdout.write(`\nwritten to ${dir}: <condition>-bf.png / -df.png (viewing), .tif (float intensities), render.json, visibility.txt\n`);
+  await demoIdentification(join(dir, 'identify'));
+}
+
+/**
+ * The demo's last act: SYNTHETIC micrographs of a hidden candidate, then the
+ * identification that a user would run on real ones.
+ */
+async function demoIdentification(dir: string): Promise<void> {
+  process.stdout.write(`\n--- identification from SYNTHETIC micrographs (made here from a hidden Burgers vector; not measured) ---\n`);
+  const sc = parseScenario(DEMO_IDENTIFY_SCENARIO);
+  const hidden = identificationCandidates(sc).find((c) => c.label === DEMO_HIDDEN_CANDIDATE);
+  if (!hidden) throw new Error(`demo: hidden candidate ${DEMO_HIDDEN_CANDIDATE} is not among the candidates`);
+  const pool = createRenderPool();
+  let syn;
+  try {
+    syn = await syntheticMicrographs(sc, hidden, DEMO_MICROGRAPHS, DEMO_SYNTHESIS, (s) => renderScenario(s, pool));
+  } finally {
+    await pool.close();
+  }
+  const args: string[] = [];
+  const settings: Record<string, unknown> = {};
+  for (const m of syn) {
+    const file = join(dir, syntheticFileName(m.conditionId, m.field));
+    writeFileAtomic(file, encodeFloatTiff(m.data, m.width, m.height, { pixel_nm: m.pixel_nm, description: 'SYNTHETIC micrograph made by thinfoil demo from a hidden candidate; not a measurement' }));
+    args.push(`${m.conditionId}=${file}`);
+    settings[m.conditionId] = { field: m.field, pixel_nm: m.pixel_nm, gAngle_deg: m.truth.gAngle_deg, blur_nm: DEMO_SYNTHESIS.blur_nm };
+  }
+  const scenarioFile = join(dir, 'identify-scenario.json');
+  writeFileAtomic(scenarioFile, `${JSON.stringify({ ...DEMO_IDENTIFY_SCENARIO, micrographs: settings }, null, 2)}\n`);
+  process.stdout.write(`${syn.length} synthetic micrographs (signal-to-noise ${DEMO_SYNTHESIS.snr}, blur ${DEMO_SYNTHESIS.blur_nm} nm, 10 % background gradient, random shift and rotation) written to ${dir}\n\n`);
+  const out = await runIdentify(scenarioFile, { micrograph: args, out: dir });
+  process.stdout.write(formatIdentify(out));
+  const best = out.result.ranking[0]?.candidate;
+  process.stdout.write(`\nhidden truth: ${hidden.label} -> ${best === hidden.label ? 'recovered as the best candidate' : `NOT recovered (best: ${best})`}\n`);
+  process.stdout.write(`figure and report: ${out.files.figurePng}, ${out.files.figureSvg}, ${out.files.report}\n`);
 }

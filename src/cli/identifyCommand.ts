@@ -205,11 +205,19 @@ export async function identifyCommand(scenarioFile: string, opts: IdentifyComman
     printJson({ ranking: j.ranking.map(({ candidate, score, perCondition }) => ({ candidate, score, perCondition })), verdict: j.verdict, synthetic: j.synthetic, files });
     return;
   }
+  process.stdout.write(formatIdentify(out));
+  process.stdout.write(`written to ${resolve(dir)}: ${basename(files.figurePng)}, ${basename(files.figureSvg)}, ${basename(files.report)}, ${basename(files.json)}\n`);
+}
+
+/** The ranking, verdict and rule as text (what `identify` prints without --json). */
+export function formatIdentify(out: IdentifyOutput): string {
+  const res = out.result;
+  const parts: string[] = [];
   const synth = res.micrographs.filter((m) => m.synthetic);
-  if (synth.length > 0) process.stdout.write(`NOTE: ${synth.map((m) => m.source).join(', ')} ${synth.length === 1 ? 'is a SYNTHETIC micrograph' : 'are SYNTHETIC micrographs'} (not measured).\n`);
-  process.stdout.write(`${res.scenario}: ${res.defectLabel}, ${res.candidates.length} candidates, ${res.micrographs.length} micrograph(s)\n\n`);
+  if (synth.length > 0) parts.push(`NOTE: ${synth.map((m) => m.source).join(', ')} ${synth.length === 1 ? 'is a SYNTHETIC micrograph' : 'are SYNTHETIC micrographs'} (not measured).\n`);
+  parts.push(`${res.scenario}: ${res.defectLabel}, ${res.candidates.length} candidates, ${res.micrographs.length} micrograph(s)\n\n`);
   const ids = res.micrographs.map((m) => m.conditionId);
-  process.stdout.write(table(
+  parts.push(table(
     ['#', 'candidate', 'score', ...ids.map((id) => `R2 ${id}`), ...ids.map((id) => `g.b ${id}`)],
     res.ranking.map((r, i) => [
       String(i + 1),
@@ -219,7 +227,7 @@ export async function identifyCommand(scenarioFile: string, opts: IdentifyComman
       ...r.perCondition.map((p) => (p.visibility.value === undefined ? '-' : sig(p.visibility.value, 3))),
     ]),
   ));
-  process.stdout.write(`\n${res.verdict.decision === 'identified' ? 'IDENTIFIED' : 'CANNOT TELL'}: ${res.verdict.statement}\n`);
-  process.stdout.write(`rule: ${res.verdict.rule}\n`);
-  process.stdout.write(`written to ${resolve(dir)}: ${basename(files.figurePng)}, ${basename(files.figureSvg)}, ${basename(files.report)}, ${basename(files.json)}\n`);
+  parts.push(`\n${res.verdict.decision === 'identified' ? 'IDENTIFIED' : 'CANNOT TELL'}: ${res.verdict.statement}\n`);
+  parts.push(`rule: ${res.verdict.rule}\n`);
+  return parts.join('');
 }

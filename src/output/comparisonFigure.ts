@@ -135,8 +135,14 @@ export function wrap(text: string, maxWidth: number, size: number, measure: (s: 
 /** Draw the whole figure on a surface of layout.width x layout.height. */
 export function drawComparison(s: Surface, data: ComparisonFigureData, L: FigureLayout): void {
   const { margin } = L;
-  s.text(data.title, margin, margin + 34, { size: 34, bold: true, color: INK });
-  s.text(data.subtitle, margin, margin + 80, { size: 25, color: INK });
+  // shrink a long title or subtitle to the figure width
+  const fit = (text: string, size: number, bold: boolean) => {
+    const wText = s.measureText(text, size, bold);
+    const avail = s.width - 2 * margin;
+    return wText > avail ? Math.max(12, (size * avail) / wText) : size;
+  };
+  s.text(data.title, margin, margin + 34, { size: fit(data.title, 34, true), bold: true, color: INK });
+  s.text(data.subtitle, margin, margin + 80, { size: fit(data.subtitle, 25, false), color: INK });
 
   data.columns.forEach((c, j) => {
     const { x } = L.cell(0, j);

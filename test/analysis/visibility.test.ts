@@ -24,7 +24,7 @@ describe('visibility verdicts', () => {
     expect(w.verdict).toBe('weak residual');
   });
   it('g.b = 0 and g.(b x u) = 0 with a mixed line and g.u != 0 keeps the edge x y term: not invisible (Hirth & Lothe 1982 ch. 3)', async () => {
-    const l = [3, 1, 1];
+    const l: [number, number, number] = [3, 1, 1];
     const v = judge(cubic, [1, 1, -1], [-0.5, 0, -0.5], l);
     expect(v.gb).toBe(0);
     expect(Math.abs(v.gbxu!)).toBeLessThan(1e-9);
