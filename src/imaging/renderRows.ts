@@ -253,13 +253,14 @@ export function renderRows(job: RenderJob, row0: number, row1: number, bf: Float
 }
 
 /** Sub-columns per axis averaged in a pixel whose column passes close to a dislocation core. */
-export const CORE_SUBSAMPLES = 4;
+export const CORE_SUBSAMPLES = 3;
 
 /**
- * A test for pixels whose column passes, inside the foil, within
- * max(pixel, 4 core radii) of a dislocation line: there the intensity changes
- * on the scale of the core, and one column per pixel would alias it into
- * dots along the line. Returns null when the job has no dislocation.
+ * A test for pixels whose area reaches, inside the foil, into the modified
+ * core (2 core radii) of a dislocation line: there the intensity changes on
+ * the scale of the core, and one column per pixel would alias it into dots
+ * along the line. Pixels no larger than the core radius resolve it and are
+ * not averaged. Returns null when no pixel needs it.
  */
 export function coreProximity(job: RenderJob): ((x: number, y: number) => boolean) | null {
   const { frame, pixel_nm } = job;
@@ -268,9 +269,10 @@ export function coreProximity(job: RenderJob): ((x: number, y: number) => boolea
   const lines = job.model.fields.flatMap((f) => {
     if (f.kind !== 'dislocation') return [];
     const rc = f.coreRadius_nm ?? Math.hypot(f.b_nm[0], f.b_nm[1], f.b_nm[2]);
+    if (pixel_nm <= rc) return [];
     const n = cross(k, f.line);
     const nl = Math.hypot(n[0], n[1], n[2]);
-    return [{ p: f.point_nm, u: f.line, n: nl > 1e-9 ? ([n[0] / nl, n[1] / nl, n[2] / nl] as const) : null, reach: Math.max(pixel_nm, 4 * rc) }];
+    return [{ p: f.point_nm, u: f.line, n: nl > 1e-9 ? ([n[0] / nl, n[1] / nl, n[2] / nl] as const) : null, reach: 2 * rc + Math.SQRT1_2 * pixel_nm }];
   });
   if (lines.length === 0) return null;
   const [ex0, ex1, ex2] = frame.ex;
