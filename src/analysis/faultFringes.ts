@@ -44,7 +44,17 @@ export interface FaultConditionAnalysis {
   readonly readings: readonly FringeReading[];
   /** True when the fault is seen edge-on or too narrow to show fringes. */
   readonly edgeOn: boolean;
+  /**
+   * False when the outer-fringe read-out should not be trusted: the foil is
+   * thinner than 3 xi_eff (the outer-fringe rules assume a thick, absorbing
+   * foil), or the simulated fringes break the Hashimoto-Howie-Whelan pattern.
+   */
+  readonly reliable: boolean;
+  readonly note: string;
 }
+
+/** Thickness (in effective extinction distances) below which outer-fringe read-outs are flagged (common practice). */
+export const MIN_THICKNESS_XI_EFF = 3;
 
 /** alpha in degrees reduced to (-180, 180]. */
 export function faultPhase_deg(g: Vec3, R: Vec3): number {
@@ -130,7 +140,7 @@ export function faultGeometry(sc: Scenario, f: FaultSpec, c: ResolvedCondition):
 function analyseOne(sc: Scenario, f: FaultSpec, c: ResolvedCondition, samples: number): FaultConditionAnalysis {
   const geo = faultGeometry(sc, f, c);
   const base = { fault: f.label, condition: c.id, g: c.g, topDirection: geo.topDirection, width_nm: geo.width_nm, gTowardsTop: geo.gTowardsTop, edgeOn: geo.edgeOn };
-  if (geo.edgeOn) return { ...base, readings: [] };
+  if (geo.edgeOn) return { ...base, readings: [], reliable: false, note: 'fault seen edge-on: no fringes' };
   const readings = faultReadings(f).map(({ reading, vector }) => {
     const p = profileAcross(sc, c, geo.P, geo.n, vector, geo.bottom, geo.topDirection, geo.width_nm, samples);
     return {
@@ -141,7 +151,15 @@ function analyseOne(sc: Scenario, f: FaultSpec, c: ResolvedCondition, samples: n
       df: { top: outerFringe(p.df, p.background.df, 'end'), bottom: outerFringe(p.df, p.background.df, 'start') },
     };
   });
-  return { ...base, readings };
+  const xiEff = c.xi_nm / Math.sqrt(1 + c.w * c.w);
+  const thick = c.frame.columnLength_nm / xiEff;
+  const visible = readings.filter((r) => r.bf.top !== 'none');
+  const pattern = visible.every((r) => r.bf.top === r.df.top && r.bf.bottom !== r.df.bottom && r.bf.top === r.bf.bottom);
+  let note = 'ok';
+  if (visible.length === 0) note = 'g.R_f is an integer: the fault is invisible';
+  else if (thick < MIN_THICKNESS_XI_EFF) note = `foil only ${thick.toFixed(1)} xi_eff thick (< ${MIN_THICKNESS_XI_EFF}): outer-fringe rules unreliable`;
+  else if (!pattern) note = 'simulated fringes do not follow the thick-foil pattern here: read-out unreliable';
+  return { ...base, readings, reliable: note === 'ok', note };
 }
 
 export interface FaultProfile {

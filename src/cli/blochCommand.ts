@@ -84,6 +84,9 @@ export function readBlochOptions(opts: BlochOptions): {
   }
   const s = opts.s === undefined ? undefined : numberFrom(opts.s, '--s', 'the deviation parameter s in nm^-1, e.g. 0.01');
   const w = opts.w === undefined ? undefined : numberFrom(opts.w, '--w', 'the dimensionless deviation w = s xi_g, e.g. 0.5');
+  // the same limits as a scenario's conditions
+  if (s !== undefined && Math.abs(s) > 10) throw new InputError(`--s: ${s} nm^-1 is out of range; give |s| up to 10 nm^-1.`);
+  if (w !== undefined && Math.abs(w) > 1000) throw new InputError(`--w: ${w} is out of range; give |w| up to 1000.`);
   let thickness_nm: number | undefined;
   if (opts.thickness !== undefined) {
     thickness_nm = numberFrom(opts.thickness, '--thickness', 'the foil thickness in nm, e.g. 100');

@@ -17,7 +17,7 @@ export function formatFaults(rows: readonly FaultConditionAnalysis[]): string {
   const body: string[][] = [];
   for (const r of rows) {
     if (r.edgeOn) {
-      body.push([r.fault, r.condition, `(${r.g.join(' ')})`, '-', '-', 'edge-on: no fringes', '', '', '', '']);
+      body.push([r.fault, r.condition, `(${r.g.join(' ')})`, '-', '-', '-', '', '', '', '', r.note]);
       continue;
     }
     for (const x of r.readings) {
@@ -32,6 +32,7 @@ export function formatFaults(rows: readonly FaultConditionAnalysis[]): string {
         x.bf.bottom,
         x.df.top,
         x.df.bottom,
+        r.note,
       ]);
     }
   }
@@ -40,7 +41,7 @@ export function formatFaults(rows: readonly FaultConditionAnalysis[]): string {
     .map((r) => `  ${r.fault}, ${r.condition}: fault image ${sig(r.width_nm, 3)} nm wide; its top-surface end lies towards ${direction(r.topDirection)} (counter-clockwise from +x); g points ${r.gTowardsTop > 0 ? 'towards the top-surface end' : r.gTowardsTop < 0 ? 'towards the bottom-surface end' : 'along the fault trace'}`)
     .join('\n');
   return (
-    table(['fault', 'condition', 'g', 'reading', 'R_f', 'alpha (deg)', 'BF top', 'BF bottom', 'DF top', 'DF bottom'], body) +
+    table(['fault', 'condition', 'g', 'reading', 'R_f', 'alpha (deg)', 'BF top', 'BF bottom', 'DF top', 'DF bottom', 'read-out'], body) +
     `${geo}\n` +
     'Outer fringes: "top" is the end where the fault meets the entrance surface. Compare the simulated tones\n' +
     'of each reading with your bright/dark-field pair (Hashimoto, Howie & Whelan 1962). Simulation, not measurement.\n'

@@ -13,6 +13,12 @@ import { blochCommand } from './blochCommand.js';
 import { identifyCommand } from './identifyCommand.js';
 import { InputError } from '../errors.js';
 
+// a closed pipe (`thinfoil ... | head`) ends the program quietly
+process.stdout.on('error', (e: NodeJS.ErrnoException) => {
+  if (e.code === 'EPIPE') process.exit(0);
+  throw e;
+});
+
 const program = new Command();
 program
   .name('thinfoil')

@@ -4,7 +4,8 @@ import { InputError } from '../errors.js';
 export function numberOption(name: string, lo: number, hi: number, unit: string) {
   return (text: string): number => {
     const v = Number(text);
-    if (text.trim() === '' || !Number.isFinite(v)) throw new InputError(`${name}: "${text}" is not a number; give ${unit} between ${lo} and ${hi}`);
+    // plain decimal numbers only (Number() would also take "0x10" or "0b1")
+    if (!/^\s*[+-]?(\d+\.?\d*|\.\d+)([eE][+-]?\d+)?\s*$/.test(text) || !Number.isFinite(v)) throw new InputError(`${name}: "${text}" is not a number; give ${unit} between ${lo} and ${hi}`);
     if (v < lo || v > hi) throw new InputError(`${name}: ${v} is outside ${lo}..${hi}; give ${unit} in that range`);
     return v;
   };

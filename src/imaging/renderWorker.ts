@@ -1,6 +1,7 @@
 /** Worker thread: renders bands of rows on request (see workerPool.ts). */
 import { parentPort } from 'node:worker_threads';
 import { renderRows, type RenderJob } from './renderRows.js';
+import { InputError } from '../errors.js';
 
 interface BandRequest {
   readonly job: RenderJob;
@@ -16,6 +17,6 @@ parentPort?.on('message', (msg: BandRequest) => {
     const stats = renderRows(msg.job, msg.row0, msg.row1, bf, df);
     parentPort!.postMessage({ ok: true, row0: msg.row0, row1: msg.row1, bf, df, slices: stats.slices }, [bf.buffer, df.buffer]);
   } catch (e) {
-    parentPort!.postMessage({ ok: false, error: e instanceof Error ? e.message : String(e) });
+    parentPort!.postMessage({ ok: false, error: e instanceof Error ? e.message : String(e), userError: e instanceof InputError });
   }
 });

@@ -9,6 +9,7 @@ import { availableParallelism } from 'node:os';
 import { existsSync } from 'node:fs';
 import { fileURLToPath } from 'node:url';
 import { renderRows, type RenderJob } from './renderRows.js';
+import { InputError } from '../errors.js';
 
 export interface RenderedImage {
   readonly bf: Float32Array;
@@ -28,6 +29,8 @@ export interface RenderPool {
 interface BandReply {
   ok: boolean;
   error?: string;
+  /** The worker's failure was an InputError (a user mistake): re-raise it as one. */
+  userError?: boolean;
   row0: number;
   row1: number;
   bf: Float32Array;
@@ -75,7 +78,7 @@ export function createRenderPool(threads = availableParallelism()): RenderPool {
                 if (!m.ok) {
                   w.off('message', onMessage);
                   w.off('error', onError);
-                  reject(new Error(m.error));
+                  reject(m.userError ? new InputError(m.error ?? 'bad input') : new Error(m.error));
                   return;
                 }
                 bf.set(m.bf, m.row0 * job.width);

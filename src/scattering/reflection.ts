@@ -16,6 +16,7 @@
  * (many-beam sets need U_{g-h} for every pair, forbidden or not).
  */
 import type { Material } from '../crystal/material.js';
+import { S_MAX_FITTED_perA } from './scatteringFactor.js';
 import { cellVolume_nm3, gLength_per_nm } from '../crystal/lattice.js';
 import type { Vec3 } from '../math/vec3.js';
 import { InputError } from '../errors.js';
@@ -92,7 +93,8 @@ function checkAbsorptionRatio(r: number): void {
 const out4 = new Float64Array(4);
 
 function isSymmetryZero(f: Float64Array): boolean {
-  return Math.hypot(f[0]!, f[1]!) <= FORBIDDEN_RELATIVE_TOLERANCE * f[2]!;
+  // f[2] = sum of |site terms|: when it underflows to 0 (far beyond the fitted range) nothing can be said by symmetry
+  return f[2]! > 0 && Math.hypot(f[0]!, f[1]!) <= FORBIDDEN_RELATIVE_TOLERANCE * f[2]!;
 }
 
 /** True when |F_g| vanishes by symmetry for this material's structure (never true for 000). */
@@ -102,7 +104,14 @@ export function isForbidden(material: Material, hkl: Vec3): boolean {
   return isSymmetryZero(out4);
 }
 
-/** U_g and U'_g = r U_g (nm^-2) for any integer hkl, 000 included (U_0 from F_0 at s = 0); exact 0 for a symmetry zero. */
+/**
+ * U_g and U'_g = r U_g (nm^-2) for any integer hkl, 000 included (U_0 from F_0 at s = 0); exact 0 for a symmetry zero.
+ * Phase convention: the waves are exp(+2 pi i k.r) and the potential V(r) = sum_j v(r - r_j) has the Fourier
+ * coefficient V_g = (1/Vc) sum_j f_j exp(-2 pi i g.r_j), the complex conjugate of the crystallographic
+ * F_g = sum_j f_j exp(+2 pi i g.r_j) that structureFactor_A returns. So U_g = gamma conj(F_g) / (pi Vc); this is
+ * the sign for which a displaced crystal V(r - R) gives the phase exp(-2 pi i g.R) used for defects. It matters
+ * only for crystals without a centre of symmetry (GaAs, custom structures); F_g is real otherwise.
+ */
 export function opticalPotential_per_nm2(material: Material, hkl: Vec3, kV: number, absorptionRatio: number): OpticalPotential {
   checkMillerIndices(hkl);
   checkVoltage_kV(kV);
@@ -112,7 +121,7 @@ export function opticalPotential_per_nm2(material: Material, hkl: Vec3, kV: numb
   // F in nm = F_A / 10
   const k = relativisticGamma(kV) / (Math.PI * volume_nm3(material) * 10);
   const re = k * out4[0]!;
-  const im = k * out4[1]!;
+  const im = 0 - k * out4[1]!; // conjugate (see the phase convention above); 0 - 0 keeps +0
   return { re, im, absRe: absorptionRatio * re, absIm: absorptionRatio * im };
 }
 
@@ -127,6 +136,12 @@ export function reflectionParameters(material: Material, hkl: Vec3, kV: number, 
   if (hkl[0] === 0 && hkl[1] === 0 && hkl[2] === 0) {
     throw new InputError(`reflection g = ${label} is the transmitted beam, not a reflection; give a nonzero g.`);
   }
+  const g = gLength_per_nm(material.lattice, hkl);
+  if (g / 20 > S_MAX_FITTED_perA) {
+    throw new InputError(
+      `reflection g = ${label} has |g| = ${g.toPrecision(4)} nm^-1, beyond the range of the scattering-factor tables (sin(theta)/lambda <= ${S_MAX_FITTED_perA} per Angstrom, |g| <= ${20 * S_MAX_FITTED_perA} nm^-1); choose a lower-order reflection.`,
+    );
+  }
   const f = structureFactorInto(new Float64Array(4), material, hkl[0], hkl[1], hkl[2]);
   if (isSymmetryZero(f)) {
     throw new InputError(
@@ -136,12 +151,11 @@ export function reflectionParameters(material: Material, hkl: Vec3, kV: number, 
   const Vc = volume_nm3(material);
   const lambda = wavelength_nm(kV);
   const gamma = relativisticGamma(kV);
-  const g = gLength_per_nm(material.lattice, hkl);
   const theta = braggAngle_rad(lambda, g);
   const F_A: Complex = { re: f[0]!, im: f[1]! };
   const absF_A = Math.hypot(f[0]!, f[1]!);
   const k = gamma / (Math.PI * Vc * 10);
-  const U: Complex = { re: k * F_A.re, im: k * F_A.im };
+  const U: Complex = { re: k * F_A.re, im: 0 - k * F_A.im }; // gamma conj(F_g) / (pi Vc): see opticalPotential_per_nm2
   const xi = (cosThetaFactor ? Math.cos(theta) : 1) / (lambda * k * absF_A);
   const xiAbs = r === 0 ? Infinity : xi / r;
   return {

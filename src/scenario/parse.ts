@@ -9,6 +9,7 @@ import { getMaterial, parseMaterial } from '../crystal/materials.js';
 import { parseIndices, parseVectorWithFraction } from '../crystal/indices.js';
 import { directionFromFour, planeFromFour } from '../crystal/millerBravais.js';
 import { directionToCartesian, planeNormalToCartesian, usesFourIndices } from '../crystal/lattice.js';
+import { reflectionParameters } from '../scattering/reflection.js';
 import { parseFamily } from '../crystal/symmetry.js';
 import { InputError } from '../errors.js';
 import { array, fail, isObject, joinPath, number, object, onlyKeys, required, string } from './check.js';
@@ -46,7 +47,7 @@ export function parseScenario(raw: unknown): Scenario {
   const absorption = o.absorption === undefined ? 0.1 : number(o.absorption, 'absorption', { min: 0, max: 1, unit: "xi_g / xi'_g" });
 
   const condList = array(required(o, 'conditions', '', '[{ "id": "g200", "g": [2, 0, 0], "s_per_nm": 0 }]'), 'conditions', 1);
-  const conditions = condList.map((c, i) => readCondition(c, joinPath('conditions', i), material, beam));
+  const conditions = condList.map((c, i) => readCondition(c, joinPath('conditions', i), material, beam, foilNormal, kV, absorption));
   const ids = new Set<string>();
   conditions.forEach((c, i) => {
     if (ids.has(c.id)) fail(joinPath(joinPath('conditions', i), 'id'), `"${c.id}" is used twice; give every condition its own id`);
@@ -62,6 +63,11 @@ export function parseScenario(raw: unknown): Scenario {
   if (Math.sin(angle(imageX_cart, cart(material, beam))) < 0.05) {
     fail('imageX', 'is (nearly) parallel to the beam; choose a crystal direction perpendicular to the beam');
   }
+  conditions.forEach((c, i) => {
+    if (Math.sin(angle(imageX_cart, cart(material, c.beam))) < 0.05) {
+      fail('imageX', `is (nearly) parallel to the beam of conditions[${i}]; ${o.imageX === undefined ? 'give "imageX", ' : ''}a crystal direction perpendicular to every beam`);
+    }
+  });
 
   const defects = o.defects === undefined ? [] : array(o.defects, 'defects').map((d, i) => readDefect(d, joinPath('defects', i), material, thickness_nm, beam));
   const candidates = o.candidates === undefined ? [] : array(o.candidates, 'candidates').flatMap((c, i) => readCandidates(c, joinPath('candidates', i), material));
@@ -99,14 +105,35 @@ function readBeamSet(v: unknown, path: string): BeamSet {
   fail(path, 'must be 2 (two-beam) or { "row": N } for a systematic row of N beams (N odd, 3..31)');
 }
 
-function readCondition(v: unknown, path: string, m: Material, refBeam: Vec3): Condition {
+function readCondition(v: unknown, path: string, m: Material, refBeam: Vec3, foilNormal: Vec3, kV: number, absorption: number): Condition {
   const o = object(v, path);
   onlyKeys(o, ['id', 'g', 's_per_nm', 'w', 'beam', 'beams', 'weakBeam'], path);
   const id = string(required(o, 'id', path, '"g200"'), joinPath(path, 'id'));
   if (!/^[A-Za-z0-9_.-]+$/.test(id)) fail(joinPath(path, 'id'), `"${id}" is used in file names; use only letters, digits, "-", "_" and "."`);
   const g = readPlane(required(o, 'g', path, '[2, 0, 0]'), joinPath(path, 'g'), m);
   if (norm(g) === 0) fail(joinPath(path, 'g'), 'must not be 000; give the reflection used for imaging, e.g. [2, 0, 0]');
+  if (!g.every((h) => Number.isInteger(h))) fail(joinPath(path, 'g'), `(${g.join(' ')}) must have whole-number indices, e.g. [2, 0, 0]`);
+  try {
+    // refuses forbidden reflections and reflections beyond the scattering-factor tables
+    reflectionParameters(m, g, kV, { absorptionRatio: absorption });
+  } catch (e) {
+    if (e instanceof InputError) throw new InputError(`${joinPath(path, 'g')}: ${e.message}`);
+    throw e;
+  }
   const beam = o.beam === undefined ? refBeam : readDirection(o.beam, joinPath(path, 'beam'), m);
+  if (o.beam !== undefined) {
+    // the condition's beam must enter the same foil surface as the reference beam, within 80 degrees of the normal
+    const ref = cart(m, refBeam);
+    let n = unit(cart(m, foilNormal));
+    if (dot(n, ref) < 0) n = scale(n, -1);
+    const c = dot(unit(cart(m, beam)), n);
+    if (c <= 0) {
+      fail(joinPath(path, 'beam'), `points against the electron path of "beam"; give it in the same sense (e.g. [${beam.map((x) => -x).join(', ')}] instead of [${beam.join(', ')}])`);
+    }
+    if (c < Math.cos((80 * Math.PI) / 180)) {
+      fail(joinPath(path, 'beam'), `is ${deg(Math.acos(c)).toFixed(1)} degrees from the foil normal; the foil may be tilted by less than 80 degrees`);
+    }
+  }
   const off = Math.abs(90 - deg(angle(planeNormalToCartesian(m.lattice, g), cart(m, beam))));
   if (off > PERPENDICULAR_TOLERANCE_DEG) {
     fail(joinPath(path, 'g'), `makes ${(90 - off).toFixed(1)} degrees with the beam; g must be within ${PERPENDICULAR_TOLERANCE_DEG} degrees of perpendicular to the beam (give this condition its own "beam")`);
@@ -212,8 +239,11 @@ function readDefect(v: unknown, path: string, m: Material, thickness_nm: number,
  * with <111> the plane normal pointing to the side behind the fault (along the beam).
  */
 function natureVector(m: Material, plane: Vec3, nature: 'intrinsic' | 'extrinsic', refBeam: Vec3, path: string): Vec3 {
-  const isFcc111 = m.lattice.system === 'cubic' && plane.every((h) => Math.abs(Math.abs(h) - Math.abs(plane[0])) < 1e-9 && h !== 0);
-  if (!isFcc111) fail(path, 'is defined here for {111} faults in cubic crystals only; give the fault "vector" instead');
+  const fccBased = ['fcc', 'L1_2', 'diamond', 'zincblende', 'rocksalt', 'custom'].includes(m.structure);
+  const is111 = m.lattice.system === 'cubic' && plane.every((h) => Math.abs(Math.abs(h) - Math.abs(plane[0])) < 1e-9 && h !== 0);
+  if (!fccBased || !is111) {
+    fail(path, `is defined here for {111} faults in fcc-based cubic crystals only (material "${m.name}" is ${m.structure}); give the fault "vector" instead`);
+  }
   const n = planeNormalToCartesian(m.lattice, plane);
   const c = dot(n, cart(m, refBeam));
   if (Math.abs(c) < 1e-9 * norm(n)) fail(path, 'cannot be turned into a vector for a fault plane seen edge-on (it contains the beam); give the fault "vector"');
@@ -226,7 +256,7 @@ function readPoint(v: unknown, path: string, thickness_nm: number): Vec3 {
   if (v === undefined) return [0, 0, thickness_nm / 2];
   const a = array(v, path);
   if (a.length !== 3) fail(path, 'must be [x, y, z] in nm (x, y from the image centre, z the depth below the entrance surface)');
-  const p = a.map((x, i) => number(x, joinPath(path, i), { unit: 'nm' }));
+  const p = a.map((x, i) => number(x, joinPath(path, i), { min: -1e5, max: 1e5, unit: 'nm' }));
   return [p[0], p[1], p[2]];
 }
 
@@ -270,7 +300,7 @@ export function readPlane(v: unknown, path: string, m: Material): Vec3 {
 
 /** A vector with an optional fraction prefix ("1/2[1 1 0]"), in lattice units. */
 export function readVector(v: unknown, path: string, m: Material): Vec3 {
-  const idx = parseVectorWithFraction(v as string | number[], path);
+  const idx = parseVectorWithFraction(v as string | number[], path, usesFourIndices(m.lattice) ? '3or4' : 3);
   if (idx.length === 4) {
     if (!usesFourIndices(m.lattice)) fail(path, 'has four indices, but the material is not hexagonal; use three');
     return dirFour(idx, path);

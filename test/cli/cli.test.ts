@@ -63,12 +63,36 @@ describe('thinfoil reflection', () => {
     [['reflection', 'Al', '1,1,1', '--kv', '5'], /kV|--kv/],
     [['reflection', 'Al', '1,1,1', '--kv', 'abc'], /--kv/],
     [['reflection', 'Al', '1,1,1', '--kv', '5000'], /--kv/],
+    [['reflection', 'Al', '1,1,1', '--kv', '0x10'], /--kv/],
+    [['reflection', 'Cu', '500,0,0'], /beyond the range/],
+    [['bloch', 'Cu', '2,0,0', '--s', '1e308'], /--s/],
   ])('bad input %j: exit code 2, one clear sentence', (args, pattern) => {
     const r = run(...(args as string[]));
     expect(r.code).toBe(2);
     expect(r.err).toMatch(pattern);
     expect(r.err).not.toMatch(/\n\s+at /); // no stack trace
     expect(r.err.trim().split('\n').length).toBe(1);
+  });
+});
+
+describe('hexagonal scenarios take four-index vectors', () => {
+  it('Mg: b = 1/3[1 1 -2 0], line [1 -1 0 0], g = (1 -1 0 0)... renders and tabulates', () => {
+    const dir = mkdtempSync(join(tmpdir(), 'thinfoil-hex-'));
+    const f = join(dir, 's.json');
+    writeFileSync(f, JSON.stringify({
+      name: 'hex', material: 'Mg', kV: 200, foil: { thickness_nm: 60, normal: [0, 0, 0, 1] }, beam: [0, 0, 0, 1],
+      image: { width_px: 16, height_px: 16, pixel_nm: 1 },
+      conditions: [{ id: 'g1m100', g: [1, -1, 0, 0], w: 0.5 }, { id: 'g11m20', g: [1, 1, -2, 0], w: 0.5 }],
+      defects: [{ type: 'dislocation', b: '1/3[1 1 -2 0]', line: [1, -1, 0, 0], point_nm: [0, 0, 30] }],
+    }));
+    const r = run('visibility', f, '--json');
+    expect(r.code, r.err).toBe(0);
+    const rows = JSON.parse(r.out).rows;
+    // (1 -1 0 0) . 1/3[1 1 -2 0]: in 3-index (1 -1 0) . [1 1 0] = 0 (Miller-Bravais conversion, Williams & Carter ch. 18)
+    expect(rows[0].entries[0].gb).toBeCloseTo(0, 12);
+    // (1 1 -2 0) -> (1 1 0) . [1 1 0] = 2
+    expect(rows[0].entries[1].gb).toBeCloseTo(2, 12);
+    expect(run('render', f, '--out', join(dir, 'o')).code).toBe(0);
   });
 });
 
@@ -145,6 +169,12 @@ describe('thinfoil render', () => {
     ['misspelt field', (s) => ((s.foil.thicknes_nm = 3), delete s.foil.thickness_nm), /foil\.thicknes_nm|foil\.thickness_nm/],
     ['forbidden reflection', (s) => (s.conditions[0].g = [1, 0, 0]), /forbidden/],
     ['unknown material', (s) => (s.material = 'Kryptonite'), /materials/],
+    ['condition beam against the electron path', (s) => (s.conditions[0].beam = [0, 0, -1]), /conditions\[0\]\.beam/],
+    ['condition beam tilted 90 degrees', (s) => ((s.conditions[0].beam = [0, 1, 0]), (s.conditions[0].g = [2, 0, 0])), /conditions\[0\]\.beam/],
+    ['non-integer g', (s) => (s.conditions[0].g = [1.5, 0, 0]), /conditions\[0\]\.g/],
+    ['g beyond the scattering tables', (s) => (s.conditions[0].g = [200, 0, 0]), /conditions\[0\]\.g/],
+    ['absurd point', (s) => (s.defects[0].point_nm = [1e300, 0, 30]), /defects\[0\]\.point_nm/],
+    ['intrinsic fault in a bcc metal', (s) => ((s.material = 'alpha-Fe'), (s.conditions[0].g = [2, 0, 0]), (s.defects = [{ type: 'fault', plane: [1, 1, 1], nature: 'intrinsic', point_nm: [0, 0, 30] }])), /defects\[0\]\.nature/],
   ];
   it.each(bad)('bad scenario (%s): exit code 2 naming the field', (_name, mutate, pattern) => {
     const s = structuredClone(GOOD) as any;

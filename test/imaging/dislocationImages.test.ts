@@ -69,6 +69,42 @@ describe('image side (common practice; Hirsch et al. 1965)', () => {
   });
 });
 
+describe('absolute image side (Hirsch et al. 1965; sign fixed by s + beta\' = 0)', () => {
+  it('a screw along +y with s > 0 and g.b > 0 has its dark-field maximum on the side where beta\' < 0', async () => {
+    // Right-handed screw b = [0 1 0] along u = [0 1 0] (image +y), beam [001] (image frame = crystal frame),
+    // at depth z0. With the cut along -x, theta = atan2(z - z0, x) in the plane x-z (e1 = x, e2 = z... for a
+    // screw R = b theta / 2pi along u). Column at x: beta'(z) = d(g.R)/dz = (g.b/2pi) x / (x^2 + (z-z0)^2).
+    // Strong diffraction where s + beta' = 0 near z0 (Hirsch et al. 1965; Cockayne et al. 1969): with s > 0
+    // this needs beta' < 0, i.e. sign(x) = -sign(g.b) for this frame. g = (0 2 0) gives g.b = 2.
+    const sc = scenario({
+      image: { width_px: 160, height_px: 1, pixel_nm: 0.1 },
+      foil: { thickness_nm: 60, normal: [0, 0, 1] },
+      conditions: [{ id: 'c', g: [0, 2, 0], s_per_nm: 0.05 }],
+      imageX: [1, 0, 0],
+      defects: [{ type: 'dislocation', b: '[0 1 0]', line: [0, 1, 0], point_nm: [0, 0, 30] }],
+    });
+    const { resolveCondition } = await import('../../src/imaging/resolveCondition.js');
+    const { renderJob } = await import('../../src/imaging/renderScenario.js');
+    const { buildField } = await import('../../src/imaging/fieldSpecs.js');
+    const c = resolveCondition(sc, sc.conditions[0]);
+    const job = renderJob(sc, c);
+    const dir = buildField(job.model.fields)!.directional(job.g_cart, job.frame.ez);
+    // beta' at the dislocation depth, 2 nm to the right. By hand (Hirth & Lothe 1982 ch. 3, FS/RH): for the screw
+    // e1 = x, e2 = u x e1 = y x x = -z, theta = atan2(-(z - z0), x), so beta' = -(g.b/2pi) x/(x^2 + (z-z0)^2)
+    // = -(2/2pi)(2/4) at x = 2 nm: negative, and the image must lie at x > 0 (sign(x) = sign(s g.b)).
+    const betaRight = dir(2, 0, 30);
+    expect(betaRight).toBeCloseTo(-(2 / (2 * Math.PI)) * (2 / 4), 9);
+    const [ci] = await render(sc);
+    const prof = row(ci.df, ci.width, 0);
+    let k = 0;
+    prof.forEach((v, i) => { if (v > prof[k]) k = i; });
+    const xPeak = (k + 0.5 - ci.width / 2) * ci.pixel_nm;
+    expect(Math.abs(xPeak)).toBeGreaterThan(0.5);
+    // the peak lies on the side where beta' has the sign opposite to s: x > 0
+    expect(xPeak).toBeGreaterThan(0);
+  });
+});
+
 describe('image width (common practice)', () => {
   it('at s = 0 and g.b = 1 the image is of the order of xi_g/3 wide', async () => {
     // Rule of thumb "about xi_g/3" (Hirsch et al. 1965; common practice). The width depends on depth,

@@ -159,7 +159,8 @@ describe('coherent spherical inclusion (Ashby & Brown 1963)', () => {
       const r = Math.hypot((i - 32) * 0.6, (j - 32) * 0.6);
       if (r > 12) worst = Math.max(worst, Math.abs(same.bf[j * 65 + i] - large.bf[j * 65 + i]));
     }
-    expect(worst).toBeLessThan(0.02);
+    // columns beyond 12 nm never enter r < 4 nm, where alone the two fields differ: identical beta' (float32 images)
+    expect(worst).toBeLessThan(1e-7);
   });
 
   it('an inclusion with zero strain is invisible', async () => {

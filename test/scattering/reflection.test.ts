@@ -186,6 +186,30 @@ describe('optical potential U_g, U\'_g for any g', () => {
     expect(u0.re).toBeCloseTo((gamma * F0_nm) / (Math.PI * 0.40495 ** 3), 10);
   });
 
+  it('U_g is the Fourier coefficient of V(r) = sum_j v(r - r_j) for waves exp(+2 pi i k.r): gamma/(pi Vc) sum_j f_j exp(-2 pi i g.r_j)', () => {
+    // Hirsch et al. 1965 ch. 4 (Fourier series of the crystal potential); with the same exp(+2 pi i k.r) waves a
+    // displaced crystal V(r - R) carries exp(-2 pi i g.R), the phase the defect fields use. The sum is written out
+    // here from the sites (GaAs, no centre of symmetry, so the sign of Im U_g is tested).
+    const GaAs = zincblende('Ga', 'As', 0.56533, 0.6, 0.55);
+    const hkl: [number, number, number] = [1, 1, 1];
+    const gA = Math.sqrt(3) / 5.6533; // |g| in 1/A
+    const sA = gA / 2;
+    let re = 0;
+    let im = 0;
+    for (const site of GaAs.sites) {
+      const f = site.occupancy * electronScatteringFactor_A(site.element, sA) * Math.exp(-site.debyeWaller_A2 * sA * sA);
+      const ph = -2 * Math.PI * (hkl[0] * site.position[0] + hkl[1] * site.position[1] + hkl[2] * site.position[2]);
+      re += f * Math.cos(ph);
+      im += f * Math.sin(ph);
+    }
+    const gamma = 1 + 200 / 510.99895; // m0 c^2 = 510.99895 keV (CODATA 2018)
+    const k = gamma / (Math.PI * 0.56533 ** 3 * 10); // F in A -> nm
+    const u = opticalPotential_per_nm2(GaAs, hkl, 200, 0.1);
+    expect(Math.abs(im)).toBeGreaterThan(1e-3); // the test is about the sign of a non-zero imaginary part
+    expect(u.re).toBeCloseTo(k * re, 10);
+    expect(u.im).toBeCloseTo(k * im, 10);
+  });
+
   it('equals reflectionParameters U_g and obeys U_-g = conj U_g (Friedel law) for a non-centrosymmetric crystal', () => {
     const GaAs = zincblende('Ga', 'As', 0.56533, 0.6, 0.55);
     const up = opticalPotential_per_nm2(GaAs, [1, 1, 1], 300, 0.08);
