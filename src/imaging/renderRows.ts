@@ -106,10 +106,9 @@ export function columnEvaluator(job: RenderJob): ColumnEvaluator {
   // beta'(z) = g . (grad R) . ez along the column r(z) = c + z ez
   const [kx, ky, kz] = frame.ez;
   const dir = field === null ? null : field.directional(g_cart, frame.ez);
-  let cx = 0;
-  let cy = 0;
-  let cz = 0;
-  const betaPrime = dir === null ? () => 0 : (z: number): number => dir(cx + z * kx, cy + z * ky, cz + z * kz);
+  // column entry point in a typed array: mutable closure variables would be boxed doubles (an allocation each)
+  const c0 = new Float64Array(3);
+  const betaPrime = dir === null ? () => 0 : (z: number): number => dir(c0[0] + z * kx, c0[1] + z * ky, c0[2] + z * kz);
   // Many-beam only: each dislocation line's depth of closest approach is a breakpoint (a zero phase step),
   // so that the stepper restarts with a small step where the strain peaks.
   const lines = mb === null ? [] : job.model.fields.flatMap((f) => (f.kind === 'dislocation' ? [{ p: f.point_nm, u: f.line }] : []));
@@ -126,9 +125,12 @@ export function columnEvaluator(job: RenderJob): ColumnEvaluator {
     stats,
     column(out, x, y) {
       const tau0 = columnEntryOffset(frame, x, y);
-      cx = x * ex0 + y * ey0 + tau0 * kx;
-      cy = x * ex1 + y * ey1 + tau0 * ky;
-      cz = x * ex2 + y * ey2 + tau0 * kz;
+      const cx = x * ex0 + y * ey0 + tau0 * kx;
+      const cy = x * ex1 + y * ey1 + tau0 * ky;
+      const cz = x * ex2 + y * ey2 + tau0 * kz;
+      c0[0] = cx;
+      c0[1] = cy;
+      c0[2] = cz;
       let count = 0;
       for (let s = 0; s < surfaces.length; s++) {
         const f = surfaces[s];
