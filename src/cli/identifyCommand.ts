@@ -8,7 +8,6 @@ import { readFileSync } from 'node:fs';
 import { basename, join, resolve } from 'node:path';
 import { InputError } from '../errors.js';
 import { parseScenario } from '../scenario/parse.js';
-import { isObject } from '../scenario/check.js';
 import { renderScenario } from '../imaging/renderScenario.js';
 import { createRenderPool } from '../imaging/workerPool.js';
 import { decodeImage } from '../imageio/readImage.js';
@@ -22,6 +21,7 @@ import { writeFileAtomic } from '../output/atomicWrite.js';
 import { progressBar } from './progress.js';
 import { printJson, sig, table } from './run.js';
 import { slug } from './renderCommand.js';
+import { readScenarioJson } from './loadScenario.js';
 
 export interface IdentifyCommandOptions {
   /** "<conditionId>=<file>", one per micrograph. */
@@ -38,24 +38,6 @@ export interface IdentifyCommandOptions {
 
 /** The scenario key this command reads besides the ones parseScenario knows. */
 export const MICROGRAPHS_KEY = 'micrographs';
-
-function readJson(path: string): Record<string, unknown> {
-  let text: string;
-  try {
-    text = readFileSync(path, 'utf8');
-  } catch (err) {
-    const code = (err as NodeJS.ErrnoException).code;
-    throw new InputError(`scenario file "${path}" cannot be read (${code ?? 'error'}); check the path`);
-  }
-  let raw: unknown;
-  try {
-    raw = JSON.parse(text);
-  } catch (err) {
-    throw new InputError(`scenario file "${path}" is not valid JSON (${(err as Error).message}); fix the syntax`);
-  }
-  if (!isObject(raw)) throw new InputError(`scenario file "${path}" must hold one JSON object { ... }`);
-  return raw;
-}
 
 function intOption(name: string, v: string | number | undefined, lo: number, hi: number, fallback: number): number {
   if (v === undefined) return fallback;
@@ -92,7 +74,7 @@ export interface IdentifyOutput {
 
 /** The whole command without printing; returns what it wrote. */
 export async function runIdentify(scenarioFile: string, opts: IdentifyCommandOptions, onProgress?: (message: string, fraction: number) => void): Promise<IdentifyOutput> {
-  const raw = readJson(scenarioFile);
+  const raw = readScenarioJson(scenarioFile);
   const { [MICROGRAPHS_KEY]: micrographsRaw, ...rest } = raw;
   const sc = parseScenario(rest);
   const settings = parseMicrographSettings(micrographsRaw, sc.conditions.map((c) => c.id));

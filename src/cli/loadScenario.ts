@@ -4,7 +4,8 @@ import { InputError } from '../errors.js';
 import { parseScenario } from '../scenario/parse.js';
 import type { Scenario } from '../scenario/types.js';
 
-export function loadScenario(path: string): Scenario {
+/** The raw JSON object of a scenario file; InputError when it cannot be read, is not JSON or not an object. */
+export function readScenarioJson(path: string): Record<string, unknown> {
   let text: string;
   try {
     text = readFileSync(path, 'utf8');
@@ -18,5 +19,12 @@ export function loadScenario(path: string): Scenario {
   } catch (e) {
     throw new InputError(`scenario file "${path}" is not valid JSON (${(e as Error).message}); fix the syntax`);
   }
-  return parseScenario(raw);
+  if (typeof raw !== 'object' || raw === null || Array.isArray(raw)) {
+    throw new InputError(`scenario file "${path}" must hold one JSON object { ... }`);
+  }
+  return raw as Record<string, unknown>;
+}
+
+export function loadScenario(path: string): Scenario {
+  return parseScenario(readScenarioJson(path));
 }

@@ -140,15 +140,7 @@ export function columnEvaluator(job: RenderJob): ColumnEvaluator {
           const t = (cx + zc * kx - f.p[0]) * f.into[0] + (cy + zc * ky - f.p[1]) * f.into[1] + (cz + zc * kz - f.p[2]) * f.into[2];
           if (t <= 0) continue;
         }
-        // insertion by depth
-        let q = count++;
-        while (q > 0 && zs[q - 1] > zc) {
-          zs[q] = zs[q - 1];
-          as[q] = as[q - 1];
-          q--;
-        }
-        zs[q] = zc;
-        as[q] = f.kn > 0 ? f.alpha : -f.alpha;
+        count = insertByDepth(zs, as, count, zc, f.kn > 0 ? f.alpha : -f.alpha);
       }
       for (let d = 0; d < lines.length; d++) {
         const { p, u } = lines[d];
@@ -158,14 +150,7 @@ export function columnEvaluator(job: RenderJob): ColumnEvaluator {
         const w0x = cx - p[0], w0y = cy - p[1], w0z = cz - p[2];
         const zc = (b * (u[0] * w0x + u[1] * w0y + u[2] * w0z) - (kx * w0x + ky * w0y + kz * w0z)) / den;
         if (!(zc > 0 && zc < L)) continue;
-        let q = count++;
-        while (q > 0 && zs[q - 1] > zc) {
-          zs[q] = zs[q - 1];
-          as[q] = as[q - 1];
-          q--;
-        }
-        zs[q] = zc;
-        as[q] = 0;
+        count = insertByDepth(zs, as, count, zc, 0);
       }
       let faults = none;
       if (count > 0) {
@@ -183,6 +168,19 @@ export function columnEvaluator(job: RenderJob): ColumnEvaluator {
       }
     },
   };
+}
+
+/** Insert (z, alpha) into the first `count` entries of zs/as kept sorted by z; returns the new count. */
+function insertByDepth(zs: Float64Array, as: Float64Array, count: number, z: number, alpha: number): number {
+  let q = count;
+  while (q > 0 && zs[q - 1] > z) {
+    zs[q] = zs[q - 1];
+    as[q] = as[q - 1];
+    q--;
+  }
+  zs[q] = z;
+  as[q] = alpha;
+  return count + 1;
 }
 
 /** Tolerance of the many-beam stepper per unit of the image tolerance (its tol is a local error per step). */
