@@ -6,6 +6,7 @@ import { createRenderPool } from '../imaging/workerPool.js';
 import { writeConditionImages, type ImageEntry } from '../output/imageFiles.js';
 import { writeFileAtomic } from '../output/atomicWrite.js';
 import { loadScenario } from './loadScenario.js';
+import { scenarioWarnings } from '../analysis/scenarioWarnings.js';
 import { printJson, sig, table } from './run.js';
 import { progressBar } from './progress.js';
 
@@ -63,10 +64,12 @@ export function conditionSummary(ci: ConditionImages) {
 
 export async function renderCommand(file: string, opts: RenderOptions): Promise<void> {
   const sc = loadScenario(file);
+  const warnings = scenarioWarnings(sc);
+  for (const w of warnings) process.stderr.write(`thinfoil: warning: ${w}\n`);
   const dir = opts.out ?? join('out', slug(sc.name));
   const { images, entries, seconds } = await renderAndWrite(sc, dir, !opts.json);
   if (opts.json) {
-    printJson({ images: entries.map(({ stretch, ...e }) => ({ ...e, stretch })) });
+    printJson({ images: entries.map(({ stretch, ...e }) => ({ ...e, stretch })), warnings });
     return;
   }
   process.stdout.write(`${sc.name}: ${images.length} condition(s), ${sc.image.width_px} x ${sc.image.height_px} px at ${sc.image.pixel_nm} nm, ${sig(seconds, 3)} s\n`);

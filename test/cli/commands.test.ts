@@ -90,3 +90,26 @@ describe('commands refuse a scenario that is not an object', () => {
     }
   });
 });
+
+describe('render warns about defects that cannot show', () => {
+  it('an end-on dislocation, an edge-on fault and an inclusion outside the foil give warnings on stderr, and the render still works', () => {
+    const dir = mkdtempSync(join(tmpdir(), 'thinfoil-warn-'));
+    const f = join(dir, 's.json');
+    writeFileSync(f, JSON.stringify({
+      name: 'warn', material: 'Cu', kV: 200, foil: { thickness_nm: 50, normal: [0, 0, 1] }, beam: [0, 0, 1], imageX: [1, 0, 0],
+      image: { width_px: 8, height_px: 8, pixel_nm: 1 },
+      conditions: [{ id: 'g200', g: [2, 0, 0], w: 0.5 }],
+      defects: [
+        { type: 'dislocation', b: '1/2[1 1 0]', line: [0, 0, 1], point_nm: [0, 0, 25] },
+        { type: 'fault', plane: [1, 0, 0], vector: '1/3[1 1 1]', point_nm: [0, 0, 25] },
+        { type: 'inclusion', centre_nm: [0, 0, 500], radius_nm: 3, misfit: 0.01 },
+      ],
+    }));
+    const r = run('render', f, '--out', join(dir, 'o'), '--json');
+    expect(r.code, r.err).toBe(0);
+    expect(r.err).toMatch(/end-on/);
+    expect(r.err).toMatch(/edge-on/);
+    expect(r.err).toMatch(/outside the foil/);
+    expect(JSON.parse(r.out).warnings.length).toBe(3);
+  });
+});
