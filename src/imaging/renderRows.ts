@@ -12,7 +12,7 @@ import { columnEntryOffset, pixelX } from '../geometry/frames.js';
 import { integrateColumn, perfectCrystal, type TwoBeamParams } from '../dynamics/twoBeam.js';
 import { rk4Column } from '../dynamics/rk4Reference.js';
 import type { ManyBeamInput } from '../dynamics/manyBeamStructureMatrix.js';
-import { integrateColumnN, prepareColumnSystem } from '../dynamics/manyBeam.js';
+import { integrateColumnN, integrateColumnNVector, prepareColumnSystem, prepareColumnSystemVector } from '../dynamics/manyBeam.js';
 import { buildField, type DefectModel } from './fieldSpecs.js';
 
 export interface RenderJob {
@@ -41,6 +41,8 @@ export interface ManyBeamJob {
   /** Index of the transmitted beam and of the beam g. */
   readonly incident: number;
   readonly darkField: number;
+  /** A general beam set: the Cartesian beam vectors g_j (N x 3, nm^-1); `orders` is then unused. */
+  readonly beamVectors?: Float64Array;
 }
 
 export interface RowStats {
@@ -58,18 +60,22 @@ interface ActiveSurface {
   readonly kn: number;
   readonly halfPlane: boolean;
   readonly into: Vec3;
+  /** R behind minus R in front for a crossing along +normal (nm). */
+  readonly jump: Vec3;
 }
 
 /** Surfaces whose phase is not a multiple of 2 pi and that columns actually cross. */
 export function activeSurfaces(job: RenderJob): ActiveSurface[] {
   const k = job.frame.ez;
   const out: ActiveSurface[] = [];
+  // a general beam set: other beams h may see a phase h.R even where g.R is an integer
+  const keepAll = job.manyBeam?.beamVectors !== undefined;
   for (const s of job.model.surfaces) {
     const gR = dot(job.g_cart, s.jump_nm);
-    if (Math.abs(gR - Math.round(gR)) < 1e-9) continue; // alpha = 2 pi n: invisible
+    if (!keepAll && Math.abs(gR - Math.round(gR)) < 1e-9) continue; // alpha = 2 pi n: invisible
     const kn = dot(k, s.normal);
     if (Math.abs(kn) < 1e-12) continue; // the beam runs within the plane: columns never cross it
-    out.push({ alpha: 2 * Math.PI * gR, p: s.point_nm, n: s.normal, kn, halfPlane: s.kind === 'half-plane', into: s.into ?? [0, 0, 0] });
+    out.push({ alpha: 2 * Math.PI * gR, p: s.point_nm, n: s.normal, kn, halfPlane: s.kind === 'half-plane', into: s.into ?? [0, 0, 0], jump: s.jump_nm });
   }
   return out;
 }
@@ -90,10 +96,11 @@ export function columnEvaluator(job: RenderJob): ColumnEvaluator {
   const field = buildField(job.model.fields);
   const surfaces = activeSurfaces(job);
   const mb = job.manyBeam === undefined ? null : manyBeamColumn(job.manyBeam, tol);
+  const vector = job.manyBeam?.beamVectors !== undefined;
   if (field === null && surfaces.length === 0) {
     const p = new Float64Array(4);
     if (mb === null) perfectCrystal(p, params, L);
-    else mb.integrate(p, L, () => 0, new Float64Array(0));
+    else mb.integrate(p, L, () => 0, NO_STRAIN, new Float64Array(0));
     return {
       perfect: true,
       stats,
@@ -109,12 +116,24 @@ export function columnEvaluator(job: RenderJob): ColumnEvaluator {
   // column entry point in a typed array: mutable closure variables would be boxed doubles (an allocation each)
   const c0 = new Float64Array(3);
   const betaPrime = dir === null ? () => 0 : (z: number): number => dir(c0[0] + z * kx, c0[1] + z * ky, c0[2] + z * kz);
+  // general beam sets need the vector dR/dz = (grad R) . ez
+  const grad = new Float64Array(9);
+  const dRdz =
+    field === null
+      ? NO_STRAIN
+      : (z: number, o: Float64Array): void => {
+          field.gradient(grad, c0[0] + z * kx, c0[1] + z * ky, c0[2] + z * kz);
+          o[0] = grad[0] * kx + grad[1] * ky + grad[2] * kz;
+          o[1] = grad[3] * kx + grad[4] * ky + grad[5] * kz;
+          o[2] = grad[6] * kx + grad[7] * ky + grad[8] * kz;
+        };
   // Many-beam only: each dislocation line's depth of closest approach is a breakpoint (a zero phase step),
   // so that the stepper restarts with a small step where the strain peaks.
   const lines = mb === null ? [] : job.model.fields.flatMap((f) => (f.kind === 'dislocation' ? [{ p: f.point_nm, u: f.line }] : []));
   const nMax = surfaces.length + lines.length;
   // fault crossings of the current column: [z, alpha] pairs sorted by z, one array per count
-  const crossings = Array.from({ length: nMax }, (_, i) => new Float64Array(2 * (i + 1)));
+  const stride = vector ? 4 : 2;
+  const crossings = Array.from({ length: nMax }, (_, i) => new Float64Array(stride * (i + 1)));
   const none = new Float64Array(0);
   const zs = new Float64Array(nMax);
   const as = new Float64Array(nMax);
@@ -140,7 +159,8 @@ export function columnEvaluator(job: RenderJob): ColumnEvaluator {
           const t = (cx + zc * kx - f.p[0]) * f.into[0] + (cy + zc * ky - f.p[1]) * f.into[1] + (cz + zc * kz - f.p[2]) * f.into[2];
           if (t <= 0) continue;
         }
-        count = insertByDepth(zs, as, count, zc, f.kn > 0 ? f.alpha : -f.alpha);
+        // vector mode keeps the signed surface number (its jump is looked up below), else the phase
+        count = insertByDepth(zs, as, count, zc, vector ? (f.kn > 0 ? s + 1 : -(s + 1)) : f.kn > 0 ? f.alpha : -f.alpha);
       }
       for (let d = 0; d < lines.length; d++) {
         const { p, u } = lines[d];
@@ -156,11 +176,21 @@ export function columnEvaluator(job: RenderJob): ColumnEvaluator {
       if (count > 0) {
         faults = crossings[count - 1];
         for (let q = 0; q < count; q++) {
-          faults[2 * q] = zs[q];
-          faults[2 * q + 1] = as[q];
+          if (!vector) {
+            faults[2 * q] = zs[q];
+            faults[2 * q + 1] = as[q];
+            continue;
+          }
+          const code = as[q];
+          const jump = code === 0 ? ZERO3 : surfaces[Math.abs(code) - 1].jump;
+          const sign = code < 0 ? -1 : 1;
+          faults[4 * q] = zs[q];
+          faults[4 * q + 1] = sign * jump[0];
+          faults[4 * q + 2] = sign * jump[1];
+          faults[4 * q + 3] = sign * jump[2];
         }
       }
-      if (mb !== null) stats.slices += mb.integrate(out, L, betaPrime, faults);
+      if (mb !== null) stats.slices += mb.integrate(out, L, betaPrime, dRdz, faults);
       else if (job.rk4Steps === undefined) integrateColumn(out, params, L, betaPrime, faults, tol, stats);
       else {
         rk4Column(out, params, L, betaPrime, job.rk4Steps);
@@ -187,14 +217,32 @@ function insertByDepth(zs: Float64Array, as: Float64Array, count: number, z: num
 export const MANY_BEAM_TOL_FACTOR = 0.1;
 
 /** A many-beam column integrator for one job: writes the transmitted and g amplitudes into out[0..3]. */
+const ZERO3: Vec3 = [0, 0, 0];
+const NO_STRAIN = (_z: number, o: Float64Array): void => {
+  o[0] = 0;
+  o[1] = 0;
+  o[2] = 0;
+};
+
 function manyBeamColumn(mb: ManyBeamJob, tol: number) {
-  const sys = prepareColumnSystem(mb.input, mb.orders, { incident: mb.incident });
-  const amp = new Float64Array(2 * mb.orders.length);
+  const vector = mb.beamVectors !== undefined;
+  const sys = vector
+    ? prepareColumnSystemVector(mb.input, mb.beamVectors as Float64Array, { incident: mb.incident })
+    : prepareColumnSystem(mb.input, mb.orders, { incident: mb.incident });
+  const amp = new Float64Array(2 * mb.input.excitationErrors_per_nm.length);
   const t0 = 2 * mb.incident;
   const tg = 2 * mb.darkField;
   return {
-    integrate(out: Float64Array, L: number, betaPrime: (z: number) => number, faults: Float64Array): number {
-      const steps = integrateColumnN(amp, sys, L, betaPrime, tol * MANY_BEAM_TOL_FACTOR, faults);
+    integrate(
+      out: Float64Array,
+      L: number,
+      betaPrime: (z: number) => number,
+      dRdz: (z: number, o: Float64Array) => void,
+      faults: Float64Array,
+    ): number {
+      const steps = vector
+        ? integrateColumnNVector(amp, sys, L, dRdz, tol * MANY_BEAM_TOL_FACTOR, faults)
+        : integrateColumnN(amp, sys, L, betaPrime, tol * MANY_BEAM_TOL_FACTOR, faults);
       out[0] = amp[t0];
       out[1] = amp[t0 + 1];
       out[2] = amp[tg];

@@ -5,6 +5,7 @@
  */
 import type { TwoBeamParams } from '../dynamics/twoBeam.js';
 import { blochRow, blochRowInput } from './blochRow.js';
+import { generalBeamSet } from './beamSet.js';
 import type { Scenario } from '../scenario/types.js';
 import { defectModel } from './fieldSpecs.js';
 import { resolveCondition, type ResolvedCondition } from './resolveCondition.js';
@@ -32,6 +33,10 @@ export function twoBeamParams(c: ResolvedCondition): TwoBeamParams {
 
 /** The many-beam part of a job for a systematic-row condition, or undefined for two beams. */
 export function manyBeamJob(sc: Scenario, c: ResolvedCondition): ManyBeamJob | undefined {
+  if (c.beams.kind === 'set') {
+    const set = generalBeamSet(sc, c, c.beams.beams);
+    return { input: set.input, orders: new Float64Array(set.hkl.length), incident: set.incident, darkField: set.darkField, beamVectors: set.beamVectors_per_nm };
+  }
   if (c.beams.kind !== 'row') return undefined;
   const row = blochRow(sc.material, c.g, sc.kV, sc.absorption, c.beams.count);
   return { input: blochRowInput(row, c.s_per_nm), orders: row.orders, incident: row.incident, darkField: row.darkField };

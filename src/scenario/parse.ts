@@ -94,15 +94,31 @@ function readImage(v: unknown): ImageSpec {
   return { width_px, height_px, pixel_nm };
 }
 
-function readBeamSet(v: unknown, path: string): BeamSet {
+function readBeamSet(v: unknown, path: string, m: Material, g: Vec3): BeamSet {
   if (v === undefined || v === 2) return { kind: 'two' };
+  if (isObject(v) && v.set !== undefined) {
+    onlyKeys(v, ['set'], path);
+    const list = array(v.set, joinPath(path, 'set'), 1).map((b, i) => readPlane(b, joinPath(joinPath(path, 'set'), i), m));
+    const key = (h: Vec3) => h.join(',');
+    const seen = new Set<string>(['0,0,0', key(g)]);
+    const beams: Vec3[] = [g];
+    list.forEach((h, i) => {
+      if (!h.every((x) => Number.isInteger(x))) fail(joinPath(joinPath(path, 'set'), i), `(${h.join(' ')}) must have whole-number indices`);
+      if (!seen.has(key(h))) {
+        seen.add(key(h));
+        beams.push(h);
+      }
+    });
+    if (beams.length + 1 > 31) fail(joinPath(path, 'set'), `holds ${beams.length + 1} beams with 000; give at most 31`);
+    return { kind: 'set', beams };
+  }
   if (isObject(v)) {
     onlyKeys(v, ['row'], path);
     const count = number(required(v, 'row', path, '7'), joinPath(path, 'row'), { integer: true, min: 3, max: 31, unit: 'beams' });
     if (count % 2 === 0) fail(joinPath(path, 'row'), `must be odd (beams -m g .. +m g), got ${count}`);
     return { kind: 'row', count };
   }
-  fail(path, 'must be 2 (two-beam) or { "row": N } for a systematic row of N beams (N odd, 3..31)');
+  fail(path, 'must be 2 (two-beam), { "row": N } for a systematic row of N beams (N odd, 3..31), or { "set": [[h, k, l], ...] } for any set of beams');
 }
 
 function readCondition(v: unknown, path: string, m: Material, refBeam: Vec3, foilNormal: Vec3, kV: number, absorption: number): Condition {
@@ -138,7 +154,7 @@ function readCondition(v: unknown, path: string, m: Material, refBeam: Vec3, foi
   if (off > PERPENDICULAR_TOLERANCE_DEG) {
     fail(joinPath(path, 'g'), `makes ${(90 - off).toFixed(1)} degrees with the beam; g must be within ${PERPENDICULAR_TOLERANCE_DEG} degrees of perpendicular to the beam (give this condition its own "beam")`);
   }
-  const beams = readBeamSet(o.beams, joinPath(path, 'beams'));
+  const beams = readBeamSet(o.beams, joinPath(path, 'beams'), m, g);
   const given = ['s_per_nm', 'w', 'weakBeam'].filter((k) => o[k] !== undefined);
   if (given.length !== 1) {
     fail(path, `must give exactly one of "s_per_nm", "w" and "weakBeam"${given.length ? ` (found ${given.join(' and ')})` : ''}`);

@@ -9,7 +9,9 @@ import type { Material } from '../crystal/material.js';
 export type BeamSet =
   | { readonly kind: 'two' }
   /** Systematic row n g for n = -m..m (2m+1 beams). */
-  | { readonly kind: 'row'; readonly count: number };
+  | { readonly kind: 'row'; readonly count: number }
+  /** Any set of beams (plane indices); 000 and g are always included. */
+  | { readonly kind: 'set'; readonly beams: readonly Vec3[] };
 
 export interface Condition {
   readonly id: string;
