@@ -143,7 +143,8 @@ export function blochTable(row: BlochRow, s_g: number): BlochTable {
       j: j + 1,
       gammaRe_per_nm: waves.gammaRe_per_nm[j],
       gammaIm_per_nm: gi,
-      absorptionLength_nm: gi > 0 ? 1 / (4 * Math.PI * gi) : Infinity,
+      // Im gamma at round-off level (no absorption) means no absorption, not a length of 1e17 nm
+      absorptionLength_nm: gi > 1e-12 ? 1 / (4 * Math.PI * gi) : Infinity,
       excitationRe: ar,
       excitationIm: ai,
       excitationAbs: Math.hypot(ar, ai),

@@ -286,7 +286,7 @@ export function formatBlochTable(run: BlochRun): string {
   const orders = Array.from(r.orders);
   const lines = [
     `Bloch waves of ${r.material.name} (${hklText(r.hkl)}) at ${r.kV} kV, ${r.beams === 2 ? 'two beams 0, g' : `systematic row ${orders.map(beamName).join(', ')}`}`,
-    `xi_g = ${sig(r.reflection.xi_nm, 4)} nm, xi'_g = ${sig(r.reflection.xiAbs_nm, 4)} nm (xi_g/xi'_g = ${r.absorptionRatio}), ` +
+    `xi_g = ${sig(r.reflection.xi_nm, 4)} nm, xi'_g = ${Number.isFinite(r.reflection.xiAbs_nm) ? `${sig(r.reflection.xiAbs_nm, 4)} nm` : 'none (no absorption)'} (xi_g/xi'_g = ${r.absorptionRatio}), ` +
       `s = ${sig(run.s_per_nm, 4)} nm^-1 (w = ${sig(run.w, 4)}), profiles to t = ${sig(run.thickness_nm, 4)} nm`,
     '',
   ];

@@ -44,7 +44,7 @@ export function reflectionCommand(materialName: string, indices: string, opts: R
     ['Bragg angle', `${sig(result.braggAngle_mrad, 4)} mrad`],
     ['|F_g| (electron)', `${sig(r.absF_A, 4)} A`],
     ['xi_g', `${sig(r.xi_nm, 4)} nm`],
-    ["xi'_g", `${sig(r.xiAbs_nm, 4)} nm (xi_g/xi'_g = ${opts.absorption})`],
+    ["xi'_g", Number.isFinite(r.xiAbs_nm) ? `${sig(r.xiAbs_nm, 4)} nm (xi_g/xi'_g = ${opts.absorption})` : 'none (no absorption)'],
   ];
   process.stdout.write(table(['quantity', 'value'], rows));
 }
