@@ -17,7 +17,7 @@ import { parseMicrographArgument, parseMicrographSettings } from '../analysis/id
 import { isSyntheticName } from '../analysis/synthetic.js';
 import { comparisonFigure, comparisonFigureData } from '../output/comparisonFigure.js';
 import { identifyReportHtml } from '../output/report.js';
-import { writeFileAtomic } from '../output/atomicWrite.js';
+import { ensureOutputDir, writeFileAtomic } from '../output/atomicWrite.js';
 import { progressBar } from './progress.js';
 import { printJson, sig, table } from './run.js';
 import { slug } from './renderCommand.js';
@@ -86,6 +86,7 @@ export async function runIdentify(scenarioFile: string, opts: IdentifyCommandOpt
   const inputs = args.map(readMicrograph);
   const micrographs = prepareMicrographs(sc, inputs, settings);
   const dir = opts.out ?? join('out', `${slug(sc.name)}-identify`);
+  ensureOutputDir(dir);
   const inputsToProtect = [scenarioFile, ...inputs.map((m) => m.source)];
 
   const pool = createRenderPool(opts.threads);

@@ -4,7 +4,7 @@ import type { Scenario } from '../scenario/types.js';
 import { renderScenario, type ConditionImages } from '../imaging/renderScenario.js';
 import { createRenderPool } from '../imaging/workerPool.js';
 import { writeConditionImages, type ImageEntry } from '../output/imageFiles.js';
-import { writeFileAtomic } from '../output/atomicWrite.js';
+import { ensureOutputDir, writeFileAtomic } from '../output/atomicWrite.js';
 import { loadScenario } from './loadScenario.js';
 import { scenarioWarnings } from '../analysis/scenarioWarnings.js';
 import { printJson, sig, table } from './run.js';
@@ -21,6 +21,7 @@ export function slug(name: string): string {
 
 /** Render a scenario and write its images; shared by `render` and `demo`. */
 export async function renderAndWrite(sc: Scenario, dir: string, showProgress: boolean): Promise<{ images: ConditionImages[]; entries: ImageEntry[]; seconds: number }> {
+  ensureOutputDir(dir);
   const bar = progressBar(showProgress);
   const pool = createRenderPool();
   const t0 = performance.now();

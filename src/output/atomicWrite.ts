@@ -106,9 +106,29 @@ function fsyncDirSync(dir: string): void {
  * creating parent folders as needed. Synchronous: when it returns, the file is
  * complete on disk.
  */
+/**
+ * Create an output folder before long work starts, so that a folder that
+ * cannot be written is reported at once (InputError), not after a render.
+ */
+export function ensureOutputDir(dir: string): void {
+  const abs = path.resolve(dir);
+  if (/^\/(proc|sys)(\/|$)/.test(abs)) throw new InputError(`cannot write into "${dir}" (under /proc or /sys); choose an ordinary folder with --out`);
+  try {
+    fs.mkdirSync(abs, { recursive: true });
+    fs.accessSync(abs, fs.constants.W_OK);
+  } catch (e) {
+    const code = (e as NodeJS.ErrnoException).code ?? 'error';
+    throw new InputError(`cannot write into the output folder "${dir}" (${code}); choose another folder with --out`);
+  }
+}
+
 export function writeFileAtomic(target: string, data: Uint8Array | string, options: AtomicWriteOptions = {}): void {
   const bytes = toBytes(data);
   const dir = path.dirname(path.resolve(target));
+  // kernel pseudo-file systems: Node's recursive mkdir can spin there forever
+  if (/^\/(proc|sys)(\/|$)/.test(dir)) {
+    throw new InputError(`cannot write "${target}" under /proc or /sys; choose an ordinary folder with --out`);
+  }
   let tmp: string | undefined;
   let fd: number | undefined;
   try {

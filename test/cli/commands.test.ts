@@ -113,3 +113,16 @@ describe('render warns about defects that cannot show', () => {
     expect(JSON.parse(r.out).warnings.length).toBe(3);
   });
 });
+
+describe('an output folder that cannot be written is refused before any work', () => {
+  it('--out under a regular file or under /proc: exit code 2 at once', () => {
+    const dir = mkdtempSync(join(tmpdir(), 'thinfoil-out-'));
+    const file = join(dir, 'plain-file');
+    writeFileSync(file, 'x');
+    for (const out of [join(file, 'sub'), '/proc/thinfoil-test']) {
+      const r = run('render', 'scenarios/copper-dislocations.json', '--out', out);
+      expect(r.code).toBe(2);
+      expect(r.err).toMatch(/--out/);
+    }
+  });
+});
