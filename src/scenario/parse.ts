@@ -344,7 +344,15 @@ function deg(rad: number): number {
   return (rad * 180) / Math.PI;
 }
 
+/** A vector in lattice units as text: "[1 -1 0]", "1/2[1 1 0]", "1/6[1 2 1]", or decimals when no small denominator fits. */
 export function formatVector(v: Vec3): string {
+  for (const d of [1, 2, 3, 4, 6]) {
+    const n = v.map((x) => Math.round(x * d));
+    if (n.every((k, i) => Math.abs(k - v[i] * d) < 1e-6)) {
+      const body = `[${n.map((k) => (Object.is(k, -0) ? 0 : k)).join(' ')}]`;
+      return d === 1 ? body : `1/${d}${body}`;
+    }
+  }
   const f = (x: number) => {
     const r = Math.round(x * 1e6) / 1e6;
     return Number.isInteger(r) ? String(r) : r.toFixed(4).replace(/0+$/, '');
