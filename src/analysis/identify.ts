@@ -193,6 +193,15 @@ export async function identify(sc: Scenario, micrographs: readonly PreparedMicro
       };
     }),
   }));
+  // registrations of the best candidate that ended at a search limit (rotation 5 deg, scale 5 %): a sign of a
+  // wrong pixel size or g angle, or of a candidate that does not fit
+  const best = ranking[0];
+  const atLimit = best
+    ? best.perCondition.filter((p) => Math.abs(p.rotation_deg) >= 5 - 1e-6 || Math.abs(p.scale - 1) >= 0.05 - 1e-6).map((p) => p.condition)
+    : [];
+  const limitNote = atLimit.length
+    ? ` Registration of the best candidate reached its rotation or scale search limit for ${atLimit.join(', ')}: check the pixel size and the direction of g there before trusting the verdict.`
+    : '';
   return {
     scenario: sc.name,
     defectIndex,
@@ -200,7 +209,7 @@ export async function identify(sc: Scenario, micrographs: readonly PreparedMicro
     micrographs,
     ranking,
     candidates: order.map((k) => candidates[k]),
-    verdict,
+    verdict: limitNote ? { ...verdict, statement: verdict.statement + limitNote } : verdict,
     leaderImages: order.slice(0, top).map((k) => pairs[k].map((p) => p.reg.window)),
     settings: { top, bootstrap: B, seed, sigmas, amplitudeSpread: spread },
     seconds: { render: (t1 - t0) / 1000, register: (t2 - t1) / 1000, bootstrap: (t3 - t2) / 1000 },

@@ -202,8 +202,8 @@ export function decide(labels: readonly string[], scores: readonly number[], rep
   const fmt = (x: number) => Number(x.toPrecision(3)).toString();
   const statement =
     decision === 'identified'
-      ? `${labels[0]} explains the micrographs best; the runner-up ${runner ? `(${runner.candidate}) scores ${fmt(gap)} lower, ${gapSigma > 0 ? `${fmt(gap / gapSigma)} standard deviations of the noise` : 'beyond the noise'}` : 'does not exist'}.`
-      : `Cannot tell: ${indistinguishable.join(', ')} explain the micrographs equally well within the noise (gap to the runner-up ${fmt(gap)}, needed ${fmt(threshold)}).`;
+      ? `${labels[0]} explains the micrographs best; the runner-up ${runner ? `(${runner.candidate}) scores ${fmt(gap)} lower, ${gapSigma > 0 ? `${fmt(gap / gapSigma)} standard deviations of the pixel noise` : 'beyond the pixel noise'}` : 'does not exist'}. The noise estimate covers the micrographs' pixel noise only, not errors of the model or of the stated thickness, deviation, depth and angles.`
+      : `${indistinguishable.join(', ')} explain the micrographs equally well within the noise (gap to the runner-up ${fmt(gap)}, needed ${fmt(threshold)}); a defect that is not among the candidates may also fit better than any of them.`;
   const weak =
     scores[0] < WEAK_SCORE
       ? ` The best candidate explains only ${fmt(100 * Math.max(0, scores[0]))} % of the micrographs' contrast variance: the micrographs may show no contrast from this defect, or no candidate fits.`

@@ -84,6 +84,14 @@ export async function runIdentify(scenarioFile: string, opts: IdentifyCommandOpt
   const B = intOption('--bootstrap', opts.bootstrap, 0, 10000, 50);
   const seed = intOption('--seed', opts.seed, 0, 2 ** 31 - 1, 1);
   const inputs = args.map(readMicrograph);
+  // the direction of g on a micrograph cannot be guessed: a wrong angle ranks the wrong candidate first
+  for (const m of inputs) {
+    if (sc.conditions.some((c) => c.id === m.conditionId) && settings.get(m.conditionId)?.gAngle_deg === undefined) {
+      throw new InputError(
+        `micrographs.${m.conditionId}.gAngle_deg: is missing; give the direction of g in this micrograph in degrees, counter-clockwise from +x (from the diffraction pattern, corrected for the image rotation)`,
+      );
+    }
+  }
   const micrographs = prepareMicrographs(sc, inputs, settings);
   const dir = opts.out ?? join('out', `${slug(sc.name)}-identify`);
   ensureOutputDir(dir);
@@ -210,6 +218,7 @@ export function formatIdentify(out: IdentifyOutput): string {
       ...r.perCondition.map((p) => (p.visibility.value === undefined ? '-' : sig(p.visibility.value, 3))),
     ]),
   ));
+  parts.push('R2: fraction of a micrograph\'s contrast variance explained by the registered simulation (negative: worse than a flat image, e.g. contrast predicted where there is none).\n');
   parts.push(`\n${res.verdict.decision === 'identified' ? 'IDENTIFIED' : 'CANNOT TELL'}: ${res.verdict.statement}\n`);
   parts.push(`rule: ${res.verdict.rule}\n`);
   return parts.join('');

@@ -15,7 +15,8 @@ export function materialsCommand(opts: { json?: boolean }): void {
     sig(m.elastic.shearModulus_GPa, 3),
     sig(m.elastic.poissonRatio, 3),
     m.stackingFaultEnergy_mJ_per_m2 === undefined ? '-' : String(m.stackingFaultEnergy_mJ_per_m2),
-    m.description,
+    m.description.length > 60 ? `${m.description.slice(0, 57)}...` : m.description,
   ]);
   process.stdout.write(table(['name', 'structure', 'lattice (nm)', 'G (GPa)', 'nu', 'SFE (mJ/m2)', 'description'], rows));
+  process.stdout.write('G and nu: Voigt-Reuss-Hill averages of the Cij. Full descriptions and sources: thinfoil materials --json\n');
 }

@@ -1,6 +1,6 @@
 /** `thinfoil reflection <material> <hkl>`: the two-beam parameters of one reflection. */
 import { getMaterial } from '../crystal/materials.js';
-import { readPlane, formatVector } from '../scenario/parse.js';
+import { readPlane } from '../scenario/parse.js';
 import { reflectionParameters } from '../scattering/reflection.js';
 import { printJson, sig, table } from './run.js';
 
@@ -8,6 +8,12 @@ export interface ReflectionOptions {
   kv: number;
   absorption: number;
   json?: boolean;
+}
+
+/** The reflection as the user wrote it: four indices for a hexagonal input, else three. */
+function indexText(indices: string, hkl: readonly number[]): string {
+  const four = indices.trim().replace(/[()[\]]/g, '').split(/[\s,]+/).filter((x) => x !== '');
+  return four.length === 4 ? `(${hkl[0]} ${hkl[1]} ${-(hkl[0] + hkl[1])} ${hkl[2]}), three-index (${hkl.join(' ')})` : `(${hkl.join(' ')})`;
 }
 
 export function reflectionCommand(materialName: string, indices: string, opts: ReflectionOptions): void {
@@ -37,7 +43,7 @@ export function reflectionCommand(materialName: string, indices: string, opts: R
   }
   const rows: string[][] = [
     ['material', `${m.name} (${m.structure})`],
-    ['reflection g', formatVector(hkl).replace('[', '(').replace(']', ')')],
+    ['reflection g', indexText(indices, hkl)],
     ['voltage', `${opts.kv} kV, lambda = ${sig(result.lambda_pm, 5)} pm`],
     ['d-spacing', `${sig(r.d_nm, 5)} nm`],
     ['|g|', `${sig(r.g_per_nm, 5)} nm^-1`],

@@ -18,7 +18,8 @@ export function formatVisibility(sc: Scenario, rows: readonly VisibilityRow[]): 
   return (
     table(header, body) +
     'cells: g.b then V visible, i invisible, w weak residual; for g.b = 0 the value g.(b x u) follows in brackets.\n' +
-    'rules: g.b = 0 and g.(b x u) = 0 invisible; |g.(b x u)| < 0.64 weak residual (Hirsch et al. 1965);\n' +
+    'rules: g.b = 0 and g.(b x u) = 0 invisible, unless g.b_edge != 0 (mixed line with g.u != 0: weak residual);\n' +
+    '       g.b = 0 and |g.(b x u)| < 0.64 weak residual (Hirsch et al. 1965);\n' +
     '       partials |g.b| = 1/3 invisible, 2/3 visible (Howie & Whelan 1962). A rule of thumb: simulate to be sure.\n'
   );
 }
@@ -39,7 +40,7 @@ export function visibilityCommand(file: string, opts: { json?: boolean }): void 
     return;
   }
   if (rows.length === 0) {
-    process.stdout.write('the scenario has no defects and no candidates: nothing to tabulate\n');
+    process.stdout.write('the scenario has no dislocations and no candidate Burgers vectors: nothing to tabulate (faults and inclusions: use `thinfoil fault`)\n');
     return;
   }
   process.stdout.write(formatVisibility(sc, rows));

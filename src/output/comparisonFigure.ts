@@ -278,7 +278,7 @@ export function comparisonFigureData(res: IdentifyResult): ComparisonFigureData 
     id: m.conditionId,
     g: m.condition.g,
     field: m.settings.field,
-    deviation: `${m.resolved.deviationSource === 'w' ? `w = ${sig(m.resolved.w)}` : m.resolved.deviationSource === 's' ? `s = ${sig(m.resolved.s_per_nm)} /nm` : `${m.resolved.deviationSource}, s = ${sig(m.resolved.s_per_nm)} /nm`}, t = ${sig(m.resolved.frame.thickness_nm)} nm`,
+    deviation: `${m.resolved.deviationSource === 'w' ? `w = ${sig(m.resolved.w)}` : m.resolved.deviationSource === 's' ? `s = ${sig(m.resolved.s_per_nm)} /nm` : `${m.resolved.deviationSource}, s = ${sig(m.resolved.s_per_nm)} /nm`}, t = ${sig(m.resolved.frame.thickness_nm)} nm${Math.abs(m.resolved.frame.columnLength_nm - m.resolved.frame.thickness_nm) > 0.01 * m.resolved.frame.thickness_nm ? ` (column ${sig(m.resolved.frame.columnLength_nm)} nm)` : ''}`,
     gAngle_deg: m.gAngle_deg,
     pixel_nm: m.pixel_nm,
     width: m.width,
@@ -316,7 +316,7 @@ export function comparisonFigureData(res: IdentifyResult): ComparisonFigureData 
   ].join('\n');
   return {
     title: `${res.scenario}: which candidate explains the micrographs?`,
-    subtitle: `${res.defectLabel}; ${res.candidates.length} candidates compared over ${res.micrographs.length} micrograph${res.micrographs.length === 1 ? '' : 's'}; verdict: ${v.decision === 'identified' ? `identified ${v.best}` : 'cannot tell'}`,
+    subtitle: `defect ${res.defectLabel}: ${res.candidates.length} candidates compared over ${res.micrographs.length} micrograph${res.micrographs.length === 1 ? '' : 's'}; verdict: ${v.decision === 'identified' ? `identified ${v.best}` : 'cannot tell'}`,
     columns,
     rows,
     caption,

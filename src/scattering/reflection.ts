@@ -145,7 +145,7 @@ export function reflectionParameters(material: Material, hkl: Vec3, kV: number, 
   const f = structureFactorInto(new Float64Array(4), material, hkl[0], hkl[1], hkl[2]);
   if (isSymmetryZero(f)) {
     throw new InputError(
-      `reflection g = ${label} is forbidden for the ${material.structure} structure of material "${material.name}" (its structure factor vanishes by symmetry, so it has no extinction distance); choose an allowed reflection.`,
+      `reflection g = ${label} is forbidden for the ${material.structure} structure of material "${material.name}" (its structure factor vanishes by symmetry, so it has no two-beam extinction distance; it can still appear by double diffraction, which a many-beam set of allowed beams models); choose an allowed reflection.`,
     );
   }
   const Vc = volume_nm3(material);

@@ -45,8 +45,9 @@ export const DEMO_SCENARIO = {
     { id: 'g220-wb3', g: [2, 2, 0], weakBeam: 3, beams: { row: 5 } },
   ],
   defects: [
-    { type: 'dislocation', label: 'A (mixed 60 deg)', b: '1/2[1 1 0]', line: [1, 1, 2], point_nm: [-40, -15, 60] },
-    { type: 'dislocation', label: 'B (mixed 60 deg)', b: '1/2[1 -1 0]', line: [-1, 1, 2], point_nm: [30, -20, 60] },
+    // 60-degree dislocations on {111}: b = 1/2[1 1 0] along [1 0 1] (plane (1 -1 -1)), b = 1/2[1 -1 0] along [0 1 1] (plane (1 1 -1))
+    { type: 'dislocation', label: 'A (60 deg, on (1 -1 -1))', b: '1/2[1 1 0]', line: [1, 0, 1], point_nm: [0, -35, 60] },
+    { type: 'dislocation', label: 'B (60 deg, on (1 1 -1))', b: '1/2[1 -1 0]', line: [0, 1, 1], point_nm: [35, 0, 60] },
     { type: 'dislocation', label: 'C (screw, parallel to foil)', b: '1/2[1 -1 0]', line: [1, -1, 0], point_nm: [-10, 50, 45] },
     { type: 'dissociated', label: 'D (dissociated screw)', b: '1/2[1 1 0]', plane: [1, -1, 1], line: [1, 1, 0], point_nm: [-40, 35, 60] },
     { type: 'inclusion', label: 'E (coherent particle)', centre_nm: [42, 38, 50], radius_nm: 6, misfit: 0.02 },

@@ -23,7 +23,8 @@ export const DEMO_IDENTIFY_SCENARIO = {
     { id: 'g11m1', g: [1, 1, -1], w: 0.5, beam: [0, 1, 1] },
     { id: 'g1m11', g: [1, -1, 1], w: 0.5, beam: [0, 1, 1] },
   ],
-  defects: [{ type: 'dislocation', label: 'X', b: '1/2[1 1 0]', line: [3, 1, 1], point_nm: [0, 0, 35] }],
+  // b here is a placeholder: every candidate of the family replaces it (the hidden one is not written in this file)
+  defects: [{ type: 'dislocation', label: 'X (b is replaced by each candidate)', b: '1/2[1 1 0]', line: [3, 1, 1], point_nm: [0, 0, 35] }],
   candidates: ['1/2<110>'],
 };
 

@@ -77,7 +77,7 @@ describe('decide: the verdict rule', () => {
     const v = decide(labels, [0.5, 0.48, 0.1], reps(0.02, [0.5, 0.48, 0.1]));
     expect(v.decision).toBe('cannot tell');
     expect(v.indistinguishable).toEqual(['A', 'B']);
-    expect(v.statement).toMatch(/Cannot tell/);
+    expect(v.statement).toMatch(/equally well within the noise/);
   });
 
   it('cannot tell for identical scores, whatever the bootstrap says (floor 0.002)', () => {

@@ -210,10 +210,11 @@ describe('thinfoil identify: bad input gives exit code 2 and one sentence', () =
   });
 
   it.each([
-    ['a crop outside the image', { crop: [40, 0, 30, 30] }, /micrographs\.g200\.crop \[40, 0, 30, 30\] reaches outside the 52 x 48 pixel image/],
-    ['a pixel size of zero', { pixel_nm: 0 }, /micrographs\.g200\.pixel_nm: must be greater than 0/],
+    ['a crop outside the image', { gAngle_deg: 20, crop: [40, 0, 30, 30] }, /micrographs\.g200\.crop \[40, 0, 30, 30\] reaches outside the 52 x 48 pixel image/],
+    ['a pixel size of zero', { gAngle_deg: 20, pixel_nm: 0 }, /micrographs\.g200\.pixel_nm: must be greater than 0/],
+    ['a missing direction of g', { pixel_nm: 1 }, /micrographs\.g200\.gAngle_deg: is missing/],
   ])('%s in the scenario', async (_what, g200, pattern) => {
-    const f = join(dir, `bad-${Object.keys(g200)[0]}.json`);
+    const f = join(dir, `bad-${Object.keys(g200).join('-')}.json`);
     writeFileSync(f, JSON.stringify({ ...RAW, micrographs: { g200 } }));
     const r = await runAction(f, { micrograph: [args[0]] });
     expect(r.thrown).toBe('exit 2');
