@@ -200,7 +200,7 @@ export async function identify(sc: Scenario, micrographs: readonly PreparedMicro
     ? best.perCondition.filter((p) => Math.abs(p.rotation_deg) >= 5 - 1e-6 || Math.abs(p.scale - 1) >= 0.05 - 1e-6).map((p) => p.condition)
     : [];
   const limitNote = atLimit.length
-    ? ` Registration of the best candidate reached its rotation or scale search limit for ${atLimit.join(', ')}: check the pixel size and the direction of g there before trusting the verdict.`
+    ? ` Registration of the best candidate ended at the edge of its search range (rotation 5 degrees or scale 5 %) for ${atLimit.join(', ')}; the scale of images of straight lines is only weakly constrained, but if the pixel size or the direction of g there may be wrong, check them.`
     : '';
   return {
     scenario: sc.name,
@@ -241,8 +241,11 @@ export async function simulateView(vsc: Scenario, m: PreparedMicrograph, render:
     const sy = m.settings.mirrored ? H - 1 - y : y;
     for (let x = 0; x < W; x++) rel[y * W + x] = src[sy * W + x] / bg - 1;
   }
-  const sigma_px = m.settings.blur_nm / m.pixel_nm;
-  return sigma_px > 0 ? gaussianBlur(new Float64Array(W * H), rel, W, H, sigma_px) : rel;
+  // A detector pixel integrates over its area: a box of width p has the variance p^2/12, added here as a
+  // Gaussian to the point spread of the microscope (without it, point-sampled simulations are too sharp
+  // and the scale search drifts to magnify them).
+  const sigma_px = Math.sqrt((m.settings.blur_nm / m.pixel_nm) ** 2 + 1 / 12);
+  return gaussianBlur(new Float64Array(W * H), rel, W, H, sigma_px);
 }
 
 /**
