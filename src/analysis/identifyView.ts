@@ -13,26 +13,16 @@
  */
 import type { Vec3 } from '../math/vec3.js';
 import { add, dot, scale } from '../math/vec3.js';
-import { directionToCartesian } from '../crystal/lattice.js';
-import { crystalToImagePoint, imageFrame, imagePointToCrystal, type ImageFrame } from '../geometry/frames.js';
+import { crystalToImagePoint, imagePointToCrystal } from '../geometry/frames.js';
+import { scenarioFrame } from '../imaging/scenarioFrame.js';
 import { planeNormalToCartesian } from '../crystal/lattice.js';
 import type { Condition, DefectSpec, Scenario } from '../scenario/types.js';
 
 const DEG = Math.PI / 180;
 
-function conditionFrame(sc: Scenario, cond: Condition, imageX_cart: Vec3): ImageFrame {
-  const l = sc.material.lattice;
-  return imageFrame(directionToCartesian(l, cond.beam), imageX_cart, directionToCartesian(l, sc.foilNormal), sc.thickness_nm);
-}
-
-function referenceFrameOf(sc: Scenario, imageX_cart: Vec3): ImageFrame {
-  const l = sc.material.lattice;
-  return imageFrame(directionToCartesian(l, sc.beam), imageX_cart, directionToCartesian(l, sc.foilNormal), sc.thickness_nm);
-}
-
 /** Screen angle of g (degrees, counter-clockwise from +x, +y down in the image) in the scenario's own simulated image. */
 export function simulatedGAngle_deg(sc: Scenario, cond: Condition): number {
-  const f = conditionFrame(sc, cond, sc.imageX_cart);
+  const f = scenarioFrame(sc, cond.beam);
   const g = planeNormalToCartesian(sc.material.lattice, cond.g);
   return Math.atan2(-dot(g, f.ey), dot(g, f.ex)) / DEG;
 }
@@ -50,13 +40,13 @@ export function moveDefect(d: DefectSpec, f: (p: Vec3) => Vec3): DefectSpec {
  * the screen (counter-clockwise from +x).
  */
 export function conditionView(sc: Scenario, cond: Condition, angle_deg: number, width: number, height: number, pixel_nm: number): Scenario {
-  const f = conditionFrame(sc, cond, sc.imageX_cart);
+  const f = scenarioFrame(sc, cond.beam);
   const g = planeNormalToCartesian(sc.material.lattice, cond.g);
   const psi = Math.atan2(dot(g, f.ey), dot(g, f.ex));
   const phi = psi + angle_deg * DEG;
   const imageX_cart = add(scale(f.ex, Math.cos(phi)), scale(f.ey, Math.sin(phi)));
-  const oldRef = referenceFrameOf(sc, sc.imageX_cart);
-  const newRef = referenceFrameOf(sc, imageX_cart);
+  const oldRef = scenarioFrame(sc, sc.beam);
+  const newRef = scenarioFrame(sc, sc.beam, imageX_cart);
   const move = (p: Vec3): Vec3 => crystalToImagePoint(newRef, imagePointToCrystal(oldRef, p));
   return {
     ...sc,

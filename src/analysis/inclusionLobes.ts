@@ -10,7 +10,7 @@ import type { Vec3 } from '../math/vec3.js';
 import { dot } from '../math/vec3.js';
 import type { InclusionSpec, Scenario } from '../scenario/types.js';
 import { resolveCondition } from '../imaging/resolveCondition.js';
-import { referenceFrame } from '../imaging/fieldSpecs.js';
+import { referenceFrame } from '../imaging/scenarioFrame.js';
 import { imagePointToCrystal } from '../geometry/frames.js';
 import { renderJob } from '../imaging/renderScenario.js';
 import { columnEvaluator } from '../imaging/renderRows.js';

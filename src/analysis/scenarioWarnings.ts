@@ -6,7 +6,7 @@
 import { cross, dot, norm, unit } from '../math/vec3.js';
 import { directionToCartesian, planeNormalToCartesian } from '../crystal/lattice.js';
 import type { Scenario } from '../scenario/types.js';
-import { referenceFrame } from '../imaging/fieldSpecs.js';
+import { referenceFrame } from '../imaging/scenarioFrame.js';
 
 export function scenarioWarnings(sc: Scenario): string[] {
   const out: string[] = [];

@@ -10,7 +10,8 @@ import { add, cross, dot, scale, sub, unit } from '../math/vec3.js';
 import { directionToCartesian, planeNormalToCartesian } from '../crystal/lattice.js';
 import type { Material } from '../crystal/material.js';
 import type { DefectSpec, Scenario } from '../scenario/types.js';
-import { imageFrame, imagePointToCrystal, type ImageFrame } from '../geometry/frames.js';
+import { imagePointToCrystal, type ImageFrame } from '../geometry/frames.js';
+import { referenceFrame } from './scenarioFrame.js';
 import type { DisplacementField } from '../elasticity/field.js';
 import { superpose } from '../elasticity/field.js';
 import { straightDislocation, dislocationFrame } from '../elasticity/straightDislocation.js';
@@ -57,12 +58,6 @@ export interface JumpSurface {
 export interface DefectModel {
   readonly fields: readonly FieldSpec[];
   readonly surfaces: readonly JumpSurface[];
-}
-
-/** The frame in which defect points are given: the scenario's own beam. */
-export function referenceFrame(sc: Scenario): ImageFrame {
-  const l = sc.material.lattice;
-  return imageFrame(directionToCartesian(l, sc.beam), sc.imageX_cart, directionToCartesian(l, sc.foilNormal), sc.thickness_nm);
 }
 
 /** A dislocation with an explicit cut: its field and the half-plane where R jumps by b. */

@@ -5,10 +5,11 @@
  */
 import type { Vec3 } from '../math/vec3.js';
 import { norm } from '../math/vec3.js';
-import { directionToCartesian, planeNormalToCartesian } from '../crystal/lattice.js';
+import { planeNormalToCartesian } from '../crystal/lattice.js';
 import { reflectionParameters } from '../scattering/reflection.js';
 import type { Condition, Scenario, BeamSet } from '../scenario/types.js';
-import { type ImageFrame, imageFrame } from '../geometry/frames.js';
+import type { ImageFrame } from '../geometry/frames.js';
+import { scenarioFrame } from './scenarioFrame.js';
 
 export interface ResolvedCondition {
   readonly id: string;
@@ -51,12 +52,7 @@ export function resolveCondition(sc: Scenario, c: Condition): ResolvedCondition 
       src = `g(${c.deviation.n}g)`;
       break;
   }
-  const frame = imageFrame(
-    directionToCartesian(m.lattice, c.beam),
-    sc.imageX_cart,
-    directionToCartesian(m.lattice, sc.foilNormal),
-    sc.thickness_nm,
-  );
+  const frame = scenarioFrame(sc, c.beam);
   const g_cart = planeNormalToCartesian(m.lattice, c.g);
   return {
     id: c.id,
