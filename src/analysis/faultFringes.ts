@@ -17,7 +17,7 @@ import { resolveCondition, type ResolvedCondition } from '../imaging/resolveCond
 import type { DefectModel } from '../imaging/fieldSpecs.js';
 import { referenceFrame } from '../imaging/scenarioFrame.js';
 import { imagePointToCrystal } from '../geometry/frames.js';
-import { renderJob } from '../imaging/renderScenario.js';
+import { background, renderJob } from '../imaging/renderScenario.js';
 import { columnEvaluator } from '../imaging/renderRows.js';
 
 export type Tone = 'bright' | 'dark' | 'none';
@@ -197,8 +197,7 @@ export function profileAcross(
     bf.push(amp[0] ** 2 + amp[1] ** 2);
     df.push(amp[2] ** 2 + amp[3] ** 2);
   }
-  columnEvaluator({ ...job, model: { fields: [], surfaces: [] } }).column(amp, 0, 0);
-  return { bf, df, background: { bf: amp[0] ** 2 + amp[1] ** 2, df: amp[2] ** 2 + amp[3] ** 2 } };
+  return { bf, df, background: background(job) };
 }
 
 /**
@@ -217,12 +216,3 @@ export function outerFringe(profile: readonly number[], bg: number, from: 'start
   }
   return d[0] > 0 ? 'bright' : 'dark';
 }
-
-/** Unit vector helper kept here for tests: image direction of g for a condition. */
-export function gImageDirection(c: ResolvedCondition): [number, number] {
-  const x = dot(c.g_cart, c.frame.ex);
-  const y = dot(c.g_cart, c.frame.ey);
-  const l = Math.hypot(x, y);
-  return [x / l, y / l];
-}
-

@@ -12,7 +12,7 @@ import type { InclusionSpec, Scenario } from '../scenario/types.js';
 import { resolveCondition } from '../imaging/resolveCondition.js';
 import { referenceFrame } from '../imaging/scenarioFrame.js';
 import { imagePointToCrystal } from '../geometry/frames.js';
-import { renderJob } from '../imaging/renderScenario.js';
+import { background, renderJob } from '../imaging/renderScenario.js';
 import { columnEvaluator } from '../imaging/renderRows.js';
 
 export type Lobe = '+g side' | '-g side' | 'neither';
@@ -64,11 +64,8 @@ function lobes(sc: Scenario, d: InclusionSpec, c: ReturnType<typeof resolveCondi
     model: { fields: [{ kind: 'inclusion' as const, centre_nm: centre, radius_nm: d.radius_nm, strain, poissonRatio: sc.material.elastic.poissonRatio }], surfaces: [] },
   };
   const ev = columnEvaluator(job);
-  const perfect = columnEvaluator({ ...job, model: { fields: [], surfaces: [] } });
   const a = new Float64Array(4);
-  perfect.column(a, 0, 0);
-  const bg0 = a[0] ** 2 + a[1] ** 2;
-  const bgg = a[2] ** 2 + a[3] ** 2;
+  const { bf: bg0, df: bgg } = background(job);
   const sum = { bfP: 0, bfM: 0, dfP: 0, dfM: 0, nP: 0, nM: 0 };
   for (let j = -half; j <= half; j++) {
     for (let i = -half; i <= half; i++) {

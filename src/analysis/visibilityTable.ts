@@ -2,8 +2,7 @@
 import type { Vec3 } from '../math/vec3.js';
 import type { Scenario } from '../scenario/types.js';
 import { judge, type VisibilityEntry } from './visibility.js';
-import { directionToCartesian } from '../crystal/lattice.js';
-import { shockleySplit } from '../elasticity/dissociation.js';
+import { dissociationPair } from '../imaging/fieldSpecs.js';
 
 export interface VisibilityRow {
   readonly subject: string;
@@ -30,7 +29,7 @@ export function visibilityTable(sc: Scenario): VisibilityRow[] {
       lines.push(d.line);
     } else if (d.type === 'dissociated') {
       rows.push(make(`${d.label} (perfect b)`, 'defect', d.b, d.line));
-      const pair = shockleySplit({ lattice: l, b: d.b, planeNormal: d.plane, lineCartesian: directionToCartesian(l, d.line) });
+      const pair = dissociationPair(sc.material, d);
       rows.push(make(`${d.label}, partial 1`, 'defect', pair.b1, d.line));
       rows.push(make(`${d.label}, partial 2`, 'defect', pair.b2, d.line));
       lines.push(d.line);

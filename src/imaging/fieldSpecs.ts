@@ -16,7 +16,7 @@ import type { DisplacementField } from '../elasticity/field.js';
 import { superpose } from '../elasticity/field.js';
 import { straightDislocation, dislocationFrame } from '../elasticity/straightDislocation.js';
 import { sphericalInclusion } from '../elasticity/inclusion.js';
-import { ribbonWidth_nm, shockleySplit } from '../elasticity/dissociation.js';
+import { ribbonWidth_nm, shockleySplit, type ShockleyPair } from '../elasticity/dissociation.js';
 import { InputError } from '../errors.js';
 
 export interface DislocationFieldSpec {
@@ -120,19 +120,31 @@ export function defectModel(sc: Scenario): DefectModel {
   return { fields, surfaces };
 }
 
-/** The two Shockley partials of a dissociated dislocation, each with its cut along the ribbon (intrinsic fault between them). */
-function dissociatedPartials(m: Material, d: Extract<DefectSpec, { type: 'dissociated' }>, ref: ImageFrame) {
+type DissociatedDefect = Extract<DefectSpec, { type: 'dissociated' }>;
+
+/** The two Shockley partials (in the order that makes the fault between them intrinsic) of a dissociated defect. */
+export function dissociationPair(m: Material, d: DissociatedDefect): ShockleyPair {
   const l = m.lattice;
-  let pair;
   try {
-    pair = shockleySplit({ lattice: l, b: d.b, planeNormal: d.plane, lineCartesian: directionToCartesian(l, d.line) });
+    return shockleySplit({ lattice: l, b: d.b, planeNormal: d.plane, lineCartesian: directionToCartesian(l, d.line) });
   } catch (e) {
     if (e instanceof InputError) throw new InputError(`${d.label}: ${e.message}`);
     throw e;
   }
-  const width =
+}
+
+/** Width of the ribbon a dissociated defect gets (nm): as given, or the isotropic equilibrium width. */
+export function dissociationWidth_nm(m: Material, d: DissociatedDefect, pair: ShockleyPair = dissociationPair(m, d)): number {
+  return (
     d.separation_nm ??
-    ribbonWidth_nm(pair.b1_nm, pair.b2_nm, pair.line, m.elastic.shearModulus_GPa, m.elastic.poissonRatio, m.stackingFaultEnergy_mJ_per_m2 as number);
+    ribbonWidth_nm(pair.b1_nm, pair.b2_nm, pair.line, m.elastic.shearModulus_GPa, m.elastic.poissonRatio, m.stackingFaultEnergy_mJ_per_m2 as number)
+  );
+}
+
+/** The two Shockley partials of a dissociated dislocation, each with its cut along the ribbon (intrinsic fault between them). */
+function dissociatedPartials(m: Material, d: DissociatedDefect, ref: ImageFrame) {
+  const pair = dissociationPair(m, d);
+  const width = dissociationWidth_nm(m, d, pair);
   const centre = imagePointToCrystal(ref, d.point_nm);
   const p1 = add(centre, scale(pair.ribbonDirection, -width / 2));
   const p2 = add(centre, scale(pair.ribbonDirection, width / 2));
@@ -141,14 +153,6 @@ function dissociatedPartials(m: Material, d: Extract<DefectSpec, { type: 'dissoc
     dislocationWithCut(pair.b1_nm, pair.line, p1, nu, pair.ribbonDirection, d.core_nm),
     dislocationWithCut(pair.b2_nm, pair.line, p2, nu, pair.ribbonDirection, d.core_nm),
   ];
-}
-
-/** Width of the ribbon a dissociated defect will get (nm). */
-export function dissociationWidth_nm(m: Material, d: Extract<DefectSpec, { type: 'dissociated' }>): number {
-  if (d.separation_nm !== undefined) return d.separation_nm;
-  const l = m.lattice;
-  const pair = shockleySplit({ lattice: l, b: d.b, planeNormal: d.plane, lineCartesian: directionToCartesian(l, d.line) });
-  return ribbonWidth_nm(pair.b1_nm, pair.b2_nm, pair.line, m.elastic.shearModulus_GPa, m.elastic.poissonRatio, m.stackingFaultEnergy_mJ_per_m2 as number);
 }
 
 /** The combined displacement field, or null when no defect has a field. */

@@ -10,6 +10,7 @@ import { reflectionParameters } from '../scattering/reflection.js';
 import type { Condition, Scenario, BeamSet } from '../scenario/types.js';
 import type { ImageFrame } from '../geometry/frames.js';
 import { scenarioFrame } from './scenarioFrame.js';
+import { weakBeamDeviation } from '../dynamics/manyBeamSystematicRow.js';
 
 export interface ResolvedCondition {
   readonly id: string;
@@ -48,7 +49,7 @@ export function resolveCondition(sc: Scenario, c: Condition): ResolvedCondition 
       break;
     case 'weakBeam':
       // Ewald sphere through n g (physics.md section 4; Cockayne, Ray & Whelan 1969)
-      s = ((c.deviation.n - 1) * r.lambda_nm * r.g_per_nm * r.g_per_nm) / 2;
+      s = weakBeamDeviation(c.deviation.n, r.lambda_nm, r.g_per_nm);
       src = `g(${c.deviation.n}g)`;
       break;
   }
