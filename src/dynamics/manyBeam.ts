@@ -53,7 +53,7 @@
  * execution (do not share one between concurrently running integrations).
  */
 import { InputError } from '../errors.js';
-import { blochWaves, incidentVector } from './blochWaves.js';
+import { blochWaves } from './blochWaves.js';
 import type { ManyBeamInput } from './manyBeamStructureMatrix.js';
 
 /** Precomputed data of one beam set for many columns. */
@@ -159,21 +159,9 @@ function prepare(input: ManyBeamInput, factors: Float64Array, strainDim: 1 | 3, 
   }
   const waves = blochWaves(input, options.incident);
   const n = waves.n;
-  const phi0 = incidentVector(n, options.incident);
-  const psi0Re = new Float64Array(n);
-  const psi0Im = new Float64Array(n);
-  for (let j = 0; j < n; j++) {
-    let sr = 0;
-    let si = 0;
-    for (let i = 0; i < n; i++) {
-      const a = waves.cInvRe[j * n + i];
-      const b = waves.cInvIm[j * n + i];
-      sr += a * phi0[2 * i] - b * phi0[2 * i + 1];
-      si += a * phi0[2 * i + 1] + b * phi0[2 * i];
-    }
-    psi0Re[j] = sr;
-    psi0Im[j] = si;
-  }
+  // the Bloch-wave excitations C^-1 phi(0) are the state at the entrance surface
+  const psi0Re = waves.excitationRe;
+  const psi0Im = waves.excitationIm;
   // M = C^-1 diag(n_j) C for a systematic row
   const mRe = new Float64Array(strainDim === 1 ? n * n : 0);
   const mIm = new Float64Array(strainDim === 1 ? n * n : 0);

@@ -60,15 +60,4 @@ export function applySlab(state: Float64Array, p: TwoBeamParams, sEff: number, D
   stepSlice(state, 0, 1 / p.xi_nm, 1 / p.xiAbs_nm, sEff, 0, D_nm, 1 / p.xiAbs0_nm);
 }
 
-/**
- * Multiplies state[0..3] in place by the fault matrix diag(1, e^{+i alpha}),
- * alpha = 2 pi g.(R_below - R_above) in radians.
- */
-export function applyFaultPhase(state: Float64Array, alpha_rad: number): void {
-  const c = Math.cos(alpha_rad);
-  const sn = Math.sin(alpha_rad);
-  const gr = state[2];
-  const gi = state[3];
-  state[2] = c * gr - sn * gi;
-  state[3] = c * gi + sn * gr;
-}
+export { applyFaultPhase } from './twoBeamKernel.js';

@@ -61,7 +61,7 @@
  */
 
 import { checkThickness, checkTwoBeamParams, type TwoBeamParams } from './twoBeamParams.js';
-import { stepSlice } from './twoBeamKernel.js';
+import { applyFaultPhase, stepSlice } from './twoBeamKernel.js';
 
 /** Counters added to (not reset) by integrateColumn. */
 export interface ColumnStats {
@@ -169,12 +169,7 @@ export function integrateColumn(
     if (zf > z) hCarry = segment(z, zf, hCarry, qr, qi, s, invXi0, betaPrime, tolLen, maxSlice_nm);
     z = zf;
     // F(alpha) = diag(1, e^{+i alpha}) on (phi0, phig): see the header.
-    const c = Math.cos(faults[k + 1]);
-    const sn = Math.sin(faults[k + 1]);
-    const gr = W[2];
-    const gi = W[3];
-    W[2] = c * gr - sn * gi;
-    W[3] = c * gi + sn * gr;
+    applyFaultPhase(W, faults[k + 1]);
   }
   if (t_nm > z) segment(z, t_nm, hCarry, qr, qi, s, invXi0, betaPrime, tolLen, maxSlice_nm);
 

@@ -116,3 +116,16 @@ export function stepSlice(
   st[o + 2] = cp * ngr - sp * ngi;
   st[o + 3] = cp * ngi + sp * ngr;
 }
+
+/**
+ * Multiplies state[0..3] in place by the fault matrix diag(1, e^{+i alpha}),
+ * alpha = 2 pi g.(R_below - R_above) in radians.
+ */
+export function applyFaultPhase(state: Float64Array, alpha_rad: number): void {
+  const c = Math.cos(alpha_rad);
+  const sn = Math.sin(alpha_rad);
+  const gr = state[2];
+  const gi = state[3];
+  state[2] = c * gr - sn * gi;
+  state[3] = c * gi + sn * gr;
+}
