@@ -13,6 +13,7 @@
  * Cij by the Voigt-Reuss-Hill average; they are not read from the input.
  */
 import { InputError } from '../errors.js';
+import { fail, isObject } from '../scenario/check.js';
 import type { Vec3 } from '../math/vec3.js';
 import { type Lattice, makeLattice } from './lattice.js';
 import type { ElasticConstants, Elasticity, Material, Site } from './material.js';
@@ -54,16 +55,9 @@ const ELEMENT_EXAMPLES: Readonly<Record<StructureLabel, readonly string[]>> = {
   rocksalt: ['Mg', 'O'],
 };
 
-function fail(path: string, problem: string): never {
-  throw new InputError(`${path}: ${problem}`);
-}
-
-function isObj(v: unknown): v is Obj {
-  return typeof v === 'object' && v !== null && !Array.isArray(v);
-}
 
 function object(v: unknown, path: string, what: string): Obj {
-  return isObj(v) ? v : fail(path, `must be an object (${what}).`);
+  return isObject(v) ? v : fail(path, `must be an object (${what}).`);
 }
 
 function onlyKeys(o: Obj, path: string, allowed: readonly string[]): void {

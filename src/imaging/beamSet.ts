@@ -12,7 +12,7 @@ import type { Vec3 } from '../math/vec3.js';
 import { dot, norm, scale, sub, unit } from '../math/vec3.js';
 import { planeNormalToCartesian } from '../crystal/lattice.js';
 import type { ManyBeamInput } from '../dynamics/manyBeamStructureMatrix.js';
-import { opticalPotential_per_nm2 } from '../scattering/reflection.js';
+import { normalAbsorption_per_nm2, opticalPotential_per_nm2 } from '../scattering/reflection.js';
 import type { Scenario } from '../scenario/types.js';
 import type { ResolvedCondition } from './resolveCondition.js';
 import { InputError } from '../errors.js';
@@ -73,7 +73,7 @@ export function generalBeamSet(sc: Scenario, c: ResolvedCondition, beams: readon
   for (let i = 0; i < n; i++) {
     for (let j = 0; j < n; j++) {
       if (i === j) {
-        aRe[i * n + j] = Number.isFinite(c.xiAbs0_nm) ? K / c.xiAbs0_nm : 0;
+        aRe[i * n + j] = normalAbsorption_per_nm2(c.lambda_nm, c.xiAbs0_nm);
         continue;
       }
       const d: Vec3 = [hkl[i][0] - hkl[j][0], hkl[i][1] - hkl[j][1], hkl[i][2] - hkl[j][2]];

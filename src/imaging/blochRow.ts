@@ -17,7 +17,7 @@ import { InputError } from '../errors.js';
 import { blochWaves, type BlochWaves } from '../dynamics/blochWaves.js';
 import type { ManyBeamInput } from '../dynamics/manyBeamStructureMatrix.js';
 import { systematicRowInput, systematicRowOrders, type ComplexPair } from '../dynamics/manyBeamSystematicRow.js';
-import { opticalPotential_per_nm2, reflectionParameters, type ReflectionParameters } from '../scattering/reflection.js';
+import { normalAbsorption_per_nm2, opticalPotential_per_nm2, reflectionParameters, type ReflectionParameters } from '../scattering/reflection.js';
 
 /** Largest beam count accepted (a systematic row -20..20). */
 export const MAX_BEAMS = 41;
@@ -61,8 +61,7 @@ export function rowOrders(beams: number): { nMin: number; nMax: number } {
 export function blochRow(material: Material, hkl: Vec3, kV: number, absorptionRatio: number, beams: number): BlochRow {
   const { nMin, nMax } = rowOrders(beams);
   const reflection = reflectionParameters(material, hkl, kV, { absorptionRatio });
-  const K = 1 / reflection.lambda_nm;
-  const u0abs = Number.isFinite(reflection.xiAbs0_nm) ? K / reflection.xiAbs0_nm : 0;
+  const u0abs = normalAbsorption_per_nm2(reflection.lambda_nm, reflection.xiAbs0_nm);
   const cacheU = new Map<number, ComplexPair>();
   const cacheA = new Map<number, ComplexPair>();
   const coefficients = (m: number): void => {

@@ -12,6 +12,3 @@ export const SPEED_OF_LIGHT_m_per_s = 299792458;
 export const ELEMENTARY_CHARGE_C = 1.602176634e-19;
 /** Electron rest mass m_e in kg (recommended value). */
 export const ELECTRON_MASS_kg = 9.1093837015e-31;
-/** Electron rest energy m_e c^2 in keV, derived from the constants above. */
-export const ELECTRON_REST_ENERGY_keV =
-  (ELECTRON_MASS_kg * SPEED_OF_LIGHT_m_per_s * SPEED_OF_LIGHT_m_per_s) / ELEMENTARY_CHARGE_C / 1e3;

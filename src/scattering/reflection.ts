@@ -125,6 +125,14 @@ export function opticalPotential_per_nm2(material: Material, hkl: Vec3, kV: numb
   return { re, im, absRe: absorptionRatio * re, absIm: absorptionRatio * im };
 }
 
+/**
+ * Normal absorption U'_0 (nm^-2) that gives the absorption length xi'_0 in the
+ * two-beam equations: 1/xi'_0 = U'_0 / K with K = 1/lambda (0 without absorption).
+ */
+export function normalAbsorption_per_nm2(lambda_nm: number, xiAbs0_nm: number): number {
+  return 1 / lambda_nm / xiAbs0_nm; // K / xi'_0, as the callers wrote it
+}
+
 /** Two-beam parameters of reflection hkl at kV kilovolts; InputError for 000 or a forbidden reflection. */
 export function reflectionParameters(material: Material, hkl: Vec3, kV: number, options: ReflectionOptions = {}): ReflectionParameters {
   checkMillerIndices(hkl);

@@ -10,6 +10,7 @@ import { parseIndices, parseVectorWithFraction } from '../crystal/indices.js';
 import { directionFromFour, planeFromFour } from '../crystal/millerBravais.js';
 import { directionToCartesian, planeNormalToCartesian, usesFourIndices } from '../crystal/lattice.js';
 import { reflectionParameters } from '../scattering/reflection.js';
+import { constrainedStrain } from '../elasticity/inclusion.js';
 import { parseFamily } from '../crystal/symmetry.js';
 import { InputError } from '../errors.js';
 import { array, fail, isObject, joinPath, number, object, onlyKeys, required, string } from './check.js';
@@ -237,9 +238,8 @@ function readDefect(v: unknown, path: string, m: Material, thickness_nm: number,
       if ((o.misfit === undefined) === (o.strain === undefined)) fail(path, 'must give exactly one of "misfit" (delta) and "strain" (constrained strain eps)');
       if (o.misfit !== undefined) {
         const misfit = number(o.misfit, at('misfit'), { min: -0.2, max: 0.2 });
-        const nu = m.elastic.poissonRatio;
         // eps = delta (1 + nu) / (3 (1 - nu)) (Eshelby; Ashby & Brown 1963)
-        return { type, label: label('inclusion'), centre_nm, radius_nm, strain: (misfit * (1 + nu)) / (3 * (1 - nu)), misfit };
+        return { type, label: label('inclusion'), centre_nm, radius_nm, strain: constrainedStrain(misfit, m.elastic.poissonRatio), misfit };
       }
       return { type, label: label('inclusion'), centre_nm, radius_nm, strain: number(o.strain, at('strain'), { min: -0.2, max: 0.2 }) };
     }
