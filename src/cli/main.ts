@@ -1,16 +1,8 @@
 #!/usr/bin/env node
 /** The thinfoil command line. */
 import { Command, CommanderError } from 'commander';
-import { action, EXIT_USER } from './run.js';
+import { action, EXIT_USER, reportAndExit } from './run.js';
 import { parseAbsorption, parseKv } from './options.js';
-import { reflectionCommand } from './reflectionCommand.js';
-import { materialsCommand } from './materialsCommand.js';
-import { renderCommand } from './renderCommand.js';
-import { visibilityCommand } from './visibilityCommand.js';
-import { demoCommand } from './demoCommand.js';
-import { faultCommand } from './faultCommand.js';
-import { blochCommand } from './blochCommand.js';
-import { identifyCommand } from './identifyCommand.js';
 import { InputError } from '../errors.js';
 
 // a closed pipe (`thinfoil ... | head`) ends the program quietly
@@ -27,33 +19,43 @@ program
   .exitOverride()
   .configureOutput({ writeErr: (s) => process.stderr.write(s) });
 
-const lazy = <T>(parse: (s: string) => T) => (s: string) => {
+/** An option parser whose InputError ends the program like any user error. */
+const userOption = <T>(parse: (s: string) => T) => (s: string) => {
   try {
     return parse(s);
   } catch (e) {
-    if (e instanceof InputError) {
-      process.stderr.write(`thinfoil: ${e.message}\n`);
-      process.exit(EXIT_USER);
-    }
+    if (e instanceof InputError) reportAndExit(e);
     throw e;
   }
 };
+
+/**
+ * The action of a command whose module is loaded only when that command runs,
+ * so that `materials` or `--help` do not load the renderer, the graphics or
+ * the image readers.
+ */
+type Loaded = Record<string, (...args: any[]) => Promise<void> | void>;
+const run = (load: () => Promise<unknown>, name: string) =>
+  action(async (...args: unknown[]) => {
+    const m = (await load()) as Loaded;
+    await m[name](...args);
+  });
 
 program
   .command('reflection')
   .description('two-beam parameters of one reflection: d, |g|, Bragg angle, |F_g|, xi_g, xi\'_g')
   .argument('<material>', 'material name from `thinfoil materials`')
   .argument('<indices>', 'reflection, e.g. 1,1,1 or "2 0 0"; four indices for hexagonal crystals')
-  .option('--kv <kV>', 'accelerating voltage in kV', lazy(parseKv), 200)
-  .option('--absorption <r>', "absorption ratio xi_g/xi'_g", lazy(parseAbsorption), 0.1)
+  .option('--kv <kV>', 'accelerating voltage in kV', userOption(parseKv), 200)
+  .option('--absorption <r>', "absorption ratio xi_g/xi'_g", userOption(parseAbsorption), 0.1)
   .option('--json', 'one JSON object on stdout')
-  .action(action(reflectionCommand));
+  .action(run(() => import('./reflectionCommand.js'), 'reflectionCommand'));
 
 program
   .command('materials')
   .description('list the material library')
   .option('--json', 'JSON on stdout')
-  .action(action(materialsCommand));
+  .action(run(() => import('./materialsCommand.js'), 'materialsCommand'));
 
 program
   .command('render')
@@ -61,36 +63,36 @@ program
   .argument('<scenario>', 'scenario file (JSON)')
   .option('--out <dir>', 'output folder (default out/<scenario name>)')
   .option('--json', 'one JSON object on stdout listing the images')
-  .action(action(renderCommand));
+  .action(run(() => import('./renderCommand.js'), 'renderCommand'));
 
 program
   .command('visibility')
   .description('g.b and g.(b x u) of every defect and candidate under every condition, with verdicts')
   .argument('<scenario>', 'scenario file (JSON)')
   .option('--json', 'JSON on stdout')
-  .action(action(visibilityCommand));
+  .action(run(() => import('./visibilityCommand.js'), 'visibilityCommand'));
 
 program
   .command('bloch')
   .description('Bloch waves of a perfect crystal (two-beam or systematic row): table, thickness profile, rocking curve and wave intensity across the planes, as CSV and PNG/SVG plots')
   .argument('<material>', 'material name from `thinfoil materials`')
   .argument('<indices>', 'reflection g, e.g. 1,1,1 or "2 0 0"; four indices for hexagonal crystals')
-  .option('--kv <kV>', 'accelerating voltage in kV', lazy(parseKv), 200)
-  .option('--absorption <r>', "absorption ratio xi_g/xi'_g", lazy(parseAbsorption), 0.1)
+  .option('--kv <kV>', 'accelerating voltage in kV', userOption(parseKv), 200)
+  .option('--absorption <r>', "absorption ratio xi_g/xi'_g", userOption(parseAbsorption), 0.1)
   .option('--s <s>', 'deviation parameter s of g in nm^-1 (default 0)')
   .option('--w <w>', 'deviation as w = s xi_g (instead of --s)')
   .option('--beams <N>', '2 (two-beam) or an odd number 3..41 (systematic row -m g .. m g)', '2')
   .option('--thickness <nm>', 'range of the thickness profile and thickness of the rocking curve, nm (default 3 xi_g)')
   .option('--out <dir>', 'output folder (default out/bloch-<material>-<hkl>)')
   .option('--json', 'one JSON object on stdout')
-  .action(action(blochCommand));
+  .action(run(() => import('./blochCommand.js'), 'blochCommand'));
 
 program
   .command('fault')
   .description('fault nature (intrinsic / extrinsic outer fringes) and inclusion misfit sign, by simulation')
   .argument('<scenario>', 'scenario file (JSON)')
   .option('--json', 'JSON on stdout')
-  .action(action(faultCommand));
+  .action(run(() => import('./faultCommand.js'), 'faultCommand'));
 
 const collect = (v: string, prev: string[]) => [...prev, v];
 program
@@ -104,23 +106,23 @@ program
   .option('--top <n>', 'leading candidates fully registered, resampled and shown (default 4)')
   .option('--bootstrap <n>', 'bootstrap copies for the noise of the scores (default 50)')
   .option('--seed <n>', 'seed of the bootstrap (default 1)')
-  .action(action(identifyCommand));
+  .action(run(() => import('./identifyCommand.js'), 'identifyCommand'));
 
 program
   .command('demo')
   .description('render the built-in invented demo scenario into out/demo')
   .option('--out <dir>', 'output folder', 'out/demo')
-  .action(action(demoCommand));
+  .action(run(() => import('./demoCommand.js'), 'demoCommand'));
 
-/** Options that take a value: the token after them is never a positional argument. */
-const VALUE_OPTIONS = new Set(['--kv', '--absorption', '--s', '--w', '--beams', '--thickness', '--out', '--micrograph', '--defect', '--top', '--bootstrap', '--seed']);
+/** Options that take a value (from the declarations above): the token after them is never a positional argument. */
+const VALUE_OPTIONS = new Set(program.commands.flatMap((c) => c.options.filter((o) => o.required || o.optional).map((o) => o.long ?? '')));
 
 /**
  * Indices may start with a minus sign ("-1,1,1"); commander would take such a
  * positional argument for an unknown option. Prefix it with a space (the index
  * parsers ignore surrounding white space).
  */
-export function protectNegativeIndices(argv: readonly string[]): string[] {
+function protectNegativeIndices(argv: readonly string[]): string[] {
   return argv.map((a, i) => (/^-[0-9.]/.test(a) && !VALUE_OPTIONS.has(argv[i - 1] ?? '') ? ` ${a}` : a));
 }
 
