@@ -23,7 +23,7 @@ import type { PreparedMicrograph } from './identifyMicrographs.js';
 import { seededRandom } from './identifyRandom.js';
 import { gaussianBlur, removePlane } from './preprocess.js';
 import { blockResample, correlationLength, decide, DEFAULT_SIGMAS, DEFAULT_SPREAD, fitAmplitudes, pairStats, type PairStats, type Verdict } from './ranking.js';
-import { createCorrelator, extractWindow, findPeak, register, type Correlator, type PreparedTemplate, type RegistrationOptions, type RegistrationResult } from './registration.js';
+import { DEFAULT_MAX_ROTATION_DEG, DEFAULT_MAX_SCALE, createCorrelator, extractWindow, findPeak, register, type Correlator, type PreparedTemplate, type RegistrationOptions, type RegistrationResult } from './registration.js';
 
 /** Renders a scenario (one condition) into its images; the CLI passes renderScenario with one shared pool. */
 export type Renderer = (sc: Scenario) => Promise<readonly ConditionImages[]>;
@@ -193,14 +193,16 @@ export async function identify(sc: Scenario, micrographs: readonly PreparedMicro
       };
     }),
   }));
-  // registrations of the best candidate that ended at a search limit (rotation 5 deg, scale 5 %): a sign of a
-  // wrong pixel size or g angle, or of a candidate that does not fit
+  // registrations of the best candidate that ended at a search limit: a sign of a wrong pixel size or g angle,
+  // or of a candidate that does not fit
   const best = ranking[0];
+  const maxR = regOpts.maxRotation_deg ?? DEFAULT_MAX_ROTATION_DEG;
+  const maxS = regOpts.maxScale ?? DEFAULT_MAX_SCALE;
   const atLimit = best
-    ? best.perCondition.filter((p) => Math.abs(p.rotation_deg) >= 5 - 1e-6 || Math.abs(p.scale - 1) >= 0.05 - 1e-6).map((p) => p.condition)
+    ? best.perCondition.filter((p) => Math.abs(p.rotation_deg) >= maxR - 1e-6 || Math.abs(p.scale - 1) >= maxS - 1e-6).map((p) => p.condition)
     : [];
   const limitNote = atLimit.length
-    ? ` Registration of the best candidate ended at the edge of its search range (rotation 5 degrees or scale 5 %) for ${atLimit.join(', ')}; the scale of images of straight lines is only weakly constrained, but if the pixel size or the direction of g there may be wrong, check them.`
+    ? ` Registration of the best candidate ended at the edge of its search range (rotation ${maxR} degrees or scale ${100 * maxS} %) for ${atLimit.join(', ')}; the scale of images of straight lines is only weakly constrained, but if the pixel size or the direction of g there may be wrong, check them.`
     : '';
   return {
     scenario: sc.name,

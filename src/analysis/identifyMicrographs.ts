@@ -47,7 +47,6 @@ export interface PreparedMicrograph {
   readonly margin: number;
   /** Direction of g in the micrograph and in the scenario's own simulation (screen degrees, counter-clockwise from +x). */
   readonly gAngle_deg: number;
-  readonly simAngle_deg: number;
 }
 
 /** Largest working side (pixels) chosen by the automatic binning. */
@@ -127,7 +126,6 @@ function prepareOne(sc: Scenario, m: MicrographInput, s: MicrographSettings): Pr
 
   const maxShift_nm = s.maxShift_nm ?? 0.2 * Math.min(image.width, image.height) * pixel_nm;
   const margin = Math.min(Math.max(image.width, image.height), Math.ceil(maxShift_nm / pixel_nm - 1e-9));
-  const simAngle_deg = simulatedGAngle_deg(sc, condition);
   return {
     conditionId: id,
     condition,
@@ -145,7 +143,6 @@ function prepareOne(sc: Scenario, m: MicrographInput, s: MicrographSettings): Pr
     image,
     contrast,
     margin,
-    gAngle_deg: s.gAngle_deg ?? simAngle_deg,
-    simAngle_deg,
+    gAngle_deg: s.gAngle_deg ?? simulatedGAngle_deg(sc, condition),
   };
 }

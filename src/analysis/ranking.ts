@@ -30,6 +30,8 @@
  * and the candidates it does not exclude.
  */
 
+import { sig } from '../format.js';
+
 /** Dot products of one micrograph (c) with one registered simulation window (s). */
 export interface PairStats {
   readonly cs: number;
@@ -199,7 +201,7 @@ export function decide(labels: readonly string[], scores: readonly number[], rep
     `A candidate is excluded when its score is below the best by more than ${sigmas} standard deviations of the gap ` +
     `(estimated from ${B} bootstrap copies of the micrographs: the best candidate's fitted image plus its residual resampled in blocks, registration shift re-optimised) ` +
     `and by more than ${floor} (the registration's own precision). The best candidate is identified only when it excludes every other candidate.`;
-  const fmt = (x: number) => Number(x.toPrecision(3)).toString();
+  const fmt = (x: number) => sig(x, 3);
   const statement =
     decision === 'identified'
       ? `${labels[0]} explains the micrographs best; the runner-up ${runner ? `(${runner.candidate}) scores ${fmt(gap)} lower, ${gapSigma > 0 ? `${fmt(gap / gapSigma)} standard deviations of the pixel noise` : 'beyond the pixel noise'}` : 'does not exist'}. The noise estimate covers the micrographs' pixel noise only, not errors of the model or of the stated thickness, deviation, depth and angles.`

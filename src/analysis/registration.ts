@@ -24,6 +24,10 @@
 import { bilinear } from './preprocess.js';
 import { fft2d, nextPow2, type Fft2d } from './registrationFft.js';
 
+/** Default search range of the rotation (degrees, either sense) and of the relative scale change. */
+export const DEFAULT_MAX_ROTATION_DEG = 5;
+export const DEFAULT_MAX_SCALE = 0.05;
+
 export interface RegistrationOptions {
   /** Largest rotation searched, degrees (default 5). */
   readonly maxRotation_deg?: number;
@@ -259,8 +263,8 @@ export interface RegistrationResult extends Registration {
  * 1 +- maxScale.
  */
 export function register(cor: Correlator, tpl: PreparedTemplate, sim: ArrayLike<number>, opts: RegistrationOptions = {}): RegistrationResult {
-  const maxR = opts.maxRotation_deg ?? 5;
-  const maxS = opts.maxScale ?? 0.05;
+  const maxR = opts.maxRotation_deg ?? DEFAULT_MAX_ROTATION_DEG;
+  const maxS = opts.maxScale ?? DEFAULT_MAX_SCALE;
   const minStepR = opts.rotationStep_deg ?? 0.25;
   const minStepS = opts.scaleStep ?? 0.0025;
   const W = cor.imageWidth;

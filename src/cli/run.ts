@@ -40,9 +40,4 @@ export function table(header: readonly string[], rows: readonly (readonly string
   return [line(header), line(w.map((n) => '-'.repeat(n))), ...rows.map(line)].join('\n') + '\n';
 }
 
-/** Round to a number of significant digits for display. */
-export function sig(x: number, digits = 4): string {
-  if (!Number.isFinite(x)) return String(x);
-  if (x === 0) return '0';
-  return Number(x.toPrecision(digits)).toString();
-}
+export { sig } from '../format.js';

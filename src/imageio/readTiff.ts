@@ -27,7 +27,8 @@ interface UtifApi {
   decodeImage(buffer: ArrayBuffer, ifd: UtifIfd): void;
 }
 const require = createRequire(import.meta.url);
-const UTIF = require('utif') as UtifApi;
+/** utif (and pako behind it) is loaded on the first compressed file, not at start-up. */
+let utif: UtifApi | undefined;
 
 /** Field tags (TIFF 6.0, sections 8, 14, 15, 19). */
 const T = {
@@ -154,7 +155,8 @@ function decompressWithUtif(bytes: Uint8Array, L: Layout, damaged: (why: string)
   const whole = bytes.byteOffset === 0 && bytes.byteLength === bytes.buffer.byteLength;
   const buffer = (whole ? bytes.buffer : new Uint8Array(bytes).buffer) as ArrayBuffer;
   try {
-    UTIF.decodeImage(buffer, ifd);
+    utif ??= require('utif') as UtifApi;
+    utif.decodeImage(buffer, ifd);
   } catch (err) {
     throw damaged(`the pixel data cannot be decompressed: ${err instanceof Error ? err.message : String(err)}`);
   }

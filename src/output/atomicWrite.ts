@@ -11,7 +11,6 @@
  * `protectedPaths` and the write is refused if the destination is one of them.
  */
 import fs from 'node:fs';
-import fsp from 'node:fs/promises';
 import path from 'node:path';
 import { randomBytes } from 'node:crypto';
 import { InputError } from '../errors.js';
@@ -101,18 +100,18 @@ function fsyncDirSync(dir: string): void {
   }
 }
 
-/**
- * Write `data` (bytes, or a string written as UTF-8) to `target` atomically,
- * creating parent folders as needed. Synchronous: when it returns, the file is
- * complete on disk.
- */
+/** Kernel pseudo-file systems, where Node's recursive mkdir can spin forever. */
+function underProcOrSys(absDir: string): boolean {
+  return /^\/(proc|sys)(\/|$)/.test(absDir);
+}
+
 /**
  * Create an output folder before long work starts, so that a folder that
  * cannot be written is reported at once (InputError), not after a render.
  */
 export function ensureOutputDir(dir: string): void {
   const abs = path.resolve(dir);
-  if (/^\/(proc|sys)(\/|$)/.test(abs)) throw new InputError(`cannot write into "${dir}" (under /proc or /sys); choose an ordinary folder with --out`);
+  if (underProcOrSys(abs)) throw new InputError(`cannot write into "${dir}" (under /proc or /sys); choose an ordinary folder with --out`);
   try {
     fs.mkdirSync(abs, { recursive: true });
     fs.accessSync(abs, fs.constants.W_OK);
@@ -122,11 +121,15 @@ export function ensureOutputDir(dir: string): void {
   }
 }
 
+/**
+ * Write `data` (bytes, or a string written as UTF-8) to `target` atomically,
+ * creating parent folders as needed. Synchronous: when it returns, the file is
+ * complete on disk.
+ */
 export function writeFileAtomic(target: string, data: Uint8Array | string, options: AtomicWriteOptions = {}): void {
   const bytes = toBytes(data);
   const dir = path.dirname(path.resolve(target));
-  // kernel pseudo-file systems: Node's recursive mkdir can spin there forever
-  if (/^\/(proc|sys)(\/|$)/.test(dir)) {
+  if (underProcOrSys(dir)) {
     throw new InputError(`cannot write "${target}" under /proc or /sys; choose an ordinary folder with --out`);
   }
   let tmp: string | undefined;
@@ -157,42 +160,6 @@ export function writeFileAtomic(target: string, data: Uint8Array | string, optio
       }
     }
     if (tmp !== undefined) fs.rmSync(tmp, { force: true });
-    throw translate(err, target);
-  }
-}
-
-/** The same as writeFileAtomic, without blocking the event loop. */
-export async function writeFileAtomicAsync(
-  target: string,
-  data: Uint8Array | string,
-  options: AtomicWriteOptions = {},
-): Promise<void> {
-  const bytes = toBytes(data);
-  const dir = path.dirname(path.resolve(target));
-  let tmp: string | undefined;
-  let handle: fsp.FileHandle | undefined;
-  try {
-    await fsp.mkdir(dir, { recursive: true });
-    const linked = lstatOrUndefined(target);
-    const existing = linked === undefined ? undefined : fs.statSync(target, { throwIfNoEntry: false });
-    checkProtected(target, existing, options.protectedPaths ?? []);
-    tmp = tempPathFor(path.resolve(target));
-    handle = await fsp.open(tmp, 'wx', 0o666);
-    let off = 0;
-    while (off < bytes.length) {
-      const { bytesWritten } = await handle.write(bytes, off, bytes.length - off);
-      off += bytesWritten;
-    }
-    if (linked !== undefined && linked.isFile()) await handle.chmod(linked.mode & 0o7777);
-    await handle.sync();
-    await handle.close();
-    handle = undefined;
-    await fsp.rename(tmp, target);
-    tmp = undefined;
-    fsyncDirSync(dir);
-  } catch (err) {
-    if (handle !== undefined) await handle.close().catch(() => undefined);
-    if (tmp !== undefined) await fsp.rm(tmp, { force: true });
     throw translate(err, target);
   }
 }

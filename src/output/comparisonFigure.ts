@@ -9,6 +9,8 @@
  * Every image is contrast-stretched on its own (percentile clip, stretch.ts);
  * the caption says so, and says which micrographs are synthetic.
  */
+import { sig } from '../format.js';
+import { DEFAULT_MAX_ROTATION_DEG, DEFAULT_MAX_SCALE } from '../analysis/registration.js';
 import type { Vec3 } from '../math/vec3.js';
 import type { IdentifyResult } from '../analysis/identify.js';
 import { drawFigure, type Figure } from './graphics/figure.js';
@@ -154,7 +156,7 @@ export function drawComparison(s: Surface, data: ComparisonFigureData, L: Figure
 
   // row 0: micrographs
   const anySynthetic = data.columns.some((c) => c.synthetic);
-  rowLabel(s, L, 0, [anySynthetic ? 'micrographs' : 'micrographs', anySynthetic ? '(SYNTHETIC)' : ''], 'none');
+  rowLabel(s, L, 0, ['micrographs', anySynthetic ? '(SYNTHETIC)' : ''], 'none');
   data.columns.forEach((c, j) => {
     const { x, y } = L.cell(0, j);
     const box = drawImage(s, c.micrograph, c.width, c.height, x, y, L.cellW, L.cellH);
@@ -278,7 +280,7 @@ export function comparisonFigureData(res: IdentifyResult): ComparisonFigureData 
     id: m.conditionId,
     g: m.condition.g,
     field: m.settings.field,
-    deviation: `${m.resolved.deviationSource === 'w' ? `w = ${sig(m.resolved.w)}` : m.resolved.deviationSource === 's' ? `s = ${sig(m.resolved.s_per_nm)} /nm` : `${m.resolved.deviationSource}, s = ${sig(m.resolved.s_per_nm)} /nm`}, t = ${sig(m.resolved.frame.thickness_nm)} nm${Math.abs(m.resolved.frame.columnLength_nm - m.resolved.frame.thickness_nm) > 0.01 * m.resolved.frame.thickness_nm ? ` (column ${sig(m.resolved.frame.columnLength_nm)} nm)` : ''}`,
+    deviation: `${m.resolved.deviationSource === 'w' ? `w = ${sig(m.resolved.w, 3)}` : m.resolved.deviationSource === 's' ? `s = ${sig(m.resolved.s_per_nm, 3)} /nm` : `${m.resolved.deviationSource}, s = ${sig(m.resolved.s_per_nm, 3)} /nm`}, t = ${sig(m.resolved.frame.thickness_nm, 3)} nm${Math.abs(m.resolved.frame.columnLength_nm - m.resolved.frame.thickness_nm) > 0.01 * m.resolved.frame.thickness_nm ? ` (column ${sig(m.resolved.frame.columnLength_nm, 3)} nm)` : ''}`,
     gAngle_deg: m.gAngle_deg,
     pixel_nm: m.pixel_nm,
     width: m.width,
@@ -309,7 +311,7 @@ export function comparisonFigureData(res: IdentifyResult): ComparisonFigureData 
         : `Top row: the micrographs as given; ${synth.join(', ')} ${synth.length === 1 ? 'is' : 'are'} SYNTHETIC (made by thinfoil, not measured).`;
   const caption = [
     micrographNote,
-    `Rows below: simulated images of the ${rows.length} leading candidates (two-beam Howie-Whelan equations, column approximation, isotropic elasticity: a model, not a measurement), each registered to its micrograph (shift, rotation up to 5 degrees, scale up to 5 %). ` +
+    `Rows below: simulated images of the ${rows.length} leading candidates (two-beam Howie-Whelan equations, column approximation, isotropic elasticity: a model, not a measurement), each registered to its micrograph (shift, rotation up to ${DEFAULT_MAX_ROTATION_DEG} degrees, scale up to ${100 * DEFAULT_MAX_SCALE} %). ` +
       'Every image is contrast-stretched on its own (0.5 % of the pixels clipped at each end). Arrow: direction of g in the micrograph. ' +
       "R²: fraction of the micrograph's contrast variance explained by the simulation; score: its mean over the micrographs, with one contrast scale shared by the micrographs.",
     `Verdict: ${v.statement}`,
@@ -321,10 +323,6 @@ export function comparisonFigureData(res: IdentifyResult): ComparisonFigureData 
     rows,
     caption,
   };
-}
-
-function sig(x: number): string {
-  return Number(x.toPrecision(3)).toString();
 }
 
 /** The figure as PNG bytes and SVG text, drawn once per surface. */

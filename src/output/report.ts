@@ -6,6 +6,8 @@
  * plain statement that simulations are a model and which micrographs are
  * synthetic.
  */
+import { sig } from '../format.js';
+import { DEFAULT_MAX_ROTATION_DEG, DEFAULT_MAX_SCALE } from '../analysis/registration.js';
 import type { IdentifyResult } from '../analysis/identify.js';
 import { fmtFraction } from './comparisonFigure.js';
 
@@ -25,12 +27,6 @@ export function escapeHtml(s: string): string {
 }
 
 const e = escapeHtml;
-
-function num(x: number, digits = 4): string {
-  if (!Number.isFinite(x)) return String(x);
-  if (x === 0) return '0';
-  return Number(x.toPrecision(digits)).toString();
-}
 
 function vec(v: readonly number[]): string {
   return `(${v.map((x) => fmtFraction(x)).join(' ')})`;
@@ -60,20 +56,20 @@ export function identifyReportHtml(res: IdentifyResult, inp: ReportInputs): stri
       vec(m.condition.g),
       `[${m.condition.beam.map((x) => fmtFraction(x)).join(' ')}]`,
       m.settings.field === 'bf' ? 'bright field' : 'dark field',
-      num(r.xi_nm),
-      num(r.xiAbs_nm),
-      num(r.s_per_nm, 3),
-      num(r.w, 3),
+      sig(r.xi_nm),
+      sig(r.xiAbs_nm),
+      sig(r.s_per_nm, 3),
+      sig(r.w, 3),
       e(r.deviationSource),
-      num(r.frame.thickness_nm),
-      num(r.frame.columnLength_nm),
+      sig(r.frame.thickness_nm),
+      sig(r.frame.columnLength_nm),
       `${e(m.source)}${m.synthetic ? ' <strong>(synthetic)</strong>' : ''}`,
-      `${num(m.filePixel_nm)} (${m.pixelFrom})`,
+      `${sig(m.filePixel_nm)} (${m.pixelFrom})`,
       `[${m.crop.join(', ')}], bin ${m.bin}`,
-      `${m.width} x ${m.height} at ${num(m.pixel_nm)}`,
-      `${num(m.gAngle_deg, 3)}${m.settings.mirrored ? ', mirrored' : ''}`,
-      m.settings.intensity === 'linear' ? `linear, offset ${num(m.settings.offset)}` : 'display (scale fitted freely)',
-      num(m.settings.blur_nm),
+      `${m.width} x ${m.height} at ${sig(m.pixel_nm)}`,
+      `${sig(m.gAngle_deg, 3)}${m.settings.mirrored ? ', mirrored' : ''}`,
+      m.settings.intensity === 'linear' ? `linear, offset ${sig(m.settings.offset)}` : 'display (scale fitted freely)',
+      sig(m.settings.blur_nm),
     ];
   });
 
@@ -83,11 +79,11 @@ export function identifyReportHtml(res: IdentifyResult, inp: ReportInputs): stri
     return [
       String(i + 1),
       e(r.candidate),
-      num(r.score, 4),
-      i === 0 ? '' : num(cmp?.gap ?? NaN, 3),
-      i === 0 || cmp?.gapSigma === undefined ? '' : num(cmp.gapSigma, 2),
+      sig(r.score, 4),
+      i === 0 ? '' : sig(cmp?.gap ?? NaN, 3),
+      i === 0 || cmp?.gapSigma === undefined ? '' : sig(cmp.gapSigma, 2),
       status,
-      ...r.perCondition.map((p) => `${num(p.r2, 3)} <span class="dim">/ ${num(p.ncc, 3)}</span>`),
+      ...r.perCondition.map((p) => `${sig(p.r2, 3)} <span class="dim">/ ${sig(p.ncc, 3)}</span>`),
       r.fullySearched ? 'own' : 'from best',
     ];
   });
@@ -98,7 +94,7 @@ export function identifyReportHtml(res: IdentifyResult, inp: ReportInputs): stri
     ...r.perCondition.map((p) => {
       const vis = p.visibility;
       if (vis.quantity === '' || vis.value === undefined) return '-';
-      const extra = vis.gbxu === undefined ? '' : `, g.(b x u) = ${num(vis.gbxu, 3)}`;
+      const extra = vis.gbxu === undefined ? '' : `, g.(b x u) = ${sig(vis.gbxu, 3)}`;
       return `${fmtFraction(vis.value)} <span class="dim">${e(vis.verdict ?? '')}${extra}</span>`;
     }),
   ]);
@@ -106,12 +102,12 @@ export function identifyReportHtml(res: IdentifyResult, inp: ReportInputs): stri
   const best = res.ranking[0];
   const regRows = best.perCondition.map((p) => [
     e(p.condition),
-    `${num(p.shift_nm[0], 3)}, ${num(p.shift_nm[1], 3)}`,
-    num(p.rotation_deg, 3),
-    num(p.scale, 4),
-    num(p.amplitude, 3),
-    num(p.ncc, 3),
-    num(p.r2, 3),
+    `${sig(p.shift_nm[0], 3)}, ${sig(p.shift_nm[1], 3)}`,
+    sig(p.rotation_deg, 3),
+    sig(p.scale, 4),
+    sig(p.amplitude, 3),
+    sig(p.ncc, 3),
+    sig(p.r2, 3),
   ]);
 
   const condHead = conds.map((m) => e(m.conditionId));
@@ -145,7 +141,7 @@ ${syntheticNote}
 
 <h2>Verdict</h2>
 <p class="verdict">${v.decision === 'identified' ? '<strong>Identified:</strong> ' : '<strong>Cannot tell:</strong> '}${e(v.statement)}</p>
-<p><strong>Rule.</strong> ${e(v.rule)} Gap to the runner-up: ${num(v.gap, 3)}; bootstrap standard deviation of that gap: ${num(v.gapSigma, 2)}; gap needed: ${num(v.threshold, 3)}.</p>
+<p><strong>Rule.</strong> ${e(v.rule)} Gap to the runner-up: ${sig(v.gap, 3)}; bootstrap standard deviation of that gap: ${sig(v.gapSigma, 2)}; gap needed: ${sig(v.threshold, 3)}.</p>
 ${v.decision === 'cannot tell' ? `<p>Not excluded by the best candidate: ${v.indistinguishable.map(e).join(', ')}. More micrographs under conditions where these candidates differ (a g with different g.b for them, or the opposite sign of g or s) would separate them.</p>` : ''}
 
 <h2>Comparison figure</h2>
@@ -153,7 +149,7 @@ ${v.decision === 'cannot tell' ? `<p>Not excluded by the best candidate: ${v.ind
 ${svgNote}
 
 <h2>Ranking</h2>
-<p>Score: the mean over the micrographs of R², the fraction of the micrograph's contrast variance (relative contrast I/I<sub>background</sub> - 1, background plane removed) explained by the registered simulation times its contrast scale. One contrast scale is shared by all micrographs with linear intensities (each may differ from it by at most a factor ${num(res.settings.amplitudeSpread)}), so a candidate that predicts contrast where a micrograph shows none is penalised; R² can then be negative. Per micrograph the table shows R² / normalised cross-correlation. The ${res.settings.top} leading candidates had their own rotation and scale searched; the others use the rotation and scale found for the best of them (these belong to the micrograph), with their own shift.</p>
+<p>Score: the mean over the micrographs of R², the fraction of the micrograph's contrast variance (relative contrast I/I<sub>background</sub> - 1, background plane removed) explained by the registered simulation times its contrast scale. One contrast scale is shared by all micrographs with linear intensities (each may differ from it by at most a factor ${sig(res.settings.amplitudeSpread)}), so a candidate that predicts contrast where a micrograph shows none is penalised; R² can then be negative. Per micrograph the table shows R² / normalised cross-correlation. The ${res.settings.top} leading candidates had their own rotation and scale searched; the others use the rotation and scale found for the best of them (these belong to the micrograph), with their own shift.</p>
 ${table(['#', 'candidate', 'score', 'gap to best', 'sigma of gap', 'status', ...condHead.map((h) => `${h}: R² / NCC`), 'rotation, scale'], rankingRows)}
 
 <h2>${quantity === 'g.R' ? 'g.R' : 'g.b'} table</h2>
@@ -170,10 +166,10 @@ ${table(['condition', 'shift (nm)', 'rotation (deg)', 'scale', 'contrast scale',
 <h2>Method and settings</h2>
 <ul>
 <li>Each candidate is simulated under each micrograph's condition, with g turned to the micrograph's direction and at its pixel size, on the crop plus a margin for the shift search.</li>
-<li>Registration: normalised cross-correlation over all shifts by FFT (Lewis 1995), sub-pixel peak by parabola; rotation (up to 5 degrees) and scale (up to 5 %) by a coarse-to-fine search on the correlation peak.</li>
+<li>Registration: normalised cross-correlation over all shifts by FFT (Lewis 1995), sub-pixel peak by parabola; rotation (up to ${DEFAULT_MAX_ROTATION_DEG} degrees) and scale (up to ${100 * DEFAULT_MAX_SCALE} %) by a coarse-to-fine search on the correlation peak.</li>
 <li>Noise of the scores: ${res.settings.bootstrap} bootstrap copies of the micrographs (the best candidate's fitted image plus its residual resampled in blocks, seed ${res.settings.seed}); each leading candidate re-registered (shift) and re-scored on every copy.</li>
-<li>Exclusion rule: gap &gt; ${num(res.settings.sigmas)} standard deviations of the bootstrap gap and &gt; 0.002.</li>
-<li>Time: simulation ${num(res.seconds.render, 3)} s, registration ${num(res.seconds.register, 3)} s, bootstrap ${num(res.seconds.bootstrap, 3)} s.</li>
+<li>Exclusion rule: gap &gt; ${sig(res.settings.sigmas)} standard deviations of the bootstrap gap and &gt; 0.002.</li>
+<li>Time: simulation ${sig(res.seconds.render, 3)} s, registration ${sig(res.seconds.register, 3)} s, bootstrap ${sig(res.seconds.bootstrap, 3)} s.</li>
 </ul>
 </body>
 </html>

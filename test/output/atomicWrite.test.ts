@@ -1,5 +1,5 @@
 /**
- * writeFileAtomic (synchronous) / writeFileAtomicAsync: temp file in the same folder, fsync,
+ * writeFileAtomic (synchronous): temp file in the same folder, fsync,
  * rename (the POSIX rename(2) replaces the destination entry atomically);
  * parent folders created; temp removed on failure; input files never modified.
  */
@@ -8,7 +8,7 @@ import os from 'node:os';
 import path from 'node:path';
 import { afterAll, describe, expect, it } from 'vitest';
 import { InputError } from '../../src/errors.js';
-import { writeFileAtomic, writeFileAtomicAsync } from '../../src/output/atomicWrite.js';
+import { writeFileAtomic } from '../../src/output/atomicWrite.js';
 
 const TMP = fs.mkdtempSync(path.join(os.tmpdir(), 'thinfoil-atomic-'));
 afterAll(() => fs.rmSync(TMP, { recursive: true, force: true }));
@@ -19,7 +19,6 @@ const leftovers = (dir: string): string[] => fs.readdirSync(dir).filter((f) => f
 type Writer = (p: string, d: Uint8Array | string, o?: { protectedPaths?: readonly string[] }) => Promise<void>;
 const WRITERS: Array<[string, Writer]> = [
   ['writeFileAtomic', async (p, d, o) => writeFileAtomic(p, d, o)],
-  ['writeFileAtomicAsync', writeFileAtomicAsync],
 ];
 
 describe.each(WRITERS)('%s', (_, write) => {
@@ -95,18 +94,5 @@ describe.each(WRITERS)('%s', (_, write) => {
     // a protected path that does not exist does not block anything
     await write(path.join(dir, 'new.json'), 'ok', { protectedPaths: [path.join(dir, 'missing')] });
     expect(fs.readFileSync(path.join(dir, 'new.json'), 'utf8')).toBe('ok');
-  });
-});
-
-describe('writeFileAtomicAsync under concurrency', () => {
-  it('parallel writers to one file leave exactly one complete version', async () => {
-    const dir = freshDir();
-    const f = path.join(dir, 'race.bin');
-    const versions = Array.from({ length: 8 }, (_, k) => new Uint8Array(200_000).fill(k + 1));
-    await Promise.all(versions.map((v) => writeFileAtomicAsync(f, v)));
-    const got = fs.readFileSync(f);
-    expect(got.length).toBe(200_000);
-    expect(got.every((b) => b === got[0])).toBe(true);
-    expect(leftovers(dir)).toEqual([]);
   });
 });
