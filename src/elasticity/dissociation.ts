@@ -159,3 +159,12 @@ export function ribbonWidth_nm(
   }
   return (1e3 * G * bracket) / (2 * Math.PI * gamma);
 }
+
+/**
+ * Points on the two partials of a ribbon of the given width centred on
+ * `centre_nm`: partial 1 at -width/2, partial 2 at +width/2 along the ribbon
+ * direction (u x n), so that the fault lies between them.
+ */
+export function ribbonPartialPoints(pair: ShockleyPair, centre_nm: Vec3, width_nm: number): [Vec3, Vec3] {
+  return [add(centre_nm, scale(pair.ribbonDirection, -width_nm / 2)), add(centre_nm, scale(pair.ribbonDirection, width_nm / 2))];
+}

@@ -6,12 +6,12 @@
  * +n side relative to the -n side), beyond partial 2 by b1 + b2 = b (a lattice
  * translation, invisible), and nowhere else. No separate fault phase is needed.
  */
-import { type Vec3, add, scale } from '../math/vec3.js';
+import type { Vec3 } from '../math/vec3.js';
 import type { Lattice } from '../crystal/lattice.js';
 import type { DisplacementField } from './field.js';
 import { superpose } from './field.js';
 import { straightDislocation } from './straightDislocation.js';
-import { type ShockleyPair, ribbonWidth_nm, shockleySplit } from './dissociation.js';
+import { type ShockleyPair, ribbonPartialPoints, ribbonWidth_nm, shockleySplit } from './dissociation.js';
 import { finiteVec3, positive } from './checks.js';
 
 export interface ShockleyRibbonOptions {
@@ -49,8 +49,7 @@ export function shockleyRibbon(opts: ShockleyRibbonOptions): ShockleyRibbon {
     opts.width_nm === undefined
       ? ribbonWidth_nm(pair.b1_nm, pair.b2_nm, pair.line, opts.shearModulus_GPa, opts.poissonRatio, opts.sfe_mJ_per_m2)
       : positive(opts.width_nm, 'ribbon width_nm', 'give the partial separation in nm or omit it for the equilibrium width');
-  const p1 = add(centre, scale(pair.ribbonDirection, -width / 2));
-  const p2 = add(centre, scale(pair.ribbonDirection, width / 2));
+  const [p1, p2] = ribbonPartialPoints(pair, centre, width);
   const common = {
     line: pair.line,
     poissonRatio: opts.poissonRatio,

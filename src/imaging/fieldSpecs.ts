@@ -6,7 +6,7 @@
  * Plain data so that worker threads can rebuild the same model.
  */
 import type { Vec3 } from '../math/vec3.js';
-import { add, cross, dot, scale, sub, unit } from '../math/vec3.js';
+import { cross, dot, scale, sub, unit } from '../math/vec3.js';
 import { directionToCartesian, planeNormalToCartesian } from '../crystal/lattice.js';
 import type { Material } from '../crystal/material.js';
 import type { DefectSpec, Scenario } from '../scenario/types.js';
@@ -16,7 +16,7 @@ import type { DisplacementField } from '../elasticity/field.js';
 import { superpose } from '../elasticity/field.js';
 import { straightDislocation, dislocationFrame } from '../elasticity/straightDislocation.js';
 import { sphericalInclusion } from '../elasticity/inclusion.js';
-import { ribbonWidth_nm, shockleySplit, type ShockleyPair } from '../elasticity/dissociation.js';
+import { ribbonPartialPoints, ribbonWidth_nm, shockleySplit, type ShockleyPair } from '../elasticity/dissociation.js';
 import { InputError } from '../errors.js';
 
 export interface DislocationFieldSpec {
@@ -146,8 +146,7 @@ function dissociatedPartials(m: Material, d: DissociatedDefect, ref: ImageFrame)
   const pair = dissociationPair(m, d);
   const width = dissociationWidth_nm(m, d, pair);
   const centre = imagePointToCrystal(ref, d.point_nm);
-  const p1 = add(centre, scale(pair.ribbonDirection, -width / 2));
-  const p2 = add(centre, scale(pair.ribbonDirection, width / 2));
+  const [p1, p2] = ribbonPartialPoints(pair, centre, width);
   const nu = m.elastic.poissonRatio;
   return [
     dislocationWithCut(pair.b1_nm, pair.line, p1, nu, pair.ribbonDirection, d.core_nm),

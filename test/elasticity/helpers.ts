@@ -1,17 +1,11 @@
 /** Small numerical helpers shared by the elasticity tests (not a test file). */
 import type { Vec3 } from '../../src/math/vec3.js';
 import type { DisplacementField } from '../../src/elasticity/field.js';
+import { seededRandom } from '../../src/analysis/identifyRandom.js';
 
-/** Deterministic pseudo-random numbers in [0, 1) (mulberry32). */
+/** Deterministic pseudo-random numbers in [0, 1) (mulberry32, the project's seeded generator). */
 export function rng(seed: number): () => number {
-  let a = seed >>> 0;
-  return () => {
-    a = (a + 0x6d2b79f5) >>> 0;
-    let t = a;
-    t = Math.imul(t ^ (t >>> 15), t | 1);
-    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
-    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
-  };
+  return seededRandom(seed).uniform;
 }
 
 export function randomUnit(r: () => number): Vec3 {
