@@ -9,3 +9,15 @@ export class InputError extends Error {
     super(message);
   }
 }
+
+/**
+ * A broken internal invariant (arrays of the wrong size, unsorted records,
+ * a non-finite intermediate ...): a bug in thinfoil, not the user's mistake.
+ * The CLI reports it as an internal error with exit code 1 and asks for a bug report.
+ */
+export class InternalError extends Error {
+  override readonly name = 'InternalError';
+  constructor(message: string) {
+    super(message);
+  }
+}

@@ -9,7 +9,7 @@
  */
 import { amplitudesAt } from '../dynamics/blochWaves.js';
 import { blochWaveProfile } from '../dynamics/blochWaveProfile.js';
-import { InputError } from '../errors.js';
+import { InternalError } from '../errors.js';
 import { blochRowWaves, type BlochRow } from '../imaging/blochRow.js';
 
 /** n evenly spaced values from a to b inclusive. */
@@ -37,7 +37,7 @@ export function thicknessCurves(row: BlochRow, s_g: number, thicknesses_nm: Floa
 /** Intensity of every beam at thickness t for every s_g (nm^-1) of the list: the rocking curve. */
 export function rockingCurves(row: BlochRow, s_values: Float64Array, thickness_nm: number): Float64Array[] {
   if (!(Number.isFinite(thickness_nm) && thickness_nm >= 0)) {
-    throw new InputError(`thickness ${thickness_nm} nm: give a non-negative thickness in nm.`);
+    throw new InternalError(`thickness ${thickness_nm} nm: give a non-negative thickness in nm.`);
   }
   const n = row.beams;
   const out = Array.from({ length: n }, () => new Float64Array(s_values.length));

@@ -23,7 +23,7 @@ export function reportAndExit(e: unknown): never {
     process.exit(EXIT_USER);
   }
   const msg = e instanceof Error ? e.message : String(e);
-  process.stderr.write(`thinfoil: internal error: ${msg}\n`);
+  process.stderr.write(`thinfoil: internal error (a bug in thinfoil, not in your input; please report it with the command and its input files): ${msg}\n`);
   if (process.env.THINFOIL_DEBUG && e instanceof Error) process.stderr.write(`${e.stack}\n`);
   process.exit(EXIT_INTERNAL);
 }

@@ -4,7 +4,7 @@
  * x measured along g from a plane through the origin (physics.md section 3:
  * for U_g > 0 the atomic planes sit at x = 0, d, ...).
  */
-import { InputError } from '../errors.js';
+import { InternalError } from '../errors.js';
 import type { BlochWaves } from './blochWaves.js';
 
 /**
@@ -15,10 +15,10 @@ import type { BlochWaves } from './blochWaves.js';
 export function blochWaveProfile(out: Float64Array, waves: BlochWaves, wave: number, orders: Float64Array): Float64Array {
   const n = waves.n;
   if (!Number.isInteger(wave) || wave < 0 || wave >= n) {
-    throw new InputError(`Bloch wave index ${wave}: give an integer from 0 to ${n - 1}.`);
+    throw new InternalError(`Bloch wave index ${wave}: give an integer from 0 to ${n - 1}.`);
   }
-  if (orders.length !== n) throw new InputError(`orders has ${orders.length} entries: give one order per beam (${n}).`);
-  if (out.length < 1) throw new InputError('the profile array is empty: give at least one sample.');
+  if (orders.length !== n) throw new InternalError(`orders has ${orders.length} entries: give one order per beam (${n}).`);
+  if (out.length < 1) throw new InternalError('the profile array is empty: give at least one sample.');
   const samples = out.length;
   for (let k = 0; k < samples; k++) {
     const f = (2 * Math.PI * k) / samples; // 2 pi g x

@@ -14,7 +14,7 @@
  * matrices are row-major with separate real and imaginary arrays; Bloch wave
  * j is column j of C. Waves are sorted by decreasing Re gamma.
  */
-import { InputError } from '../errors.js';
+import { InternalError } from '../errors.js';
 import { complexEigen, complexInverse } from './complexEigen.js';
 import { structureMatrix, type ManyBeamInput } from './manyBeamStructureMatrix.js';
 
@@ -52,17 +52,17 @@ export function blochWaves(input: ManyBeamInput, incident: number | Float64Array
 export function incidentVector(n: number, incident: number | Float64Array): Float64Array {
   if (typeof incident === 'number') {
     if (!Number.isInteger(incident) || incident < 0 || incident >= n) {
-      throw new InputError(`incident beam index ${incident}: give an integer from 0 to ${n - 1}.`);
+      throw new InternalError(`incident beam index ${incident}: give an integer from 0 to ${n - 1}.`);
     }
     const v = new Float64Array(2 * n);
     v[2 * incident] = 1;
     return v;
   }
   if (incident.length !== 2 * n) {
-    throw new InputError(`incident amplitudes have ${incident.length} numbers: give 2N = ${2 * n} (re, im per beam).`);
+    throw new InternalError(`incident amplitudes have ${incident.length} numbers: give 2N = ${2 * n} (re, im per beam).`);
   }
   for (let i = 0; i < incident.length; i++) {
-    if (!Number.isFinite(incident[i])) throw new InputError(`incident amplitudes[${i}] is not finite: give finite numbers.`);
+    if (!Number.isFinite(incident[i])) throw new InternalError(`incident amplitudes[${i}] is not finite: give finite numbers.`);
   }
   return Float64Array.from(incident);
 }
@@ -142,7 +142,7 @@ export function blochWavesOfMatrix(n: number, aRe: Float64Array, aIm: Float64Arr
  */
 export function amplitudesAt(out: Float64Array, waves: BlochWaves, thickness_nm: number): Float64Array {
   if (!(Number.isFinite(thickness_nm) && thickness_nm >= 0)) {
-    throw new InputError(`thickness_nm is ${thickness_nm}: give a non-negative thickness in nm.`);
+    throw new InternalError(`thickness_nm is ${thickness_nm}: give a non-negative thickness in nm.`);
   }
   const n = waves.n;
   out.fill(0, 0, 2 * n);

@@ -52,7 +52,7 @@
  * A ColumnSystem carries its own work arrays: one system per thread of
  * execution (do not share one between concurrently running integrations).
  */
-import { InputError } from '../errors.js';
+import { InternalError } from '../errors.js';
 import { blochWaves } from './blochWaves.js';
 import type { ManyBeamInput } from './manyBeamStructureMatrix.js';
 
@@ -131,7 +131,7 @@ const LEVELS = 160;
 /** Prepare a systematic row: beam j has strain factor orders[j] (n_j). */
 export function prepareColumnSystem(input: ManyBeamInput, orders: Float64Array, options: ColumnOptions): ColumnSystem {
   if (orders.length !== input.excitationErrors_per_nm.length) {
-    throw new InputError(`orders has ${orders.length} entries: give one order n_j per beam (${input.excitationErrors_per_nm.length}).`);
+    throw new InternalError(`orders has ${orders.length} entries: give one order n_j per beam (${input.excitationErrors_per_nm.length}).`);
   }
   return prepare(input, Float64Array.from(orders), 1, options);
 }
@@ -144,18 +144,18 @@ export function prepareColumnSystemVector(
 ): ColumnSystem {
   const n = input.excitationErrors_per_nm.length;
   if (beamVectors_per_nm.length !== 3 * n) {
-    throw new InputError(`beamVectors_per_nm has ${beamVectors_per_nm.length} numbers: give 3 per beam (${3 * n}).`);
+    throw new InternalError(`beamVectors_per_nm has ${beamVectors_per_nm.length} numbers: give 3 per beam (${3 * n}).`);
   }
   return prepare(input, Float64Array.from(beamVectors_per_nm), 3, options);
 }
 
 function prepare(input: ManyBeamInput, factors: Float64Array, strainDim: 1 | 3, options: ColumnOptions): ColumnSystem {
   for (let i = 0; i < factors.length; i++) {
-    if (!Number.isFinite(factors[i])) throw new InputError(`beam strain factor [${i}] is not finite: give finite numbers.`);
+    if (!Number.isFinite(factors[i])) throw new InternalError(`beam strain factor [${i}] is not finite: give finite numbers.`);
   }
   const maxStep = options.maxStep_nm ?? DEFAULT_MAX_STEP_NM;
   if (!(Number.isFinite(maxStep) && maxStep > 0)) {
-    throw new InputError(`maxStep_nm is ${maxStep}: give a positive step in nm.`);
+    throw new InternalError(`maxStep_nm is ${maxStep}: give a positive step in nm.`);
   }
   const waves = blochWaves(input, options.incident);
   const n = waves.n;
@@ -242,7 +242,7 @@ export function integrateColumnN(
   tol = 1e-6,
   faults: Float64Array = NO_JUMPS,
 ): number {
-  if (system.strainDim !== 1) throw new InputError('this column system was prepared for a general beam set: use integrateColumnNVector.');
+  if (system.strainDim !== 1) throw new InternalError('this column system was prepared for a general beam set: use integrateColumnNVector.');
   return integrate(out, system, thickness_nm, betaPrime, null, tol, faults, 2);
 }
 
@@ -261,7 +261,7 @@ export function integrateColumnNVector(
   tol = 1e-6,
   faults: Float64Array = NO_JUMPS,
 ): number {
-  if (system.strainDim !== 3) throw new InputError('this column system was prepared for a systematic row: use integrateColumnN.');
+  if (system.strainDim !== 3) throw new InternalError('this column system was prepared for a systematic row: use integrateColumnN.');
   return integrate(out, system, thickness_nm, null, dRdz, tol, faults, 4);
 }
 
@@ -279,8 +279,8 @@ const E1 = 71 / 57600, E3 = -71 / 16695, E4 = 71 / 1920, E5 = -17253 / 339200, E
 
 const TWO_PI = 2 * Math.PI;
 
-function strainError(z: number): InputError {
-  return new InputError(
+function strainError(z: number): InternalError {
+  return new InternalError(
     `the strain term (beta' or dR/dz) is not finite near depth ${z.toPrecision(6)} nm: check the displacement field of the defects.`,
   );
 }
@@ -467,10 +467,10 @@ function integrate(
   stride: 2 | 4,
 ): number {
   if (!(Number.isFinite(thickness) && thickness >= 0)) {
-    throw new InputError(`thickness_nm is ${thickness}: give a non-negative thickness in nm.`);
+    throw new InternalError(`thickness_nm is ${thickness}: give a non-negative thickness in nm.`);
   }
-  if (!(Number.isFinite(tol) && tol > 0)) throw new InputError(`tol is ${tol}: give a positive tolerance such as 1e-6.`);
-  if (out.length < 2 * sys.n) throw new InputError(`out has ${out.length} numbers: give at least 2N = ${2 * sys.n}.`);
+  if (!(Number.isFinite(tol) && tol > 0)) throw new InternalError(`tol is ${tol}: give a positive tolerance such as 1e-6.`);
+  if (out.length < 2 * sys.n) throw new InternalError(`out has ${out.length} numbers: give at least 2N = ${2 * sys.n}.`);
   const n = sys.n;
   const wk = sys.work;
   const { ur, ui, yr, yi, kr, ki } = wk;
@@ -483,17 +483,17 @@ function integrate(
 
   // jumps (faults, breakpoints), validated and in depth order
   if (jumps.length % stride !== 0) {
-    throw new InputError(`faults has ${jumps.length} numbers: give records of ${stride} numbers (depth first).`);
+    throw new InternalError(`faults has ${jumps.length} numbers: give records of ${stride} numbers (depth first).`);
   }
   const nJumps = jumps.length / stride;
   for (let q = 0; q < nJumps; q++) {
     const z = jumps[q * stride];
     if (!(Number.isFinite(z) && z >= 0 && z <= thickness)) {
-      throw new InputError(`fault depth ${z} nm lies outside the column: give a depth from 0 to ${thickness} nm.`);
+      throw new InternalError(`fault depth ${z} nm lies outside the column: give a depth from 0 to ${thickness} nm.`);
     }
-    if (q > 0 && z < jumps[(q - 1) * stride]) throw new InputError('faults must be sorted by increasing depth: sort them.');
+    if (q > 0 && z < jumps[(q - 1) * stride]) throw new InternalError('faults must be sorted by increasing depth: sort them.');
     for (let k = 1; k < stride; k++) {
-      if (!Number.isFinite(jumps[q * stride + k])) throw new InputError(`fault ${q} has a non-finite phase or shift: give finite numbers.`);
+      if (!Number.isFinite(jumps[q * stride + k])) throw new InternalError(`fault ${q} has a non-finite phase or shift: give finite numbers.`);
     }
   }
 

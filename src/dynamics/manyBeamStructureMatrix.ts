@@ -14,7 +14,7 @@
  * A_0g = U_g/(2K) + i U'_g/(2K) = q/2 with q = 1/xi_g + i/xi'_g, because
  * xi_g = K/|U_g| = 1/(lambda |U_g|) and xi'_g = K/U'_g.
  */
-import { InputError } from '../errors.js';
+import { InternalError } from '../errors.js';
 
 /** A set of N beams: the data the structure matrix is built from. */
 export interface ManyBeamInput {
@@ -39,7 +39,7 @@ export interface ManyBeamInput {
 /** Number of beams of an input, after checking that its arrays agree. */
 export function beamCount(input: ManyBeamInput): number {
   const n = input.excitationErrors_per_nm.length;
-  if (n < 1) throw new InputError('excitationErrors_per_nm is empty: give at least one beam.');
+  if (n < 1) throw new InternalError('excitationErrors_per_nm is empty: give at least one beam.');
   const tables: Array<[string, Float64Array]> = [
     ['potentialRe_per_nm2', input.potentialRe_per_nm2],
     ['potentialIm_per_nm2', input.potentialIm_per_nm2],
@@ -48,20 +48,20 @@ export function beamCount(input: ManyBeamInput): number {
   ];
   for (const [name, t] of tables) {
     if (t.length !== n * n) {
-      throw new InputError(`${name} has ${t.length} entries: it must be an N x N table with N = ${n} (${n * n} entries).`);
+      throw new InternalError(`${name} has ${t.length} entries: it must be an N x N table with N = ${n} (${n * n} entries).`);
     }
     for (let i = 0; i < t.length; i++) {
-      if (!Number.isFinite(t[i])) throw new InputError(`${name}[${i}] is not a finite number: give a finite potential coefficient.`);
+      if (!Number.isFinite(t[i])) throw new InternalError(`${name}[${i}] is not a finite number: give a finite potential coefficient.`);
     }
   }
   for (let i = 0; i < n; i++) {
     if (!Number.isFinite(input.excitationErrors_per_nm[i])) {
-      throw new InputError(`excitationErrors_per_nm[${i}] is not a finite number: give a finite excitation error.`);
+      throw new InternalError(`excitationErrors_per_nm[${i}] is not a finite number: give a finite excitation error.`);
     }
   }
   const k = input.waveNumber_per_nm;
   if (!(Number.isFinite(k) && k > 0)) {
-    throw new InputError(`waveNumber_per_nm is ${k}: give K = 1/lambda as a positive number in nm^-1.`);
+    throw new InternalError(`waveNumber_per_nm is ${k}: give K = 1/lambda as a positive number in nm^-1.`);
   }
   return n;
 }

@@ -8,19 +8,19 @@
  *   Whelan 1969; Williams & Carter):
  *       s_g = (n - 1) lambda g^2 / 2
  */
-import { InputError } from '../errors.js';
+import { InternalError } from '../errors.js';
 import type { ManyBeamInput } from './manyBeamStructureMatrix.js';
 
 function checkRow(nMin: number, nMax: number): void {
   if (!Number.isInteger(nMin) || !Number.isInteger(nMax) || nMin > 0 || nMax < 0 || nMax <= nMin) {
-    throw new InputError(
+    throw new InternalError(
       `beam orders ${nMin}..${nMax}: give integers nMin <= 0 <= nMax with at least two beams (e.g. -1..3).`,
     );
   }
 }
 
 function checkPositive(name: string, v: number): void {
-  if (!(Number.isFinite(v) && v > 0)) throw new InputError(`${name} is ${v}: give a positive number.`);
+  if (!(Number.isFinite(v) && v > 0)) throw new InternalError(`${name} is ${v}: give a positive number.`);
 }
 
 /**
@@ -37,7 +37,7 @@ export function systematicRowExcitationErrors(
   checkRow(nMin, nMax);
   checkPositive('lambda_nm', lambda_nm);
   checkPositive('g_per_nm', g_per_nm);
-  if (!Number.isFinite(s_g)) throw new InputError(`s_g is ${s_g}: give a finite excitation error in nm^-1.`);
+  if (!Number.isFinite(s_g)) throw new InternalError(`s_g is ${s_g}: give a finite excitation error in nm^-1.`);
   const out = new Float64Array(nMax - nMin + 1);
   const half = 0.5 * lambda_nm * g_per_nm * g_per_nm;
   for (let n = nMin; n <= nMax; n++) out[n - nMin] = n * s_g + n * (1 - n) * half;
@@ -49,7 +49,7 @@ export function systematicRowExcitationErrors(
  * through n g: the weak-beam condition g(ng), s_g = (n - 1) lambda g^2 / 2.
  */
 export function weakBeamDeviation(n: number, lambda_nm: number, g_per_nm: number): number {
-  if (!Number.isFinite(n)) throw new InputError(`weak-beam order n is ${n}: give a finite number such as 3.`);
+  if (!Number.isFinite(n)) throw new InternalError(`weak-beam order n is ${n}: give a finite number such as 3.`);
   checkPositive('lambda_nm', lambda_nm);
   checkPositive('g_per_nm', g_per_nm);
   return 0.5 * (n - 1) * lambda_nm * g_per_nm * g_per_nm;

@@ -1,4 +1,4 @@
-import { InputError } from '../errors.js';
+import { InternalError } from '../errors.js';
 
 /**
  * Reflection parameters of one two-beam condition (physics.md section 3).
@@ -16,25 +16,25 @@ export interface TwoBeamParams {
   s_per_nm: number;
 }
 
-/** Throws InputError naming the field when a parameter cannot be used. */
+/** Throws InternalError naming the field when a parameter cannot be used. */
 export function checkTwoBeamParams(p: TwoBeamParams): void {
   if (!(p.xi_nm > 0) || p.xi_nm === Infinity) {
-    throw new InputError(`xi_nm must be a finite positive extinction distance in nm, got ${p.xi_nm}.`);
+    throw new InternalError(`xi_nm must be a finite positive extinction distance in nm, got ${p.xi_nm}.`);
   }
   if (!(p.xiAbs_nm > 0)) {
-    throw new InputError(`xiAbs_nm must be a positive absorption length in nm (Infinity for none), got ${p.xiAbs_nm}.`);
+    throw new InternalError(`xiAbs_nm must be a positive absorption length in nm (Infinity for none), got ${p.xiAbs_nm}.`);
   }
   if (!(p.xiAbs0_nm > 0)) {
-    throw new InputError(`xiAbs0_nm must be a positive absorption length in nm (Infinity for none), got ${p.xiAbs0_nm}.`);
+    throw new InternalError(`xiAbs0_nm must be a positive absorption length in nm (Infinity for none), got ${p.xiAbs0_nm}.`);
   }
   if (!Number.isFinite(p.s_per_nm)) {
-    throw new InputError(`s_per_nm must be a finite deviation parameter in nm^-1, got ${p.s_per_nm}.`);
+    throw new InternalError(`s_per_nm must be a finite deviation parameter in nm^-1, got ${p.s_per_nm}.`);
   }
 }
 
-/** Throws InputError unless t is a finite thickness >= 0. */
+/** Throws InternalError unless t is a finite thickness >= 0. */
 export function checkThickness(t_nm: number): void {
   if (!(t_nm >= 0) || t_nm === Infinity) {
-    throw new InputError(`the column length t_nm must be a finite thickness >= 0 in nm, got ${t_nm}.`);
+    throw new InternalError(`the column length t_nm must be a finite thickness >= 0 in nm, got ${t_nm}.`);
   }
 }

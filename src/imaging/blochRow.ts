@@ -13,7 +13,7 @@
  */
 import type { Material } from '../crystal/material.js';
 import type { Vec3 } from '../math/vec3.js';
-import { InputError } from '../errors.js';
+import { InputError, InternalError } from '../errors.js';
 import { blochWaves, type BlochWaves } from '../dynamics/blochWaves.js';
 import type { ManyBeamInput } from '../dynamics/manyBeamStructureMatrix.js';
 import { systematicRowInput, systematicRowOrders, type ComplexPair } from '../dynamics/manyBeamSystematicRow.js';
@@ -94,7 +94,7 @@ export function blochRow(material: Material, hkl: Vec3, kV: number, absorptionRa
 
 /** The many-beam input at excitation error s_g (nm^-1) of the fundamental g. */
 export function blochRowInput(row: BlochRow, s_g: number): ManyBeamInput {
-  if (!Number.isFinite(s_g)) throw new InputError(`deviation parameter s = ${s_g}: give a finite number in nm^-1.`);
+  if (!Number.isFinite(s_g)) throw new InternalError(`deviation parameter s = ${s_g}: give a finite number in nm^-1.`);
   // two beams (orders 0, 1): s_0 = 0 and s_g exactly, the Ewald-sphere term n (1 - n) vanishes
   return systematicRowInput({
     nMin: row.nMin,

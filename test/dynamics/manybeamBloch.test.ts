@@ -12,7 +12,7 @@ import { blochWaveProfile } from '../../src/dynamics/blochWaveProfile.js';
 import { structureMatrix, type ManyBeamInput } from '../../src/dynamics/manyBeamStructureMatrix.js';
 import { systematicRowInput, systematicRowOrders } from '../../src/dynamics/manyBeamSystematicRow.js';
 import { pendelloesungIntensity, perfectCrystal } from '../../src/dynamics/twoBeam.js';
-import { InputError } from '../../src/errors.js';
+import { InternalError } from '../../src/errors.js';
 import {
   G_200_PER_NM,
   LAMBDA_200KV_NM,
@@ -122,9 +122,9 @@ describe('structure matrix (physics.md section 4)', () => {
     expect(im[2]).toBeCloseTo(1.3 / 800, 15);
   });
 
-  it('rejects tables of the wrong size with an InputError naming the field', () => {
+  it('rejects tables of the wrong size with an InternalError naming the field', () => {
     const bad = { ...twoBeamInput(40, 400, 400, 0), potentialRe_per_nm2: new Float64Array(3) };
-    expect(() => structureMatrix(new Float64Array(4), new Float64Array(4), bad)).toThrow(InputError);
+    expect(() => structureMatrix(new Float64Array(4), new Float64Array(4), bad)).toThrow(InternalError);
     expect(() => structureMatrix(new Float64Array(4), new Float64Array(4), bad)).toThrow(/potentialRe_per_nm2/);
   });
 });
@@ -353,8 +353,8 @@ describe('many beams', () => {
     const e = new Float64Array(14);
     e[6] = 1;
     expect(maxAbsDiff(out, e)).toBeLessThan(1e-13);
-    expect(() => amplitudesAt(out, waves, -1)).toThrow(InputError);
-    expect(() => blochWaves(input, 7)).toThrow(InputError);
-    expect(() => blochWaveProfile(new Float64Array(4), waves, 0, systematicRowOrders(-1, 1))).toThrow(InputError);
+    expect(() => amplitudesAt(out, waves, -1)).toThrow(InternalError);
+    expect(() => blochWaves(input, 7)).toThrow(InternalError);
+    expect(() => blochWaveProfile(new Float64Array(4), waves, 0, systematicRowOrders(-1, 1))).toThrow(InternalError);
   });
 });

@@ -21,7 +21,7 @@ import {
 import type { ManyBeamInput } from '../../src/dynamics/manyBeamStructureMatrix.js';
 import { systematicRowInput, systematicRowOrders, weakBeamDeviation } from '../../src/dynamics/manyBeamSystematicRow.js';
 import { integrateColumn as integrateTwoBeamColumn } from '../../src/dynamics/twoBeam.js';
-import { InputError } from '../../src/errors.js';
+import { InternalError } from '../../src/errors.js';
 import {
   G_200_PER_NM,
   LAMBDA_200KV_NM,
@@ -318,14 +318,14 @@ describe('unitarity and consistency', () => {
     expect(lastIntegrationStats(sys).rejected).toBe(0);
   });
 
-  it('user errors throw InputError naming the field', () => {
+  it('bad arguments (a caller bug) throw InternalError naming the field', () => {
     const sys = prepareColumnSystem(weakBeamRow(), systematicRowOrders(-1, 3), { incident: 1 });
     const out = new Float64Array(10);
     expect(() => integrateColumnN(out, sys, -5, () => 0)).toThrow(/thickness_nm/);
-    expect(() => integrateColumnN(out, sys, 50, () => 0, 1e-6, Float64Array.from([60, 1]))).toThrow(InputError);
+    expect(() => integrateColumnN(out, sys, 50, () => 0, 1e-6, Float64Array.from([60, 1]))).toThrow(InternalError);
     expect(() => integrateColumnN(out, sys, 50, () => 0, 1e-6, Float64Array.from([30, 1, 20, 1]))).toThrow(/sorted/);
-    expect(() => integrateColumnN(out, sys, 50, () => Number.NaN)).toThrow(InputError);
-    expect(() => integrateColumnNVector(out, sys, 50, () => undefined)).toThrow(InputError);
+    expect(() => integrateColumnN(out, sys, 50, () => Number.NaN)).toThrow(InternalError);
+    expect(() => integrateColumnNVector(out, sys, 50, () => undefined)).toThrow(InternalError);
     expect(() => prepareColumnSystem(weakBeamRow(), systematicRowOrders(-1, 1), { incident: 1 })).toThrow(/orders/);
     expect(() => prepareColumnSystem(weakBeamRow(), systematicRowOrders(-1, 3), { incident: 1, maxStep_nm: 0 })).toThrow(/maxStep_nm/);
   });

@@ -11,7 +11,7 @@ import {
   systematicRowOrders,
   weakBeamDeviation,
 } from '../../src/dynamics/manyBeamSystematicRow.js';
-import { InputError } from '../../src/errors.js';
+import { InternalError } from '../../src/errors.js';
 import { G_200_PER_NM, LAMBDA_200KV_NM, inventedAbsorption, inventedPotential } from './manybeamFixtures.js';
 
 describe('systematic row excitation errors', () => {
@@ -77,8 +77,8 @@ describe('systematic row excitation errors', () => {
     expect(Array.from(systematicRowOrders(-1, 2))).toEqual([-1, 0, 1, 2]);
   });
 
-  it('rejects rows without the transmitted beam, and bad lambda or g, with an InputError', () => {
-    expect(() => systematicRowExcitationErrors(1, 3, 0, LAMBDA_200KV_NM, G_200_PER_NM)).toThrow(InputError);
+  it('rejects rows without the transmitted beam, and bad lambda or g, with an InternalError', () => {
+    expect(() => systematicRowExcitationErrors(1, 3, 0, LAMBDA_200KV_NM, G_200_PER_NM)).toThrow(InternalError);
     expect(() => systematicRowExcitationErrors(-1, 1, 0, 0, G_200_PER_NM)).toThrow(/lambda_nm/);
     expect(() => weakBeamDeviation(3, LAMBDA_200KV_NM, -1)).toThrow(/g_per_nm/);
   });

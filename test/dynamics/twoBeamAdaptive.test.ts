@@ -7,7 +7,7 @@ import {
   type TwoBeamParams,
 } from '../../src/dynamics/twoBeam.js';
 import { rk4Column } from '../../src/dynamics/rk4Reference.js';
-import { InputError } from '../../src/errors.js';
+import { InternalError } from '../../src/errors.js';
 import {
   intensities,
   loadScipyFixture,
@@ -221,7 +221,7 @@ describe('bad input', () => {
     expect(() => integrateColumn(out, p, 100, () => 0, none, 0)).toThrow(/tol/);
     expect(() => integrateColumn(out, p, 100, () => 0, new Float64Array([50]), 1e-4)).toThrow(/pairs/);
     expect(() => integrateColumn(out, p, 100, () => 0, new Float64Array([50, 1, 20, 1]), 1e-4)).toThrow(/sorted/);
-    expect(() => integrateColumn(out, { ...p, xi_nm: -1 }, 100, () => 0, none, 1e-4)).toThrow(InputError);
+    expect(() => integrateColumn(out, { ...p, xi_nm: -1 }, 100, () => 0, none, 1e-4)).toThrow(InternalError);
     expect(() => rk4Column(out, p, 100, () => 0, 0)).toThrow(/nSteps/);
   });
 });

@@ -6,7 +6,7 @@ import {
   perfectCrystal,
   type TwoBeamParams,
 } from '../../src/dynamics/twoBeam.js';
-import { InputError } from '../../src/errors.js';
+import { InternalError } from '../../src/errors.js';
 import { intensities, loadScipyFixture, maxAbsDiff, paramsOf } from './twoBeamReference.js';
 
 const noAbs = (xi: number, s: number): TwoBeamParams => ({ xi_nm: xi, xiAbs_nm: Infinity, xiAbs0_nm: Infinity, s_per_nm: s });
@@ -148,14 +148,14 @@ describe('perfect crystal with absorption', () => {
 });
 
 describe('input checks', () => {
-  it('rejects unusable parameters with InputError', () => {
+  it('rejects unusable parameters with InternalError (the scenario parser validates user input before these run)', () => {
     const good: TwoBeamParams = { xi_nm: 30, xiAbs_nm: 300, xiAbs0_nm: 300, s_per_nm: 0 };
-    expect(() => perfectCrystal(out, { ...good, xi_nm: 0 }, 10)).toThrow(InputError);
-    expect(() => perfectCrystal(out, { ...good, xi_nm: Infinity }, 10)).toThrow(InputError);
+    expect(() => perfectCrystal(out, { ...good, xi_nm: 0 }, 10)).toThrow(InternalError);
+    expect(() => perfectCrystal(out, { ...good, xi_nm: Infinity }, 10)).toThrow(InternalError);
     expect(() => perfectCrystal(out, { ...good, xiAbs_nm: -5 }, 10)).toThrow(/xiAbs_nm/);
     expect(() => perfectCrystal(out, { ...good, xiAbs0_nm: NaN }, 10)).toThrow(/xiAbs0_nm/);
     expect(() => perfectCrystal(out, { ...good, s_per_nm: NaN }, 10)).toThrow(/s_per_nm/);
     expect(() => perfectCrystal(out, good, -1)).toThrow(/t_nm/);
-    expect(() => pendelloesungIntensity(good, Infinity)).toThrow(InputError);
+    expect(() => pendelloesungIntensity(good, Infinity)).toThrow(InternalError);
   });
 });
