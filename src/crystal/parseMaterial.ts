@@ -13,7 +13,7 @@
  * Cij by the Voigt-Reuss-Hill average; they are not read from the input.
  */
 import { InputError } from '../errors.js';
-import { fail, isObject } from '../scenario/check.js';
+import { fail, isObject, suggestKey } from '../scenario/check.js';
 import type { Vec3 } from '../math/vec3.js';
 import { type Lattice, makeLattice } from './lattice.js';
 import type { ElasticConstants, Elasticity, Material, Site } from './material.js';
@@ -62,7 +62,10 @@ function object(v: unknown, path: string, what: string): Obj {
 
 function onlyKeys(o: Obj, path: string, allowed: readonly string[]): void {
   for (const k of Object.keys(o)) {
-    if (!allowed.includes(k)) fail(`${path}.${k}`, `is not a known field here; allowed fields: ${allowed.join(', ')}.`);
+    if (!allowed.includes(k)) {
+      const near = suggestKey(k, allowed);
+      fail(`${path}.${k}`, `is not a known field here; ${near ? `did you mean "${near}"?` : `allowed fields: ${allowed.join(', ')}.`}`);
+    }
   }
 }
 
