@@ -293,8 +293,22 @@ function familyCandidates(text: string, path: string, m: Material): CandidateSpe
   return vs.map((b) => ({ label: `b = ${formatVector(b)}`, b }));
 }
 
+/**
+ * Refuses a family ("1/2<110>", "{111}") where one vector is meant: the
+ * index parser would otherwise read it as one member and say nothing.
+ */
+function refuseFamily(v: unknown, path: string, kind: 'vector' | 'plane'): void {
+  if (typeof v !== 'string' || !/[<>{}]/.test(v)) return;
+  const member = v.trim().replace(/</g, '[').replace(/>/g, ']').replace(/\{/g, kind === 'plane' ? '(' : '[').replace(/\}/g, kind === 'plane' ? ')' : ']');
+  fail(
+    path,
+    `"${v}" is a family (angle brackets or braces), but one ${kind === 'plane' ? 'plane' : 'vector'} is meant here; write one member, e.g. "${member}"${kind === 'vector' ? ' (families of Burgers vectors belong in "candidates")' : ''}`,
+  );
+}
+
 /** A direction, 3 or 4 (hexagonal) indices, returned in 3-index lattice units. */
 export function readDirection(v: unknown, path: string, m: Material): Vec3 {
+  refuseFamily(v, path, 'vector');
   const idx = parseIndices(v as string | number[], path, usesFourIndices(m.lattice) ? '3or4' : 3);
   const d = idx.length === 4 ? dirFour(idx, path) : ([idx[0], idx[1], idx[2]] as Vec3);
   if (norm(d) === 0) fail(path, 'must not be [0 0 0]');
@@ -303,6 +317,7 @@ export function readDirection(v: unknown, path: string, m: Material): Vec3 {
 
 /** A plane / reflection, 3 or 4 (hexagonal) indices, returned in 3-index form. */
 export function readPlane(v: unknown, path: string, m: Material): Vec3 {
+  refuseFamily(v, path, 'plane');
   const idx = parseIndices(v as string | number[], path, usesFourIndices(m.lattice) ? '3or4' : 3);
   if (idx.length === 4) {
     try {
@@ -316,6 +331,7 @@ export function readPlane(v: unknown, path: string, m: Material): Vec3 {
 
 /** A vector with an optional fraction prefix ("1/2[1 1 0]"), in lattice units. */
 export function readVector(v: unknown, path: string, m: Material): Vec3 {
+  refuseFamily(v, path, 'vector');
   const idx = parseVectorWithFraction(v as string | number[], path, usesFourIndices(m.lattice) ? '3or4' : 3);
   if (idx.length === 4) {
     if (!usesFourIndices(m.lattice)) fail(path, 'has four indices, but the material is not hexagonal; use three');

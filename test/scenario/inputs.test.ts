@@ -71,3 +71,28 @@ describe('unknown keys: did you mean ...?', () => {
     expect(suggestKey('x', ['w', 's_per_nm'])).toBeUndefined();
   });
 });
+
+describe('a family where one vector is meant is refused', () => {
+  it('defects[0].b: "1/2<110>" (was silently read as 1/2[1 1 0])', () => {
+    expect(errorOf((o) => (o.defects[0].b = '1/2<110>'))).toBe(
+      'defects[0].b: "1/2<110>" is a family (angle brackets or braces), but one vector is meant here; write one member, e.g. "1/2[110]" (families of Burgers vectors belong in "candidates")',
+    );
+  });
+  it('lines, beams, g, fault planes and candidate objects too; braces suggest a plane in parentheses', () => {
+    expect(errorOf((o) => (o.defects[0].line = '<1-10>'))).toMatch(/^defects\[0\]\.line: "<1-10>" is a family .*"\[1-10\]"/);
+    expect(errorOf((o) => (o.beam = '<001>'))).toMatch(/^beam: "<001>" is a family/);
+    expect(errorOf((o) => (o.conditions[0].g = '{200}'))).toMatch(/^conditions\[0\]\.g: "\{200\}" is a family .*one plane .*"\(200\)"/);
+    expect(errorOf((o) => (o.candidates = [{ b: '1/2<110>' }]))).toMatch(/^candidates\[0\]\.b: .*is a family/);
+    expect(
+      errorOf((o) => (o.defects[0] = { type: 'fault', plane: '{111}', nature: 'intrinsic', point_nm: [0, 0, 60] })),
+    ).toMatch(/^defects\[0\]\.plane: "\{111\}" is a family/);
+  });
+  it('families stay valid where a list is meant, and single vectors in square brackets pass', () => {
+    const ok = base();
+    ok.candidates = ['1/2<110>', { family: '1/6<112>' }];
+    ok.defects[0].b = '1/2[1 1 0]';
+    const sc = parseScenario(ok);
+    expect(sc.candidates.length).toBeGreaterThan(12);
+    expect(sc.defects[0].type).toBe('dislocation');
+  });
+});
