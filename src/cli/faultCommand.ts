@@ -3,7 +3,7 @@ import { analyseFaults, type FaultConditionAnalysis } from '../analysis/faultFri
 import { analyseInclusions, type InclusionConditionAnalysis } from '../analysis/inclusionLobes.js';
 import { formatVector } from '../scenario/parse.js';
 import type { Scenario } from '../scenario/types.js';
-import { loadScenario } from './loadScenario.js';
+import { loadScenario, warnAbout } from './loadScenario.js';
 import { printJson, sig, table } from './run.js';
 
 function direction(d: readonly [number, number]): string {
@@ -66,9 +66,10 @@ export function faultReport(sc: Scenario): { faults: FaultConditionAnalysis[]; i
 
 export function faultCommand(file: string, opts: { json?: boolean }): void {
   const sc = loadScenario(file);
+  const warnings = warnAbout(sc);
   const r = faultReport(sc);
   if (opts.json) {
-    printJson({ scenario: sc.name, ...r });
+    printJson({ scenario: sc.name, ...r, warnings });
     return;
   }
   if (r.faults.length === 0 && r.inclusions.length === 0) {

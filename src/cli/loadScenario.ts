@@ -3,6 +3,7 @@ import { readFileSync } from 'node:fs';
 import { InputError } from '../errors.js';
 import { parseScenario } from '../scenario/parse.js';
 import type { Scenario } from '../scenario/types.js';
+import { scenarioWarnings } from '../analysis/scenarioWarnings.js';
 
 /** The raw JSON object of a scenario file; InputError when it cannot be read, is not JSON or not an object. */
 export function readScenarioJson(path: string): Record<string, unknown> {
@@ -27,4 +28,11 @@ export function readScenarioJson(path: string): Record<string, unknown> {
 
 export function loadScenario(path: string): Scenario {
   return parseScenario(readScenarioJson(path));
+}
+
+/** The scenario's warnings (implausible values, defects outside the view ...), each printed as one line on stderr. */
+export function warnAbout(sc: Scenario): string[] {
+  const warnings = scenarioWarnings(sc);
+  for (const w of warnings) process.stderr.write(`thinfoil: warning: ${w}\n`);
+  return warnings;
 }

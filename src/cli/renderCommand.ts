@@ -5,8 +5,7 @@ import { renderScenario, type ConditionImages } from '../imaging/renderScenario.
 import { createRenderPool } from '../imaging/workerPool.js';
 import { writeConditionImages, type ImageEntry } from '../output/imageFiles.js';
 import { ensureOutputDir, writeFileAtomic } from '../output/atomicWrite.js';
-import { loadScenario } from './loadScenario.js';
-import { scenarioWarnings } from '../analysis/scenarioWarnings.js';
+import { loadScenario, warnAbout } from './loadScenario.js';
 import { printJson, sig, table } from './run.js';
 import { progressBar } from './progress.js';
 
@@ -19,8 +18,8 @@ export function slug(name: string): string {
   return name.toLowerCase().replace(/[^a-z0-9]+/g, '-').replace(/^-|-$/g, '') || 'scenario';
 }
 
-/** Render a scenario and write its images; shared by `render` and `demo`. */
-export async function renderAndWrite(sc: Scenario, dir: string, showProgress: boolean): Promise<{ images: ConditionImages[]; entries: ImageEntry[]; seconds: number }> {
+/** Render a scenario and write its images and render.json (with the scenario's warnings); shared by `render` and `demo`. */
+export async function renderAndWrite(sc: Scenario, dir: string, showProgress: boolean, warnings: readonly string[] = []): Promise<{ images: ConditionImages[]; entries: ImageEntry[]; seconds: number }> {
   ensureOutputDir(dir);
   const bar = progressBar(showProgress);
   const pool = createRenderPool();
@@ -42,6 +41,7 @@ export async function renderAndWrite(sc: Scenario, dir: string, showProgress: bo
     thickness_nm: sc.thickness_nm,
     conditions: images.map((ci) => conditionSummary(ci)),
     images: entries,
+    warnings,
   };
   writeFileAtomic(join(dir, 'render.json'), `${JSON.stringify(summary, null, 2)}\n`);
   return { images, entries, seconds };
@@ -65,10 +65,9 @@ export function conditionSummary(ci: ConditionImages) {
 
 export async function renderCommand(file: string, opts: RenderOptions): Promise<void> {
   const sc = loadScenario(file);
-  const warnings = scenarioWarnings(sc);
-  for (const w of warnings) process.stderr.write(`thinfoil: warning: ${w}\n`);
+  const warnings = warnAbout(sc);
   const dir = opts.out ?? join('out', slug(sc.name));
-  const { images, entries, seconds } = await renderAndWrite(sc, dir, !opts.json);
+  const { images, entries, seconds } = await renderAndWrite(sc, dir, !opts.json, warnings);
   if (opts.json) {
     printJson({ images: entries.map(({ stretch, ...e }) => ({ ...e, stretch })), warnings });
     return;

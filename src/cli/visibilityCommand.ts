@@ -2,7 +2,7 @@
 import type { Scenario } from '../scenario/types.js';
 import { visibilityTable, type VisibilityRow } from '../analysis/visibilityTable.js';
 import { formatVector } from '../scenario/parse.js';
-import { loadScenario } from './loadScenario.js';
+import { loadScenario, warnAbout } from './loadScenario.js';
 import { printJson, table } from './run.js';
 
 const MARK = { visible: 'V', invisible: 'i', 'weak residual': 'w' } as const;
@@ -34,9 +34,10 @@ function frac(x: number): string {
 
 export function visibilityCommand(file: string, opts: { json?: boolean }): void {
   const sc = loadScenario(file);
+  const warnings = warnAbout(sc);
   const rows = visibilityTable(sc);
   if (opts.json) {
-    printJson({ scenario: sc.name, rows });
+    printJson({ scenario: sc.name, rows, warnings });
     return;
   }
   if (rows.length === 0) {

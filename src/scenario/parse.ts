@@ -71,6 +71,7 @@ export function parseScenario(raw: unknown): Scenario {
   });
 
   const defects = o.defects === undefined ? [] : array(o.defects, 'defects').map((d, i) => readDefect(d, joinPath('defects', i), material, thickness_nm, beam));
+  defects.forEach((d, i) => refuseOutsideFoil(d, joinPath('defects', i), material, thickness_nm, foilNormal));
   const candidates = o.candidates === undefined ? [] : array(o.candidates, 'candidates').flatMap((c, i) => readCandidates(c, joinPath('candidates', i), material));
 
   return { name, material, kV, thickness_nm, foilNormal, beam, imageX_cart, image, absorption, conditions, defects, candidates };
@@ -245,6 +246,35 @@ function readDefect(v: unknown, path: string, m: Material, thickness_nm: number,
     }
     default:
       fail(at('type'), `"${type}" is not a defect type thinfoil knows; use "dislocation", "partial", "dissociated", "fault" or "inclusion"`);
+  }
+}
+
+/**
+ * A defect that lies wholly outside the crystal cannot exist: an inclusion
+ * whose sphere misses the slab, a line or a fault plane parallel to the
+ * surfaces at a depth outside the foil. (A line that crosses the foil
+ * somewhere is accepted; scenarioWarnings says where it crosses.)
+ */
+function refuseOutsideFoil(d: DefectSpec, path: string, m: Material, t: number, foilNormal: Vec3): void {
+  const outside = (z: number) => z < 0 || z > t;
+  const fix = `give a depth from 0 to ${t} nm (the foil thickness)`;
+  if (d.type === 'inclusion') {
+    const z = d.centre_nm[2];
+    if (z + d.radius_nm < 0 || z - d.radius_nm > t) {
+      fail(joinPath(path, 'centre_nm'), `the inclusion (depth ${z} nm, radius ${d.radius_nm} nm) lies wholly outside the ${t} nm foil, where no crystal is; ${fix}`);
+    }
+    return;
+  }
+  const n = unit(cart(m, foilNormal));
+  const z = d.point_nm[2];
+  if (!outside(z)) return;
+  if (d.type === 'fault') {
+    const p = unit(planeNormalToCartesian(m.lattice, d.plane));
+    if (1 - Math.abs(dot(p, n)) < 1e-9) fail(joinPath(path, 'point_nm'), `the fault plane is parallel to the surfaces at depth ${z} nm, wholly outside the ${t} nm foil; ${fix}`);
+    return;
+  }
+  if (Math.abs(dot(unit(cart(m, d.line)), n)) < 1e-9) {
+    fail(joinPath(path, 'point_nm'), `the line is parallel to the surfaces at depth ${z} nm, wholly outside the ${t} nm foil; ${fix}`);
   }
 }
 

@@ -92,7 +92,7 @@ describe('commands refuse a scenario that is not an object', () => {
 });
 
 describe('render warns about defects that cannot show', () => {
-  it('an end-on dislocation, an edge-on fault and an inclusion outside the foil give warnings on stderr, and the render still works', () => {
+  it('an end-on dislocation, an edge-on fault and an inclusion outside the view give warnings on stderr, in --json and in render.json; the render still works', () => {
     const dir = mkdtempSync(join(tmpdir(), 'thinfoil-warn-'));
     const f = join(dir, 's.json');
     writeFileSync(f, JSON.stringify({
@@ -102,15 +102,45 @@ describe('render warns about defects that cannot show', () => {
       defects: [
         { type: 'dislocation', b: '1/2[1 1 0]', line: [0, 0, 1], point_nm: [0, 0, 25] },
         { type: 'fault', plane: [1, 0, 0], vector: '1/3[1 1 1]', point_nm: [0, 0, 25] },
-        { type: 'inclusion', centre_nm: [0, 0, 500], radius_nm: 3, misfit: 0.01 },
+        { type: 'inclusion', centre_nm: [100, 0, 25], radius_nm: 3, misfit: 0.01 },
       ],
     }));
     const r = run('render', f, '--out', join(dir, 'o'), '--json');
     expect(r.code, r.err).toBe(0);
     expect(r.err).toMatch(/end-on/);
     expect(r.err).toMatch(/edge-on/);
-    expect(r.err).toMatch(/outside the foil/);
+    expect(r.err).toMatch(/outside the 8 x 8 nm field of view/);
     expect(JSON.parse(r.out).warnings.length).toBe(3);
+    expect(JSON.parse(readFileSync(join(dir, 'o', 'render.json'), 'utf8')).warnings).toEqual(JSON.parse(r.out).warnings);
+  });
+
+  it('a thickness typed in micrometres (0.15) is warned about on stderr and in the JSON of render, visibility and fault', () => {
+    const dir = mkdtempSync(join(tmpdir(), 'thinfoil-thin-'));
+    const f = join(dir, 's.json');
+    writeFileSync(f, JSON.stringify({
+      name: 'thin', material: 'Cu', kV: 200, foil: { thickness_nm: 0.15 }, beam: [0, 0, 1],
+      image: { width_px: 4, height_px: 4, pixel_nm: 1 }, conditions: [{ id: 'g200', g: [2, 0, 0], s_per_nm: 0 }],
+    }));
+    for (const cmd of ['render', 'visibility', 'fault']) {
+      const r = run(cmd, f, '--json', ...(cmd === 'render' ? ['--out', join(dir, 'o')] : []));
+      expect(r.code, r.err).toBe(0);
+      expect(r.err).toMatch(/^thinfoil: warning: foil\.thickness_nm is 0\.15 nm, .*micrometres \(150 nm\)\?\n$/);
+      expect(JSON.parse(r.out).warnings).toHaveLength(1);
+    }
+  });
+
+  it('a defect wholly outside the crystal is refused: one line, exit code 2', () => {
+    const dir = mkdtempSync(join(tmpdir(), 'thinfoil-out-of-foil-'));
+    const f = join(dir, 's.json');
+    writeFileSync(f, JSON.stringify({
+      name: 'x', material: 'Cu', kV: 200, foil: { thickness_nm: 50 }, beam: [0, 0, 1],
+      image: { width_px: 4, height_px: 4, pixel_nm: 1 }, conditions: [{ id: 'g200', g: [2, 0, 0], s_per_nm: 0 }],
+      defects: [{ type: 'inclusion', centre_nm: [0, 0, 500], radius_nm: 3, misfit: 0.01 }],
+    }));
+    const r = run('render', f, '--out', join(dir, 'o'));
+    expect(r.code).toBe(2);
+    expect(r.err).toMatch(/^thinfoil: defects\[0\]\.centre_nm: the inclusion .* wholly outside the 50 nm foil.*\n$/);
+    expect(r.err.trim().split('\n')).toHaveLength(1);
   });
 });
 

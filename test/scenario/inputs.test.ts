@@ -8,6 +8,7 @@ import { parseScenario } from '../../src/scenario/parse.js';
 import { editDistance, suggestKey } from '../../src/scenario/check.js';
 import { parseMicrographSettings } from '../../src/analysis/identifySettings.js';
 import { InputError } from '../../src/errors.js';
+import { scenarioWarnings } from '../../src/analysis/scenarioWarnings.js';
 
 type Json = Record<string, any>;
 
@@ -94,5 +95,61 @@ describe('a family where one vector is meant is refused', () => {
     const sc = parseScenario(ok);
     expect(sc.candidates.length).toBeGreaterThan(12);
     expect(sc.defects[0].type).toBe('dislocation');
+  });
+});
+
+describe('implausible values are warned about, impossible ones refused (thresholds in README)', () => {
+  const warningsOf = (edit: (o: Json) => void) => {
+    const o = base();
+    edit(o);
+    return scenarioWarnings(parseScenario(o));
+  };
+  it('the base scenario has no warning', () => {
+    expect(warningsOf(() => {})).toEqual([]);
+  });
+  it('thickness 0.15 nm (typed in micrometres): one warning naming the field and the likely unit', () => {
+    const w = warningsOf((o) => {
+      o.foil.thickness_nm = 0.15;
+      o.defects = [];
+    });
+    expect(w).toHaveLength(1);
+    expect(w[0]).toMatch(/^foil\.thickness_nm is 0\.15 nm, thinner than 5 nm .*micrometres \(150 nm\)\?$/);
+    expect(warningsOf((o) => (o.foil.thickness_nm = 4000))[0]).toMatch(/^foil\.thickness_nm is 4000 nm, thicker than/);
+    expect(warningsOf((o) => (o.image.pixel_nm = 50))[0]).toMatch(/^image\.pixel_nm is 50 nm/);
+    expect(warningsOf((o) => (o.image.pixel_nm = 0.001))[0]).toMatch(/^image\.pixel_nm is 0\.001 nm/);
+  });
+  it('a dislocation point at depth 500 nm in a 120 nm foil: where the line crosses the foil, and that it misses the view', () => {
+    // line [1 -1 2] in an untilted (001) foil: it rises 2 nm in depth per sqrt(2) nm sideways, so from depth 500 nm
+    // it reaches the exit surface (120 nm) 380 / sqrt(2) = 269 nm away along [-1 1 0] and the entrance 354 nm away
+    const w = warningsOf((o) => {
+      o.defects[0].line = [1, -1, 2];
+      o.defects[0].point_nm = [0, 0, 500];
+    });
+    expect(w).toHaveLength(2);
+    expect(w[0]).toMatch(/^defects\[0\] .*point_nm is at depth 500 nm, outside the 120 nm foil; the line is drawn where it crosses the foil/);
+    expect(w[1]).toMatch(/^defects\[0\] .*crosses the foil outside the 32 x 32 nm field of view/);
+    // geometry of the crossing: |x|, |y| of the two ends as computed by hand above (x along [1 0 0], y along [0 1 0]: 269/sqrt 2 = 190)
+    const ends = [...w[0].matchAll(/\((-?[\d.]+), (-?[\d.]+)\)/g)].map((m) => [Number(m[1]), Number(m[2])]);
+    expect(ends.map(([x]) => Math.abs(x)).sort((p, q) => p - q)).toEqual([190, 250]);
+  });
+  it('a line that crosses the foil inside the view gives no warning; one that crosses just outside does', () => {
+    expect(warningsOf((o) => (o.defects[0].line = [1, -1, 2]))).toEqual([]);
+    // the line [1 -1 0] parallel to the surfaces, moved 40 nm sideways (along [1 1 0]) out of a 32 nm view
+    const w = warningsOf((o) => (o.defects[0].point_nm = [28.3, 28.3, 60]));
+    expect(w).toHaveLength(1);
+    expect(w[0]).toMatch(/field of view/);
+  });
+  it('impossible: a defect wholly outside the crystal is refused naming the field', () => {
+    expect(errorOf((o) => (o.defects[0].point_nm = [0, 0, 500]))).toMatch(
+      /^defects\[0\]\.point_nm: the line is parallel to the surfaces at depth 500 nm, wholly outside the 120 nm foil; give a depth from 0 to 120 nm/,
+    );
+    expect(errorOf((o) => (o.defects[0] = { type: 'inclusion', centre_nm: [0, 0, 200], radius_nm: 5, misfit: 0.01 }))).toMatch(
+      /^defects\[0\]\.centre_nm: the inclusion .* lies wholly outside the 120 nm foil/,
+    );
+    expect(errorOf((o) => (o.defects[0] = { type: 'fault', plane: [0, 0, 1], vector: '1/2[1 1 0]', point_nm: [0, 0, -3] }))).toMatch(
+      /^defects\[0\]\.point_nm: the fault plane is parallel to the surfaces/,
+    );
+    // an inclusion cut by the surface is a real case and stays valid
+    expect(errorOf((o) => (o.defects[0] = { type: 'inclusion', centre_nm: [0, 0, 122], radius_nm: 5, misfit: 0.01 }))).toBe('(accepted)');
   });
 });
