@@ -2,19 +2,19 @@
 import { describe, expect, it } from 'vitest';
 import { binImage, cropImage, fitPlane, gaussianBlur, planeValues, relativeContrast, removePlane, robustPlane, standardise } from '../../src/analysis/preprocess.js';
 import { seededRandom } from '../../src/analysis/identifyRandom.js';
-import { IN_CI, runPythonJson, shouldRunWith } from '../scattering/python.js';
+import { needPython, pythonJson } from '../python.js';
 
-const scipy = shouldRunWith('scipy');
+const scipy = needPython('numpy', 'scipy');
 
 describe('gaussianBlur', () => {
-  it.skipIf(!scipy.run)('equals scipy.ndimage.gaussian_filter(mode="nearest", truncate=4) (python3-scipy)', () => {
-    if (scipy.missing && IN_CI) throw new Error(scipy.missing);
+  it('equals scipy.ndimage.gaussian_filter(mode="nearest", truncate=4) (python3-scipy)', (ctx) => {
+    scipy.require(ctx);
     const w = 20;
     const h = 17;
     const r = seededRandom(2);
     const img = Array.from({ length: w * h }, () => r.normal());
     for (const sigma of [0.7, 1.1, 2.3]) {
-      const ref = runPythonJson<number[]>(
+      const ref = pythonJson<number[]>(
         'import json,sys,numpy as np\nfrom scipy.ndimage import gaussian_filter\nd=json.load(sys.stdin)\na=np.array(d["img"]).reshape(d["h"],d["w"])\nprint(json.dumps(gaussian_filter(a,d["s"],mode="nearest",truncate=4.0).ravel().tolist()))',
         { img, w, h, s: sigma },
       );

@@ -6,7 +6,6 @@
  * into exit code 2 with one sentence.
  */
 import { afterAll, beforeAll, describe, expect, it, vi } from 'vitest';
-import { spawnSync } from 'node:child_process';
 import { createHash } from 'node:crypto';
 import { mkdtempSync, readFileSync, rmSync, writeFileSync, existsSync } from 'node:fs';
 import { tmpdir } from 'node:os';
@@ -20,11 +19,9 @@ import { syntheticMicrographs, syntheticFileName, type SyntheticMicrograph } fro
 import { encodeFloatTiff } from '../../src/output/tiff.js';
 import { identifyCommand } from '../../src/cli/identifyCommand.js';
 import { action } from '../../src/cli/run.js';
+import { needPython, runPython } from '../python.js';
 
-const PYTHON = '/usr/bin/python3';
-const IN_CI = process.env.CI === 'true';
-const hasPil = spawnSync(PYTHON, ['-c', 'import PIL, numpy'], { encoding: 'utf8' }).status === 0;
-if (!hasPil && !IN_CI) console.warn('python3-pil / numpy missing: the micrographs are written as float TIFF only');
+const pil = needPython('PIL', 'numpy');
 
 const RAW = {
   name: 'cli identify test',
@@ -61,12 +58,10 @@ function pilPng(path: string, m: SyntheticMicrograph, bits: 8 | 16, gamma = 1): 
     'else:',
     '    Image.fromarray(np.round(a * 255).astype(np.uint8), "L").save(d["path"])',
   ].join('\n');
-  const r = spawnSync(PYTHON, ['-c', script], { input: JSON.stringify({ data: Array.from(m.data), w: m.width, h: m.height, bits, gamma, path }), encoding: 'utf8' });
-  if (r.status !== 0) throw new Error(`PIL failed: ${r.stderr}`);
+  runPython(['-c', script], { data: Array.from(m.data), w: m.width, h: m.height, bits, gamma, path });
 }
 
 beforeAll(async () => {
-  if (!hasPil && IN_CI) throw new Error('CI: Debian python3-pil / python3-numpy are required for this test');
   dir = mkdtempSync(join(tmpdir(), 'thinfoil-identify-'));
   const sc = parseScenario(RAW);
   const truth = identificationCandidates(sc).find((c) => c.label === 'b = 1/2[1 0 1]')!;
@@ -83,17 +78,9 @@ beforeAll(async () => {
     (s) => renderScenario(s, pool),
   );
   await pool.close();
-  const files = [join(dir, syntheticFileName('g200', 'bf')), join(dir, syntheticFileName('g020', 'bf', 'png')), join(dir, syntheticFileName('g11m1', 'df', 'png'))];
-  writeFileSync(files[0], encodeFloatTiff(syn[0].data, syn[0].width, syn[0].height, { pixel_nm: 1 }));
-  if (hasPil) {
-    pilPng(files[1], syn[1], 16);
-    pilPng(files[2], syn[2], 8, 0.6); // a display mapping (gamma 0.6): not proportional to intensity
-  } else {
-    files[1] = files[1].replace(/\.png$/, '.tif');
-    files[2] = files[2].replace(/\.png$/, '.tif');
-    writeFileSync(files[1], encodeFloatTiff(syn[1].data, syn[1].width, syn[1].height, { pixel_nm: 1 }));
-    writeFileSync(files[2], encodeFloatTiff(syn[2].data, syn[2].width, syn[2].height, { pixel_nm: 1 }));
-  }
+  // float TIFF by our own writer here; PNG micrographs written by python3-pil have their own test below
+  const files = [join(dir, syntheticFileName('g200', 'bf')), join(dir, syntheticFileName('g020', 'bf')), join(dir, syntheticFileName('g11m1', 'df'))];
+  files.forEach((f, i) => writeFileSync(f, encodeFloatTiff(syn[i].data, syn[i].width, syn[i].height, { pixel_nm: 1 })));
   args = [`g200=${files[0]}`, `g020=${files[1]}`, `g11m1=${files[2]}`];
   scenarioFile = join(dir, 'scenario.json');
   writeFileSync(
@@ -104,7 +91,7 @@ beforeAll(async () => {
         // g200: pixel size from the TIFF resolution tags
         g200: { field: 'bf', gAngle_deg: 20, blur_nm: 0.6, maxShift_nm: 8 },
         g020: { field: 'bf', gAngle_deg: 110, pixel_nm: 1, blur_nm: 0.6, maxShift_nm: 8 },
-        g11m1: { field: 'df', gAngle_deg: -30, pixel_nm: 1, blur_nm: 0.6, maxShift_nm: 8, intensity: hasPil ? 'display' : 'linear' },
+        g11m1: { field: 'df', gAngle_deg: -30, pixel_nm: 1, blur_nm: 0.6, maxShift_nm: 8 },
       },
     }),
   );
@@ -161,6 +148,38 @@ describe('thinfoil identify', () => {
     expect(full.conditions[0]).toMatchObject({ id: 'g200', pixel_nm: 1, synthetic: true });
     // inputs are never modified
     for (const [f, h] of hashes) expect(sha(f)).toBe(h);
+  });
+
+  it('reads 16-bit PNG and gamma-mapped 8-bit PNG micrographs written by python3-pil (an independent writer)', async (ctx) => {
+    pil.require(ctx);
+    const png16 = join(dir, syntheticFileName('g020', 'bf', 'png'));
+    const png8 = join(dir, syntheticFileName('g11m1', 'df', 'png'));
+    pilPng(png16, syn[1], 16);
+    pilPng(png8, syn[2], 8, 0.6); // a display mapping (gamma 0.6): not proportional to intensity
+    const f = join(dir, 'scenario-png.json');
+    writeFileSync(
+      f,
+      JSON.stringify({
+        ...RAW,
+        micrographs: {
+          g200: { field: 'bf', gAngle_deg: 20, blur_nm: 0.6, maxShift_nm: 8 },
+          g020: { field: 'bf', gAngle_deg: 110, pixel_nm: 1, blur_nm: 0.6, maxShift_nm: 8 },
+          g11m1: { field: 'df', gAngle_deg: -30, pixel_nm: 1, blur_nm: 0.6, maxShift_nm: 8, intensity: 'display' },
+        },
+      }),
+    );
+    const before = [png16, png8].map(sha);
+    const cap = capture();
+    try {
+      await identifyCommand(f, { micrograph: [args[0], `g020=${png16}`, `g11m1=${png8}`], json: true, out: join(dir, 'out-png'), bootstrap: '8', threads: 1 });
+    } finally {
+      cap.restore();
+    }
+    const j = JSON.parse(cap.out.join(''));
+    expect(j.ranking[0].candidate).toBe('b = 1/2[1 0 1]');
+    expect(j.ranking[0].perCondition.map((p: { condition: string }) => p.condition)).toEqual(['g200', 'g020', 'g11m1']);
+    expect(readFileSync(j.files.report, 'utf8')).toMatch(/synthetic-g020-bf\.png/);
+    expect([png16, png8].map(sha)).toEqual(before);
   });
 
   it('prints a table and the verdict without --json', async () => {

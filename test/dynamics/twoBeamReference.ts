@@ -3,9 +3,9 @@
  * (test/reference/twobeam-scipy.json, written by
  * `/usr/bin/python3 scripts/twobeam_reference.py`, scipy.integrate.solve_ivp
  * DOP853 rtol = atol = 1e-12) and the Lorentzian beta' profiles it uses.
+ * Running the script itself goes through test/python.ts.
  */
 import { readFileSync } from 'node:fs';
-import { spawnSync } from 'node:child_process';
 import { fileURLToPath } from 'node:url';
 import type { TwoBeamParams } from '../../src/dynamics/twoBeam.js';
 
@@ -27,7 +27,6 @@ export interface ScipyCase {
 }
 
 const root = fileURLToPath(new URL('../../', import.meta.url));
-export const SCRIPT = `${root}scripts/twobeam_reference.py`;
 
 export function loadScipyFixture(): ScipyCase[] {
   const text = readFileSync(`${root}test/reference/twobeam-scipy.json`, 'utf8');
@@ -62,21 +61,3 @@ export const maxAbsDiff = (a: ArrayLike<number>, b: ArrayLike<number>): number =
   for (let i = 0; i < 4; i++) m = Math.max(m, Math.abs(a[i] - b[i]));
   return m;
 };
-
-/**
- * Runs the generator script on the given cases now (scipy on this machine).
- * Returns null when python3 or scipy is missing outside CI (the caller
- * skips); under CI=true a missing library throws so the test fails.
- */
-export function runScipy(cases: ScipyCase[]): number[][] | null {
-  const input = JSON.stringify(cases.map((c) => ({ ...c, amplitudes: undefined })));
-  const r = spawnSync('/usr/bin/python3', [SCRIPT, '--stdin'], { input, encoding: 'utf8', timeout: 120_000 });
-  const missing = r.error !== undefined || /ModuleNotFoundError|No module named/.test(r.stderr ?? '');
-  if (missing) {
-    const why = r.error ? String(r.error) : r.stderr;
-    if (process.env.CI === 'true') throw new Error(`python3-scipy is required in CI: ${why}`);
-    return null;
-  }
-  if (r.status !== 0) throw new Error(`scripts/twobeam_reference.py failed: ${r.stderr}`);
-  return JSON.parse(r.stdout) as number[][];
-}

@@ -14,10 +14,10 @@ import { InputError } from '../../src/errors.js';
 import { decodeImage } from '../../src/imageio/readImage.js';
 import { encodeFloatTiff } from '../../src/output/tiff.js';
 import { encodeGreyPng } from '../../src/output/png.js';
-import { IN_CI, MISSING_PIL, pythonHas, runPython } from './python.js';
+import { needPython, runPython } from '../python.js';
 
 const HERE = path.dirname(fileURLToPath(import.meta.url));
-const HAVE_PIL = pythonHas(['PIL', 'numpy']);
+const pil = needPython('PIL', 'numpy');
 
 interface Case {
   file: string;
@@ -41,19 +41,9 @@ function expectInputError(fn: () => unknown, part: string): void {
   expect((caught as Error).message).toContain(part);
 }
 
-describe('decodeImage: Python PIL availability', () => {
-  it('has python3-pil and python3-numpy (required when CI=true)', (ctx) => {
-    if (!HAVE_PIL) {
-      if (IN_CI) expect.fail(`${MISSING_PIL}; required under CI`);
-      ctx.skip(`${MISSING_PIL}; skipping the PIL-written files`);
-    }
-    expect(HAVE_PIL).toBe(true);
-  });
-});
-
 /** Writes the PIL files at collection time so each one becomes its own test. */
 function makePilFiles(): { dir: string; cases: Case[] } {
-  if (!HAVE_PIL) return { dir: '', cases: [] };
+  if (!pil.ok) return { dir: '', cases: [] };
   const dir = fs.mkdtempSync(path.join(os.tmpdir(), 'thinfoil-imageio-'));
   runPython([path.join(HERE, 'pil_images.py'), dir]);
   const cases = JSON.parse(fs.readFileSync(path.join(dir, 'manifest.json'), 'utf8')) as Case[];
@@ -63,18 +53,20 @@ const PIL_FILES = makePilFiles();
 const READABLE = PIL_FILES.cases.filter((c) => c.error === undefined);
 const REFUSED = PIL_FILES.cases.filter((c) => c.error !== undefined);
 
-describe.skipIf(!HAVE_PIL)('decodeImage: files written by Python PIL (test/imageio/pil_images.py)', () => {
+describe('decodeImage: files written by Python PIL (test/imageio/pil_images.py)', () => {
   const { dir } = PIL_FILES;
   afterAll(() => {
     if (dir !== '') fs.rmSync(dir, { recursive: true, force: true });
   });
 
-  it('the generator wrote the full set of files', () => {
+  it('the generator wrote the full set of files', (ctx) => {
+    pil.require(ctx);
     expect(READABLE.length).toBe(52);
     expect(REFUSED.length).toBe(7);
   });
 
-  it.each(READABLE.map((c) => [c.file, c] as const))('reads %s to the values PIL wrote, exactly', (_, c) => {
+  it.for(READABLE.map((c) => [c.file, c] as const))('reads %s to the values PIL wrote, exactly', ([, c], ctx) => {
+    pil.require(ctx);
     const bytes = fs.readFileSync(path.join(dir, c.file));
     const img = decodeImage(bytes, c.file);
     expect({ kind: img.kind, w: img.width, h: img.height, bits: img.bitDepth }).toEqual({
@@ -112,13 +104,15 @@ describe.skipIf(!HAVE_PIL)('decodeImage: files written by Python PIL (test/image
     }
   });
 
-  it.each(REFUSED.map((c) => [c.file, c] as const))('refuses %s with an InputError naming the file and the problem', (_, c) => {
+  it.for(REFUSED.map((c) => [c.file, c] as const))('refuses %s with an InputError naming the file and the problem', ([, c], ctx) => {
+    pil.require(ctx);
     const bytes = fs.readFileSync(path.join(dir, c.file));
     expectInputError(() => decodeImage(bytes, c.file), `${c.file} `);
     expectInputError(() => decodeImage(bytes, c.file), c.error as string);
   });
 
-  it('reads a file held in a Buffer view at a non-zero offset of a larger buffer', () => {
+  it('reads a file held in a Buffer view at a non-zero offset of a larger buffer', (ctx) => {
+    pil.require(ctx);
     for (const file of ['tif_F32_lzw.tif', 'tif_I16_raw.tif', 'png_I16.png']) {
       const bytes = fs.readFileSync(path.join(dir, file));
       const big = Buffer.alloc(bytes.length + 13, 0x55);

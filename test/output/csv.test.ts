@@ -4,12 +4,11 @@
  * csv module run with Debian's /usr/bin/python3; numbers must read back to
  * the same double with Python's float().
  */
-import { spawnSync } from 'node:child_process';
 import { describe, expect, it } from 'vitest';
 import { toCsv } from '../../src/output/csv.js';
-import { IN_CI, PYTHON } from '../imageio/python.js';
+import { needPython, pythonText } from '../python.js';
 
-const HAVE_PYTHON = spawnSync(PYTHON, ['-c', 'import csv, json'], { encoding: 'utf8' }).status === 0;
+const py = needPython('csv', 'json');
 
 const PY_READ = String.raw`
 import csv, io, json, sys
@@ -43,15 +42,9 @@ describe('toCsv: RFC 4180 form', () => {
 });
 
 describe('toCsv read back by Python csv', () => {
-  it('has /usr/bin/python3 (required when CI=true)', (ctx) => {
-    if (!HAVE_PYTHON) {
-      if (IN_CI) expect.fail('/usr/bin/python3 not found; required under CI');
-      ctx.skip('/usr/bin/python3 not found; skipping the Python csv checks');
-    }
-    expect(HAVE_PYTHON).toBe(true);
-  });
 
-  it.skipIf(!HAVE_PYTHON)('gives back every string cell, including commas, quotes, CR, LF, spaces and non-ASCII', () => {
+  it('gives back every string cell, including commas, quotes, CR, LF, spaces and non-ASCII', (ctx) => {
+    py.require(ctx);
     const header = ['label', 'note', 'x'];
     const rows: (string | number)[][] = [
       ['g = 1,1,-1', 'b = a/2 [1 1 0]', 1],
@@ -63,28 +56,25 @@ describe('toCsv read back by Python csv', () => {
       ['', '', 7],
     ];
     const text = toCsv(header, rows);
-    const r = spawnSync(PYTHON, ['-c', PY_READ], { input: text, encoding: 'utf8' });
-    expect(r.status).toBe(0);
-    const back = JSON.parse(r.stdout) as string[][];
+    const back = JSON.parse(pythonText(['-c', PY_READ], text)) as string[][];
     expect(back).toEqual([header, ...rows.map((row) => row.map(String))]);
   });
 
-  it.skipIf(!HAVE_PYTHON)('a one-column table with an empty cell keeps the record', () => {
+  it('a one-column table with an empty cell keeps the record', (ctx) => {
+    py.require(ctx);
     const text = toCsv(['only'], [[''], ['x']]);
-    const r = spawnSync(PYTHON, ['-c', PY_READ], { input: text, encoding: 'utf8' });
-    expect(JSON.parse(r.stdout)).toEqual([['only'], [''], ['x']]);
+    expect(JSON.parse(pythonText(['-c', PY_READ], text))).toEqual([['only'], [''], ['x']]);
   });
 
-  it.skipIf(!HAVE_PYTHON)('numbers read back to the same double', () => {
+  it('numbers read back to the same double', (ctx) => {
+    py.require(ctx);
     const nums = [0.1, 1 / 3, -2 / 7, 1e-7, 5e-324, -1.5e300, 123456789012345680000, 2 ** 53 + 2, -0, 0.30000000000000004, Math.PI];
     const text = toCsv(['v'], nums.map((v) => [v]));
-    const cells = (JSON.parse(spawnSync(PYTHON, ['-c', PY_READ], { input: text, encoding: 'utf8' }).stdout) as string[][])
+    const cells = (JSON.parse(pythonText(['-c', PY_READ], text)) as string[][])
       .slice(1)
       .map((r) => r[0]);
-    const r = spawnSync(PYTHON, ['-c', PY_FLOATS], { input: JSON.stringify(cells), encoding: 'utf8' });
-    expect(r.status).toBe(0);
     // Python repr(float) is the shortest round-trip text too; compare as doubles
-    const back = (JSON.parse(r.stdout) as string[]).map(Number);
+    const back = (JSON.parse(pythonText(['-c', PY_FLOATS], cells)) as string[]).map(Number);
     back.forEach((v, i) => expect(v === nums[i] || (v === 0 && nums[i] === 0)).toBe(true));
   });
 });

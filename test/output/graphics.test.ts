@@ -14,7 +14,7 @@ import { svgSurface } from '../../src/output/graphics/svg.js';
 import { scanCoverage, SUBSCANLINES } from '../../src/output/graphics/fill.js';
 import { fontFile, textAdvance } from '../../src/output/graphics/font.js';
 import { dashPolyline, discPolygon, polylineStroke, signedArea } from '../../src/output/graphics/strokeGeometry.js';
-import { IN_CI, pythonHas, runPython } from '../imageio/python.js';
+import { needPython, needPythonFeature, runPython } from '../python.js';
 import type { RGB } from '../../src/output/graphics/types.js';
 
 const WHITE: RGB = [255, 255, 255];
@@ -40,13 +40,14 @@ const FONT = opentype.parse(fontBytes.buffer.slice(fontBytes.byteOffset, fontByt
 const LATN = FONT.position.getKerningTables('latn');
 const kernUnits = (a: OtGlyph, b: OtGlyph) => FONT.position.getKerningValue(LATN, a.index, b.index);
 
-const HAVE_PIL = pythonHas(['PIL.ImageFont', 'PIL.features']);
-function requirePil(): boolean {
-  if (HAVE_PIL) return true;
-  if (IN_CI) throw new Error('Debian python3-pil is missing at /usr/bin/python3 (required under CI=true)');
-  console.warn('skipping: Debian python3-pil not found at /usr/bin/python3');
-  return false;
-}
+const PIL_TEXT = ['PIL.ImageFont', 'PIL.features', 'PIL.ImageDraw'];
+const pil = needPython(...PIL_TEXT);
+const raqm = needPythonFeature(PIL_TEXT, {
+  code: "import sys\nfrom PIL import features\nsys.exit(0 if features.check('raqm') else 1)",
+  packages: ['libraqm0'],
+  what: "python3-pil has no raqm text layout (Debian's libraqm0)",
+});
+const xml = needPython('xml.etree.ElementTree');
 
 /** Ink (darkness 0..1 per pixel, mean over R, G, B) of a white-background surface. */
 function ink(px: Uint8Array, width: number, height: number): Float64Array {
@@ -227,23 +228,16 @@ describe('text from the bundled font', () => {
     for (const c of ['H', '\u03be', '\u2212']) expect(textAdvance(c, SIZE)).toBeCloseTo(FONT.getAdvanceWidth(c, SIZE), 9);
   });
 
-  it('measureText agrees with FreeType + HarfBuzz (python3-pil, raqm layout, ligatures off)', () => {
-    if (!requirePil()) return;
+  it('measureText agrees with FreeType + HarfBuzz (python3-pil, raqm layout, ligatures off)', (ctx) => {
+    raqm.require(ctx);
     const strs = ['Hello', 'AVAT To', '\u03be\u03b1\u03b2\u03b3', 's (nm\u207b\u00b9)'];
     const script = String.raw`
 import json, sys
-from PIL import ImageFont, features
-if not features.check('raqm'):
-    print(json.dumps({"raqm": False})); sys.exit(0)
+from PIL import ImageFont
 f = ImageFont.truetype(sys.argv[1], 2048, layout_engine=ImageFont.Layout.RAQM)
-print(json.dumps({"raqm": True, "w": [f.getlength(s, features=['-liga']) for s in json.loads(sys.argv[2])]}))
+print(json.dumps({"w": [f.getlength(s, features=['-liga']) for s in json.loads(sys.argv[2])]}))
 `;
-    const out = JSON.parse(runPython(['-c', script, fontFile(false), JSON.stringify(strs)])) as { raqm: boolean; w: number[] };
-    if (!out.raqm) {
-      if (IN_CI) throw new Error('python3-pil has no raqm layout (libraqm) under CI=true');
-      console.warn('skipping: python3-pil without raqm');
-      return;
-    }
+    const out = JSON.parse(runPython(['-c', script, fontFile(false), JSON.stringify(strs)]).stdout) as { w: number[] };
     // at 2048 px per em (= units per em of DejaVu Sans) FreeType's advances are the font units themselves
     strs.forEach((s, i) => expect(textAdvance(s, 2048)).toBeCloseTo(out.w[i], 6));
   });
@@ -274,8 +268,8 @@ print(json.dumps({"raqm": True, "w": [f.getlength(s, features=['-liga']) for s i
     for (const c of str) expect(FONT.charToGlyph(c).index).toBeGreaterThan(0);
   });
 
-  it('the ink box agrees with FreeType rendering the same text (python3-pil)', () => {
-    if (!requirePil()) return;
+  it('the ink box agrees with FreeType rendering the same text (python3-pil)', (ctx) => {
+    pil.require(ctx);
     const W = 200, H = 80;
     const s = rasterSurface(W, H, WHITE);
     s.text('Hello', 20, 60, { size: SIZE });
@@ -293,7 +287,7 @@ ink = [(x, y) for y in range(80) for x in range(200) if 1 - px[x, y] / 255 > 0.0
 xs = [p[0] for p in ink]; ys = [p[1] for p in ink]
 print(json.dumps([min(xs), min(ys), max(xs) + 1, max(ys) + 1]))
 `;
-    const ref = JSON.parse(runPython(['-c', script, fontFile(false)])) as number[];
+    const ref = JSON.parse(runPython(['-c', script, fontFile(false)]).stdout) as number[];
     for (let i = 0; i < 4; i++) expect(Math.abs(got[i] - ref[i])).toBeLessThanOrEqual(1);
   });
 
@@ -333,7 +327,7 @@ describe('SVG surface', () => {
     return s.toSvg();
   }
 
-  it('is well-formed XML (Python xml.etree) with no <text> elements and text as paths', () => {
+  it('is well-formed XML (Python xml.etree) with no <text> elements and text as paths', (ctx) => {
     const svg = sample();
     expect(svg).not.toMatch(/<text[\s>]/);
     expect(svg).toMatch(/<path aria-label="Hello &lt;\u03be&gt; &amp; &quot;\u03b1&quot;"/);
@@ -346,13 +340,8 @@ ns = '{http://www.w3.org/2000/svg}'
 tags = [e.tag.replace(ns, '') for e in root.iter()]
 print(json.dumps({"root": root.tag, "w": root.get('width'), "tags": sorted(set(tags)), "text": tags.count('text')}))
 `;
-    const have = pythonHas(['xml.etree.ElementTree']);
-    if (!have) {
-      if (IN_CI) throw new Error('/usr/bin/python3 is missing (required under CI=true)');
-      console.warn('skipping the XML parse: /usr/bin/python3 not found');
-      return;
-    }
-    const r = JSON.parse(runPython(['-c', script], svg)) as { root: string; w: string; tags: string[]; text: number };
+    xml.require(ctx);
+    const r = JSON.parse(runPython(['-c', script], svg).stdout) as { root: string; w: string; tags: string[]; text: number };
     expect(r.root).toBe('{http://www.w3.org/2000/svg}svg');
     expect(r.w).toBe('120');
     expect(r.text).toBe(0);

@@ -11,9 +11,10 @@ import { createHash } from 'node:crypto';
 import { afterAll, describe, expect, it } from 'vitest';
 import { autoStretch, encodeGreyPng, encodeRgbPng, stretchToBytes } from '../../src/output/png.js';
 import { selectInPlace } from '../../src/output/stretch.js';
-import { IN_CI, MISSING_PIL, pythonHas, runPython } from '../imageio/python.js';
+import { needPython, pythonText } from '../python.js';
 
-const HAVE_PIL = pythonHas(['PIL', 'numpy']);
+const pil = needPython('PIL', 'numpy');
+const numpy = needPython('numpy');
 const TMP = fs.mkdtempSync(path.join(os.tmpdir(), 'thinfoil-png-'));
 afterAll(() => fs.rmSync(TMP, { recursive: true, force: true }));
 
@@ -39,33 +40,28 @@ print(json.dumps({"mode": im.mode, "size": list(im.size), "format": im.format,
 `;
 
 describe('PNG encoders read by Python PIL', () => {
-  it('has python3-pil and python3-numpy (required when CI=true)', (ctx) => {
-    if (!HAVE_PIL) {
-      if (IN_CI) expect.fail(`${MISSING_PIL}; required under CI`);
-      ctx.skip(`${MISSING_PIL}; skipping the PIL checks`);
-    }
-    expect(HAVE_PIL).toBe(true);
-  });
 
-  it.skipIf(!HAVE_PIL)('encodeGreyPng: PIL sees an 8-bit grey (mode L) image with the same bytes', () => {
+  it('encodeGreyPng: PIL sees an 8-bit grey (mode L) image with the same bytes', (ctx) => {
+    pil.require(ctx);
     const w = 131;
     const h = 77;
     const rnd = lcg(7);
     const px = new Uint8Array(w * h).map(() => Math.floor(rnd() * 256));
     const file = path.join(TMP, 'grey.png');
     fs.writeFileSync(file, encodeGreyPng(px, w, h));
-    const v = JSON.parse(runPython(['-c', PIL_PNG, file])) as { mode: string; size: number[]; format: string; sha256: string };
+    const v = JSON.parse(pythonText(['-c', PIL_PNG, file])) as { mode: string; size: number[]; format: string; sha256: string };
     expect(v).toEqual({ mode: 'L', size: [w, h], format: 'PNG', sha256: sha256(px) });
   });
 
-  it.skipIf(!HAVE_PIL)('encodeRgbPng: PIL sees an 8-bit RGB image with the same bytes', () => {
+  it('encodeRgbPng: PIL sees an 8-bit RGB image with the same bytes', (ctx) => {
+    pil.require(ctx);
     const w = 64;
     const h = 45;
     const rnd = lcg(11);
     const rgb = new Uint8Array(3 * w * h).map(() => Math.floor(rnd() * 256));
     const file = path.join(TMP, 'rgb.png');
     fs.writeFileSync(file, encodeRgbPng(rgb, w, h));
-    const v = JSON.parse(runPython(['-c', PIL_PNG, file])) as { mode: string; size: number[]; format: string; sha256: string };
+    const v = JSON.parse(pythonText(['-c', PIL_PNG, file])) as { mode: string; size: number[]; format: string; sha256: string };
     expect(v).toEqual({ mode: 'RGB', size: [w, h], format: 'PNG', sha256: sha256(rgb) });
   });
 
@@ -89,7 +85,8 @@ print(json.dumps({"lo": lo, "hi": hi}))
 `;
 
 describe('autoStretch and stretchToBytes against numpy', () => {
-  it.skipIf(!HAVE_PIL).each([0.005, 0.01, 0.0013])('clipFraction %s: same window and same bytes as numpy', (clip) => {
+  it.for([0.005, 0.01, 0.0013])('clipFraction %s: same window and same bytes as numpy', (clip, ctx) => {
+    numpy.require(ctx);
     // heavy-tailed data: a smooth background, a few very dark and very bright pixels
     const n = 200_003;
     const rnd = lcg(99);
@@ -101,7 +98,7 @@ describe('autoStretch and stretchToBytes against numpy', () => {
     const inFile = path.join(TMP, `img-${clip}.f32`);
     const outFile = path.join(TMP, `bytes-${clip}.u8`);
     fs.writeFileSync(inFile, new Uint8Array(img.buffer));
-    const ref = JSON.parse(runPython(['-c', NUMPY_STRETCH, inFile, String(clip), outFile])) as { lo: number; hi: number };
+    const ref = JSON.parse(pythonText(['-c', NUMPY_STRETCH, inFile, String(clip), outFile])) as { lo: number; hi: number };
     const win = autoStretch(img, { clipFraction: clip });
     // numpy.percentile 'lower'/'higher': order statistics floor(c (n-1)) and ceil((1-c)(n-1))
     expect(win).toEqual(ref);
@@ -109,7 +106,8 @@ describe('autoStretch and stretchToBytes against numpy', () => {
     expect(sha256(ours)).toBe(sha256(fs.readFileSync(outFile)));
   });
 
-  it.skipIf(!HAVE_PIL)('rounds exact halves to even like numpy.rint', () => {
+  it('rounds exact halves to even like numpy.rint', (ctx) => {
+    numpy.require(ctx);
     // with lo = 0, hi = 510, the value 2k + 1 maps to k + 0.5 exactly
     const img = new Float32Array(512).map((_, i) => i - 1);
     const inFile = path.join(TMP, 'ties.f32');
@@ -120,7 +118,7 @@ import sys
 import numpy as np
 a = np.fromfile(sys.argv[1], dtype="<f4").astype(np.float64)
 np.clip(np.rint((a - 0) * 255 / 510), 0, 255).astype(np.uint8).tofile(sys.argv[2])`;
-    runPython(['-c', script, inFile, outFile]);
+    pythonText(['-c', script, inFile, outFile]);
     const ours = stretchToBytes(img, 0, 510);
     expect(Array.from(ours)).toEqual(Array.from(fs.readFileSync(outFile)));
     expect(ours[2]).toBe(0); // 1 -> 0.5 -> 0 (even)

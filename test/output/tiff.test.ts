@@ -14,7 +14,7 @@ import { afterAll, describe, expect, it } from 'vitest';
 import { InputError } from '../../src/errors.js';
 import { encodeFloatTiff } from '../../src/output/tiff.js';
 import { toRational32 } from '../../src/output/rational.js';
-import { IN_CI, MISSING_PIL, pythonHas, runPythonFull } from '../imageio/python.js';
+import { needPython, runPython } from '../python.js';
 
 interface UtifIfd {
   [tag: string]: unknown;
@@ -28,7 +28,7 @@ const UTIF = require('utif') as {
   decodeImage(buf: ArrayBuffer, ifd: UtifIfd): void;
 };
 
-const HAVE_PIL = pythonHas(['PIL', 'numpy']);
+const pil = needPython('PIL', 'numpy');
 const TMP = fs.mkdtempSync(path.join(os.tmpdir(), 'thinfoil-tiff-'));
 afterAll(() => fs.rmSync(TMP, { recursive: true, force: true }));
 
@@ -107,7 +107,7 @@ interface PilView {
 }
 
 function readWithPil(file: string, via: 'pil' | 'libtiff'): PilView {
-  const { stdout, stderr } = runPythonFull(['-c', PIL_READER, file, via]);
+  const { stdout, stderr } = runPython(['-c', PIL_READER, file, via]);
   expect(stderr).toBe(''); // no warnings printed by PIL or libtiff
   return JSON.parse(stdout) as PilView;
 }
@@ -133,17 +133,11 @@ describe('encodeFloatTiff read by npm utif', () => {
 });
 
 describe('encodeFloatTiff read by Python PIL', () => {
-  it('has python3-pil and python3-numpy (required when CI=true)', (ctx) => {
-    if (!HAVE_PIL) {
-      if (IN_CI) expect.fail(`${MISSING_PIL}; required under CI`);
-      ctx.skip(`${MISSING_PIL}; skipping the PIL reader checks`);
-    }
-    expect(HAVE_PIL).toBe(true);
-  });
 
-  it.skipIf(!HAVE_PIL).each(['pil', 'libtiff'] as const)(
+  it.for(['pil', 'libtiff'] as const)(
     'reader %s: mode F, the same float32 values, resolution 1e8/3 px per cm',
-    (via) => {
+    (via, ctx) => {
+      pil.require(ctx);
       const w = 37;
       const h = 23;
       const img = testImage(w, h);
@@ -166,7 +160,8 @@ describe('encodeFloatTiff read by Python PIL', () => {
     },
   );
 
-  it.skipIf(!HAVE_PIL)('a 600 x 500 image in several strips reads back exactly in both PIL paths', () => {
+  it('a 600 x 500 image in several strips reads back exactly in both PIL paths', (ctx) => {
+    pil.require(ctx);
     const w = 600;
     const h = 500;
     const img = testImage(w, h);
@@ -180,7 +175,8 @@ describe('encodeFloatTiff read by Python PIL', () => {
     }
   });
 
-  it.skipIf(!HAVE_PIL)('keeps the pixel size to 1e-9 relative for awkward values', () => {
+  it('keeps the pixel size to 1e-9 relative for awkward values', (ctx) => {
+    pil.require(ctx);
     for (const p of [0.0173, 0.123456789, 1.234567, 7.77, 333.3, 25000]) {
       const file = path.join(TMP, `res-${p}.tif`);
       fs.writeFileSync(file, encodeFloatTiff(new Float32Array([1, 2, 3, 4]), 2, 2, { pixel_nm: p }));
@@ -194,7 +190,8 @@ describe('encodeFloatTiff read by Python PIL', () => {
     }
   });
 
-  it.skipIf(!HAVE_PIL)('without a pixel size writes ResolutionUnit 1 (no absolute unit) and 1/1', () => {
+  it('without a pixel size writes ResolutionUnit 1 (no absolute unit) and 1/1', (ctx) => {
+    pil.require(ctx);
     const file = path.join(TMP, 'nounit.tif');
     fs.writeFileSync(file, encodeFloatTiff(new Float32Array([5, 6]), 2, 1));
     const v = readWithPil(file, 'libtiff');
@@ -203,7 +200,8 @@ describe('encodeFloatTiff read by Python PIL', () => {
     expect(v.description).toBeNull();
   });
 
-  it.skipIf(!HAVE_PIL)('replaces non-ASCII description characters by ? (TIFF ASCII is 7-bit)', () => {
+  it('replaces non-ASCII description characters by ? (TIFF ASCII is 7-bit)', (ctx) => {
+    pil.require(ctx);
     const file = path.join(TMP, 'ascii.tif');
     fs.writeFileSync(file, encodeFloatTiff(new Float32Array([1]), 1, 1, { description: 'ξg = 25 nm, 2θ' }));
     expect(readWithPil(file, 'pil').description).toBe('?g = 25 nm, 2?');

@@ -5,7 +5,7 @@
  */
 import { describe, expect, it } from 'vitest';
 import { electronCoefficients, electronScatteringFactor_A, xrayCoefficients, xrayScatteringFactor } from '../../src/scattering/scatteringFactor.js';
-import { IN_CI, runPythonJson, shouldRunWith } from './python.js';
+import { lazyPythonJson, needPython } from '../python.js';
 
 interface GemmiElement {
   Z: number;
@@ -21,11 +21,9 @@ interface GemmiElement {
 
 const S_GRID = [0, 0.05, 0.1, 0.25, 0.5, 1, 1.5, 2];
 
-const gemmi = shouldRunWith('gemmi');
-describe.skipIf(!gemmi.run)('data file against python3-gemmi', () => {
-  const load = (): GemmiElement[] => {
-    if (gemmi.missing) throw new Error(`CI=${IN_CI}: ${gemmi.missing}`);
-    return runPythonJson<GemmiElement[]>(
+describe('data file against python3-gemmi', () => {
+  const py = needPython('gemmi');
+  const load = lazyPythonJson<GemmiElement[]>(
       `import json, sys, gemmi
 s_grid = json.load(sys.stdin)
 out = []
@@ -38,11 +36,11 @@ for z in range(1, 99):
                 "fe": [e.calculate_sf(s * s) for s in s_grid],
                 "fx": [x.calculate_sf(s * s) for s in s_grid]})
 print(json.dumps(out))`,
-      S_GRID,
-    );
-  };
+    S_GRID,
+  );
 
-  it('has exactly the gemmi coefficients for Z = 1..98 (exact equality)', () => {
+  it('has exactly the gemmi coefficients for Z = 1..98 (exact equality)', (ctx) => {
+    py.require(ctx);
     const ref = load();
     expect(ref).toHaveLength(98);
     for (const g of ref) {
@@ -57,7 +55,8 @@ print(json.dumps(out))`,
     }
   });
 
-  it("evaluates fe(s) and fx(s) as gemmi's own calculate_sf does (relative 1e-12, 0 <= s <= 2 per A)", () => {
+  it("evaluates fe(s) and fx(s) as gemmi's own calculate_sf does (relative 1e-12, 0 <= s <= 2 per A)", (ctx) => {
+    py.require(ctx);
     for (const g of load()) {
       S_GRID.forEach((s, i) => {
         const fe = electronScatteringFactor_A(g.symbol, s);

@@ -5,7 +5,7 @@ import { cellVolume_nm3, makeLattice } from '../../src/crystal/lattice.js';
 import type { Material } from '../../src/crystal/material.js';
 import type { Vec3 } from '../../src/math/vec3.js';
 import { InputError } from '../../src/errors.js';
-import { IN_CI, runPythonJson, shouldRunWith } from './python.js';
+import { needPython, pythonJson } from '../python.js';
 import { b2, bcc, diamond, fcc, hcp, material, zincblende } from './structures.js';
 
 // Room-temperature lattice parameters and B values are rough (from memory); the
@@ -29,12 +29,12 @@ const crystals: Material[] = [
 const HKL: Vec3[] = [];
 for (let h = -3; h <= 3; h++) for (let k = -3; k <= 3; k++) for (let l = -3; l <= 3; l++) HKL.push([h, k, l]);
 
-const gemmi = shouldRunWith('gemmi');
-describe.skipIf(!gemmi.run)("structure factors against gemmi's StructureFactorCalculatorE (python3-gemmi, P1 cells)", () => {
-  it.each(crystals.map((m) => [m.name, m] as const))('%s: every hkl with |h|,|k|,|l| <= 3 to 1e-10 of the site sum', (_name, m) => {
-    if (gemmi.missing) throw new Error(`CI=${IN_CI}: ${gemmi.missing}`);
+describe("structure factors against gemmi's StructureFactorCalculatorE (python3-gemmi, P1 cells)", () => {
+  const py = needPython('gemmi');
+  it.for(crystals.map((m) => [m.name, m] as const))('%s: every hkl with |h|,|k|,|l| <= 3 to 1e-10 of the site sum', ([_name, m], ctx) => {
+    py.require(ctx);
     const L = m.lattice;
-    const ref = runPythonJson<[number, number][]>(
+    const ref = pythonJson<[number, number][]>(
       `import json, sys, math, gemmi
 d = json.load(sys.stdin)
 lines = ["data_t", "_cell_length_a %r" % d["a"], "_cell_length_b %r" % d["b"], "_cell_length_c %r" % d["c"],

@@ -1,7 +1,7 @@
 import { describe, expect, it } from 'vitest';
 import { braggAngle_rad, relativisticGamma, wavelength_nm } from '../../src/scattering/wavelength.js';
 import { InputError } from '../../src/errors.js';
-import { IN_CI, runPythonJson, shouldRunWith } from './python.js';
+import { needPython, pythonJson } from '../python.js';
 
 // CODATA 2018 values written out here, independently of src/scattering/constants.ts
 // (NIST reference on constants: h, c, e exact; m_e recommended).
@@ -55,12 +55,12 @@ describe('relativistic electron wavelength', () => {
   });
 });
 
-const scipy = shouldRunWith('scipy');
-describe.skipIf(!scipy.run)('wavelength against scipy.constants (python3-scipy, CODATA 2018)', () => {
-  it('agrees to relative 1e-12 from 10 to 3000 kV', () => {
-    if (scipy.missing) throw new Error(`CI=${IN_CI}: ${scipy.missing}`);
+describe('wavelength against scipy.constants (python3-scipy, CODATA 2018)', () => {
+  const py = needPython('scipy');
+  it('agrees to relative 1e-12 from 10 to 3000 kV', (ctx) => {
+    py.require(ctx);
     const kVs = [10, 100, 200, 300, 1000, 3000];
-    const ref = runPythonJson<{ codata: string; lambda_nm: number[] }>(
+    const ref = pythonJson<{ codata: string; lambda_nm: number[] }>(
       `import json, sys, math
 from scipy import constants as C
 kvs = json.load(sys.stdin)
