@@ -66,6 +66,7 @@ describe('thinfoil reflection', () => {
     [['reflection', 'Al', '1,1,1', '--kv', '0x10'], /--kv/],
     [['reflection', 'Cu', '500,0,0'], /beyond the range/],
     [['bloch', 'Cu', '2,0,0', '--s', '1e308'], /--s/],
+    [['reflection', 'Al', '{111}'], /^thinfoil: reflection indices: "\{111\}" is a family .*one plane .*"\(111\)"/],
   ])('bad input %j: exit code 2, one clear sentence', (args, pattern) => {
     const r = run(...(args as string[]));
     expect(r.code).toBe(2);
@@ -184,6 +185,18 @@ describe('thinfoil render', () => {
     expect(r.code).toBe(2);
     expect(r.err).toMatch(pattern);
     expect(r.err).not.toMatch(/\n\s+at /);
+  });
+
+  it('a family as a Burgers vector and a key in the wrong case: exit code 2, the field named with the fix', () => {
+    const fam = scenarioFile({ ...GOOD, defects: [{ ...GOOD.defects[0], b: '1/2<110>' }] });
+    const r1 = run('render', fam.file, '--out', join(fam.dir, 'o'));
+    expect(r1.code).toBe(2);
+    expect(r1.err).toMatch(/^thinfoil: defects\[0\]\.b: "1\/2<110>" is a family .*write one member, e\.g\. "1\/2\[110\]"/);
+    expect(r1.err.trim().split('\n')).toHaveLength(1);
+    const typo = scenarioFile({ ...GOOD, conditions: [{ id: 'wb', g: [2, 0, 0], weakbeam: 3 }] });
+    const r2 = run('render', typo.file, '--out', join(typo.dir, 'o'));
+    expect(r2.code).toBe(2);
+    expect(r2.err).toBe('thinfoil: conditions[0].weakbeam: is not a known field; did you mean "weakBeam"?\n');
   });
 
   it('a file that is not JSON, and a missing file: exit code 2', () => {
