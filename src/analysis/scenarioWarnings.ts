@@ -107,7 +107,7 @@ export function scenarioWarnings(sc: Scenario): string[] {
       b = [p[0] + big * u[0], p[1] + big * u[1], p[2] + big * u[2]];
     }
     if (clipToRectangle(dot(a, ref.ex), dot(a, ref.ey), dot(b, ref.ex), dot(b, ref.ey), hw, hh) === null) {
-      out.push(`${where}: the line crosses the foil outside the ${sig(2 * hw, 4)} x ${sig(2 * hh, 4)} nm field of view, so the image shows at most the tail of its strain field; move point_nm or enlarge the image`);
+      out.push(`${where}: the part of the line inside the foil lies outside the ${sig(2 * hw, 4)} x ${sig(2 * hh, 4)} nm field of view, so the image shows at most the tail of its strain field; move point_nm or enlarge the image`);
     }
   });
   return out;

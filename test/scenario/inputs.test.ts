@@ -127,7 +127,7 @@ describe('implausible values are warned about, impossible ones refused (threshol
     });
     expect(w).toHaveLength(2);
     expect(w[0]).toMatch(/^defects\[0\] .*point_nm is at depth 500 nm, outside the 120 nm foil; the line is drawn where it crosses the foil/);
-    expect(w[1]).toMatch(/^defects\[0\] .*crosses the foil outside the 32 x 32 nm field of view/);
+    expect(w[1]).toMatch(/^defects\[0\] .*the part of the line inside the foil lies outside the 32 x 32 nm field of view/);
     // geometry of the crossing: |x|, |y| of the two ends as computed by hand above (x along [1 0 0], y along [0 1 0]: 269/sqrt 2 = 190)
     const ends = [...w[0].matchAll(/\((-?[\d.]+), (-?[\d.]+)\)/g)].map((m) => [Number(m[1]), Number(m[2])]);
     expect(ends.map(([x]) => Math.abs(x)).sort((p, q) => p - q)).toEqual([190, 250]);
