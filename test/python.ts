@@ -36,6 +36,7 @@ const DEBIAN_PACKAGE: Readonly<Record<string, string>> = {
   scipy: 'python3-scipy',
   numpy: 'python3-numpy',
   PIL: 'python3-pil',
+  tifffile: 'python3-tifffile',
 };
 
 export function debianPackageOf(module: string): string {

@@ -24,6 +24,7 @@ import { seededRandom } from './identifyRandom.js';
 import { gaussianBlur, removePlane } from './preprocess.js';
 import { blockResample, correlationLength, decide, DEFAULT_SIGMAS, DEFAULT_SPREAD, fitAmplitudes, pairStats, type PairStats, type Verdict } from './ranking.js';
 import { DEFAULT_MAX_ROTATION_DEG, DEFAULT_MAX_SCALE, createCorrelator, extractWindow, findPeak, register, type Correlator, type PreparedTemplate, type RegistrationOptions, type RegistrationResult } from './registration.js';
+import { flipRowsView, imageView, toFloat64 } from '../imaging/imageView.js';
 
 /** Renders a scenario (one condition) into its images; the CLI passes renderScenario with one shared pool. */
 export type Renderer = (sc: Scenario) => Promise<readonly ConditionImages[]>;
@@ -238,11 +239,9 @@ export async function simulateView(vsc: Scenario, m: PreparedMicrograph, render:
       `micrographs.${m.conditionId}.field: the perfect crystal gives no ${field === 'df' ? 'dark' : 'bright'}-field intensity under ${m.conditionId} at this thickness, so relative contrast is undefined; compare the ${field === 'df' ? 'bright' : 'dark'}-field micrograph instead`,
     );
   }
-  const rel = new Float64Array(W * H);
-  for (let y = 0; y < H; y++) {
-    const sy = m.settings.mirrored ? H - 1 - y : y;
-    for (let x = 0; x < W; x++) rel[y * W + x] = src[sy * W + x] / bg - 1;
-  }
+  const view = imageView(src, W, H);
+  const rel = toFloat64(m.settings.mirrored ? flipRowsView(view) : view);
+  for (let k = 0; k < rel.length; k++) rel[k] = rel[k] / bg - 1;
   // A detector pixel integrates over its area: a box of width p has the variance p^2/12, added here as a
   // Gaussian to the point spread of the microscope (without it, point-sampled simulations are too sharp
   // and the scale search drifts to magnify them).

@@ -1,7 +1,8 @@
 /**
  * Image preparation before comparison: crop, bin, background plane, relative
  * contrast, zero-mean / unit-variance normalisation, Gaussian blur. Plain
- * functions on Float64Array grids (row by row, top row first).
+ * functions on Float64Array grids (row by row, top row first); crop and bin
+ * go through the ndarray views of imaging/imageView.ts.
  *
  * Relative contrast is what makes simulations and micrographs comparable:
  * c = I / B - 1 with B the background (for a micrograph: a plane fitted to the
@@ -9,6 +10,8 @@
  * intensity). It needs pixel values proportional to intensity (a linear
  * detector, the dark level removed).
  */
+
+import { binMean, cropView, imageView, toFloat64 } from '../imaging/imageView.js';
 
 export interface Grid {
   readonly width: number;
@@ -28,33 +31,15 @@ export function cropImage(src: ImageLike, crop: readonly [number, number, number
   if (x0 < 0 || y0 < 0 || w < 1 || h < 1 || x0 + w > src.width || y0 + h > src.height) {
     throw new RangeError(`cropImage: [${crop.join(', ')}] is outside the ${src.width} x ${src.height} image`);
   }
-  const data = new Float64Array(w * h);
-  for (let y = 0; y < h; y++) {
-    const o = (y0 + y) * src.width + x0;
-    for (let x = 0; x < w; x++) data[y * w + x] = src.data[o + x];
-  }
-  return { width: w, height: h, data };
+  return { width: w, height: h, data: toFloat64(cropView(imageView(src.data as Float64Array, src.width, src.height), x0, y0, w, h)) };
 }
 
 /** Average blocks of f x f pixels (a partial block at the right or bottom edge is dropped). */
 export function binImage(src: Grid, f: number): Grid {
   if (!(Number.isInteger(f) && f >= 1)) throw new RangeError(`binImage: factor must be a positive integer, got ${f}`);
   if (f === 1) return src;
-  const w = Math.floor(src.width / f);
-  const h = Math.floor(src.height / f);
-  const data = new Float64Array(w * h);
-  const inv = 1 / (f * f);
-  for (let y = 0; y < h; y++) {
-    for (let x = 0; x < w; x++) {
-      let s = 0;
-      for (let j = 0; j < f; j++) {
-        const o = (y * f + j) * src.width + x * f;
-        for (let i = 0; i < f; i++) s += src.data[o + i];
-      }
-      data[y * w + x] = s * inv;
-    }
-  }
-  return { width: w, height: h, data };
+  const out = binMean(imageView(src.data, src.width, src.height), f);
+  return { width: out.shape[1], height: out.shape[0], data: out.data };
 }
 
 /**

@@ -2,6 +2,7 @@
 import { readFileSync } from 'node:fs';
 import { InputError } from '../errors.js';
 import { parseScenario } from '../scenario/parse.js';
+import { locateJsonError } from '../scenario/jsonSyntax.js';
 import type { Scenario } from '../scenario/types.js';
 import { scenarioWarnings } from '../analysis/scenarioWarnings.js';
 
@@ -15,10 +16,14 @@ export function readScenarioJson(path: string): Record<string, unknown> {
     throw new InputError(`scenario file "${path}" cannot be read (${code ?? 'error'}); check the path`);
   }
   let raw: unknown;
+  // a byte-order mark (some editors write one) is not part of the JSON text
+  if (text.charCodeAt(0) === 0xfeff) text = text.slice(1);
   try {
     raw = JSON.parse(text);
   } catch (e) {
-    throw new InputError(`scenario file "${path}" is not valid JSON (${(e as Error).message}); fix the syntax`);
+    const at = locateJsonError(text);
+    if (at !== null) throw new InputError(`scenario file "${path}" is not valid JSON at line ${at.line}, column ${at.column}: ${at.message}`);
+    throw new InputError(`scenario file "${path}" is not valid JSON (${(e as Error).message.slice(0, 120)}); fix the syntax`);
   }
   if (typeof raw !== 'object' || raw === null || Array.isArray(raw)) {
     throw new InputError(`scenario file "${path}" must hold one JSON object { ... }`);

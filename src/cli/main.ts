@@ -2,7 +2,7 @@
 /** The thinfoil command line. */
 import { Command, CommanderError } from 'commander';
 import { action, EXIT_USER, reportAndExit } from './run.js';
-import { parseAbsorption, parseKv } from './options.js';
+import { parseAbsorption, parseBlurNm, parseContrast, parseKv } from './options.js';
 import { InputError } from '../errors.js';
 
 // a closed pipe (`thinfoil ... | head`) ends the program quietly
@@ -62,6 +62,8 @@ program
   .description('bright- and dark-field images of every condition of a scenario')
   .argument('<scenario>', 'scenario file (JSON)')
   .option('--out <dir>', 'output folder (default out/<scenario name>)')
+  .option('--contrast <mode>', 'grey scale of the figures: "shared" (one scale for all conditions, default) or "each"', userOption(parseContrast), 'shared')
+  .option('--blur-nm <sigma>', 'Gaussian point spread (standard deviation, nm) applied to the simulated images (default 0)', userOption(parseBlurNm), 0)
   .option('--json', 'one JSON object on stdout listing the images')
   .action(run(() => import('./renderCommand.js'), 'renderCommand'));
 

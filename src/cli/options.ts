@@ -13,3 +13,9 @@ export function numberOption(name: string, lo: number, hi: number, unit: string)
 
 export const parseKv = numberOption('--kv', 10, 3000, 'the accelerating voltage in kV');
 export const parseAbsorption = numberOption('--absorption', 0, 1, "the ratio xi_g/xi'_g");
+export const parseBlurNm = numberOption('--blur-nm', 0, 1000, 'the standard deviation of the point spread in nm');
+
+export function parseContrast(text: string): 'shared' | 'each' {
+  if (text === 'shared' || text === 'each') return text;
+  throw new InputError(`--contrast: "${text.slice(0, 40)}" is not a contrast mode; give "shared" (one scale for all conditions) or "each"`);
+}

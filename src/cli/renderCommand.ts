@@ -8,18 +8,39 @@ import { ensureOutputDir, writeFileAtomic } from '../output/atomicWrite.js';
 import { loadScenario, warnAbout } from './loadScenario.js';
 import { printJson, sig, table } from './run.js';
 import { progressBar } from './progress.js';
+import { conditionFigure, contactSheet, contrastNote, displayWindows, type ContrastMode } from '../output/renderFigures.js';
+import { conditionGeometry, planeText } from '../geometry/conditionGeometry.js';
+import { blurImages } from '../analysis/pointSpread.js';
 
 export interface RenderOptions {
   out?: string;
   json?: boolean;
+  contrast?: ContrastMode;
+  blurNm?: number;
 }
+
+/** How the images are shown and blurred (render and demo). */
+export interface ImageOptions {
+  /** Grey scale of the figures: one scale shared by all conditions (default) or each image on its own. */
+  readonly contrast: ContrastMode;
+  /** Standard deviation (nm) of a Gaussian point spread applied to the simulated intensities; 0: none. */
+  readonly blur_nm: number;
+}
+
+export const DEFAULT_IMAGE_OPTIONS: ImageOptions = { contrast: 'shared', blur_nm: 0 };
 
 export function slug(name: string): string {
   return name.toLowerCase().replace(/[^a-z0-9]+/g, '-').replace(/^-|-$/g, '') || 'scenario';
 }
 
-/** Render a scenario and write its images and render.json (with the scenario's warnings); shared by `render` and `demo`. */
-export async function renderAndWrite(sc: Scenario, dir: string, showProgress: boolean, warnings: readonly string[] = []): Promise<{ images: ConditionImages[]; entries: ImageEntry[]; seconds: number }> {
+/** Render a scenario and write its images, figures and render.json (with the scenario's warnings); shared by `render` and `demo`. */
+export async function renderAndWrite(
+  sc: Scenario,
+  dir: string,
+  showProgress: boolean,
+  warnings: readonly string[] = [],
+  opts: ImageOptions = DEFAULT_IMAGE_OPTIONS,
+): Promise<{ images: ConditionImages[]; entries: ImageEntry[]; figures: string[]; seconds: number }> {
   ensureOutputDir(dir);
   const bar = progressBar(showProgress);
   const pool = createRenderPool();
@@ -31,20 +52,58 @@ export async function renderAndWrite(sc: Scenario, dir: string, showProgress: bo
     bar.done();
     await pool.close();
   }
+  if (opts.blur_nm > 0) images = blurImages(images, opts.blur_nm);
   const seconds = (performance.now() - t0) / 1000;
   const entries = writeConditionImages(dir, images, sc.name);
+  const geometries = images.map((ci) => conditionGeometry(sc.material.lattice, ci.condition.frame, ci.condition.g_cart));
+  const { windows, scales } = displayWindows(images, opts.contrast);
+  const note = contrastNote(scales, windows) + (opts.blur_nm > 0 ? ` Images blurred by a Gaussian point spread of standard deviation ${opts.blur_nm} nm.` : '');
+  const figures: string[] = [];
+  const writeFigure = (base: string, fig: { png: Uint8Array; svg: string }) => {
+    writeFileAtomic(join(dir, `${base}.png`), fig.png);
+    writeFileAtomic(join(dir, `${base}.svg`), fig.svg);
+    figures.push(join(dir, `${base}.png`), join(dir, `${base}.svg`));
+  };
+  images.forEach((ci, i) => {
+    const fig = conditionFigure(ci, geometries[i], windows[i], note, sc.name);
+    writeFigure(`${ci.condition.id}-figure`, fig);
+  });
+  const sheet = contactSheet(images, geometries, windows, note, sc.name);
+  writeFigure('contact-sheet', sheet);
   const summary = {
     scenario: sc.name,
     note: 'Simulated images (column approximation, isotropic elasticity); a model, not a measurement.',
     material: sc.material.name,
     kV: sc.kV,
     thickness_nm: sc.thickness_nm,
-    conditions: images.map((ci) => conditionSummary(ci)),
+    pointSpread_nm: opts.blur_nm,
+    figures: {
+      files: figures,
+      contrast: opts.contrast,
+      note,
+      windows: images.map((ci, i) => ({ condition: ci.condition.id, bf: windows[i][0], df: windows[i][1] })),
+    },
+    conditions: images.map((ci, i) => ({ ...conditionSummary(ci), geometry: conditionGeometryJson(sc, ci, geometries[i]) })),
     images: entries,
     warnings,
   };
   writeFileAtomic(join(dir, 'render.json'), `${JSON.stringify(summary, null, 2)}\n`);
-  return { images, entries, seconds };
+  return { images, entries, figures, seconds };
+}
+
+/** The geometry block of one condition in render.json (directions as crystal indices, largest |index| 1). */
+function conditionGeometryJson(sc: Scenario, ci: ConditionImages, g: ReturnType<typeof conditionGeometry>) {
+  return {
+    reflection: planeText(sc.material.lattice, ci.condition.g),
+    gAngle_deg: g.gAngle_deg,
+    gAngleConvention: 'degrees counter-clockwise from +x, +y pointing down in the image',
+    imageX: g.imageX,
+    imageY: g.imageY,
+    beam: g.beam,
+    foilNormal: g.foilNormal,
+    text: g.text,
+    nearestZone: { axis: g.nearestZone.text, angle_deg: g.nearestZone.angle_deg },
+  };
 }
 
 export function conditionSummary(ci: ConditionImages) {
@@ -67,9 +126,9 @@ export async function renderCommand(file: string, opts: RenderOptions): Promise<
   const sc = loadScenario(file);
   const warnings = warnAbout(sc);
   const dir = opts.out ?? join('out', slug(sc.name));
-  const { images, entries, seconds } = await renderAndWrite(sc, dir, !opts.json, warnings);
+  const { images, entries, figures, seconds } = await renderAndWrite(sc, dir, !opts.json, warnings, { contrast: opts.contrast ?? 'shared', blur_nm: opts.blurNm ?? 0 });
   if (opts.json) {
-    printJson({ images: entries.map(({ stretch, ...e }) => ({ ...e, stretch })), warnings });
+    printJson({ images: entries.map(({ stretch, ...e }) => ({ ...e, stretch })), figures, warnings });
     return;
   }
   process.stdout.write(`${sc.name}: ${images.length} condition(s), ${sc.image.width_px} x ${sc.image.height_px} px at ${sc.image.pixel_nm} nm, ${sig(seconds, 3)} s\n`);
@@ -80,5 +139,5 @@ export async function renderCommand(file: string, opts: RenderOptions): Promise<
       return [e.condition, `(${ci.condition.g.join(' ')})`, sig(ci.condition.xi_nm, 4), sig(ci.condition.s_per_nm, 3), sig(ci.condition.w, 3), e.field, sig(e.min, 4), sig(e.max, 4), sig(e.background, 4), e.png];
     }),
   ));
-  process.stdout.write(`written to ${dir} (PNG for viewing, float TIFF with intensities, render.json)\n`);
+  process.stdout.write(`written to ${dir} (PNG for viewing, float TIFF with intensities, annotated figures <id>-figure.png/.svg and contact-sheet.png/.svg, render.json)\n`);
 }

@@ -46,6 +46,7 @@ const T = {
   yResolution: 283,
   planar: 284,
   resolutionUnit: 296,
+  imageDescription: 270,
   predictor: 317,
   colorMap: 320,
   tileWidth: 322,
@@ -181,7 +182,19 @@ function pixelSize_nm(dir: TiffDirectory): number | undefined {
   const unit = dir.numbers.get(T.resolutionUnit)?.[0] ?? 2; // default: inch (TIFF 6.0, section 8)
   if (unit === 2) return 2.54e7 / x;
   if (unit === 3) return 1e7 / x;
-  return undefined;
+  // no absolute unit: the ImageJ-family description may name one ("unit=nm"; see output/tiff.ts)
+  const perUnit = descriptionUnit_nm(dir.texts.get(T.imageDescription));
+  return perUnit === undefined ? undefined : perUnit / x;
+}
+
+/** nm per unit named by an ImageJ-family description ("ImageJ=..." with a line "unit=nm", "um", "micron", ...), else undefined. */
+export function descriptionUnit_nm(text: string | undefined): number | undefined {
+  if (text === undefined || !text.startsWith('ImageJ=')) return undefined;
+  const m = /(?:^|\n)unit=([^\n]*)/.exec(text);
+  if (m === null) return undefined;
+  const u = m[1].trim().replace(/\\u00B5/g, '\u00b5');
+  const table: Record<string, number> = { nm: 1, nanometer: 1, nanometre: 1, um: 1e3, '\u00b5m': 1e3, micron: 1e3, microns: 1e3, micrometer: 1e3, micrometre: 1e3, mm: 1e6, A: 0.1, '\u00c5': 0.1, angstrom: 0.1, pm: 1e-3 };
+  return table[u];
 }
 
 export function decodeTiff(bytes: Uint8Array, name: string): DecodedImage {

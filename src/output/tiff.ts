@@ -3,10 +3,18 @@
  * specification (Adobe, 1992): little-endian ("II") baseline file with one
  * image file directory (IFD), uncompressed strips, one IEEE float sample per
  * pixel (SampleFormat 3, section 19), PhotometricInterpretation 1
- * (BlackIsZero). The pixel size goes into XResolution/YResolution as pixels
- * per centimetre (ResolutionUnit 3): pixels/cm = 1e7 / pixel_nm, stored as the
- * best 32-bit rational. Without a pixel size, ResolutionUnit is 1 (no unit)
- * and both resolutions are 1/1, as the baseline requires the fields.
+ * (BlackIsZero).
+ *
+ * Pixel size. Scientific image programs read a calibration in nm from the
+ * convention of the ImageJ family (also written and read by the tifffile
+ * library): ResolutionUnit 1 (no absolute unit), XResolution/YResolution in
+ * pixels per `unit`, and an ImageDescription that starts with "ImageJ=" and
+ * holds the line "unit=nm". We write exactly that: pixels per nm = 1 /
+ * pixel_nm as the best 32-bit rational, and our own free text as further
+ * description lines without "=" (so no reader takes them for settings).
+ * Readers that only know the TIFF 6.0 units see a resolution without unit.
+ * Without a pixel size, ResolutionUnit is 1 and both resolutions are 1/1, as
+ * the baseline requires the fields, and the description is our text alone.
  *
  * Layout: header (8 bytes) | IFD | values that do not fit in 4 bytes | strips.
  * Every offset is a multiple of 4, so strips can be viewed as Float32Array.
@@ -82,6 +90,16 @@ function entryBytes(e: Entry): Uint8Array {
 
 const align4 = (n: number): number => (n + 3) & ~3;
 
+/** Marker line of the ImageJ-family description (the version string tifffile writes too). */
+export const CALIBRATION_MARKER = 'ImageJ=1.11a';
+
+/** The description of a calibrated image: the settings lines, then our text with "=" replaced and line breaks removed. */
+export function calibratedDescription(text?: string): string {
+  const lines = [CALIBRATION_MARKER, 'images=1', 'unit=nm'];
+  if (text !== undefined && text !== '') lines.push(text.replace(/=/g, ':').replace(/[\r\n]+/g, ' '));
+  return `${lines.join('\n')}\n`;
+}
+
 function minMax(img: Float32Array): { min: number; max: number } {
   let min = Infinity;
   let max = -Infinity;
@@ -114,15 +132,17 @@ export function encodeFloatTiff(img: Float32Array, width: number, height: number
   const { min, max } = minMax(img);
 
   let resolution: [number, number] = [1, 1];
-  let resolutionUnit = 1; // no absolute unit
+  const resolutionUnit = 1; // no absolute unit: the unit is named in the description (see the header)
+  let description = opts.description;
   if (opts.pixel_nm !== undefined) {
     const p = opts.pixel_nm;
-    const perCm = 1e7 / p;
-    if (!(Number.isFinite(p) && p > 0 && perCm <= UINT32_MAX && perCm >= 1 / UINT32_MAX)) {
-      throw new InputError(`pixel_nm must be a positive number between 0.0024 and 4e16 nm to be stored in a TIFF file, got ${p}.`);
+    const perNm = 1 / p;
+    // pixel sizes from 1e-3 nm to 1e6 nm (the rational then keeps at least 6 digits)
+    if (!(Number.isFinite(p) && p >= 1e-3 && p <= 1e6)) {
+      throw new InputError(`pixel_nm must be a positive number between 0.001 and 1e6 nm to be stored in a TIFF file, got ${p}.`);
     }
-    resolution = toRational32(perCm);
-    resolutionUnit = 3; // centimetre
+    resolution = toRational32(perNm);
+    description = calibratedDescription(opts.description);
   }
 
   const rowsPerStrip = Math.max(1, Math.min(height, Math.floor(STRIP_TARGET_BYTES / rowBytes)));
@@ -137,7 +157,7 @@ export function encodeFloatTiff(img: Float32Array, width: number, height: number
     { tag: TAG.BitsPerSample, type: SHORT, values: [32] },
     { tag: TAG.Compression, type: SHORT, values: [1] },
     { tag: TAG.PhotometricInterpretation, type: SHORT, values: [1] },
-    ...(opts.description !== undefined ? [{ tag: TAG.ImageDescription, type: ASCII, text: opts.description } as Entry] : []),
+    ...(description !== undefined ? [{ tag: TAG.ImageDescription, type: ASCII, text: description } as Entry] : []),
     { tag: TAG.StripOffsets, type: LONG, values: new Array<number>(nStrips).fill(0) },
     { tag: TAG.SamplesPerPixel, type: SHORT, values: [1] },
     { tag: TAG.RowsPerStrip, type: LONG, values: [rowsPerStrip] },

@@ -21,6 +21,8 @@ import { MAX_PIXELS, MAX_SIDE_PX } from './types.js';
 export const PERPENDICULAR_TOLERANCE_DEG = 5;
 
 const TOP_KEYS = [
+  // where editors find the JSON Schema (schema/scenario.schema.json); not used by the program
+  '$schema',
   'name', 'material', 'kV', 'foil', 'beam', 'imageX', 'image', 'absorption', 'conditions', 'defects', 'candidates', 'description',
   // settings of micrographs, read by `thinfoil identify` (src/analysis/identifySettings.ts)
   'micrographs',

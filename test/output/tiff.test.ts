@@ -2,8 +2,10 @@
  * encodeFloatTiff checked with two independent readers: npm utif and Debian's
  * Python PIL (both its own TIFF parser and, with READ_LIBTIFF, libtiff).
  * Format: TIFF 6.0 specification (Adobe 1992): section 2 (header, IFD,
- * RATIONAL), section 8 (XResolution, YResolution, ResolutionUnit 3 =
- * centimetre), section 19 (SampleFormat 3 = IEEE float, SMin/SMaxSampleValue).
+ * RATIONAL), section 8 (XResolution, YResolution, ResolutionUnit 1 = no
+ * absolute unit, the unit named in the ImageJ-family description "unit=nm", as
+ * the tifffile library writes it), section 19 (SampleFormat 3 = IEEE float,
+ * SMin/SMaxSampleValue).
  */
 import fs from 'node:fs';
 import os from 'node:os';
@@ -12,7 +14,7 @@ import { createRequire } from 'node:module';
 import { createHash } from 'node:crypto';
 import { afterAll, describe, expect, it } from 'vitest';
 import { InputError } from '../../src/errors.js';
-import { encodeFloatTiff } from '../../src/output/tiff.js';
+import { calibratedDescription, encodeFloatTiff } from '../../src/output/tiff.js';
 import { toRational32 } from '../../src/output/rational.js';
 import { needPython, runPython } from '../python.js';
 
@@ -125,17 +127,18 @@ describe('encodeFloatTiff read by npm utif', () => {
     expect(ifd.t339).toEqual([3]); // SampleFormat 3 = IEEE floating point (section 19)
     expect(ifd.t262).toEqual([1]); // BlackIsZero
     expect(ifd.t259).toEqual([1]); // no compression
-    expect(ifd.t296).toEqual([3]); // ResolutionUnit 3 = centimetre
-    // utif divides the RATIONAL numerator by the denominator: pixels per cm = 1e7 / pixel_nm
-    expect(Math.abs((ifd.t282 as number[])[0] / (1e7 / 0.3) - 1)).toBeLessThan(1e-15);
-    expect(ifd.t270).toEqual(['thinfoil test: bright field, g = 1 1 -1']);
+    expect(ifd.t296).toEqual([1]); // ResolutionUnit 1: the unit is named in the description
+    // utif divides the RATIONAL numerator by the denominator: pixels per nm = 1 / pixel_nm
+    expect(Math.abs((ifd.t282 as number[])[0] / (1 / 0.3) - 1)).toBeLessThan(1e-15);
+    expect(ifd.t270).toEqual([calibratedDescription('thinfoil test: bright field, g = 1 1 -1')]);
+    expect(ifd.t270).toEqual(['ImageJ=1.11a\nimages=1\nunit=nm\nthinfoil test: bright field, g : 1 1 -1\n']);
   });
 });
 
 describe('encodeFloatTiff read by Python PIL', () => {
 
   it.for(['pil', 'libtiff'] as const)(
-    'reader %s: mode F, the same float32 values, resolution 1e8/3 px per cm',
+    'reader %s: mode F, the same float32 values, resolution 10/3 px per nm',
     (via, ctx) => {
       pil.require(ctx);
       const w = 37;
@@ -148,11 +151,11 @@ describe('encodeFloatTiff read by Python PIL', () => {
       expect(v.size).toEqual([w, h]);
       expect(v.sha256).toBe(sha256(floatBytesLE(img)));
       v.first.forEach((x, i) => expect(Object.is(x, img[i])).toBe(true)); // -0 and the subnormal survive
-      // 1e7 / 0.3 = 33333333.33... px/cm is exactly 100000000/3 (TIFF 6.0 RATIONAL, ResolutionUnit 3)
-      expect(v.x_res).toEqual([100000000, 3]);
-      expect(v.y_res).toEqual([100000000, 3]);
-      expect(v.unit).toBe(3);
-      expect(v.description).toBe('pixel 0.3 nm');
+      // 1 / 0.3 px per nm is exactly 10/3 (TIFF 6.0 RATIONAL, ResolutionUnit 1, unit=nm in the description)
+      expect(v.x_res).toEqual([10, 3]);
+      expect(v.y_res).toEqual([10, 3]);
+      expect(v.unit).toBe(1);
+      expect(v.description).toBe('ImageJ=1.11a\nimages=1\nunit=nm\npixel 0.3 nm\n');
       expect(v.sample_format).toEqual([3]);
       expect(v.bits).toEqual([32]);
       expect(v.smin).toBe(Math.fround(-3.4e38)); // SMinSampleValue (section 19)
@@ -171,7 +174,7 @@ describe('encodeFloatTiff read by Python PIL', () => {
       const v = readWithPil(file, via);
       expect(v.strips).toBeGreaterThan(1);
       expect(v.sha256).toBe(sha256(floatBytesLE(img)));
-      expect(v.x_res).toEqual([8000000, 1]); // 1e7 / 1.25 px per cm
+      expect(v.x_res).toEqual([4, 5]); // 1 / 1.25 px per nm
     }
   });
 
@@ -181,12 +184,12 @@ describe('encodeFloatTiff read by Python PIL', () => {
       const file = path.join(TMP, `res-${p}.tif`);
       fs.writeFileSync(file, encodeFloatTiff(new Float32Array([1, 2, 3, 4]), 2, 2, { pixel_nm: p }));
       const v = readWithPil(file, 'pil');
-      const perCm = v.x_res[0] / v.x_res[1];
-      expect(v.unit).toBe(3);
-      // A 32-bit numerator caps the denominator at q ~ 2^32 / x for x = 1e7 / p px/cm, so
-      // the relative error is about 1 / (x q) = 1 / 2^32 at worst (1.4e-10 seen for
-      // 0.0173 nm); 1e-9 is far below the float32 precision of the pixel values.
-      expect(Math.abs(1e7 / perCm / p - 1)).toBeLessThan(1e-9);
+      const perNm = v.x_res[0] / v.x_res[1];
+      expect(v.unit).toBe(1);
+      // 32-bit numerator and denominator: the continued-fraction convergent of 1 / p
+      // keeps a relative error near 2^-32 or better; 1e-9 is far below the float32
+      // precision of the pixel values.
+      expect(Math.abs(1 / perNm / p - 1)).toBeLessThan(1e-9);
     }
   });
 
