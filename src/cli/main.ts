@@ -109,6 +109,25 @@ program
   .action(run(() => import('./identifyCommand.js'), 'identifyCommand'));
 
 program
+  .command('plan')
+  .description('which two-beam conditions to take within the holder\'s tilt ranges to identify a Burgers vector and its sign (judged on simulated images); table, JSON and a stereographic projection')
+  .argument('<scenario>', 'scenario file (JSON): material, foil, the dislocation (line, position) and its candidates')
+  .option('--holder <type>', 'double (double tilt, default) or rotation (tilt and rotate)')
+  .option('--primary <low,high>', 'primary tilt range, degrees (default -30,30)')
+  .option('--secondary <low,high>', 'secondary tilt (double) or rotation range, degrees (default -30,30 or -180,180)')
+  .option('--axis <uvw>', 'crystal direction along the primary tilt axis at zero tilt (default the scenario\'s imageX)')
+  .option('--tilts <primary,secondary>', 'current tilts, degrees (default 0,0: foil normal along the beam)')
+  .option('--g-max <nm^-1>', 'largest |g| considered (default 8)')
+  .option('--zone-index <n>', 'largest index of the zone axes considered (default 3)')
+  .option('--off-zone <deg>', 'tilt off the zone axis for a two-beam condition (default 5)')
+  .option('--w <w>', 'deviation w = s xi_g of the planned conditions (default 1)')
+  .option('--min-difference <c>', 'smallest bright-field contrast difference that tells two candidates apart (default 0.1)')
+  .option('--defect <index>', 'which defect of the scenario (default 0)')
+  .option('--out <dir>', 'output folder for plan.png, plan.svg, plan.json (default out/<scenario name>-plan)')
+  .option('--json', 'one JSON object on stdout')
+  .action(run(() => import('./planCommand.js'), 'planCommand'));
+
+program
   .command('demo')
   .description('render the built-in invented demo scenario into out/demo')
   .option('--out <dir>', 'output folder', 'out/demo')
