@@ -106,12 +106,15 @@ export function plan(sc: Scenario, opt: PlanOptions): PlanResult {
   const cost = conditions.map((c) => c.fromCurrent_deg);
   const cover = greedyCover(conditions.map((c) => c.separates), cost);
   let exactSize: number | undefined;
+  let pick = cover.chosen;
   if (opt.exactUpTo > 0 && cover.complete) {
     const e = exactCover(conditions.map((c) => c.separates), Math.min(opt.exactUpTo, cover.chosen.length));
     exactSize = e?.length;
+    // greedy set cover is not always optimal: take the exhaustive answer when it is smaller
+    if (e !== undefined && e.length < pick.length) pick = e;
   }
   const here = beamAtTilts(opt.orientation, opt.holder.kind, opt.current);
-  const chosen = cover.chosen.map((i) => conditions[i]);
+  const chosen = pick.map((i) => conditions[i]);
   const dist = (a: number, b: number) => tiltBetween_deg(a < 0 ? here : chosen[a].beam_cart, chosen[b].beam_cart);
   const order = leastTiltOrder(chosen.length, dist);
   let prev = -1;
