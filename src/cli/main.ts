@@ -128,6 +128,26 @@ program
   .action(run(() => import('./planCommand.js'), 'planCommand'));
 
 program
+  .command('measure')
+  .description('s and w from the Kikuchi line, thickness and xi_g from two-beam convergent-beam fringes, thickness from the projected width of a fault or length of a dislocation')
+  .argument('<material>', 'material name from `thinfoil materials`')
+  .option('--kv <kV>', 'accelerating voltage in kV', userOption(parseKv), 200)
+  .option('--absorption <r>', "absorption ratio xi_g/xi'_g", userOption(parseAbsorption), 0.1)
+  .option('--g <hkl>', 'the reflection of the pattern (Kikuchi line, fringes)')
+  .option('--spacing <R>', 'distance from 000 to the g spot (or between the 000 and g disc centres), any unit')
+  .option('--kikuchi <x>', 'distance from the g spot to its excess Kikuchi line, same unit; positive outside the spot, negative between 000 and the spot')
+  .option('--fringes <x1,x2,...>', 'distances of successive dark fringes from the central line of the g disc, same unit')
+  .option('--error <d>', 'uncertainty of a distance measured on the pattern or image (same unit)')
+  .option('--fault-width <nm>', 'projected width of an inclined planar fault crossing the foil')
+  .option('--plane <hkl>', 'the fault plane')
+  .option('--line-length <nm>', 'projected length of a straight dislocation crossing the foil')
+  .option('--line <uvw>', 'the dislocation line direction')
+  .option('--normal <uvw>', 'foil normal (for widths and lengths)')
+  .option('--beam <uvw>', 'beam direction (for widths and lengths)')
+  .option('--json', 'one JSON object on stdout')
+  .action(run(() => import('./measureCommand.js'), 'measureCommand'));
+
+program
   .command('demo')
   .description('render the built-in invented demo scenario into out/demo')
   .option('--out <dir>', 'output folder', 'out/demo')
