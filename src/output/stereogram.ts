@@ -67,7 +67,9 @@ export function stereogramFigure(spec: StereogramSpec, size = 640): Figure {
     return [cx + (R * x) / rShown, cy - (R * y) / rShown];
   };
   return drawFigure(size, size, (s: Surface) => {
-    s.text(spec.title, size / 2, 24, { size: 15, anchor: 'middle', bold: true });
+    let fs = 15;
+    while (fs > 8 && s.measureText(spec.title, fs, true) > size - 16) fs--;
+    s.text(spec.title, size / 2, 24, { size: fs, anchor: 'middle', bold: true });
     // reachable region
     const region: number[] = [];
     for (const v of spec.region) region.push(...toPx(v));
