@@ -12,7 +12,7 @@ import { InputError } from '../errors.js';
 import { ensureOutputDir, writeFileAtomic } from '../output/atomicWrite.js';
 import { stereogramFigure } from '../output/stereogram.js';
 import { formatBurgers } from '../analysis/candidates.js';
-import { beamInSpecimenFrame, checkRange, orientation, type Holder, type HolderKind, type Orientation } from '../planning/holder.js';
+import { beamInSpecimenFrame, checkRange, orientation, orientationFromBeam, type Holder, type HolderKind, type Orientation } from '../planning/holder.js';
 import { plan, PLAN_DEFAULTS, type PlanResult } from '../planning/plan.js';
 import { numberOption } from './options.js';
 import { loadScenario } from './loadScenario.js';
@@ -24,6 +24,7 @@ export interface PlanCommandOptions {
   primary?: string;
   secondary?: string;
   axis?: string;
+  beamNow?: string;
   tilts?: string;
   gMax?: string;
   zoneIndex?: string;
@@ -58,7 +59,10 @@ export async function planCommand(scenarioPath: string, opts: PlanCommandOptions
   const l = sc.material.lattice;
   const normal = directionToCartesian(l, sc.foilNormal);
   const axis = opts.axis === undefined ? sc.imageX_cart : directionToCartesian(l, readDirection(opts.axis, '--axis', sc.material));
-  const o: Orientation = orientation(normal, axis);
+  const o: Orientation =
+    opts.beamNow === undefined
+      ? orientation(normal, axis)
+      : orientationFromBeam(kind, { primary_deg: current[0], secondary_deg: current[1] }, directionToCartesian(l, readDirection(opts.beamNow, '--beam-now', sc.material)), axis);
   const num = (t: string | undefined, name: string, lo: number, hi: number, unit: string, d: number) => (t === undefined ? d : numberOption(name, lo, hi, unit)(t));
   const zoneIndex = num(opts.zoneIndex, '--zone-index', 1, 6, 'the largest index of a zone axis', PLAN_DEFAULTS.zoneIndexMax);
   if (!Number.isInteger(zoneIndex)) throw new InputError(`--zone-index: ${zoneIndex} must be a whole number from 1 to 6`);
@@ -113,13 +117,13 @@ export async function planCommand(scenarioPath: string, opts: PlanCommandOptions
   const files = [join(dir, 'plan.png'), join(dir, 'plan.svg'), join(dir, 'plan.json')];
   writeFileAtomic(files[0], fig.png);
   writeFileAtomic(files[1], fig.svg);
-  const json = planJson(sc.name, holder, result, files);
+  const json = { ...planJson(sc.name, holder, result, files), zeroTilt: { beam_cart: o.Z, primaryAxis_cart: o.X } };
   writeFileAtomic(files[2], JSON.stringify(json, null, 1) + '\n');
   if (opts.json) {
     printJson(json);
     return;
   }
-  printPlan(result, files);
+  printPlan({ ...result, zeroTiltNormal: o.Z, zeroTiltAxis: o.X }, files);
 }
 
 function planJson(name: string, holder: Holder, r: PlanResult, files: string[]) {
@@ -154,8 +158,10 @@ function planJson(name: string, holder: Holder, r: PlanResult, files: string[]) 
   };
 }
 
-function printPlan(r: PlanResult, files: string[]): void {
+function printPlan(r: PlanResult & { zeroTiltNormal: Vec3; zeroTiltAxis: Vec3 }, files: string[]): void {
   const w = process.stdout;
+  const z = r.zeroTiltNormal;
+  w.write(`beam direction at zero tilt: [${z.map((x) => sig(x, 3)).join(' ')}] (Cartesian, crystal frame); primary tilt axis along [${r.zeroTiltAxis.map((x) => sig(x, 3)).join(' ')}]\n`);
   w.write(`candidates: ${r.candidates.length} (${r.candidates.map((c) => formatBurgers(c.b!)).join(', ')}), ${r.nPairs} pairs to tell apart\n\n`);
   w.write('reachable two-beam conditions (simulated bright-field strips across the line):\n');
   w.write(table(

@@ -148,3 +148,41 @@ export function checkRange(name: string, r: readonly [number, number], limit: nu
     throw new InputError(`${name}: the range ${r[0]}..${r[1]} degrees is not usable; give low,high with -${limit} <= low <= high <= ${limit}`);
   }
 }
+
+/**
+ * Specimen rotation matrix R (rows) of the holder at the given tilts, in the
+ * microscope frame: double tilt R_X(alpha) R_Y(beta), rotation holder R_X(alpha) R_Z(gamma).
+ */
+export function holderRotation(kind: HolderKind, t: Tilts): [Vec3, Vec3, Vec3] {
+  const a = t.primary_deg * DEG, b = t.secondary_deg * DEG;
+  const ca = Math.cos(a), sa = Math.sin(a), cb = Math.cos(b), sb = Math.sin(b);
+  // R_X(a) = [[1,0,0],[0,ca,-sa],[0,sa,ca]]
+  if (kind === 'double') {
+    // R_Y(b) = [[cb,0,sb],[0,1,0],[-sb,0,cb]]
+    return [[cb, 0, sb], [sa * sb, ca, -sa * cb], [-ca * sb, sa, ca * cb]];
+  }
+  // R_Z(b) = [[cb,-sb,0],[sb,cb,0],[0,0,1]]
+  return [[cb, -sb, 0], [ca * sb, ca * cb, -sa], [sa * sb, sa * cb, ca]];
+}
+
+/**
+ * The zero-tilt orientation from what one sees at the current tilts: the crystal
+ * direction along the beam (e.g. the zone axis one is on) and a crystal direction
+ * lying along the primary tilt axis (projected perpendicular to the beam), both
+ * Cartesian. The foil normal at zero tilt follows (it is the direction the holder
+ * puts along the beam at zero tilt).
+ */
+export function orientationFromBeam(kind: HolderKind, t: Tilts, beamNow_cart: Vec3, axisNow_cart: Vec3): Orientation {
+  const Zc = unit(beamNow_cart);
+  const along = sub(axisNow_cart, scale(Zc, dot(axisNow_cart, Zc)));
+  if (norm(along) < 1e-9 * norm(axisNow_cart)) {
+    throw new InputError('the direction given along the primary tilt axis is parallel to the beam direction; give a direction lying across the beam');
+  }
+  const Xc = unit(along);
+  const C = [Xc, cross(Zc, Xc), Zc];
+  const R = holderRotation(kind, t);
+  // lab = R U0 crystal at zero tilt, and M = R U0 at the current tilts has rows C: U0 = R^T M, so the crystal
+  // vector along lab axis i at zero tilt is U0^T e_i = M^T R e_i = sum_j R[j][i] C_j
+  const axisAt = (i: number): Vec3 => [0, 1, 2].map((k) => R[0][i] * C[0][k] + R[1][i] * C[1][k] + R[2][i] * C[2][k]) as unknown as Vec3;
+  return { X: axisAt(0), Y: axisAt(1), Z: axisAt(2) };
+}

@@ -4,7 +4,7 @@
  * cradle axis, written here separately), and a case worked by hand.
  */
 import { describe, expect, it } from 'vitest';
-import { beamAtTilts, orientation, reachableTilts, tiltsForBeam, type HolderKind } from '../../src/planning/holder.js';
+import { beamAtTilts, orientation, orientationFromBeam, reachableTilts, tiltsForBeam, type HolderKind } from '../../src/planning/holder.js';
 import type { Vec3 } from '../../src/math/vec3.js';
 
 const DEG = Math.PI / 180;
@@ -94,3 +94,37 @@ describe('holder geometry', () => {
     expect(t.secondary_deg).toBeCloseTo(-26.5651, 3);
   });
 });
+
+describe('orientation from the beam direction at given tilts', () => {
+  it('recovers the zero-tilt orientation (round trip to 1e-9) for both holders', () => {
+    const o = orientation([1, 1, 2], [1, -1, 0]);
+    for (const kind of ['double', 'rotation'] as const) {
+      for (const [a, b] of [[12, -7], [-25, 28], [3, 150]]) {
+        const t = { primary_deg: a, secondary_deg: b };
+        const beam = beamAtTilts(o, kind, t);
+        // the crystal direction lying along the primary tilt axis at these tilts, by the independent rotation above:
+        // rotated specimen axes e_i' give lab X components (e_i' . X); the crystal vector along X is sum_i (e_i'.X) o_i
+        const m = beamByRotatingSpecimenAxes(kind, a, b);
+        const axisNow: Vec3 = [0, 1, 2].map((k) => m[0][0] * o.X[k] + m[1][0] * o.Y[k] + m[2][0] * o.Z[k]) as unknown as Vec3;
+        const back = orientationFromBeam(kind, t, beam, axisNow);
+        for (const [p, q] of [[back.X, o.X], [back.Y, o.Y], [back.Z, o.Z]]) for (let k = 0; k < 3; k++) expect(Math.abs(p[k] - q[k])).toBeLessThan(1e-9);
+      }
+    }
+  });
+
+  it('by hand: on [011] at alpha = 45, beta = 0 with [100] on the axis, the zero-tilt normal is [001]', () => {
+    const s = Math.SQRT1_2;
+    const o = orientationFromBeam('double', { primary_deg: 45, secondary_deg: 0 }, [0, s, s], [1, 0, 0]);
+    expect(o.Z[0]).toBeCloseTo(0, 12);
+    expect(o.Z[1]).toBeCloseTo(0, 12);
+    expect(o.Z[2]).toBeCloseTo(1, 12);
+  });
+});
+
+/** Rotated specimen axes (rows: the three zero-tilt frame axes after the tilts, in lab coordinates), via Rodrigues. */
+function beamByRotatingSpecimenAxes(kind: HolderKind, a_deg: number, b_deg: number): Vec3[] {
+  const X: Vec3 = [1, 0, 0];
+  const second0: Vec3 = kind === 'double' ? [0, 1, 0] : [0, 0, 1];
+  const carried = rodrigues(second0, X, a_deg * DEG);
+  return ([[1, 0, 0], [0, 1, 0], [0, 0, 1]] as Vec3[]).map((e) => rodrigues(rodrigues(e, X, a_deg * DEG), carried, b_deg * DEG));
+}
