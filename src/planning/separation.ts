@@ -5,9 +5,10 @@
  * one column evaluator per candidate and condition), as contrast relative to
  * the perfect crystal, c(x) = I(x)/I_background - 1. Two candidates are told
  * apart by a condition when their strips differ somewhere by at least
- * `minDifference` (default 0.1: a contrast step of about 10 % of the
- * background is at the limit of what one reads off a micrograph, common
- * practice), ignoring columns within `coreExclusion_nm` of the line, where
+ * `minDifference` (default 0.2: about twice the 10 % contrast step that is
+ * at the limit of what one reads off a micrograph, common practice; the
+ * margin covers noise and errors in s and t), ignoring columns within
+ * `coreExclusion_nm` of the line, where
  * the column approximation fails.
  *
  * The strip is fixed to the line's position (the line is where the scenario
@@ -38,7 +39,7 @@ export interface StripOptions {
   readonly coreExclusion_nm: number;
 }
 
-export const DEFAULT_STRIP: StripOptions = { halfWidth_xi: 1, columns: 121, minDifference: 0.1, coreExclusion_nm: 2 };
+export const DEFAULT_STRIP: StripOptions = { halfWidth_xi: 1, columns: 121, minDifference: 0.2, coreExclusion_nm: 2 };
 
 export interface Strip {
   /** Position across the projected line, nm (0 on the line). */
