@@ -137,6 +137,7 @@ program
   .option('--g <hkl>', 'the reflection of the pattern (Kikuchi line, fringes)')
   .option('--spacing <R>', 'distance from 000 to the g spot (or between the 000 and g disc centres), any unit')
   .option('--kikuchi <x>', 'distance from the g spot to its excess Kikuchi line, same unit; positive outside the spot, negative between 000 and the spot')
+  .option('--angle <mrad>', 'tilt of the crystal from the exact Bragg position of g, mrad (positive: g inside the Ewald sphere)')
   .option('--fringes <x1,x2,...>', 'distances of successive dark fringes from the central line of the g disc, same unit')
   .option('--error <d>', 'uncertainty of a distance measured on the pattern or image (same unit)')
   .option('--fault-width <nm>', 'projected width of an inclined planar fault crossing the foil')

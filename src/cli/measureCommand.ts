@@ -10,7 +10,7 @@ import { directionToCartesian, planeNormalToCartesian } from '../crystal/lattice
 import { readDirection, readPlane } from '../scenario/parse.js';
 import { reflectionParameters } from '../scattering/reflection.js';
 import { InputError } from '../errors.js';
-import { deviationFromKikuchi } from '../planning/kikuchi.js';
+import { deviationFromAngle, deviationFromKikuchi } from '../planning/kikuchi.js';
 import { fitFringes, fringeDeviations } from '../planning/convergentBeam.js';
 import { thicknessFromFaultWidth, thicknessFromLineLength } from '../planning/projectedWidth.js';
 import { numberOption } from './options.js';
@@ -21,6 +21,7 @@ export interface MeasureOptions {
   absorption: number;
   g?: string;
   kikuchi?: string;
+  angle?: string;
   fringes?: string;
   spacing?: string;
   error?: string;
@@ -68,6 +69,17 @@ export function measureCommand(materialName: string, opts: MeasureOptions): void
     rows.push(['s (Kikuchi line)', `${pm(d.s_per_nm, sErr, 4)} nm^-1 (${x >= 0 ? 'line outside the spot: g inside the Ewald sphere' : 'line between 000 and the spot: s < 0'})`]);
     rows.push(['w = s xi_g', `${pm(d.s_per_nm * r.xi_nm, sErr === undefined ? undefined : sErr * r.xi_nm, 3)} (xi_g = ${sig(r.xi_nm, 4)} nm at ${opts.kv} kV)`]);
   }
+  if (opts.angle !== undefined) {
+    any = true;
+    if (opts.g === undefined) throw new InputError('--g is missing; give the reflection g, e.g. --g 2,0,0');
+    const g = readPlane(opts.g, '--g', m);
+    const r = reflectionParameters(m, g, opts.kv, { absorptionRatio: opts.absorption });
+    const a = numberOption('--angle', -200, 200, 'the tilt from the Bragg position in mrad')(opts.angle) / 1000;
+    const s = deviationFromAngle(a, r.lambda_nm, r.g_per_nm);
+    result.deviationFromAngle = { g, deltaTheta_mrad: a * 1000, s_per_nm: s, w: s * r.xi_nm, xi_nm: r.xi_nm };
+    rows.push(['s (tilt from Bragg)', `${sig(s, 4)} nm^-1`]);
+    rows.push(['w = s xi_g', `${sig(s * r.xi_nm, 3)} (xi_g = ${sig(r.xi_nm, 4)} nm at ${opts.kv} kV)`]);
+  }
   if (opts.fringes !== undefined) {
     any = true;
     const { g, r, R } = needG();
@@ -113,7 +125,7 @@ export function measureCommand(materialName: string, opts: MeasureOptions): void
     result.lineLength = { length_nm: L, thickness_nm: t, ...(tErr === undefined ? {} : { thicknessError_nm: tErr }) };
     rows.push(['thickness (line length)', `${sig(t, 4)}${tErr === undefined ? '' : ` +- ${sig(tErr, 2)}`} nm`]);
   }
-  if (!any) throw new InputError('nothing to measure; give --kikuchi, --fringes, --fault-width or --line-length (see thinfoil measure --help)');
+  if (!any) throw new InputError('nothing to measure; give --kikuchi, --angle, --fringes, --fault-width or --line-length (see thinfoil measure --help)');
   if (opts.json) {
     printJson(result);
     return;

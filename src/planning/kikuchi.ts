@@ -44,3 +44,18 @@ export function deviationFromKikuchi(x: number, R: number, lambda_nm: number, g_
   const deltaTheta = (lambda_nm * g_per_nm * x) / R;
   return { s_per_nm: g_per_nm * deltaTheta, deltaTheta_rad: deltaTheta };
 }
+
+/**
+ * s from the angle Delta_theta (radians) by which the crystal is turned from the exact
+ * Bragg position (> 0: the angle between beam and planes exceeds thetaB, g inside the
+ * Ewald sphere). Exact on the sphere: s = g (sin(thetaB + Delta_theta) - sin(thetaB)),
+ * from s = -(2 k.g + g^2)/(2k) with k.g = -k g sin(theta) (physics.md section 3).
+ */
+export function deviationFromAngle(deltaTheta_rad: number, lambda_nm: number, g_per_nm: number): number {
+  if (!Number.isFinite(deltaTheta_rad) || Math.abs(deltaTheta_rad) > 0.2) {
+    throw new InputError(`the tilt from the Bragg position ${deltaTheta_rad} rad is not usable; give the angle in mrad, within +-200 mrad`);
+  }
+  const sB = (lambda_nm * g_per_nm) / 2;
+  const thetaB = Math.asin(sB);
+  return g_per_nm * (Math.sin(thetaB + deltaTheta_rad) - sB);
+}

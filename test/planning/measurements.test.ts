@@ -3,7 +3,7 @@
  * from projected widths. Sources are named beside each check.
  */
 import { describe, expect, it } from 'vitest';
-import { deviationFromKikuchi } from '../../src/planning/kikuchi.js';
+import { deviationFromAngle, deviationFromKikuchi } from '../../src/planning/kikuchi.js';
 import { fitFringes, fringeDeviations } from '../../src/planning/convergentBeam.js';
 import { thicknessFromFaultWidth, thicknessFromLineLength } from '../../src/planning/projectedWidth.js';
 import { perfectCrystal } from '../../src/dynamics/twoBeam.js';
@@ -40,6 +40,16 @@ describe('s from the Kikuchi line', () => {
       const inside = Math.hypot(kx + g, K * Math.cos(theta)) < K;
       expect(inside).toBe(xOverR > 0);
     }
+  });
+
+  it('from the angle: Cu 200 at 200 kV turned 1 mrad past Bragg gives s = g cos(thetaB) x 1 mrad (by hand, 5.5325e-3 nm^-1), agreeing with the Kikuchi form', () => {
+    // thetaB = asin(0.0025079 * 5.5325 / 2) = 6.937 mrad, cos = 0.99998: s = 5.5325 * 0.99998 * 1e-3 = 5.5324e-3 nm^-1 (to 1e-6 rel.)
+    expect(deviationFromAngle(1e-3, lambda, g)).toBeCloseTo(5.5324e-3, 7);
+    // the same tilt read as a Kikuchi distance: x / R = Delta_theta / (lambda g)
+    const x = 1e-3 / (lambda * g);
+    // (the Kikuchi form drops cos(thetaB) ~ 1 - 2.4e-5: agreement to 1e-4 relative)
+    const k = deviationFromKikuchi(x, 1, lambda, g).s_per_nm, a = deviationFromAngle(1e-3, lambda, g);
+    expect(Math.abs(k - a) / a).toBeLessThan(1e-4);
   });
 
   it('refuses unusable distances', () => {
