@@ -6,7 +6,8 @@
  */
 import { join } from 'node:path';
 import type { Vec3 } from '../math/vec3.js';
-import { directionToCartesian } from '../crystal/lattice.js';
+import { directionToCartesian, usesFourIndices } from '../crystal/lattice.js';
+import { directionToFour, planeToFour } from '../crystal/millerBravais.js';
 import { readDirection } from '../scenario/parse.js';
 import { InputError } from '../errors.js';
 import { ensureOutputDir, writeFileAtomic } from '../output/atomicWrite.js';
@@ -43,11 +44,19 @@ function pair(text: string, name: string): [number, number] {
   return [read(parts[0]), read(parts[1])];
 }
 
-const fmtV = (v: Vec3) => `[${v.join(' ')}]`;
-const fmtG = (v: Vec3) => `(${v.join(' ')})`;
+// hexagonal crystals are shown in four indices (directions scaled to whole numbers)
+let fourIndex = false;
+const fmtG = (v: Vec3) => `(${(fourIndex ? planeToFour(v) : v).join(' ')})`;
+function fmtV(v: Vec3): string {
+  if (!fourIndex) return `[${v.join(' ')}]`;
+  const d = directionToFour(v).map((x) => x * 3);
+  const k = [2, 3, 5].reduce((acc, p) => (d.every((x) => Math.round(x) % (acc * p) === 0) ? acc * p : acc), 1);
+  return `[${d.map((x) => Math.round(x) / k + 0).join(' ')}]`;
+}
 
 export async function planCommand(scenarioPath: string, opts: PlanCommandOptions): Promise<void> {
   const sc = loadScenario(scenarioPath);
+  fourIndex = usesFourIndices(sc.material.lattice);
   const kind = (opts.holder ?? 'double') as HolderKind;
   if (kind !== 'double' && kind !== 'rotation') throw new InputError(`--holder: "${opts.holder}" is not a holder type; give double or rotation`);
   const primary = pair(opts.primary ?? '-30,30', '--primary');
