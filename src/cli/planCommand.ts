@@ -13,7 +13,7 @@ import { InputError } from '../errors.js';
 import { ensureOutputDir, writeFileAtomic } from '../output/atomicWrite.js';
 import { stereogramFigure } from '../output/stereogram.js';
 import { formatBurgers } from '../analysis/candidates.js';
-import { beamInSpecimenFrame, checkRange, orientation, orientationFromBeam, type Holder, type HolderKind, type Orientation } from '../planning/holder.js';
+import { beamInSpecimenFrame, checkRange, orientation, orientationFromBeam, withinRange, type Holder, type HolderKind, type Orientation } from '../planning/holder.js';
 import { plan, PLAN_DEFAULTS, type PlanResult } from '../planning/plan.js';
 import { numberOption } from './options.js';
 import { loadScenario } from './loadScenario.js';
@@ -65,6 +65,9 @@ export async function planCommand(scenarioPath: string, opts: PlanCommandOptions
   checkRange('--secondary', secondary, kind === 'double' ? 90 : 180);
   const holder: Holder = { kind, primary_deg: primary, secondary_deg: secondary };
   const current = pair(opts.tilts ?? '0,0', '--tilts');
+  if (!withinRange(holder, { primary_deg: current[0], secondary_deg: current[1] })) {
+    throw new InputError(`--tilts: ${current[0]},${current[1]} lies outside the holder's ranges (${primary[0]}..${primary[1]}, ${secondary[0]}..${secondary[1]} degrees); give the current tilts within them`);
+  }
   const l = sc.material.lattice;
   const normal = directionToCartesian(l, sc.foilNormal);
   const axis = opts.axis === undefined ? sc.imageX_cart : directionToCartesian(l, readDirection(opts.axis, '--axis', sc.material));
@@ -76,6 +79,7 @@ export async function planCommand(scenarioPath: string, opts: PlanCommandOptions
   const zoneIndex = num(opts.zoneIndex, '--zone-index', 1, 6, 'the largest index of a zone axis', PLAN_DEFAULTS.zoneIndexMax);
   if (!Number.isInteger(zoneIndex)) throw new InputError(`--zone-index: ${zoneIndex} must be a whole number from 1 to 6`);
   const defect = num(opts.defect, '--defect', 0, 1e6, 'the index of a defect', 0);
+  if (!Number.isInteger(defect)) throw new InputError(`--defect: ${defect} must be a whole number (the index of a defect, from 0)`);
   const minDifference = num(opts.minDifference, '--min-difference', 0.001, 2, 'a contrast difference (fraction of the background)', PLAN_DEFAULTS.strip.minDifference);
   const result = plan(sc, {
     holder,

@@ -40,6 +40,7 @@ describe('thinfoil plan', () => {
     [['plan', 'scenarios/copper-plan.json', '--holder', 'triple'], /--holder/],
     [['plan', 'scenarios/copper-plan.json', '--primary', '30,-30'], /--primary/],
     [['plan', 'scenarios/copper-plan.json', '--g-max', '0.6'], /no reflection/],
+    [['plan', 'scenarios/copper-plan.json', '--tilts', '40,0'], /--tilts/],
     [['plan', 'scenarios/copper-faults.json', '--defect', '0'], /dislocation/],
   ])('bad input %j: exit code 2, one sentence', (args, pattern) => {
     const r = run(...(args as string[]));
