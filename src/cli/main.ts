@@ -111,6 +111,47 @@ program
   .action(run(() => import('./identifyCommand.js'), 'identifyCommand'));
 
 program
+  .command('plan')
+  .description('which two-beam conditions to take within the holder\'s tilt ranges to identify a Burgers vector and its sign (judged on simulated images); table, JSON and a stereographic projection')
+  .argument('<scenario>', 'scenario file (JSON): material, foil, the dislocation (line, position) and its candidates')
+  .option('--holder <type>', 'double (double tilt, default) or rotation (tilt and rotate)')
+  .option('--primary <low,high>', 'primary tilt range, degrees (default -30,30)')
+  .option('--secondary <low,high>', 'secondary tilt (double) or rotation range, degrees (default -30,30 or -180,180)')
+  .option('--axis <uvw>', 'crystal direction along the primary tilt axis at zero tilt, or at the current tilts with --beam-now (default the scenario\'s imageX)')
+  .option('--beam-now <uvw>', 'crystal direction along the beam at the current tilts (--tilts), e.g. the zone axis you are on; then the foil normal is not assumed to lie along the beam at zero tilt')
+  .option('--tilts <primary,secondary>', 'current tilts, degrees (default 0,0: foil normal along the beam)')
+  .option('--g-max <nm^-1>', 'largest |g| considered (default 8)')
+  .option('--zone-index <n>', 'largest index of the zone axes considered (default 3)')
+  .option('--off-zone <deg>', 'tilt off the zone axis for a two-beam condition (default 5)')
+  .option('--w <w>', 'deviation w = s xi_g of the planned conditions (default 1)')
+  .option('--min-difference <c>', 'smallest bright-field contrast difference that tells two candidates apart (default 0.1)')
+  .option('--defect <index>', 'which defect of the scenario (default 0)')
+  .option('--out <dir>', 'output folder for plan.png, plan.svg, plan.json (default out/<scenario name>-plan)')
+  .option('--json', 'one JSON object on stdout')
+  .action(run(() => import('./planCommand.js'), 'planCommand'));
+
+program
+  .command('measure')
+  .description('s and w from the Kikuchi line, thickness and xi_g from two-beam convergent-beam fringes, thickness from the projected width of a fault or length of a dislocation')
+  .argument('<material>', 'material name from `thinfoil materials`')
+  .option('--kv <kV>', 'accelerating voltage in kV', userOption(parseKv), 200)
+  .option('--absorption <r>', "absorption ratio xi_g/xi'_g", userOption(parseAbsorption), 0.1)
+  .option('--g <hkl>', 'the reflection of the pattern (Kikuchi line, fringes)')
+  .option('--spacing <R>', 'distance from 000 to the g spot (or between the 000 and g disc centres), any unit')
+  .option('--kikuchi <x>', 'distance from the g spot to its excess Kikuchi line, same unit; positive outside the spot, negative between 000 and the spot')
+  .option('--angle <mrad>', 'tilt of the crystal from the exact Bragg position of g, mrad (positive: g inside the Ewald sphere)')
+  .option('--fringes <x1,x2,...>', 'distances of successive dark fringes from the central line of the g disc, same unit')
+  .option('--error <d>', 'uncertainty of a distance measured on the pattern or image (same unit)')
+  .option('--fault-width <nm>', 'projected width of an inclined planar fault crossing the foil')
+  .option('--plane <hkl>', 'the fault plane')
+  .option('--line-length <nm>', 'projected length of a straight dislocation crossing the foil')
+  .option('--line <uvw>', 'the dislocation line direction')
+  .option('--normal <uvw>', 'foil normal (for widths and lengths)')
+  .option('--beam <uvw>', 'beam direction (for widths and lengths)')
+  .option('--json', 'one JSON object on stdout')
+  .action(run(() => import('./measureCommand.js'), 'measureCommand'));
+
+program
   .command('demo')
   .description('render the built-in invented demo scenario into out/demo')
   .option('--out <dir>', 'output folder', 'out/demo')
