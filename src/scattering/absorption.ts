@@ -25,6 +25,9 @@
  *        = 2 gamma^2 lambda sum_j occ_j I_j(g) exp(...) / (pi Vc)   (nm^-2, lambda in nm, Vc in nm^3)
  *
  * so U'_g / U_g scales as gamma lambda = h / (m0 v): it falls with voltage.
+ * In an elemental crystal U'_g / U_g grows with |g|; for the difference
+ * reflections of a compound (MgO 111, GaAs 200, superlattice reflections) the
+ * ratio follows the difference of the species' f' and f and need not.
  * Check of the prefactor (optical theorem, any scattering text): for g = 0,
  * 2 pi U'_0 / K = mu_0 = N sigma_TDS with sigma_TDS = int |gamma fe|^2 (1 - exp(-2 B s^2)) dOmega,
  * N atoms per volume, K = 1/lambda; the tests check this by a separate quadrature.
@@ -40,13 +43,19 @@
  * integrates the same model numerically (test/reference/absorptive-form-factors.json).
  *
  * What the fit leaves out. The Gaussian fits are made for s <= 2 A^-1 and
- * fall off faster than the true fe (which tends to 0.023934 Z / s^2, Mott-Bethe)
- * beyond it, but the TDS integral weights high angles by (1 - exp(-2 B s'^2)).
- * Measured with the reference script: with the fit, the part of I(0) from
- * s' > 2 A^-1 is 4 % (Al), 7 % (Cu), 6 % (Si), 9 % (Au); a Z/s^2 tail there
- * (an upper bound) would add 9 %, 13 %, 13 %, 18 %. So U'_0 (and, less, U'_g)
- * from the fit is low by up to about 10-20 %, within the spread of the
- * published Debye-Waller factors' effect. Not in the model at all: absorption
+ * fall off faster than the true fe (which tends to 0.023934 (Z - fx) / s^2,
+ * Mott-Bethe) beyond it, while the TDS integral weights high angles by
+ * (1 - exp(-2 B s'^2)). Measured with the reference script
+ * (test/reference/absorptive-form-factors.json): with the fit, the part of
+ * I(0) from s' > 2 A^-1 is 4 % (Al), 7 % (Cu), 6 % (Si), 9 % (Au); continuing
+ * fe beyond 2 A^-1 as C / s^2 (continuous at 2 A^-1, a lower bound on the true
+ * tail) raises I by 6-9 % at s = 0, 8-11 % at s = 0.4 A^-1, 12-15 % at
+ * s = 0.7 A^-1 and about 20 % at s = 1 A^-1. So U'_0 and the U'_g of
+ * low-order beams from the fit are low by roughly 10 %, and more for high
+ * orders; f'(s) of the fit even changes sign near s = 1.5-1.9 A^-1 (with
+ * B = 0.5 A^2), beams that carry negligible weight in diffraction contrast.
+ * This is comparable to the uncertainty of the Debye-Waller factors
+ * themselves (materials data: 10-20 %). Not in the model at all: absorption
  * by core-loss and plasmon (valence) inelastic scattering (small-angle
  * scattering that mostly stays in the aperture; it adds mainly to the normal
  * absorption U'_0), correlated phonons (Einstein model only), an objective
