@@ -53,7 +53,10 @@
  * s = 0.7 A^-1 and about 20 % at s = 1 A^-1. So U'_0 and the U'_g of
  * low-order beams from the fit are low by roughly 10 %, and more for high
  * orders; f'(s) of the fit even changes sign near s = 1.5-1.9 A^-1 (with
- * B = 0.5 A^2), beams that carry negligible weight in diffraction contrast.
+ * B = 0.5 A^2; earlier for a large B: Mg, B = 1.6 A^2, near 1.2 A^-1), beams
+ * that carry negligible weight in diffraction contrast; reflectionParameters
+ * refuses such a reflection as a two-beam g (InputError) and many-beam sets
+ * take the small negative coefficients as they are.
  * This is comparable to the uncertainty of the Debye-Waller factors
  * themselves (materials data: 10-20 %). Not in the model at all: absorption
  * by core-loss and plasmon (valence) inelastic scattering (small-angle

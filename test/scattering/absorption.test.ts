@@ -212,6 +212,15 @@ describe('TDS absorption: published orders of magnitude (from memory, loose)', (
   });
 });
 
+describe('where the fit no longer supports the model', () => {
+  it("a high-order two-beam g whose model U'_g is not positive is refused with an InputError that names the fix (Mg 066, |g| = 24.5 per nm)", () => {
+    const m = getMaterial('Mg');
+    expect(() => reflectionParameters(m, [0, 6, 6], 200)).toThrow(InputError);
+    expect(() => reflectionParameters(m, [0, 6, 6], 200)).toThrow(/constant absorption ratio/);
+    expect(reflectionParameters(m, [0, 6, 6], 200, { absorption: 0.1 }).xiAbs_nm).toBeGreaterThan(0);
+  });
+});
+
 describe('absorption setting', () => {
   it('accepts "thermal-diffuse" and ratios 0..1; anything else is an InputError naming the field', () => {
     expect(parseAbsorptionSetting('thermal-diffuse')).toBe('thermal-diffuse');
