@@ -7,7 +7,11 @@
  * The values of U' themselves are checked against the numerical reference in
  * test/scattering/absorption.test.ts.
  */
+import { mkdtempSync, readFileSync, rmSync } from 'node:fs';
+import { tmpdir } from 'node:os';
+import { join } from 'node:path';
 import { describe, expect, it } from 'vitest';
+import { renderAndWrite } from '../../src/cli/renderCommand.js';
 import { scenario } from './helpers.js';
 import { resolveCondition } from '../../src/imaging/resolveCondition.js';
 import { generalBeamSet } from '../../src/imaging/beamSet.js';
@@ -107,5 +111,26 @@ describe('many-beam structure matrix with the model (physics.md section 4)', () 
     expect(c.xiAbs0_nm).toBe(r.xiAbs0_nm);
     const k = resolveCondition(scenario({}), sc.conditions[0]); // helpers give the ratio 0.1
     expect(k.xiAbs_nm).toBeCloseTo(k.xi_nm / 0.1, 9);
+  });
+});
+
+describe('render.json names the absorption used', () => {
+  it.each([
+    [undefined, 'thermal-diffuse', /thermal diffuse scattering, Einstein model/],
+    [0.1, 0.1, /constant ratio xi_g\/xi'_g = 0.1/],
+  ])('absorption %j', async (given, setting, text) => {
+    const dir = mkdtempSync(join(tmpdir(), 'thinfoil-abs-'));
+    try {
+      const sc = scenario({ absorption: given, image: { width_px: 4, height_px: 4, pixel_nm: 1 } });
+      await renderAndWrite(sc, dir, false);
+      const j = JSON.parse(readFileSync(join(dir, 'render.json'), 'utf8'));
+      expect(j.absorption.setting).toBe(setting);
+      expect(j.absorption.model).toMatch(text);
+      const c = resolveCondition(sc, sc.conditions[0]);
+      expect(j.conditions[0].xiAbs_nm).toBe(c.xiAbs_nm);
+      expect(j.conditions[0].xiAbs0_nm).toBe(c.xiAbs0_nm);
+    } finally {
+      rmSync(dir, { recursive: true, force: true });
+    }
   });
 });
