@@ -99,15 +99,6 @@ export function checkAbsorptionSetting(a: unknown, field = 'absorption'): assert
   );
 }
 
-/** Parses a command-line or scenario string: "thermal-diffuse" or a number in 0..1. */
-export function parseAbsorptionSetting(text: string, field = 'absorption'): AbsorptionSetting {
-  const t = text.trim();
-  if (t === THERMAL_DIFFUSE) return THERMAL_DIFFUSE;
-  const v = t === '' ? NaN : Number(t);
-  checkAbsorptionSetting(Number.isFinite(v) ? v : t, field);
-  return v;
-}
-
 /**
  * Closed-form coefficients of I(S) for one element and one B:
  *   I = exp(-B S^2) sum_p A1_p exp(-c1_p S^2) - sum_p A2_p exp(-c2_p S^2),  p over the 15 pairs i <= j.

@@ -20,7 +20,6 @@ import { describe, expect, it } from 'vitest';
 import {
   absorptiveFormFactor_A,
   checkAbsorptionSetting,
-  parseAbsorptionSetting,
   tdsIntegral,
 } from '../../src/scattering/absorption.js';
 import { opticalPotential_per_nm2, reflectionParameters } from '../../src/scattering/reflection.js';
@@ -30,6 +29,7 @@ import { getMaterial } from '../../src/crystal/materials.js';
 import { cellVolume_nm3 } from '../../src/crystal/lattice.js';
 import type { Vec3 } from '../../src/math/vec3.js';
 import { InputError } from '../../src/errors.js';
+import { parseAbsorption } from '../../src/cli/options.js';
 
 interface Fixture {
   integrals: { element: string; B_A2: number; s_perA: number; I: number; quadratureError: number }[];
@@ -223,14 +223,15 @@ describe('where the fit no longer supports the model', () => {
 
 describe('absorption setting', () => {
   it('accepts "thermal-diffuse" and ratios 0..1; anything else is an InputError naming the field', () => {
-    expect(parseAbsorptionSetting('thermal-diffuse')).toBe('thermal-diffuse');
-    expect(parseAbsorptionSetting(' 0.1 ')).toBe(0.1);
-    expect(parseAbsorptionSetting('0')).toBe(0);
+    expect(parseAbsorption('thermal-diffuse')).toBe('thermal-diffuse');
+    expect(parseAbsorption(' 0.1 ')).toBe(0.1);
+    expect(parseAbsorption('0')).toBe(0);
     for (const bad of ['', 'tds', '1.5', '-0.1', 'NaN']) {
-      expect(() => parseAbsorptionSetting(bad, '--absorption')).toThrow(InputError);
-      expect(() => parseAbsorptionSetting(bad, '--absorption')).toThrow(/--absorption/);
+      expect(() => parseAbsorption(bad)).toThrow(InputError);
+      expect(() => parseAbsorption(bad)).toThrow(/--absorption/);
     }
     expect(() => checkAbsorptionSetting({ model: 'x' })).toThrow(/thermal-diffuse/);
+    expect(() => checkAbsorptionSetting(2)).toThrow(InputError);
   });
 
   it('the default of reflectionParameters is the model; a ratio gives the old constant-ratio numbers', () => {
