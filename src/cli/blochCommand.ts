@@ -16,6 +16,7 @@ import { writeFileAtomic } from '../output/atomicWrite.js';
 import { plotFigure } from '../output/graphics/figure.js';
 import { PALETTE, type PlotSeries, type PlotSpec } from '../output/graphics/plot.js';
 import { parseAbsorption, parseKv } from './options.js';
+import { type AbsorptionSetting, DEFAULT_ABSORPTION, describeAbsorption } from '../scattering/absorption.js';
 import { printJson, sig, table } from './run.js';
 
 export interface BlochOptions {
@@ -70,14 +71,14 @@ function numberFrom(v: number | string, name: string, what: string): number {
 /** Check and convert the options (InputError on bad input). */
 export function readBlochOptions(opts: BlochOptions): {
   kV: number;
-  absorption: number;
+  absorption: AbsorptionSetting;
   beams: number;
   s?: number;
   w?: number;
   thickness_nm?: number;
 } {
   const kV = opts.kv === undefined ? 200 : parseKv(String(opts.kv));
-  const absorption = opts.absorption === undefined ? 0.1 : parseAbsorption(String(opts.absorption));
+  const absorption = opts.absorption === undefined ? DEFAULT_ABSORPTION : parseAbsorption(String(opts.absorption));
   const beams = opts.beams === undefined ? 2 : numberFrom(opts.beams, '--beams', '2 or an odd number of beams such as 3, 5, 7');
   if (opts.s !== undefined && opts.w !== undefined) {
     throw new InputError('--s and --w both given: give the deviation either as s in nm^-1 or as w = s xi_g, not both.');
@@ -286,7 +287,7 @@ export function formatBlochTable(run: BlochRun): string {
   const orders = Array.from(r.orders);
   const lines = [
     `Bloch waves of ${r.material.name} (${hklText(r.hkl)}) at ${r.kV} kV, ${r.beams === 2 ? 'two beams 0, g' : `systematic row ${orders.map(beamName).join(', ')}`}`,
-    `xi_g = ${sig(r.reflection.xi_nm, 4)} nm, xi'_g = ${Number.isFinite(r.reflection.xiAbs_nm) ? `${sig(r.reflection.xiAbs_nm, 4)} nm` : 'none (no absorption)'} (xi_g/xi'_g = ${r.absorptionRatio}), ` +
+    `xi_g = ${sig(r.reflection.xi_nm, 4)} nm, xi'_g = ${Number.isFinite(r.reflection.xiAbs_nm) ? `${sig(r.reflection.xiAbs_nm, 4)} nm` : 'none (no absorption)'} (xi_g/xi'_g = ${sig(r.absorptionRatio, 3)}, ${typeof r.absorptionSetting === 'number' ? 'constant ratio' : "thermal diffuse scattering, U' per beam"}), ` +
       `s = ${sig(run.s_per_nm, 4)} nm^-1 (w = ${sig(run.w, 4)}), profiles to t = ${sig(run.thickness_nm, 4)} nm`,
     '',
   ];
@@ -343,13 +344,16 @@ export function blochCommand(materialName: string, indices: string, opts: BlochO
       structure: r.material.structure,
       hkl: r.hkl,
       kV: r.kV,
-      absorption: r.absorptionRatio,
+      absorption: r.absorptionSetting,
+      absorptionModel: describeAbsorption(r.absorptionSetting),
+      absorptionRatio: r.absorptionRatio,
       beams: r.beams,
       orders: Array.from(r.orders),
       s_per_nm: run.s_per_nm,
       w: run.w,
       xi_nm: r.reflection.xi_nm,
       xiAbs_nm: Number.isFinite(r.reflection.xiAbs_nm) ? r.reflection.xiAbs_nm : null,
+      xiAbs0_nm: Number.isFinite(r.reflection.xiAbs0_nm) ? r.reflection.xiAbs0_nm : null,
       thickness_nm: run.thickness_nm,
       planes_x_over_d: run.table.planes,
       waves: run.table.waves.map((w) => ({

@@ -5,6 +5,7 @@
  * result as JSON into the output folder.
  */
 import { readFileSync } from 'node:fs';
+import { describeAbsorption } from '../scattering/absorption.js';
 import { basename, join, resolve } from 'node:path';
 import { InputError } from '../errors.js';
 import { parseScenario } from '../scenario/parse.js';
@@ -121,7 +122,7 @@ export async function runIdentify(scenarioFile: string, opts: IdentifyCommandOpt
   const w = (path: string, data: Uint8Array | string) => writeFileAtomic(path, data, { protectedPaths: inputsToProtect });
   w(files.figurePng, fig.png);
   w(files.figureSvg, fig.svg);
-  w(files.report, identifyReportHtml(result, { scenarioFile: basename(scenarioFile), figurePng: fig.png, figureFiles: [basename(files.figurePng), basename(files.figureSvg)] }));
+  w(files.report, identifyReportHtml(result, { scenarioFile: basename(scenarioFile), absorption: describeAbsorption(sc.absorption), figurePng: fig.png, figureFiles: [basename(files.figurePng), basename(files.figureSvg)] }));
   w(files.json, `${JSON.stringify(resultJson(result, files), null, 2)}\n`);
   return { result, dir, files };
 }

@@ -47,7 +47,7 @@ program
   .argument('<material>', 'material name from `thinfoil materials`')
   .argument('<indices>', 'reflection, e.g. 1,1,1 or "2 0 0"; four indices for hexagonal crystals')
   .option('--kv <kV>', 'accelerating voltage in kV', userOption(parseKv), 200)
-  .option('--absorption <r>', "absorption ratio xi_g/xi'_g", userOption(parseAbsorption), 0.1)
+  .option('--absorption <model|r>', "absorption: thermal-diffuse (per beam, from the Debye-Waller factors) or a constant ratio xi_g/xi'_g", userOption(parseAbsorption), 'thermal-diffuse')
   .option('--json', 'one JSON object on stdout')
   .action(run(() => import('./reflectionCommand.js'), 'reflectionCommand'));
 
@@ -80,7 +80,7 @@ program
   .argument('<material>', 'material name from `thinfoil materials`')
   .argument('<indices>', 'reflection g, e.g. 1,1,1 or "2 0 0"; four indices for hexagonal crystals')
   .option('--kv <kV>', 'accelerating voltage in kV', userOption(parseKv), 200)
-  .option('--absorption <r>', "absorption ratio xi_g/xi'_g", userOption(parseAbsorption), 0.1)
+  .option('--absorption <model|r>', "absorption: thermal-diffuse (per beam, from the Debye-Waller factors) or a constant ratio xi_g/xi'_g", userOption(parseAbsorption), 'thermal-diffuse')
   .option('--s <s>', 'deviation parameter s of g in nm^-1 (default 0)')
   .option('--w <w>', 'deviation as w = s xi_g (instead of --s)')
   .option('--beams <N>', '2 (two-beam) or an odd number 3..41 (systematic row -m g .. m g)', '2')

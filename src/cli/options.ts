@@ -1,5 +1,6 @@
 /** Parsers for numeric command-line options: one clear sentence on bad input. */
 import { InputError } from '../errors.js';
+import { type AbsorptionSetting, THERMAL_DIFFUSE } from '../scattering/absorption.js';
 
 export function numberOption(name: string, lo: number, hi: number, unit: string) {
   return (text: string): number => {
@@ -12,7 +13,12 @@ export function numberOption(name: string, lo: number, hi: number, unit: string)
 }
 
 export const parseKv = numberOption('--kv', 10, 3000, 'the accelerating voltage in kV');
-export const parseAbsorption = numberOption('--absorption', 0, 1, "the ratio xi_g/xi'_g");
+const absorptionRatio = numberOption('--absorption', 0, 1, `"${THERMAL_DIFFUSE}" (the default) or a constant ratio xi_g/xi'_g`);
+/** --absorption: "thermal-diffuse" (absorption per beam from thermal diffuse scattering) or a ratio xi_g/xi'_g in 0..1. */
+export function parseAbsorption(text: string): AbsorptionSetting {
+  return text.trim() === THERMAL_DIFFUSE ? THERMAL_DIFFUSE : absorptionRatio(text);
+}
+
 export const parseBlurNm = numberOption('--blur-nm', 0, 1000, 'the standard deviation of the point spread in nm');
 
 export function parseContrast(text: string): 'shared' | 'each' {

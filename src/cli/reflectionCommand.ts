@@ -2,11 +2,13 @@
 import { getMaterial } from '../crystal/materials.js';
 import { readPlane } from '../scenario/parse.js';
 import { reflectionParameters } from '../scattering/reflection.js';
+import { type AbsorptionSetting, DEFAULT_ABSORPTION, describeAbsorption } from '../scattering/absorption.js';
 import { printJson, sig, table } from './run.js';
 
 export interface ReflectionOptions {
   kv: number;
-  absorption: number;
+  /** "thermal-diffuse" (default) or a constant ratio xi_g/xi'_g */
+  absorption?: AbsorptionSetting;
   json?: boolean;
 }
 
@@ -19,13 +21,16 @@ function indexText(indices: string, hkl: readonly number[]): string {
 export function reflectionCommand(materialName: string, indices: string, opts: ReflectionOptions): void {
   const m = getMaterial(materialName);
   const hkl = readPlane(indices, 'reflection indices', m);
-  const r = reflectionParameters(m, hkl, opts.kv, { absorptionRatio: opts.absorption });
+  const absorption = opts.absorption ?? DEFAULT_ABSORPTION;
+  const r = reflectionParameters(m, hkl, opts.kv, { absorption });
+  const finite = (x: number): number | null => (Number.isFinite(x) ? x : null);
   const result = {
     material: m.name,
     structure: m.structure,
     hkl,
     kV: opts.kv,
-    absorption: opts.absorption,
+    absorption,
+    absorptionModel: describeAbsorption(absorption),
     lambda_pm: r.lambda_nm * 1000,
     d_nm: r.d_nm,
     g_per_nm: r.g_per_nm,
@@ -34,9 +39,14 @@ export function reflectionCommand(materialName: string, indices: string, opts: R
     F_A: r.F_A,
     U_per_nm2: r.U_per_nm2,
     xi_nm: r.xi_nm,
-    xiAbs_nm: r.xiAbs_nm,
-    xiAbs0_nm: r.xiAbs0_nm,
+    // absorption lengths (null without absorption), U'_g and the normal absorption U'_0 in nm^-2
+    xiAbs_nm: finite(r.xiAbs_nm),
+    xiAbs0_nm: finite(r.xiAbs0_nm),
+    absorptionRatio: r.absorptionRatio,
+    Uabs_per_nm2: r.Uabs_per_nm2,
+    Uabs0_per_nm2: r.Uabs0_per_nm2,
   };
+  const source = typeof absorption === 'number' ? `constant ratio ${absorption}` : 'thermal diffuse scattering';
   if (opts.json) {
     printJson(result);
     return;
@@ -50,7 +60,8 @@ export function reflectionCommand(materialName: string, indices: string, opts: R
     ['Bragg angle', `${sig(result.braggAngle_mrad, 4)} mrad`],
     ['|F_g| (electron)', `${sig(r.absF_A, 4)} A`],
     ['xi_g', `${sig(r.xi_nm, 4)} nm`],
-    ["xi'_g", Number.isFinite(r.xiAbs_nm) ? `${sig(r.xiAbs_nm, 4)} nm (xi_g/xi'_g = ${opts.absorption})` : 'none (no absorption)'],
+    ["xi'_g", Number.isFinite(r.xiAbs_nm) ? `${sig(r.xiAbs_nm, 4)} nm (xi_g/xi'_g = ${sig(r.absorptionRatio, 3)}, ${source})` : 'none (no absorption)'],
+    ["xi'_0 (normal absorption)", Number.isFinite(r.xiAbs0_nm) ? `${sig(r.xiAbs0_nm, 4)} nm (${typeof absorption === 'number' ? "= xi'_g, common approximation" : source})` : 'none (no absorption)'],
   ];
   process.stdout.write(table(['quantity', 'value'], rows));
 }

@@ -1,5 +1,6 @@
 /** `thinfoil render <scenario>`: bright- and dark-field images of every condition. */
 import { join } from 'node:path';
+import { describeAbsorption } from '../scattering/absorption.js';
 import type { Scenario } from '../scenario/types.js';
 import { renderScenario, type ConditionImages } from '../imaging/renderScenario.js';
 import { createRenderPool } from '../imaging/workerPool.js';
@@ -76,6 +77,7 @@ export async function renderAndWrite(
     material: sc.material.name,
     kV: sc.kV,
     thickness_nm: sc.thickness_nm,
+    absorption: { setting: sc.absorption, model: describeAbsorption(sc.absorption) },
     pointSpread_nm: opts.blur_nm,
     figures: {
       files: figures,
@@ -114,6 +116,7 @@ export function conditionSummary(ci: ConditionImages) {
     beam: c.beamDirection,
     xi_nm: c.xi_nm,
     xiAbs_nm: c.xiAbs_nm,
+    xiAbs0_nm: c.xiAbs0_nm,
     s_per_nm: c.s_per_nm,
     w: c.w,
     deviationFrom: c.deviationSource,

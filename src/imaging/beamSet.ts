@@ -4,9 +4,11 @@
  * in the plane of the beam and g, until g has the requested deviation s;
  * every beam h then gets its exact excitation error
  *   s_h = -(2 k.h + h^2) / (2K)        (s > 0 inside the Ewald sphere),
- * and the structure matrix holds U_{h_i - h_j}, U'_{h_i - h_j} = r U for
- * every pair. Normal absorption U'_0 = K / xi'_0 with xi'_0 = xi'_g of the
- * imaging reflection, as in the two-beam engine.
+ * and the structure matrix holds U_{h_i - h_j} and U'_{h_i - h_j} for every
+ * pair (opticalPotential_per_nm2: the thermal-diffuse model's own value per
+ * pair, or r U with a constant ratio). Normal absorption U'_0 = K / xi'_0 of
+ * the imaging reflection (the model's U'_0, or xi'_0 = xi'_g with a ratio),
+ * as in the two-beam engine.
  */
 import type { Vec3 } from '../math/vec3.js';
 import { dot, norm, scale, sub, unit } from '../math/vec3.js';

@@ -4,12 +4,15 @@
  * Fourier coefficients of the optical potential that the many-beam
  * structure matrix needs (physics.md sections 2 and 4).
  *
- * Absorption, kept consistent with the two-beam engine:
- *   U'_{ng} = r U_{ng}  for n != 0   (r = xi_g / xi'_g, Hirsch et al. 1965),
- *   U'_0 = K / xi'_0 with xi'_0 = xi'_g of the fundamental g (the two-beam
- *   engine's common approximation), K = 1/lambda.
+ * Absorption, kept consistent with the two-beam engine (reflection.ts):
+ *   U'_{ng} for n != 0 from opticalPotential_per_nm2: the thermal-diffuse
+ *   model's own value for every order (default), or r U_{ng} with a constant
+ *   ratio r = xi_g / xi'_g (Hirsch et al. 1965);
+ *   U'_0 = K / xi'_0 (normalAbsorption_per_nm2) with xi'_0 of the reflection:
+ *   the model's normal absorption, or xi'_g of the fundamental g with a ratio.
  * With two beams the structure matrix is then exactly the two-beam matrix of
- * physics.md section 3 (q = 1/xi_g + i/xi'_g, normal absorption 1/xi'_0).
+ * physics.md section 3 (q = 1/xi_g + i/xi'_g, normal absorption 1/xi'_0) for
+ * a centrosymmetric crystal (U'_g in phase with U_g).
  */
 import type { Material } from '../crystal/material.js';
 import type { Vec3 } from '../math/vec3.js';
@@ -17,7 +20,13 @@ import { InputError, InternalError } from '../errors.js';
 import { blochWaves, type BlochWaves } from '../dynamics/blochWaves.js';
 import type { ManyBeamInput } from '../dynamics/manyBeamStructureMatrix.js';
 import { systematicRowInput, systematicRowOrders, type ComplexPair } from '../dynamics/manyBeamSystematicRow.js';
-import { normalAbsorption_per_nm2, opticalPotential_per_nm2, reflectionParameters, type ReflectionParameters } from '../scattering/reflection.js';
+import {
+  type AbsorptionSetting,
+  normalAbsorption_per_nm2,
+  opticalPotential_per_nm2,
+  reflectionParameters,
+  type ReflectionParameters,
+} from '../scattering/reflection.js';
 
 /** Largest beam count accepted (a systematic row -20..20). */
 export const MAX_BEAMS = 41;
@@ -26,6 +35,9 @@ export interface BlochRow {
   readonly material: Material;
   readonly hkl: Vec3;
   readonly kV: number;
+  /** the absorption setting: "thermal-diffuse" or a constant ratio */
+  readonly absorptionSetting: AbsorptionSetting;
+  /** xi_g / xi'_g of the fundamental g (the ratio itself, or the model's value) */
   readonly absorptionRatio: number;
   /** the fundamental reflection g (xi_g, xi'_g, lambda, |g|, ...) */
   readonly reflection: ReflectionParameters;
@@ -58,14 +70,14 @@ export function rowOrders(beams: number): { nMin: number; nMax: number } {
 }
 
 /** Set up the beams of reflection hkl; InputError for g = 000, a forbidden g or a bad beam count. */
-export function blochRow(material: Material, hkl: Vec3, kV: number, absorptionRatio: number, beams: number): BlochRow {
+export function blochRow(material: Material, hkl: Vec3, kV: number, absorption: AbsorptionSetting, beams: number): BlochRow {
   const { nMin, nMax } = rowOrders(beams);
-  const reflection = reflectionParameters(material, hkl, kV, { absorptionRatio });
+  const reflection = reflectionParameters(material, hkl, kV, { absorption });
   const u0abs = normalAbsorption_per_nm2(reflection.lambda_nm, reflection.xiAbs0_nm);
   const cacheU = new Map<number, ComplexPair>();
   const cacheA = new Map<number, ComplexPair>();
   const coefficients = (m: number): void => {
-    const p = opticalPotential_per_nm2(material, [m * hkl[0], m * hkl[1], m * hkl[2]], kV, absorptionRatio);
+    const p = opticalPotential_per_nm2(material, [m * hkl[0], m * hkl[1], m * hkl[2]], kV, absorption);
     cacheU.set(m, [p.re, p.im]);
     cacheA.set(m, m === 0 ? [u0abs, 0] : [p.absRe, p.absIm]);
   };
@@ -73,7 +85,8 @@ export function blochRow(material: Material, hkl: Vec3, kV: number, absorptionRa
     material,
     hkl: [hkl[0], hkl[1], hkl[2]],
     kV,
-    absorptionRatio,
+    absorptionSetting: absorption,
+    absorptionRatio: reflection.absorptionRatio,
     reflection,
     beams,
     nMin,

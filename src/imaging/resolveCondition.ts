@@ -35,7 +35,7 @@ export interface ResolvedCondition {
 
 export function resolveCondition(sc: Scenario, c: Condition): ResolvedCondition {
   const m = sc.material;
-  const r = reflectionParameters(m, c.g, sc.kV, { absorptionRatio: sc.absorption });
+  const r = reflectionParameters(m, c.g, sc.kV, { absorption: sc.absorption });
   let s: number;
   let src: string;
   switch (c.deviation.kind) {

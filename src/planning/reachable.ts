@@ -18,6 +18,7 @@ import { cross, dot, unit } from '../math/vec3.js';
 import type { Material } from '../crystal/material.js';
 import { directionToCartesian, planeNormalToCartesian, gLength_per_nm } from '../crystal/lattice.js';
 import { isForbidden, reflectionParameters } from '../scattering/reflection.js';
+import type { AbsorptionSetting } from '../scattering/absorption.js';
 import { type Holder, type Orientation, type Tilts, beamAtTilts, reachableTilts, tiltBetween_deg } from './holder.js';
 
 export interface ReachableZone {
@@ -47,7 +48,7 @@ export interface ReachOptions {
   /** Tilt off the zone for the two-beam condition, degrees. */
   readonly offZone_deg: number;
   readonly kV: number;
-  readonly absorption: number;
+  readonly absorption: AbsorptionSetting;
 }
 
 const gcd = (a: number, b: number): number => (b === 0 ? Math.abs(a) : gcd(b, a % b));
@@ -100,7 +101,7 @@ export function reachableConditions(material: Material, o: Orientation, h: Holde
           const key = `${a},${b},${c}`;
           const gh = unit(planeNormalToCartesian(l, g));
           const e = unit(cross(zc, gh));
-          const r = reflectionParameters(material, g, opt.kV, { absorptionRatio: opt.absorption });
+          const r = reflectionParameters(material, g, opt.kV, { absorption: opt.absorption });
           const cb = Math.cos(r.braggAngle_rad), sb = Math.sin(r.braggAngle_rad);
           for (const sgn of [1, -1]) {
             const cd = Math.cos(delta), sd = sgn * Math.sin(delta);

@@ -23,7 +23,8 @@ export interface Complex {
   readonly im: number;
 }
 
-interface PackedCell {
+/** The sites of a material packed into typed arrays (read-only for callers). */
+export interface PackedCell {
   readonly n: number;
   readonly x: Float64Array;
   readonly y: Float64Array;
@@ -87,7 +88,8 @@ function pack(material: Material): PackedCell {
   return { n, x, y, z, occ, B_A2: B, kind, elements, fe: new Float64Array(elements.length), gm };
 }
 
-function packed(material: Material): PackedCell {
+/** The packed sites of a material, built once and cached (InputError for bad sites). */
+export function packed(material: Material): PackedCell {
   let p = cache.get(material);
   if (!p) {
     p = pack(material);

@@ -10,6 +10,7 @@ import { parseIndices, parseVectorWithFraction } from '../crystal/indices.js';
 import { directionFromFour, planeFromFour } from '../crystal/millerBravais.js';
 import { directionToCartesian, planeNormalToCartesian, usesFourIndices } from '../crystal/lattice.js';
 import { reflectionParameters } from '../scattering/reflection.js';
+import { type AbsorptionSetting, DEFAULT_ABSORPTION, THERMAL_DIFFUSE } from '../scattering/absorption.js';
 import { constrainedStrain } from '../elasticity/inclusion.js';
 import { parseFamily } from '../crystal/symmetry.js';
 import { InputError } from '../errors.js';
@@ -47,7 +48,7 @@ export function parseScenario(raw: unknown): Scenario {
   }
 
   const image = readImage(o.image);
-  const absorption = o.absorption === undefined ? 0.1 : number(o.absorption, 'absorption', { min: 0, max: 1, unit: "xi_g / xi'_g" });
+  const absorption = readAbsorption(o.absorption);
 
   const condList = array(required(o, 'conditions', '', '[{ "id": "g200", "g": [2, 0, 0], "s_per_nm": 0 }]'), 'conditions', 1);
   const conditions = condList.map((c, i) => readCondition(c, joinPath('conditions', i), material, beam, foilNormal, kV, absorption));
@@ -125,7 +126,17 @@ function readBeamSet(v: unknown, path: string, m: Material, g: Vec3): BeamSet {
   fail(path, 'must be 2 (two-beam), { "row": N } for a systematic row of N beams (N odd, 3..31), or { "set": [[h, k, l], ...] } for any set of beams');
 }
 
-function readCondition(v: unknown, path: string, m: Material, refBeam: Vec3, foilNormal: Vec3, kV: number, absorption: number): Condition {
+/** "absorption": "thermal-diffuse" (default) or a constant ratio xi_g / xi'_g in 0..1. */
+function readAbsorption(v: unknown): AbsorptionSetting {
+  if (v === undefined) return DEFAULT_ABSORPTION;
+  if (v === THERMAL_DIFFUSE) return THERMAL_DIFFUSE;
+  if (typeof v === 'string') {
+    fail('absorption', `"${v}" is not a known model; give "${THERMAL_DIFFUSE}" (absorption per beam from thermal diffuse scattering, the default) or a constant ratio xi_g/xi'_g such as 0.1`);
+  }
+  return number(v, 'absorption', { min: 0, max: 1, unit: `xi_g / xi'_g (or "${THERMAL_DIFFUSE}")` });
+}
+
+function readCondition(v: unknown, path: string, m: Material, refBeam: Vec3, foilNormal: Vec3, kV: number, absorption: AbsorptionSetting): Condition {
   const o = object(v, path);
   onlyKeys(o, ['id', 'g', 's_per_nm', 'w', 'beam', 'beams', 'weakBeam'], path);
   const id = string(required(o, 'id', path, '"g200"'), joinPath(path, 'id'));
@@ -135,7 +146,7 @@ function readCondition(v: unknown, path: string, m: Material, refBeam: Vec3, foi
   if (!g.every((h) => Number.isInteger(h))) fail(joinPath(path, 'g'), `(${g.join(' ')}) must have whole-number indices, e.g. [2, 0, 0]`);
   try {
     // refuses forbidden reflections and reflections beyond the scattering-factor tables
-    reflectionParameters(m, g, kV, { absorptionRatio: absorption });
+    reflectionParameters(m, g, kV, { absorption });
   } catch (e) {
     if (e instanceof InputError) throw new InputError(`${joinPath(path, 'g')}: ${e.message}`);
     throw e;

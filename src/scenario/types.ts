@@ -5,6 +5,7 @@
  */
 import type { Vec3 } from '../math/vec3.js';
 import type { Material } from '../crystal/material.js';
+import type { AbsorptionSetting } from '../scattering/absorption.js';
 
 export type BeamSet =
   | { readonly kind: 'two' }
@@ -131,8 +132,8 @@ export interface Scenario {
   /** Cartesian unit vector (crystal frame) drawn along +x, before projection perpendicular to the beam. */
   readonly imageX_cart: Vec3;
   readonly image: ImageSpec;
-  /** xi_g / xi'_g. */
-  readonly absorption: number;
+  /** "thermal-diffuse" (absorption per beam from the Debye-Waller factors, the default) or a constant ratio xi_g / xi'_g. */
+  readonly absorption: AbsorptionSetting;
   readonly conditions: readonly Condition[];
   readonly defects: readonly DefectSpec[];
   readonly candidates: readonly CandidateSpec[];

@@ -38,6 +38,8 @@ const CU = {
   kV: 200,
   foil: { thickness_nm: 70, normal: [0, 0, 1] },
   beam: [0, 0, 1],
+  // the constant ratio these cases were set up with (the default is now the thermal-diffuse model)
+  absorption: 0.1,
   candidates: ['1/2<110>'],
 };
 

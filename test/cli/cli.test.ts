@@ -29,7 +29,8 @@ beforeAll(() => {
 
 describe('thinfoil reflection', () => {
   it('Al 111 at 100 kV: xi_g near 56 nm (Hirsch et al. 1965 table, from memory, +-10 %)', () => {
-    const r = run('reflection', 'Al', '1,1,1', '--kv', '100', '--json');
+    // the constant ratio is given explicitly (the default is now the thermal-diffuse model, tested below)
+    const r = run('reflection', 'Al', '1,1,1', '--kv', '100', '--absorption', '0.1', '--json');
     expect(r.code).toBe(0);
     const j = JSON.parse(r.out);
     expect(j.xi_nm).toBeGreaterThan(56 * 0.9);
@@ -40,6 +41,26 @@ describe('thinfoil reflection', () => {
     expect(j.d_nm).toBeCloseTo(0.40495 / Math.sqrt(3), 3);
     for (const k of ['braggAngle_mrad', 'xiAbs_nm']) expect(Number.isFinite(j[k])).toBe(true);
     expect(j.xiAbs_nm).toBeCloseTo(j.xi_nm / 0.1, 6);
+  });
+
+  it("reports xi'_g and xi'_0 of the thermal-diffuse model by default (scripts/ref_absorptive_form_factor.py, 1e-6)", () => {
+    // Cu 220 at 100 kV: U'_g / U_g and U'_0 from the numerical quadrature of the same model (gemmi + scipy)
+    const ref = JSON.parse(readFileSync(new URL('../reference/absorptive-form-factors.json', import.meta.url), 'utf8')) as {
+      crystals: { material: string; kV: number; U0abs_per_nm2: number; reflections: { hkl: number[]; ratioRe: number }[] }[];
+    };
+    const cu = ref.crystals.find((c) => c.material === 'Cu' && c.kV === 100)!;
+    const row = cu.reflections.find((x) => x.hkl.join() === '2,2,0')!;
+    const r = run('reflection', 'Cu', '2,2,0', '--kv', '100', '--json');
+    expect(r.code).toBe(0);
+    const j = JSON.parse(r.out);
+    expect(j.absorption).toBe('thermal-diffuse');
+    expect(j.absorptionModel).toMatch(/thermal diffuse/);
+    expect(Math.abs(j.xi_nm / j.xiAbs_nm / row.ratioRe - 1)).toBeLessThan(1e-6);
+    expect(Math.abs(1 / (j.lambda_pm * 1e-3 * j.xiAbs0_nm) / cu.U0abs_per_nm2 - 1)).toBeLessThan(1e-6);
+    expect(j.Uabs0_per_nm2).toBeCloseTo(cu.U0abs_per_nm2, 9);
+    const bad = run('reflection', 'Cu', '2,2,0', '--absorption', 'tds');
+    expect(bad.code).toBe(2);
+    expect(bad.err).toMatch(/--absorption.*thermal-diffuse/);
   });
 
   it('prints a readable table without --json', () => {
