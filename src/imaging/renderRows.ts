@@ -130,7 +130,11 @@ export function columnEvaluator(job: RenderJob): ColumnEvaluator {
   // Many-beam only: each dislocation line's depth of closest approach is a breakpoint (a zero phase step),
   // so that the stepper restarts with a small step where the strain peaks.
   const lines = mb === null ? [] : job.model.fields.flatMap((f) => (f.kind === 'dislocation' ? [{ p: f.point_nm, u: f.line }] : []));
-  const nMax = surfaces.length + lines.length;
+  // Both engines: beta' jumps where a column enters and leaves an inclusion sphere (the strain inside is
+  // uniform, outside it is the Ashby-Brown 1/r^3 field), so both depths are breakpoints (zero phase steps).
+  // A step error estimate of 4th order does not see a jump inside a slice (a first-order error).
+  const spheres = job.model.fields.flatMap((f) => (f.kind === 'inclusion' ? [{ c: f.centre_nm, r2: f.radius_nm * f.radius_nm }] : []));
+  const nMax = surfaces.length + lines.length + 2 * spheres.length;
   // fault crossings of the current column: [z, alpha] pairs sorted by z, one array per count
   const stride = vector ? 4 : 2;
   const crossings = Array.from({ length: nMax }, (_, i) => new Float64Array(stride * (i + 1)));
@@ -171,6 +175,19 @@ export function columnEvaluator(job: RenderJob): ColumnEvaluator {
         const zc = (b * (u[0] * w0x + u[1] * w0y + u[2] * w0z) - (kx * w0x + ky * w0y + kz * w0z)) / den;
         if (!(zc > 0 && zc < L)) continue;
         count = insertByDepth(zs, as, count, zc, 0);
+      }
+      for (let d = 0; d < spheres.length; d++) {
+        // |c0 + z k - centre|^2 = r0^2  ->  z = -w.k +- sqrt((w.k)^2 - |w|^2 + r0^2), w = c0 - centre
+        const { c, r2 } = spheres[d];
+        const wx = cx - c[0], wy = cy - c[1], wz = cz - c[2];
+        const wk = wx * kx + wy * ky + wz * kz;
+        const disc = wk * wk - (wx * wx + wy * wy + wz * wz) + r2;
+        if (!(disc > 0)) continue; // the column misses the sphere (or touches it)
+        const root = Math.sqrt(disc);
+        const z1 = -wk - root;
+        const z2 = -wk + root;
+        if (z1 > 0 && z1 < L) count = insertByDepth(zs, as, count, z1, 0);
+        if (z2 > 0 && z2 < L) count = insertByDepth(zs, as, count, z2, 0);
       }
       let faults = none;
       if (count > 0) {
