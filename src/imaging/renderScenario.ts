@@ -38,7 +38,7 @@ export function manyBeamJob(sc: Scenario, c: ResolvedCondition): ManyBeamJob | u
     return { input: set.input, orders: new Float64Array(set.hkl.length), incident: set.incident, darkField: set.darkField, beamVectors: set.beamVectors_per_nm };
   }
   if (c.beams.kind !== 'row') return undefined;
-  const row = blochRow(sc.material, c.g, sc.kV, sc.absorption, c.beams.count);
+  const row = blochRow(sc.material, c.g, sc.kV, sc.absorption, { nMin: c.beams.nMin, nMax: c.beams.nMax });
   return { input: blochRowInput(row, c.s_per_nm), orders: row.orders, incident: row.incident, darkField: row.darkField };
 }
 
