@@ -5,6 +5,7 @@ import { renderScenario, type ConditionImages } from '../imaging/renderScenario.
 import { createRenderPool } from '../imaging/workerPool.js';
 import { writeConditionImages, type ImageEntry } from '../output/imageFiles.js';
 import { ensureOutputDir, writeFileAtomic } from '../output/atomicWrite.js';
+import { encodeGreyPng } from '../output/png.js';
 import { loadScenario } from './loadScenario.js';
 import { scenarioWarnings } from '../analysis/scenarioWarnings.js';
 import { printJson, sig, table } from './run.js';
@@ -34,17 +35,41 @@ export async function renderAndWrite(sc: Scenario, dir: string, showProgress: bo
   }
   const seconds = (performance.now() - t0) / 1000;
   const entries = writeConditionImages(dir, images, sc.name);
+  const masks = images.map((ci) => writeCoreMask(dir, ci));
   const summary = {
     scenario: sc.name,
     note: 'Simulated images (column approximation, isotropic elasticity); a model, not a measurement.',
     material: sc.material.name,
     kV: sc.kV,
     thickness_nm: sc.thickness_nm,
-    conditions: images.map((ci) => conditionSummary(ci)),
+    conditions: images.map((ci, i) => ({ ...conditionSummary(ci), ...(masks[i] === null ? {} : { corePixels: masks[i] }) })),
     images: entries,
   };
   writeFileAtomic(join(dir, 'render.json'), `${JSON.stringify(summary, null, 2)}\n`);
   return { images, entries, seconds };
+}
+
+/**
+ * Writes `<id>-core.png` (white: pixels whose area reaches a dislocation core) when there are such pixels;
+ * returns what render.json says about them, or null.
+ */
+function writeCoreMask(dir: string, ci: ConditionImages): { count: number; mask: string; note: string } | null {
+  let count = 0;
+  const px = new Uint8Array(ci.coreMask.length);
+  for (let i = 0; i < px.length; i++) {
+    if (ci.coreMask[i]) {
+      px[i] = 255;
+      count++;
+    }
+  }
+  if (count === 0) return null;
+  const file = join(dir, `${ci.condition.id}-core.png`);
+  writeFileAtomic(file, encodeGreyPng(px, ci.width, ci.height));
+  return {
+    count,
+    mask: file,
+    note: 'pixels whose area reaches 2 core radii of a dislocation line (column approximation and linear elasticity fail there): each is the mean over its area outside the core, or of the columns just outside it; not a prediction of core contrast',
+  };
 }
 
 export function conditionSummary(ci: ConditionImages) {

@@ -22,7 +22,7 @@ export function formatVisibility(sc: Scenario, rows: readonly VisibilityRow[]): 
     table(header, body) +
     'cells: g.b (for g.b = 0 then g.(b x u) in brackets), the verdict from a simulated strip of columns across the line\n' +
     `       (two-beam at the condition's s, the scenario's thickness, the line's depth; candidates at mid-depth),\n` +
-    `       its peak contrast |I/I_background - 1| in bright or dark field, and the g.b rule's verdict.\n` +
+    `       its peak contrast |I - I_ref|/I_background in bright or dark field, and the g.b rule's verdict.\n` +
     `verdict: V visible (peak >= ${Math.round(100 * VISIBLE_CONTRAST)}%), w weak (${Math.round(100 * WEAK_CONTRAST)}-${Math.round(100 * VISIBLE_CONTRAST)}%), i invisible (< ${Math.round(100 * WEAK_CONTRAST)}%); thresholds are common practice, our choice.\n` +
     '       "rule" alone: no line direction, nothing simulated.\n' +
     'rules: g.b = 0 and g.(b x u) = 0 invisible, unless g.b_edge != 0 (mixed line with g.u != 0: weak residual);\n' +
