@@ -4,12 +4,13 @@
  */
 import { describe, expect, it } from 'vitest';
 import { scenario, render, maxContrast } from './helpers.js';
-import { defectModel } from '../../src/imaging/fieldSpecs.js';
+import { buildField, defectModel } from '../../src/imaging/fieldSpecs.js';
+import { shockleyRibbon } from '../../src/elasticity/ribbon.js';
 import { resolveCondition } from '../../src/imaging/resolveCondition.js';
 import { renderJob } from '../../src/imaging/renderScenario.js';
 import { renderRows } from '../../src/imaging/renderRows.js';
 import { shockleySplit } from '../../src/elasticity/dissociation.js';
-import { directionToCartesian } from '../../src/crystal/lattice.js';
+import { cartesianToDirection, directionToCartesian } from '../../src/crystal/lattice.js';
 import { cross, dot } from '../../src/math/vec3.js';
 import { analyseInclusions } from '../../src/analysis/inclusionLobes.js';
 import type { Scenario } from '../../src/scenario/types.js';
@@ -67,12 +68,50 @@ describe('dissociated dislocation: fault ribbon between two Shockley partials', 
     conditions: [{ id: 'c', g: [2, 0, 0], w: 0.4 }],
   };
   const ribbon = scenario({ ...base, defects: [{ type: 'dissociated', b: '1/2[1 -1 0]', plane: [1, 1, 1], line: [1, -1, 0], point_nm: [0, 0, 50], separation_nm: 60 }] });
-  // the fault alone: same plane, R_f = b1 oriented as the cut's jump for columns along +z
+  // The ribbon of src/elasticity/ribbon.ts, whose fault is checked atom by atom (test/elasticity/dissociation.test.ts:
+  // inside the ribbon the field jumps by the intrinsic fault vector, ABC|BCA stacking).
   const l = ribbon.material.lattice;
-  const pair = shockleySplit({ lattice: l, b: [0.5, -0.5, 0], planeNormal: [1, 1, 1], lineCartesian: directionToCartesian(l, [1, -1, 0]) });
-  const m = cross(pair.line, pair.ribbonDirection);
-  const sign = -Math.sign(dot(m, [0, 0, 1])); // crossing towards +(u x c) R drops by b1
-  const faultAlone = scenario({ ...base, defects: [{ type: 'fault', plane: [1, 1, 1], point_nm: [0, 0, 50], vector: pair.b1.map((x) => sign * x) }] });
+  const el = ribbon.material.elastic;
+  const atomChecked = shockleyRibbon({
+    lattice: l, b: [0.5, -0.5, 0], planeNormal: [1, 1, 1], lineCartesian: directionToCartesian(l, [1, -1, 0]), centre_nm: [0, 0, 50],
+    poissonRatio: el.poissonRatio, shearModulus_GPa: el.shearModulus_GPa, sfe_mJ_per_m2: 45, width_nm: 60,
+  });
+  const pair = atomChecked.pair;
+  const R = (f: { displacement(o: Float64Array, x: number, y: number, z: number): void }, p: number[]) => {
+    const o = new Float64Array(3);
+    f.displacement(o, p[0], p[1], p[2]);
+    return [o[0], o[1], o[2]];
+  };
+  // the fault alone: R_f = the atom-checked field's jump along the electron path (+z) at the ribbon centre
+  const eps = 1e-7;
+  const jumpZ = R(atomChecked.field, [0, 0, 50 + eps]).map((v, i) => v - R(atomChecked.field, [0, 0, 50 - eps])[i]);
+  const faultAlone = scenario({ ...base, defects: [{ type: 'fault', plane: [1, 1, 1], point_nm: [0, 0, 50], vector: cartesianToDirection(l, jumpZ as [number, number, number]) }] });
+
+  it('the renderer builds the atom-checked ribbon: same displacement field, and every phase surface equals the field\'s own jump', () => {
+    const model = defectModel(ribbon);
+    const field = buildField(model.fields)!;
+    let worst = 0;
+    for (const p of [[3, -7, 20], [-11, 4, 61], [25, 25, 50], [0.5, 0.2, 49], [-40, 10, 90]]) {
+      const a = R(field, p);
+      const b = R(atomChecked.field, p);
+      worst = Math.max(worst, ...a.map((v, i) => Math.abs(v - b[i])));
+    }
+    expect(worst).toBeLessThan(1e-12);
+    // points on the fault plane inside the ribbon and beyond the second partial: the jump of the field across
+    // the plane (along +normal) must equal the sum of the jumps of the surfaces that contain the point
+    const n = model.surfaces[0].normal;
+    for (const s of [-20, 0, 20, 45]) {
+      const q = [s * pair.ribbonDirection[0], s * pair.ribbonDirection[1], 50 + s * pair.ribbonDirection[2]];
+      const dField = R(field, q.map((v, i) => v + eps * n[i])).map((v, i) => v - R(field, q.map((w, k) => w - eps * n[k]))[i]);
+      const dSurf = [0, 0, 0];
+      for (const f of model.surfaces) {
+        expect(Math.abs(dot(f.normal, n))).toBeCloseTo(1, 12); // both cuts lie in the fault plane
+        const into = dot(q.map((v, i) => v - f.point_nm[i]) as [number, number, number], f.into!);
+        if (into > 0) for (let i = 0; i < 3; i++) dSurf[i] += Math.sign(dot(f.normal, n)) * f.jump_nm[i];
+      }
+      for (let i = 0; i < 3; i++) expect(dField[i]).toBeCloseTo(dSurf[i], 6);
+    }
+  });
 
   it('with the partials\' strain switched off: inside the ribbon equals the fault alone, outside the perfect crystal (to 1e-7)', async () => {
     const r = renderWithModel(ribbon, (mod) => ({ fields: [], surfaces: mod.surfaces }));
