@@ -130,20 +130,8 @@ describe('many-beam engine in the renderer', () => {
     }
   });
 
-  it('a 5-beam image of an inclined dislocation is finite and differs from two beams only modestly at s ~ 0.3/xi', async () => {
-    const make = (beams: unknown) => scenario({
-      image: { width_px: 24, height_px: 24, pixel_nm: 1 },
-      conditions: [{ id: 'c', g: [2, 0, 0], w: 0.3, beams }],
-      defects: [{ type: 'dislocation', b: '1/2[1 0 1]', line: [1, 1, 2], point_nm: [0, 0, 50] }],
-    });
-    const [two] = await render(make(2));
-    const [five] = await render(make({ row: 5 }));
-    let diff = 0;
-    for (let i = 0; i < two.bf.length; i++) {
-      expect(Number.isFinite(five.bf[i]) && Number.isFinite(five.df[i])).toBe(true);
-      diff = Math.max(diff, Math.abs(two.bf[i] - five.bf[i]));
-    }
-    expect(diff).toBeGreaterThan(1e-4); // many beams do change the image
-    expect(diff).toBeLessThan(0.5);
-  });
+  // (A test that accepted any 5-beam vs two-beam difference between 1e-4 and 0.5 was removed: it could not tell
+  // a right image from a wrong one. The many-beam engine is checked against scipy for strained columns in
+  // test/dynamics/manybeamColumn.test.ts, against scipy for an inclusion image with the beam set {000, g} in
+  // inclusionColumns.test.ts, and against numpy eigen-solutions for systematic rows above.)
 });

@@ -5,6 +5,9 @@
 import { describe, expect, it } from 'vitest';
 import { scenario, render, maxContrast } from './helpers.js';
 import { buildField, defectModel } from '../../src/imaging/fieldSpecs.js';
+import { coreMask } from '../../src/imaging/cores.js';
+import { readFileSync } from 'node:fs';
+import { join } from 'node:path';
 import { shockleyRibbon } from '../../src/elasticity/ribbon.js';
 import { resolveCondition } from '../../src/imaging/resolveCondition.js';
 import { renderJob } from '../../src/imaging/renderScenario.js';
@@ -14,6 +17,11 @@ import { cartesianToDirection, directionToCartesian } from '../../src/crystal/la
 import { cross, dot } from '../../src/math/vec3.js';
 import { analyseInclusions } from '../../src/analysis/inclusionLobes.js';
 import type { Scenario } from '../../src/scenario/types.js';
+
+// written by `/usr/bin/python3 scripts/ref_dislocation_profiles.py` (scipy solve_ivp, alpha form, Hirth & Lothe field)
+const profiles = JSON.parse(readFileSync(join(import.meta.dirname, '..', 'reference', 'dislocation-profiles.json'), 'utf8')) as {
+  partials: { g: number[]; b: number[]; bf: number[] }[];
+};
 
 function renderWithModel(sc: Scenario, modify: (m: ReturnType<typeof defectModel>) => ReturnType<typeof defectModel>) {
   const c = resolveCondition(sc, sc.conditions[0]);
@@ -40,6 +48,21 @@ describe('Shockley partials (Howie & Whelan 1962; from memory)', () => {
     const fault = renderWithModel(sc, (m) => ({ fields: [], surfaces: m.surfaces }));
     return full.bf.reduce((mx, v, k) => Math.max(mx, Math.abs(v - fault.bf[k])), 0);
   };
+  it('images of the six partials below equal an independent alpha-form integration (scripts/ref_dislocation_profiles.py, to 1e-5)', async () => {
+    // The reference integrates exp(+-2 pi i g.R) with the full displacement R of the partial, whose cut lies along
+    // the fault (physics.md section 5), so the fault phase and its sign come from R itself, not from the renderer's
+    // rule. Pixels reaching the core are left out (averaged by the renderer, src/imaging/cores.ts).
+    // Measured: 5e-8 at tol 1e-6.
+    for (const c of profiles.partials) {
+      const sc = partial(`1/6[${c.b.map((x) => Math.round(6 * x)).join(' ')}]`, c.g);
+      const [ci] = await render(sc, 1e-6);
+      const mask = coreMask(renderJob(sc, resolveCondition(sc, sc.conditions[0])));
+      let worst = 0;
+      for (let i = 0; i < 80; i++) if (!mask[i]) worst = Math.max(worst, Math.abs(ci.bf[i] - c.bf[i]));
+      expect(worst).toBeLessThan(1e-5);
+    }
+  });
+
   it('|g.b| = 1/3 gives much weaker line contrast than |g.b| = 2/3 for each g', () => {
     // [g, partial with |g.b| = 1/3, partial with |g.b| = 2/3]
     const cases: [number[], string, string][] = [
@@ -50,11 +73,13 @@ describe('Shockley partials (Howie & Whelan 1962; from memory)', () => {
     for (const [g, third, twoThirds] of cases) {
       const weak = lineContrast(partial(third, g));
       const strong = lineContrast(partial(twoThirds, g));
-      // measured (w = 0.5): 0.16 vs 0.38 (200), 0.13 vs 0.38 (020), 0.08 vs 0.33 (220). The isotropic model
-      // leaves some contrast at |g.b| = 1/3 (the long-range field bends the fault fringes); "invisible" in the
-      // rule of thumb means weak next to the 2/3 case.
+      // measured (w = 0.5): 0.16 vs 0.38 (200), 0.13 vs 0.38 (020), 0.08 vs 0.33 (220); the images behind these
+      // numbers are checked against scipy in the test above. The isotropic model leaves some contrast at
+      // |g.b| = 1/3 (the long-range field bends the fault fringes). The rule of thumb (Howie & Whelan 1962, from
+      // memory) gives no number: "invisible" is read as "less than half the 2/3 contrast", and the 2/3 partial
+      // must pass the 10 % "visible" threshold of src/analysis/lineContrast.ts with room (0.25).
       expect(strong).toBeGreaterThan(0.25);
-      expect(weak).toBeLessThan(0.6 * strong);
+      expect(weak).toBeLessThan(0.5 * strong);
     }
   });
 });
