@@ -1,41 +1,92 @@
-/** The visibility table of a scenario: every defect and candidate under every condition. */
+/**
+ * The visibility table of a scenario: every defect and candidate under every
+ * condition. Each entry carries the g.b / g.(b x u) rule of thumb (visibility.ts)
+ * and, where the line direction is known, the verdict of a simulated strip of
+ * columns across the line (lineContrast.ts); the simulated verdict is the one
+ * the table shows, the rule stands beside it.
+ */
 import type { Vec3 } from '../math/vec3.js';
-import type { Scenario } from '../scenario/types.js';
-import { judge, type VisibilityEntry } from './visibility.js';
-import { dissociationPair } from '../imaging/fieldSpecs.js';
+import type { DefectSpec, Scenario } from '../scenario/types.js';
+import { judge, type Verdict, type VisibilityEntry } from './visibility.js';
+import { defectModel, dissociationPair, type DefectModel, type DislocationFieldSpec } from '../imaging/fieldSpecs.js';
+import { resolveCondition, type ResolvedCondition } from '../imaging/resolveCondition.js';
+import { lineContrast, type LineContrast, type SimulatedVerdict } from './lineContrast.js';
+
+export interface VisibilityTableEntry extends Omit<VisibilityEntry, 'verdict'> {
+  readonly condition: string;
+  readonly g: Vec3;
+  /** The verdict of the g.b / g.(b x u) rule alone. */
+  readonly ruleVerdict: Verdict;
+  /** The simulated verdict when a line could be simulated, else the rule's verdict. */
+  readonly verdict: SimulatedVerdict | Verdict;
+  /** The simulated strip (absent when the line direction is unknown). */
+  readonly simulated?: LineContrast;
+}
 
 export interface VisibilityRow {
   readonly subject: string;
   readonly kind: 'defect' | 'candidate';
   readonly b: Vec3;
   readonly line?: Vec3;
-  readonly entries: readonly (VisibilityEntry & { readonly condition: string; readonly g: Vec3 })[];
+  readonly entries: readonly VisibilityTableEntry[];
 }
 
-export function visibilityTable(sc: Scenario): VisibilityRow[] {
+/** What to simulate for a row: a defect model and the line of it whose contrast is measured. */
+interface Simulation {
+  readonly model: DefectModel;
+  readonly line: DislocationFieldSpec;
+}
+
+function modelOf(sc: Scenario, d: DefectSpec): DefectModel {
+  return defectModel({ ...sc, defects: [d] });
+}
+
+/** The model restricted to field/surface k (a dislocation's field and its cut come in the same order). */
+function only(m: DefectModel, k: number): Simulation {
+  return { model: { fields: [m.fields[k]], surfaces: [m.surfaces[k]] }, line: m.fields[k] as DislocationFieldSpec };
+}
+
+export function visibilityTable(sc: Scenario, options: { simulate?: boolean } = {}): VisibilityRow[] {
+  const simulate = options.simulate ?? true;
   const rows: VisibilityRow[] = [];
   const l = sc.material.lattice;
-  const make = (subject: string, kind: 'defect' | 'candidate', b: Vec3, line?: Vec3): VisibilityRow => ({
-    subject,
-    kind,
-    b,
-    ...(line ? { line } : {}),
-    entries: sc.conditions.map((c) => ({ condition: c.id, g: c.g, ...judge(l, c.g, b, line) })),
-  });
+  const conditions: ResolvedCondition[] = simulate ? sc.conditions.map((c) => resolveCondition(sc, c)) : [];
+  const make = (subject: string, kind: 'defect' | 'candidate', b: Vec3, line: Vec3 | undefined, sim: (() => Simulation) | undefined): VisibilityRow => {
+    const s = simulate && line !== undefined && sim !== undefined ? sim() : undefined;
+    return {
+      subject,
+      kind,
+      b,
+      ...(line ? { line } : {}),
+      entries: sc.conditions.map((c, i) => {
+        const rule = judge(l, c.g, b, line);
+        const simulated = s === undefined ? undefined : lineContrast(conditions[i], s.model, s.line);
+        return { condition: c.id, g: c.g, ...rule, ruleVerdict: rule.verdict, verdict: simulated?.verdict ?? rule.verdict, ...(simulated ? { simulated } : {}) };
+      }),
+    };
+  };
   const lines: Vec3[] = [];
   for (const d of sc.defects) {
     if (d.type === 'dislocation' || d.type === 'partial') {
-      rows.push(make(d.label, 'defect', d.b, d.line));
+      rows.push(make(d.label, 'defect', d.b, d.line, () => only(modelOf(sc, d), 0)));
       lines.push(d.line);
     } else if (d.type === 'dissociated') {
-      rows.push(make(`${d.label} (perfect b)`, 'defect', d.b, d.line));
+      const m = modelOf(sc, d);
+      // the whole ribbon, measured across its first partial (the strip crosses both)
+      rows.push(make(`${d.label} (perfect b)`, 'defect', d.b, d.line, () => ({ model: m, line: m.fields[0] as DislocationFieldSpec })));
       const pair = dissociationPair(sc.material, d);
-      rows.push(make(`${d.label}, partial 1`, 'defect', pair.b1, d.line));
-      rows.push(make(`${d.label}, partial 2`, 'defect', pair.b2, d.line));
+      rows.push(make(`${d.label}, partial 1`, 'defect', pair.b1, d.line, () => only(m, 0)));
+      rows.push(make(`${d.label}, partial 2`, 'defect', pair.b2, d.line, () => only(m, 1)));
       lines.push(d.line);
     }
   }
   const soleLine = lines.length === 1 ? lines[0] : undefined;
-  for (const c of sc.candidates) rows.push(make(c.label, 'candidate', c.b, c.line ?? soleLine));
+  const mid = sc.thickness_nm / 2;
+  for (const c of sc.candidates) {
+    const line = c.line ?? soleLine;
+    // a candidate is simulated as a straight dislocation through the image centre at mid-depth
+    const sim = line === undefined ? undefined : () => only(modelOf(sc, { type: 'dislocation', label: c.label, b: c.b, line, point_nm: [0, 0, mid] }), 0);
+    rows.push(make(c.label, 'candidate', c.b, line, sim));
+  }
   return rows;
 }

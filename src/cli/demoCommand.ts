@@ -41,7 +41,7 @@ export async function demoCommand(opts: { out?: string }): Promise<void> {
   const visText = formatVisibility(sc, vis);
   writeFileAtomic(join(dir, 'visibility.txt'), visText);
   writeFileAtomic(join(dir, 'visibility.json'), `${JSON.stringify({ scenario: sc.name, rows: vis }, null, 2)}\n`);
-  process.stdout.write(`\nvisibility (g.b rule of thumb):\n${visText}`);
+  process.stdout.write(`\nvisibility (simulated strip across each line, g.b rule beside it):\n${visText}`);
   for (const d of sc.defects) {
     if (d.type === 'dissociated') {
       process.stdout.write(`\n${d.label}: partial separation ${sig(dissociationWidth_nm(sc.material, d), 3)} nm (isotropic equilibrium width for ${sc.material.stackingFaultEnergy_mJ_per_m2} mJ/m^2)\n`);

@@ -6,6 +6,7 @@ import { renderScenario, type ConditionImages } from '../imaging/renderScenario.
 import { createRenderPool } from '../imaging/workerPool.js';
 import { writeConditionImages, type ImageEntry } from '../output/imageFiles.js';
 import { ensureOutputDir, writeFileAtomic } from '../output/atomicWrite.js';
+import { encodeGreyPng } from '../output/png.js';
 import { loadScenario, warnAbout } from './loadScenario.js';
 import { printJson, sig, table } from './run.js';
 import { progressBar } from './progress.js';
@@ -71,6 +72,7 @@ export async function renderAndWrite(
   });
   const sheet = contactSheet(images, geometries, windows, note, sc.name);
   writeFigure('contact-sheet', sheet);
+  const masks = images.map((ci) => writeCoreMask(dir, ci));
   const summary = {
     scenario: sc.name,
     note: 'Simulated images (column approximation, isotropic elasticity); a model, not a measurement.',
@@ -85,7 +87,7 @@ export async function renderAndWrite(
       note,
       windows: images.map((ci, i) => ({ condition: ci.condition.id, bf: windows[i][0], df: windows[i][1] })),
     },
-    conditions: images.map((ci, i) => ({ ...conditionSummary(ci), geometry: conditionGeometryJson(sc, ci, geometries[i]) })),
+    conditions: images.map((ci, i) => ({ ...conditionSummary(ci), geometry: conditionGeometryJson(sc, ci, geometries[i]), ...(masks[i] === null ? {} : { corePixels: masks[i] }) })),
     images: entries,
     warnings,
   };
@@ -105,6 +107,29 @@ function conditionGeometryJson(sc: Scenario, ci: ConditionImages, g: ReturnType<
     foilNormal: g.foilNormal,
     text: g.text,
     nearestZone: { axis: g.nearestZone.text, angle_deg: g.nearestZone.angle_deg },
+  };
+}
+
+/**
+ * Writes `<id>-core.png` (white: pixels whose area reaches a dislocation core) when there are such pixels;
+ * returns what render.json says about them, or null.
+ */
+function writeCoreMask(dir: string, ci: ConditionImages): { count: number; mask: string; note: string } | null {
+  let count = 0;
+  const px = new Uint8Array(ci.coreMask.length);
+  for (let i = 0; i < px.length; i++) {
+    if (ci.coreMask[i]) {
+      px[i] = 255;
+      count++;
+    }
+  }
+  if (count === 0) return null;
+  const file = join(dir, `${ci.condition.id}-core.png`);
+  writeFileAtomic(file, encodeGreyPng(px, ci.width, ci.height));
+  return {
+    count,
+    mask: file,
+    note: 'pixels whose area reaches 2 core radii of a dislocation line (column approximation and linear elasticity fail there): each is the mean over its area outside the core, or of the columns just outside it; not a prediction of core contrast',
   };
 }
 

@@ -1,26 +1,34 @@
 /** `thinfoil visibility <scenario>`: the g.b table with verdicts. */
 import type { Scenario } from '../scenario/types.js';
-import { visibilityTable, type VisibilityRow } from '../analysis/visibilityTable.js';
+import { visibilityTable, type VisibilityRow, type VisibilityTableEntry } from '../analysis/visibilityTable.js';
+import { VISIBLE_CONTRAST, WEAK_CONTRAST } from '../analysis/lineContrast.js';
 import { formatVector } from '../scenario/parse.js';
 import { loadScenario, warnAbout } from './loadScenario.js';
 import { printJson, table } from './run.js';
 
-const MARK = { visible: 'V', invisible: 'i', 'weak residual': 'w' } as const;
+const MARK = { visible: 'V', invisible: 'i', 'weak residual': 'w', weak: 'w' } as const;
+
+function cell(e: VisibilityTableEntry): string {
+  const gbxu = e.gbxu !== undefined && e.gb === 0 ? ` (${frac(e.gbxu)})` : '';
+  if (e.simulated === undefined) return `${frac(e.gb)}${gbxu} ${MARK[e.verdict]} rule`;
+  const peak = Math.max(e.simulated.bf, e.simulated.df);
+  return `${frac(e.gb)}${gbxu} ${MARK[e.verdict]} ${Math.round(100 * peak)}% (rule ${MARK[e.ruleVerdict]})`;
+}
 
 export function formatVisibility(sc: Scenario, rows: readonly VisibilityRow[]): string {
   const header = ['defect / candidate', 'b', 'u', ...sc.conditions.map((c) => `${c.id} (${c.g.join(' ')})`)];
-  const body = rows.map((r) => [
-    r.subject,
-    formatVector(r.b),
-    r.line ? formatVector(r.line) : '-',
-    ...r.entries.map((e) => `${frac(e.gb)} ${MARK[e.verdict]}${e.gbxu !== undefined && e.gb === 0 ? ` (${frac(e.gbxu)})` : ''}`),
-  ]);
+  const body = rows.map((r) => [r.subject, formatVector(r.b), r.line ? formatVector(r.line) : '-', ...r.entries.map(cell)]);
   return (
     table(header, body) +
-    'cells: g.b then V visible, i invisible, w weak residual; for g.b = 0 the value g.(b x u) follows in brackets.\n' +
+    'cells: g.b (for g.b = 0 then g.(b x u) in brackets), the verdict from a simulated strip of columns across the line\n' +
+    `       (two-beam at the condition's s, the scenario's thickness, the line's depth; candidates at mid-depth),\n` +
+    `       its peak contrast |I - I_ref|/I_background in bright or dark field, and the g.b rule's verdict.\n` +
+    `verdict: V visible (peak >= ${Math.round(100 * VISIBLE_CONTRAST)}%), w weak (${Math.round(100 * WEAK_CONTRAST)}-${Math.round(100 * VISIBLE_CONTRAST)}%), i invisible (< ${Math.round(100 * WEAK_CONTRAST)}%); thresholds are common practice, our choice.\n` +
+    '       "rule" alone: no line direction, nothing simulated.\n' +
     'rules: g.b = 0 and g.(b x u) = 0 invisible, unless g.b_edge != 0 (mixed line with g.u != 0: weak residual);\n' +
     '       g.b = 0 and |g.(b x u)| < 0.64 weak residual (Hirsch et al. 1965);\n' +
-    '       partials |g.b| = 1/3 invisible, 2/3 visible (Howie & Whelan 1962). A rule of thumb: simulate to be sure.\n'
+    '       partials |g.b| = 1/3 invisible, 2/3 visible (Howie & Whelan 1962). For partials the simulated contrast is the\n' +
+    '       line\'s own, against the fault it bounds.\n'
   );
 }
 

@@ -69,9 +69,21 @@ export function rowOrders(beams: number): { nMin: number; nMax: number } {
   return { nMin: -m, nMax: m };
 }
 
-/** Set up the beams of reflection hkl; InputError for g = 000, a forbidden g or a bad beam count. */
-export function blochRow(material: Material, hkl: Vec3, kV: number, absorption: AbsorptionSetting, beams: number): BlochRow {
-  const { nMin, nMax } = rowOrders(beams);
+function checkedRange(r: { nMin: number; nMax: number }): { nMin: number; nMax: number } {
+  const { nMin, nMax } = r;
+  if (!Number.isInteger(nMin) || !Number.isInteger(nMax) || nMin > 0 || nMax < 1 || nMax - nMin + 1 > MAX_BEAMS) {
+    throw new InputError(`systematic row ${nMin}..${nMax}: give whole orders with nMin <= 0 < nMax and at most ${MAX_BEAMS} beams.`);
+  }
+  return { nMin, nMax };
+}
+
+/**
+ * Set up the beams of reflection hkl: a beam count (see rowOrders) or the orders nMin..nMax of a row
+ * (nMin <= 0 < nMax, e.g. -3..5 for a weak beam g(3g)); InputError for g = 000, a forbidden g or a bad beam count.
+ */
+export function blochRow(material: Material, hkl: Vec3, kV: number, absorption: AbsorptionSetting, beamsOrRange: number | { nMin: number; nMax: number }): BlochRow {
+  const { nMin, nMax } = typeof beamsOrRange === 'number' ? rowOrders(beamsOrRange) : checkedRange(beamsOrRange);
+  const beams = nMax - nMin + 1;
   const reflection = reflectionParameters(material, hkl, kV, { absorption });
   const u0abs = normalAbsorption_per_nm2(reflection.lambda_nm, reflection.xiAbs0_nm);
   const cacheU = new Map<number, ComplexPair>();

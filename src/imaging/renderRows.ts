@@ -6,7 +6,7 @@
  * data, so it runs the same in the main thread and in workers.
  */
 import type { Vec3 } from '../math/vec3.js';
-import { cross, dot } from '../math/vec3.js';
+import { dot } from '../math/vec3.js';
 import type { ImageFrame } from '../geometry/frames.js';
 import { columnEntryOffset, pixelX } from '../geometry/frames.js';
 import { integrateColumn, perfectCrystal, type TwoBeamParams } from '../dynamics/twoBeam.js';
@@ -14,6 +14,7 @@ import { rk4Column } from '../dynamics/rk4Reference.js';
 import type { ManyBeamInput } from '../dynamics/manyBeamStructureMatrix.js';
 import { integrateColumnN, integrateColumnNVector, prepareColumnSystem, prepareColumnSystemVector } from '../dynamics/manyBeam.js';
 import { buildField, type DefectModel } from './fieldSpecs.js';
+import { CORE_SUBSAMPLES, coreGeometry } from './cores.js';
 
 export interface RenderJob {
   readonly width: number;
@@ -28,7 +29,7 @@ export interface RenderJob {
   readonly model: DefectModel;
   /** Baseline for benchmarks only: plain fixed-step RK4 with this many steps per column. */
   readonly rk4Steps?: number;
-  /** Average each pixel over sub-columns where a column passes close to a dislocation core (default true). */
+  /** Average pixels that reach a dislocation core over their area outside the core (default true; cores.ts). */
   readonly coreSupersample?: boolean;
   /** Present for a systematic row of more than two beams: the many-beam engine is used instead of the two-beam one. */
   readonly manyBeam?: ManyBeamJob;
@@ -130,7 +131,11 @@ export function columnEvaluator(job: RenderJob): ColumnEvaluator {
   // Many-beam only: each dislocation line's depth of closest approach is a breakpoint (a zero phase step),
   // so that the stepper restarts with a small step where the strain peaks.
   const lines = mb === null ? [] : job.model.fields.flatMap((f) => (f.kind === 'dislocation' ? [{ p: f.point_nm, u: f.line }] : []));
-  const nMax = surfaces.length + lines.length;
+  // Both engines: beta' jumps where a column enters and leaves an inclusion sphere (the strain inside is
+  // uniform, outside it is the Ashby-Brown 1/r^3 field), so both depths are breakpoints (zero phase steps).
+  // A step error estimate of 4th order does not see a jump inside a slice (a first-order error).
+  const spheres = job.model.fields.flatMap((f) => (f.kind === 'inclusion' ? [{ c: f.centre_nm, r2: f.radius_nm * f.radius_nm }] : []));
+  const nMax = surfaces.length + lines.length + 2 * spheres.length;
   // fault crossings of the current column: [z, alpha] pairs sorted by z, one array per count
   const stride = vector ? 4 : 2;
   const crossings = Array.from({ length: nMax }, (_, i) => new Float64Array(stride * (i + 1)));
@@ -171,6 +176,19 @@ export function columnEvaluator(job: RenderJob): ColumnEvaluator {
         const zc = (b * (u[0] * w0x + u[1] * w0y + u[2] * w0z) - (kx * w0x + ky * w0y + kz * w0z)) / den;
         if (!(zc > 0 && zc < L)) continue;
         count = insertByDepth(zs, as, count, zc, 0);
+      }
+      for (let d = 0; d < spheres.length; d++) {
+        // |c0 + z k - centre|^2 = r0^2  ->  z = -w.k +- sqrt((w.k)^2 - |w|^2 + r0^2), w = c0 - centre
+        const { c, r2 } = spheres[d];
+        const wx = cx - c[0], wy = cy - c[1], wz = cz - c[2];
+        const wk = wx * kx + wy * ky + wz * kz;
+        const disc = wk * wk - (wx * wx + wy * wy + wz * wz) + r2;
+        if (!(disc > 0)) continue; // the column misses the sphere (or touches it)
+        const root = Math.sqrt(disc);
+        const z1 = -wk - root;
+        const z2 = -wk + root;
+        if (z1 > 0 && z1 < L) count = insertByDepth(zs, as, count, z1, 0);
+        if (z2 > 0 && z2 < L) count = insertByDepth(zs, as, count, z2, 0);
       }
       let faults = none;
       if (count > 0) {
@@ -254,7 +272,8 @@ function manyBeamColumn(mb: ManyBeamJob, tol: number) {
 
 /**
  * Fill rows [row0, row1) of the image into bf and df (offset 0 = first pixel
- * of row0). Returns slice statistics.
+ * of row0). Returns slice statistics. Pixels whose area reaches a dislocation
+ * core are averaged over their area outside the core (see cores.ts).
  */
 export function renderRows(job: RenderJob, row0: number, row1: number, bf: Float32Array, df: Float32Array): RowStats {
   const { width, height, pixel_nm } = job;
@@ -267,28 +286,45 @@ export function renderRows(job: RenderJob, row0: number, row1: number, bf: Float
     df.fill(out[2] * out[2] + out[3] * out[3], 0, n);
     return { slices: n, columns: n };
   }
-  const near = job.coreSupersample === false ? null : coreProximity(job);
+  const cores = job.coreSupersample === false ? null : coreGeometry(job);
+  const margin = Math.SQRT1_2 * pixel_nm;
   const S = CORE_SUBSAMPLES;
+  const esc = new Float64Array(4);
   let columns = 0;
   let k = 0;
   for (let j = row0; j < row1; j++) {
     const y = pixelX(j, height, pixel_nm);
     for (let i = 0; i < width; i++, k++) {
       const x = pixelX(i, width, pixel_nm);
-      if (near !== null && near(x, y)) {
-        // the pixel's area is averaged (S x S columns): the intensity varies on the scale of the core, far below a pixel
+      if (cores !== null && cores.near(x, y, margin)) {
+        // average over the pixel's area outside the cores (S x S sub-columns; those inside a core are left out)
         let a = 0;
         let b = 0;
+        let m = 0;
         for (let q = 0; q < S; q++) {
           for (let r = 0; r < S; r++) {
-            ev.column(out, x + ((r + 0.5) / S - 0.5) * pixel_nm, y + ((q + 0.5) / S - 0.5) * pixel_nm);
+            const xs = x + ((r + 0.5) / S - 0.5) * pixel_nm;
+            const ys = y + ((q + 0.5) / S - 0.5) * pixel_nm;
+            if (cores.near(xs, ys, 0)) continue;
+            ev.column(out, xs, ys);
             a += out[0] * out[0] + out[1] * out[1];
             b += out[2] * out[2] + out[3] * out[3];
+            m++;
           }
         }
-        bf[k] = a / (S * S);
-        df[k] = b / (S * S);
-        columns += S * S;
+        if (m === 0) {
+          // the whole pixel lies in a core: the mean of the columns just outside it on either side of the line
+          cores.escape(esc, x, y);
+          for (let e = 0; e < 4; e += 2) {
+            ev.column(out, esc[e], esc[e + 1]);
+            a += out[0] * out[0] + out[1] * out[1];
+            b += out[2] * out[2] + out[3] * out[3];
+            m++;
+          }
+        }
+        bf[k] = a / m;
+        df[k] = b / m;
+        columns += m;
       } else {
         ev.column(out, x, y);
         bf[k] = out[0] * out[0] + out[1] * out[1];
@@ -298,54 +334,4 @@ export function renderRows(job: RenderJob, row0: number, row1: number, bf: Float
     }
   }
   return { slices: ev.stats.slices, columns };
-}
-
-/** Sub-columns per axis averaged in a pixel whose column passes close to a dislocation core. */
-export const CORE_SUBSAMPLES = 3;
-
-/**
- * A test for pixels whose area reaches, inside the foil, into the modified
- * core (2 core radii) of a dislocation line: there the intensity changes on
- * the scale of the core, and one column per pixel would alias it into dots
- * along the line. Pixels no larger than the core radius resolve it and are
- * not averaged. Returns null when no pixel needs it.
- */
-export function coreProximity(job: RenderJob): ((x: number, y: number) => boolean) | null {
-  const { frame, pixel_nm } = job;
-  const k = frame.ez;
-  const L = frame.columnLength_nm;
-  const lines = job.model.fields.flatMap((f) => {
-    if (f.kind !== 'dislocation') return [];
-    const rc = f.coreRadius_nm ?? Math.hypot(f.b_nm[0], f.b_nm[1], f.b_nm[2]);
-    if (pixel_nm <= rc) return [];
-    const n = cross(k, f.line);
-    const nl = Math.hypot(n[0], n[1], n[2]);
-    return [{ p: f.point_nm, u: f.line, n: nl > 1e-9 ? ([n[0] / nl, n[1] / nl, n[2] / nl] as const) : null, reach: 2 * rc + Math.SQRT1_2 * pixel_nm }];
-  });
-  if (lines.length === 0) return null;
-  const [ex0, ex1, ex2] = frame.ex;
-  const [ey0, ey1, ey2] = frame.ey;
-  return (x, y) => {
-    const tau0 = columnEntryOffset(frame, x, y);
-    const cx = x * ex0 + y * ey0 + tau0 * k[0];
-    const cy = x * ex1 + y * ey1 + tau0 * k[1];
-    const cz = x * ex2 + y * ey2 + tau0 * k[2];
-    for (const l of lines) {
-      const wx = cx - l.p[0], wy = cy - l.p[1], wz = cz - l.p[2];
-      let d: number;
-      let z: number;
-      if (l.n === null) {
-        // column parallel to the line (end-on): distance between parallel lines
-        const t = wx * l.u[0] + wy * l.u[1] + wz * l.u[2];
-        d = Math.hypot(wx - t * l.u[0], wy - t * l.u[1], wz - t * l.u[2]);
-        z = L / 2;
-      } else {
-        d = Math.abs(wx * l.n[0] + wy * l.n[1] + wz * l.n[2]);
-        const b = k[0] * l.u[0] + k[1] * l.u[1] + k[2] * l.u[2];
-        z = (b * (l.u[0] * wx + l.u[1] * wy + l.u[2] * wz) - (k[0] * wx + k[1] * wy + k[2] * wz)) / (1 - b * b);
-      }
-      if (d < l.reach && z > -l.reach && z < L + l.reach) return true;
-    }
-    return false;
-  };
 }

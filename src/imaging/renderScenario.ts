@@ -10,6 +10,7 @@ import type { Scenario } from '../scenario/types.js';
 import { defectModel } from './fieldSpecs.js';
 import { resolveCondition, type ResolvedCondition } from './resolveCondition.js';
 import { columnEvaluator, type ManyBeamJob, type RenderJob } from './renderRows.js';
+import { coreMask } from './cores.js';
 import type { Progress, RenderPool } from './workerPool.js';
 
 /** Default integrator tolerance on intensity per column. */
@@ -25,6 +26,8 @@ export interface ConditionImages {
   /** Perfect-crystal intensities of this condition. */
   readonly background: { readonly bf: number; readonly df: number };
   readonly slices: number;
+  /** Pixels whose area reaches a dislocation core (1), averaged over their area outside the core (cores.ts). */
+  readonly coreMask: Uint8Array;
 }
 
 export function twoBeamParams(c: ResolvedCondition): TwoBeamParams {
@@ -38,7 +41,7 @@ export function manyBeamJob(sc: Scenario, c: ResolvedCondition): ManyBeamJob | u
     return { input: set.input, orders: new Float64Array(set.hkl.length), incident: set.incident, darkField: set.darkField, beamVectors: set.beamVectors_per_nm };
   }
   if (c.beams.kind !== 'row') return undefined;
-  const row = blochRow(sc.material, c.g, sc.kV, sc.absorption, c.beams.count);
+  const row = blochRow(sc.material, c.g, sc.kV, sc.absorption, { nMin: c.beams.nMin, nMax: c.beams.nMax });
   return { input: blochRowInput(row, c.s_per_nm), orders: row.orders, incident: row.incident, darkField: row.darkField };
 }
 
@@ -85,6 +88,7 @@ export async function renderScenario(
       df: img.df,
       background: background(job),
       slices: img.slices,
+      coreMask: coreMask(job),
     });
   }
   return result;

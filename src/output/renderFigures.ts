@@ -114,7 +114,7 @@ export function conditionLabel(ci: ConditionImages): ConditionLabel {
       : c.deviationSource === 's'
         ? `s = ${sig(c.s_per_nm, 3)} /nm (w = ${sig(c.w, 3)})`
         : `weak beam ${c.deviationSource}, s = ${sig(c.s_per_nm, 3)} /nm`;
-  const beams = c.beams.kind === 'row' ? `${c.beams.count}-beam row` : c.beams.kind === 'set' ? `${c.beams.beams.length + 2}-beam set` : 'two-beam';
+  const beams = c.beams.kind === 'row' ? `${c.beams.nMax - c.beams.nMin + 1}-beam row (${c.beams.nMin}g .. ${c.beams.nMax}g)` : c.beams.kind === 'set' ? `${c.beams.beams.length + 2}-beam set` : 'two-beam';
   const t = c.frame.thickness_nm;
   const L = c.frame.columnLength_nm;
   return {

@@ -41,8 +41,8 @@ export const DEMO_SCENARIO = {
     { id: 'g020', g: [0, 2, 0], w: 0.3 },
     { id: 'g220', g: [2, 2, 0], w: 0.3 },
     { id: 'g2m20', g: [2, -2, 0], w: 0.3 },
-    // weak-beam dark field g(3g) with a 5-beam systematic row (-2g .. 2g)
-    { id: 'g220-wb3', g: [2, 2, 0], weakBeam: 3, beams: { row: 5 } },
+    // weak-beam dark field g(3g) with the systematic row the program picks (-3g .. 5g: it must hold 3g and 4g)
+    { id: 'g220-wb3', g: [2, 2, 0], weakBeam: 3, beams: 'row' },
   ],
   defects: [
     // 60-degree dislocations on {111}: b = 1/2[1 1 0] along [1 0 1] (plane (1 -1 -1)), b = 1/2[1 -1 0] along [0 1 1] (plane (1 1 -1))

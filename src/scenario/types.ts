@@ -9,8 +9,8 @@ import type { AbsorptionSetting } from '../scattering/absorption.js';
 
 export type BeamSet =
   | { readonly kind: 'two' }
-  /** Systematic row n g for n = -m..m (2m+1 beams). */
-  | { readonly kind: 'row'; readonly count: number }
+  /** Systematic row n g for n = nMin..nMax (nMin <= 0 < nMax). */
+  | { readonly kind: 'row'; readonly nMin: number; readonly nMax: number }
   /** Any set of beams (plane indices); 000 and g are always included. */
   | { readonly kind: 'set'; readonly beams: readonly Vec3[] };
 

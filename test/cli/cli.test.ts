@@ -176,6 +176,12 @@ describe('thinfoil render', () => {
     }
     expect(readFileSync(file, 'utf8')).toBe(before); // the input is never modified
     expect(existsSync(join(out, 'render.json'))).toBe(true);
+    // pixels reaching the dislocation core are marked (src/imaging/cores.ts): a mask PNG and a count in render.json
+    const summary = JSON.parse(readFileSync(join(out, 'render.json'), 'utf8'));
+    const core = summary.conditions[0].corePixels;
+    expect(core.count).toBeGreaterThan(0);
+    expect(core.count).toBeLessThan(24 * 20 / 4);
+    expect(existsSync(core.mask)).toBe(true);
   });
 
   const bad: [string, (s: any) => void, RegExp][] = [

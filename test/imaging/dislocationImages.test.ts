@@ -5,6 +5,8 @@
 import { describe, expect, it } from 'vitest';
 import { scenario, render, row, maxContrast, contrastCentroid } from './helpers.js';
 import { perfectCrystal } from '../../src/dynamics/twoBeam.js';
+import { readFileSync } from 'node:fs';
+import { join } from 'node:path';
 
 // A dislocation lying parallel to the foil surfaces along [010] (image y), at mid-depth,
 // imaged with g = 200 (g along image x), beam [001].
@@ -106,14 +108,21 @@ describe('absolute image side (Hirsch et al. 1965; sign fixed by s + beta\' = 0)
 });
 
 describe('image width (common practice)', () => {
-  it('at s = 0 and g.b = 1 the image is of the order of xi_g/3 wide', async () => {
-    // Rule of thumb "about xi_g/3" (Hirsch et al. 1965; common practice). The width depends on depth,
-    // thickness and the character of the dislocation, so we accept a factor of 2 either way.
+  it('at s = 0 and g.b = 1 the image is of the order of xi_g/3 wide, and exactly as wide as an independent integration', async () => {
     const sc = parallel('1/2[1 0 1]', [0, 1, 0], [2, 0, 0], { s_per_nm: 0 }, { image: { width_px: 400, height_px: 2, pixel_nm: 0.25 }, foil: { thickness_nm: 160, normal: [0, 0, 1] } });
     const [ci] = await render(sc);
-    const prof = row(ci.df, ci.width, 0).map((v) => Math.abs(v - ci.background.df));
-    const peak = Math.max(...prof);
-    const above = prof.filter((v) => v >= peak / 2).length * ci.pixel_nm;
+    const ref = JSON.parse(readFileSync(join(import.meta.dirname, '..', 'reference', 'dislocation-profiles.json'), 'utf8')).width as { df: number[]; dfBackground: number };
+    const width = (df: readonly number[], bg: number) => {
+      const prof = df.map((v) => Math.abs(v - bg));
+      const peak = Math.max(...prof);
+      return prof.filter((v) => v >= peak / 2).length * ci.pixel_nm;
+    };
+    const above = width(row(ci.df, ci.width, 0), ci.background.df);
+    // scripts/ref_dislocation_profiles.py (scipy, alpha form, Hirth & Lothe field): 18.5 nm; one pixel of slack
+    expect(Math.abs(above - width(ref.df, ref.dfBackground))).toBeLessThanOrEqual(ci.pixel_nm);
+    // Rule of thumb "about xi_g/3" (Hirsch et al. 1965; common practice, from memory): no more than an order of
+    // magnitude, as the width depends on depth, thickness and character; here 18.5 nm = 0.43 xi_g. A factor of 2
+    // either way is what the rule itself claims, not a tolerance on our numbers (those are checked just above).
     const xi = ci.condition.xi_nm;
     expect(above).toBeGreaterThan(xi / 6);
     expect(above).toBeLessThan((2 * xi) / 3);

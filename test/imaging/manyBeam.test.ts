@@ -9,6 +9,66 @@ import { columnEvaluator } from '../../src/imaging/renderRows.js';
 import { readFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { blochRow, blochRowInput } from '../../src/imaging/blochRow.js';
+import { background } from '../../src/imaging/renderScenario.js';
+import { InputError } from '../../src/errors.js';
+
+interface WeakBeamRowsReference {
+  cases: {
+    g: [number, number, number];
+    weakBeam: number;
+    thickness_nm: number;
+    xi_nm: number;
+    s_per_nm: number;
+    rows: Record<string, { nMin: number; nMax: number; bf: number; df: number }>;
+  }[];
+}
+// written by `/usr/bin/python3 scripts/ref_weakbeam_rows.py` (numpy.linalg.eig; ITC Vol. C factors via gemmi)
+const wbRef = JSON.parse(readFileSync(join(import.meta.dirname, '..', 'reference', 'weakbeam-rows.json'), 'utf8')) as WeakBeamRowsReference;
+
+describe('weak beam g(ng) needs the beams ng and (n+1)g (physics.md section 4; numpy eigen reference)', () => {
+  for (const ref of wbRef.cases) {
+    const make = (beams: unknown) =>
+      scenario({ foil: { thickness_nm: ref.thickness_nm, normal: [0, 0, 1] }, conditions: [{ id: 'wb', g: ref.g, weakBeam: ref.weakBeam, beams }] });
+    const name = `Cu ${ref.g.join('')} g(${ref.weakBeam}g), t = ${ref.thickness_nm} nm`;
+
+    it(`${name}: "beams": "row" picks -3g..5g; its perfect-crystal intensities match the wide row -8g..11g within 0.5 %`, () => {
+      const sc = make('row');
+      expect(sc.conditions[0].beams).toEqual({ kind: 'row', nMin: -3, nMax: 5 });
+      const c = resolveCondition(sc, sc.conditions[0]);
+      expect(c.xi_nm).toBeCloseTo(ref.xi_nm, 8); // the same reflection as the reference
+      expect(c.s_per_nm).toBeCloseTo(ref.s_per_nm, 12);
+      const bg = background(renderJob(sc, c));
+      const wide = ref.rows['-8..11'];
+      // truncation -3..5 vs -8..11 in the reference: < 0.2 % for these cases; 0.5 % leaves room for nothing else
+      expect(Math.abs(bg.df / wide.df - 1)).toBeLessThan(5e-3);
+      expect(Math.abs(bg.bf / wide.bf - 1)).toBeLessThan(5e-3);
+    });
+
+    it(`${name}: the engine reproduces numpy for the same rows to 1e-6 (so the row, not the engine, made the old error)`, () => {
+      const sc = make('row');
+      const c = resolveCondition(sc, sc.conditions[0]);
+      for (const key of ['-2..2', '-3..5']) {
+        const r = ref.rows[key];
+        const br = blochRow(sc.material, c.g, sc.kV, sc.absorption, { nMin: r.nMin, nMax: r.nMax });
+        const bg = background({ ...renderJob(sc, c), manyBeam: { input: blochRowInput(br, c.s_per_nm), orders: br.orders, incident: br.incident, darkField: br.darkField } });
+        expect(Math.abs(bg.df / r.df - 1)).toBeLessThan(1e-6);
+        expect(Math.abs(bg.bf / r.bf - 1)).toBeLessThan(1e-6);
+      }
+      // what the old demo row -2g..2g (no 3g) did: 7 % (220) and 48 % (200) too much dark-field intensity
+      expect(ref.rows['-2..2'].df / ref.rows['-8..11'].df - 1).toBeGreaterThan(0.05);
+    });
+  }
+
+  it('an explicit row or set without ng or (n+1)g is refused, naming conditions[i].beams and the fix', () => {
+    const sc = (beams: unknown) => () => scenario({ conditions: [{ id: 'wb', g: [2, 2, 0], weakBeam: 3, beams }] });
+    expect(sc({ row: 5 })).toThrow(InputError);
+    expect(sc({ row: 5 })).toThrow(/^conditions\[0\]\.beams: the row -2g \.\. 2g leaves out 3g and 4g, .*give \{ "row": \[-3, 5\] \} or "row"/);
+    expect(sc({ row: 7 })).toThrow(/leaves out 4g,/);
+    expect(sc({ set: [[4, 4, 0]] })).toThrow(/conditions\[0\]\.beams: the set leaves out 3g and 4g.*\[6, 6, 0\], \[8, 8, 0\]/);
+    expect(sc({ row: [-1, 4] })).not.toThrow();
+    expect(sc(2)).not.toThrow(); // the two-beam model of a weak beam stays available
+  });
+});
 
 describe('many-beam engine in the renderer', () => {
   it('two beams through the many-beam engine reproduce the two-beam engine (to 1e-8, column intensities)', () => {
@@ -36,7 +96,7 @@ describe('many-beam engine in the renderer', () => {
   });
 
   it('weak beam g(3g): s_g = lambda g^2 (physics.md section 4; Williams & Carter)', () => {
-    const sc = scenario({ conditions: [{ id: 'wb', g: [2, 2, 0], weakBeam: 3, beams: { row: 5 } }] });
+    const sc = scenario({ conditions: [{ id: 'wb', g: [2, 2, 0], weakBeam: 3, beams: 'row' }] });
     const c = resolveCondition(sc, sc.conditions[0]);
     expect(c.s_per_nm).toBeCloseTo(c.lambda_nm * c.g_per_nm ** 2, 12);
   });
@@ -70,20 +130,8 @@ describe('many-beam engine in the renderer', () => {
     }
   });
 
-  it('a 5-beam image of an inclined dislocation is finite and differs from two beams only modestly at s ~ 0.3/xi', async () => {
-    const make = (beams: unknown) => scenario({
-      image: { width_px: 24, height_px: 24, pixel_nm: 1 },
-      conditions: [{ id: 'c', g: [2, 0, 0], w: 0.3, beams }],
-      defects: [{ type: 'dislocation', b: '1/2[1 0 1]', line: [1, 1, 2], point_nm: [0, 0, 50] }],
-    });
-    const [two] = await render(make(2));
-    const [five] = await render(make({ row: 5 }));
-    let diff = 0;
-    for (let i = 0; i < two.bf.length; i++) {
-      expect(Number.isFinite(five.bf[i]) && Number.isFinite(five.df[i])).toBe(true);
-      diff = Math.max(diff, Math.abs(two.bf[i] - five.bf[i]));
-    }
-    expect(diff).toBeGreaterThan(1e-4); // many beams do change the image
-    expect(diff).toBeLessThan(0.5);
-  });
+  // (A test that accepted any 5-beam vs two-beam difference between 1e-4 and 0.5 was removed: it could not tell
+  // a right image from a wrong one. The many-beam engine is checked against scipy for strained columns in
+  // test/dynamics/manybeamColumn.test.ts, against scipy for an inclusion image with the beam set {000, g} in
+  // inclusionColumns.test.ts, and against numpy eigen-solutions for systematic rows above.)
 });

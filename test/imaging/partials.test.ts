@@ -4,15 +4,24 @@
  */
 import { describe, expect, it } from 'vitest';
 import { scenario, render, maxContrast } from './helpers.js';
-import { defectModel } from '../../src/imaging/fieldSpecs.js';
+import { buildField, defectModel } from '../../src/imaging/fieldSpecs.js';
+import { coreMask } from '../../src/imaging/cores.js';
+import { readFileSync } from 'node:fs';
+import { join } from 'node:path';
+import { shockleyRibbon } from '../../src/elasticity/ribbon.js';
 import { resolveCondition } from '../../src/imaging/resolveCondition.js';
 import { renderJob } from '../../src/imaging/renderScenario.js';
 import { renderRows } from '../../src/imaging/renderRows.js';
 import { shockleySplit } from '../../src/elasticity/dissociation.js';
-import { directionToCartesian } from '../../src/crystal/lattice.js';
+import { cartesianToDirection, directionToCartesian } from '../../src/crystal/lattice.js';
 import { cross, dot } from '../../src/math/vec3.js';
 import { analyseInclusions } from '../../src/analysis/inclusionLobes.js';
 import type { Scenario } from '../../src/scenario/types.js';
+
+// written by `/usr/bin/python3 scripts/ref_dislocation_profiles.py` (scipy solve_ivp, alpha form, Hirth & Lothe field)
+const profiles = JSON.parse(readFileSync(join(import.meta.dirname, '..', 'reference', 'dislocation-profiles.json'), 'utf8')) as {
+  partials: { g: number[]; b: number[]; bf: number[] }[];
+};
 
 function renderWithModel(sc: Scenario, modify: (m: ReturnType<typeof defectModel>) => ReturnType<typeof defectModel>) {
   const c = resolveCondition(sc, sc.conditions[0]);
@@ -39,6 +48,21 @@ describe('Shockley partials (Howie & Whelan 1962; from memory)', () => {
     const fault = renderWithModel(sc, (m) => ({ fields: [], surfaces: m.surfaces }));
     return full.bf.reduce((mx, v, k) => Math.max(mx, Math.abs(v - fault.bf[k])), 0);
   };
+  it('images of the six partials below equal an independent alpha-form integration (scripts/ref_dislocation_profiles.py, to 1e-5)', async () => {
+    // The reference integrates exp(+-2 pi i g.R) with the full displacement R of the partial, whose cut lies along
+    // the fault (physics.md section 5), so the fault phase and its sign come from R itself, not from the renderer's
+    // rule. Pixels reaching the core are left out (averaged by the renderer, src/imaging/cores.ts).
+    // Measured: 5e-8 at tol 1e-6.
+    for (const c of profiles.partials) {
+      const sc = partial(`1/6[${c.b.map((x) => Math.round(6 * x)).join(' ')}]`, c.g);
+      const [ci] = await render(sc, 1e-6);
+      const mask = coreMask(renderJob(sc, resolveCondition(sc, sc.conditions[0])));
+      let worst = 0;
+      for (let i = 0; i < 80; i++) if (!mask[i]) worst = Math.max(worst, Math.abs(ci.bf[i] - c.bf[i]));
+      expect(worst).toBeLessThan(1e-5);
+    }
+  });
+
   it('|g.b| = 1/3 gives much weaker line contrast than |g.b| = 2/3 for each g', () => {
     // [g, partial with |g.b| = 1/3, partial with |g.b| = 2/3]
     const cases: [number[], string, string][] = [
@@ -49,11 +73,13 @@ describe('Shockley partials (Howie & Whelan 1962; from memory)', () => {
     for (const [g, third, twoThirds] of cases) {
       const weak = lineContrast(partial(third, g));
       const strong = lineContrast(partial(twoThirds, g));
-      // measured (w = 0.5): 0.16 vs 0.38 (200), 0.13 vs 0.38 (020), 0.08 vs 0.33 (220). The isotropic model
-      // leaves some contrast at |g.b| = 1/3 (the long-range field bends the fault fringes); "invisible" in the
-      // rule of thumb means weak next to the 2/3 case.
+      // measured (w = 0.5): 0.16 vs 0.38 (200), 0.13 vs 0.38 (020), 0.08 vs 0.33 (220); the images behind these
+      // numbers are checked against scipy in the test above. The isotropic model leaves some contrast at
+      // |g.b| = 1/3 (the long-range field bends the fault fringes). The rule of thumb (Howie & Whelan 1962, from
+      // memory) gives no number: "invisible" is read as "less than half the 2/3 contrast", and the 2/3 partial
+      // must pass the 10 % "visible" threshold of src/analysis/lineContrast.ts with room (0.25).
       expect(strong).toBeGreaterThan(0.25);
-      expect(weak).toBeLessThan(0.6 * strong);
+      expect(weak).toBeLessThan(0.5 * strong);
     }
   });
 });
@@ -67,12 +93,50 @@ describe('dissociated dislocation: fault ribbon between two Shockley partials', 
     conditions: [{ id: 'c', g: [2, 0, 0], w: 0.4 }],
   };
   const ribbon = scenario({ ...base, defects: [{ type: 'dissociated', b: '1/2[1 -1 0]', plane: [1, 1, 1], line: [1, -1, 0], point_nm: [0, 0, 50], separation_nm: 60 }] });
-  // the fault alone: same plane, R_f = b1 oriented as the cut's jump for columns along +z
+  // The ribbon of src/elasticity/ribbon.ts, whose fault is checked atom by atom (test/elasticity/dissociation.test.ts:
+  // inside the ribbon the field jumps by the intrinsic fault vector, ABC|BCA stacking).
   const l = ribbon.material.lattice;
-  const pair = shockleySplit({ lattice: l, b: [0.5, -0.5, 0], planeNormal: [1, 1, 1], lineCartesian: directionToCartesian(l, [1, -1, 0]) });
-  const m = cross(pair.line, pair.ribbonDirection);
-  const sign = -Math.sign(dot(m, [0, 0, 1])); // crossing towards +(u x c) R drops by b1
-  const faultAlone = scenario({ ...base, defects: [{ type: 'fault', plane: [1, 1, 1], point_nm: [0, 0, 50], vector: pair.b1.map((x) => sign * x) }] });
+  const el = ribbon.material.elastic;
+  const atomChecked = shockleyRibbon({
+    lattice: l, b: [0.5, -0.5, 0], planeNormal: [1, 1, 1], lineCartesian: directionToCartesian(l, [1, -1, 0]), centre_nm: [0, 0, 50],
+    poissonRatio: el.poissonRatio, shearModulus_GPa: el.shearModulus_GPa, sfe_mJ_per_m2: 45, width_nm: 60,
+  });
+  const pair = atomChecked.pair;
+  const R = (f: { displacement(o: Float64Array, x: number, y: number, z: number): void }, p: number[]) => {
+    const o = new Float64Array(3);
+    f.displacement(o, p[0], p[1], p[2]);
+    return [o[0], o[1], o[2]];
+  };
+  // the fault alone: R_f = the atom-checked field's jump along the electron path (+z) at the ribbon centre
+  const eps = 1e-7;
+  const jumpZ = R(atomChecked.field, [0, 0, 50 + eps]).map((v, i) => v - R(atomChecked.field, [0, 0, 50 - eps])[i]);
+  const faultAlone = scenario({ ...base, defects: [{ type: 'fault', plane: [1, 1, 1], point_nm: [0, 0, 50], vector: cartesianToDirection(l, jumpZ as [number, number, number]) }] });
+
+  it('the renderer builds the atom-checked ribbon: same displacement field, and every phase surface equals the field\'s own jump', () => {
+    const model = defectModel(ribbon);
+    const field = buildField(model.fields)!;
+    let worst = 0;
+    for (const p of [[3, -7, 20], [-11, 4, 61], [25, 25, 50], [0.5, 0.2, 49], [-40, 10, 90]]) {
+      const a = R(field, p);
+      const b = R(atomChecked.field, p);
+      worst = Math.max(worst, ...a.map((v, i) => Math.abs(v - b[i])));
+    }
+    expect(worst).toBeLessThan(1e-12);
+    // points on the fault plane inside the ribbon and beyond the second partial: the jump of the field across
+    // the plane (along +normal) must equal the sum of the jumps of the surfaces that contain the point
+    const n = model.surfaces[0].normal;
+    for (const s of [-20, 0, 20, 45]) {
+      const q = [s * pair.ribbonDirection[0], s * pair.ribbonDirection[1], 50 + s * pair.ribbonDirection[2]];
+      const dField = R(field, q.map((v, i) => v + eps * n[i])).map((v, i) => v - R(field, q.map((w, k) => w - eps * n[k]))[i]);
+      const dSurf = [0, 0, 0];
+      for (const f of model.surfaces) {
+        expect(Math.abs(dot(f.normal, n))).toBeCloseTo(1, 12); // both cuts lie in the fault plane
+        const into = dot(q.map((v, i) => v - f.point_nm[i]) as [number, number, number], f.into!);
+        if (into > 0) for (let i = 0; i < 3; i++) dSurf[i] += Math.sign(dot(f.normal, n)) * f.jump_nm[i];
+      }
+      for (let i = 0; i < 3; i++) expect(dField[i]).toBeCloseTo(dSurf[i], 6);
+    }
+  });
 
   it('with the partials\' strain switched off: inside the ribbon equals the fault alone, outside the perfect crystal (to 1e-7)', async () => {
     const r = renderWithModel(ribbon, (mod) => ({ fields: [], surfaces: mod.surfaces }));

@@ -51,6 +51,7 @@ function fakeImages(): ConditionImages[] {
       df: banded(0.2, 2 - depths[i]),
       background: { bf: 0.6, df: 0.2 },
       slices: 0,
+      coreMask: new Uint8Array(W * H),
     };
   });
 }

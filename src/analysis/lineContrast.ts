@@ -1,0 +1,111 @@
+/**
+ * Simulated visibility of one dislocation line under one condition: a short
+ * strip of columns across the line (two-beam, the scenario's thickness, the
+ * line's depth, the condition's s), integrated with the renderer's column
+ * evaluator. The verdict follows the peak contrast |I - I_reference| / I_0
+ * over the strip, bright or dark field, with I_0 the perfect crystal and
+ * I_reference the same strip without strain fields: the perfect crystal, or
+ * the fault that a partial bounds, so that a partial's verdict is about the
+ * line, not about its fault.
+ *
+ * Thresholds (common practice, our choice): a line whose peak contrast is at
+ * least 10 % is "visible"; 2 % to 10 % is "weak" (a faint line, easily lost in
+ * noise or thickness fringes); below 2 % "invisible" (below what a micrograph
+ * with ordinary noise and background shows).
+ *
+ * Columns inside a modified core (two core radii of a line: |b|, or core_nm)
+ * are left out, as in the rendered images (imaging/cores.ts).
+ */
+import { dot } from '../math/vec3.js';
+import { coreGeometry } from '../imaging/cores.js';
+import type { DefectModel, DislocationFieldSpec } from '../imaging/fieldSpecs.js';
+import { columnEvaluator, type RenderJob } from '../imaging/renderRows.js';
+import type { ResolvedCondition } from '../imaging/resolveCondition.js';
+import { twoBeamParams } from '../imaging/renderScenario.js';
+
+export type SimulatedVerdict = 'visible' | 'weak' | 'invisible';
+
+/** Peak contrast (LineContrast.bf, .df) at or above which a line is called visible (common practice, our choice). */
+export const VISIBLE_CONTRAST = 0.1;
+/** Peak contrast at or above which a line is called weak (below: invisible; common practice, our choice). */
+export const WEAK_CONTRAST = 0.02;
+/** Columns in the strip across the line. */
+export const STRIP_COLUMNS = 96;
+/** Integrator tolerance of the strip (intensity): well below WEAK_CONTRAST times any background that matters. */
+export const STRIP_TOLERANCE = 1e-5;
+
+export interface LineContrast {
+  /** Peak |I - I_reference| / I_0 in bright and dark field over the strip. */
+  readonly bf: number;
+  readonly df: number;
+  /** Smallest and largest 1 + (I - I_reference) / I_0 in bright field (I / I_0 for a perfect dislocation). */
+  readonly bfRange: readonly [number, number];
+  readonly verdict: SimulatedVerdict;
+  /** The strip runs from -halfWidth_nm to +halfWidth_nm across the line (in the image plane). */
+  readonly halfWidth_nm: number;
+  readonly columns: number;
+}
+
+export function verdictOf(peak: number): SimulatedVerdict {
+  return peak >= VISIBLE_CONTRAST ? 'visible' : peak >= WEAK_CONTRAST ? 'weak' : 'invisible';
+}
+
+/**
+ * Contrast of `line` (one of model.fields) in the strip across it through its point, under condition c
+ * (two-beam at c's s). The model may hold other fields (the other partial of a ribbon) and jump surfaces;
+ * the reference strip keeps the surfaces and drops every field.
+ */
+export function lineContrast(c: ResolvedCondition, model: DefectModel, line: DislocationFieldSpec): LineContrast {
+  const frame = c.frame;
+  const job: RenderJob = { width: 1, height: 1, pixel_nm: 1, frame, g_cart: c.g_cart, params: twoBeamParams(c), tol: STRIP_TOLERANCE, model };
+  const full = columnEvaluator(job);
+  const ref = columnEvaluator({ ...job, model: { fields: [], surfaces: model.surfaces } });
+  const a = new Float64Array(4);
+  const b = new Float64Array(4);
+  columnEvaluator({ ...job, model: { fields: [], surfaces: [] } }).column(a, 0, 0);
+  const i0b = a[0] * a[0] + a[1] * a[1];
+  const i0d = a[2] * a[2] + a[3] * a[3];
+  const cores = coreGeometry(job);
+  const { ex, ey } = frame;
+  const p = line.point_nm;
+  const u = line.line;
+  // image position of the line point (ex, ey, ez orthonormal) and the strip direction across the projected line
+  const x0 = dot(p, ex);
+  const y0 = dot(p, ey);
+  let dx = -dot(u, ey);
+  let dy = dot(u, ex);
+  let dl = Math.hypot(dx, dy);
+  if (dl < 1e-6) {
+    // end-on line: across it along g
+    dx = dot(c.g_cart, ex);
+    dy = dot(c.g_cart, ey);
+    dl = Math.hypot(dx, dy);
+  }
+  dx /= dl;
+  dy /= dl;
+  const halfWidth = Math.max(10, 0.5 * c.xi_nm);
+  let bf = 0;
+  let df = 0;
+  let lo = Infinity;
+  let hi = -Infinity;
+  let columns = 0;
+  for (let k = 0; k < STRIP_COLUMNS; k++) {
+    const t = ((k + 0.5) / STRIP_COLUMNS - 0.5) * 2 * halfWidth;
+    const x = x0 + t * dx;
+    const y = y0 + t * dy;
+    if (cores !== null && cores.near(x, y, 0)) continue;
+    full.column(a, x, y);
+    ref.column(b, x, y);
+    const ib = a[0] * a[0] + a[1] * a[1];
+    const id = a[2] * a[2] + a[3] * a[3];
+    const rb = b[0] * b[0] + b[1] * b[1];
+    const rd = b[2] * b[2] + b[3] * b[3];
+    const q = 1 + (ib - rb) / i0b;
+    lo = Math.min(lo, q);
+    hi = Math.max(hi, q);
+    bf = Math.max(bf, Math.abs(q - 1));
+    df = Math.max(df, Math.abs(id - rd) / i0d);
+    columns++;
+  }
+  return { bf, df, bfRange: [lo, hi], verdict: verdictOf(Math.max(bf, df)), halfWidth_nm: halfWidth, columns };
+}

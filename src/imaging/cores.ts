@@ -1,0 +1,148 @@
+/**
+ * Dislocation cores in an image. Within the modified core (2 core radii of a
+ * line; core radius core_nm, default |b|) linear elasticity and the column
+ * approximation do not hold, and the computed intensity there changes on the
+ * scale of 0.1 nm (narrow bright/dark lines that no microscope resolves).
+ * The renderer therefore never shows a column that passes through a core:
+ *
+ * - a pixel whose area reaches a core is the average of S x S sub-columns
+ *   over its area, leaving out the sub-columns inside a core;
+ * - a pixel with every sub-column inside a core takes the mean of the two
+ *   columns just outside the core, on either side of the nearest line;
+ * - those pixels are listed in a mask (render.json and `<id>-core.png`).
+ *
+ * Pure geometry on plain data (no intensities), so the mask can be computed
+ * apart from the rendering.
+ */
+import { cross } from '../math/vec3.js';
+import { columnEntryOffset } from '../geometry/frames.js';
+import type { RenderJob } from './renderRows.js';
+
+/** Sub-columns per axis averaged in a pixel whose area reaches a core. */
+export const CORE_SUBSAMPLES = 3;
+/** The modified core: columns closer than this many core radii to a line are inside it. */
+export const CORE_RADII = 2;
+
+interface CoreLine {
+  readonly p: readonly number[];
+  readonly u: readonly number[];
+  /** unit normal of the plane spanned by the beam and the line (null for an end-on line) */
+  readonly n: readonly number[] | null;
+  /** radius of the modified core (nm) */
+  readonly r: number;
+}
+
+export interface CoreGeometry {
+  /** True when the column through image point (x, y) passes within `margin` nm of a modified core inside the foil. */
+  near(x: number, y: number, margin: number): boolean;
+  /**
+   * For a column inside a core: writes into out the image points (x1, y1, x2, y2) of the two columns just
+   * outside the core of the nearest line, on either side of it.
+   */
+  escape(out: Float64Array, x: number, y: number): void;
+}
+
+/** The cores of a job's dislocation lines, or null when it has none. */
+export function coreGeometry(job: RenderJob): CoreGeometry | null {
+  const { frame } = job;
+  const k = frame.ez;
+  const L = frame.columnLength_nm;
+  const lines: CoreLine[] = job.model.fields.flatMap((f) => {
+    if (f.kind !== 'dislocation') return [];
+    const rc = f.coreRadius_nm ?? Math.hypot(f.b_nm[0], f.b_nm[1], f.b_nm[2]);
+    const n = cross(k, f.line);
+    const nl = Math.hypot(n[0], n[1], n[2]);
+    return [{ p: f.point_nm, u: f.line, n: nl > 1e-9 ? [n[0] / nl, n[1] / nl, n[2] / nl] : null, r: CORE_RADII * rc }];
+  });
+  if (lines.length === 0) return null;
+  const [ex0, ex1, ex2] = frame.ex;
+  const [ey0, ey1, ey2] = frame.ey;
+  const w = new Float64Array(3);
+  // offset of the column (x, y) from line l: writes w = c0 - p; returns the signed distance (w.n) or, end-on, the distance
+  const offset = (l: CoreLine, x: number, y: number): number => {
+    const tau0 = columnEntryOffset(frame, x, y);
+    w[0] = x * ex0 + y * ey0 + tau0 * k[0] - l.p[0];
+    w[1] = x * ex1 + y * ey1 + tau0 * k[1] - l.p[1];
+    w[2] = x * ex2 + y * ey2 + tau0 * k[2] - l.p[2];
+    if (l.n !== null) return w[0] * l.n[0] + w[1] * l.n[1] + w[2] * l.n[2];
+    const t = w[0] * l.u[0] + w[1] * l.u[1] + w[2] * l.u[2];
+    return Math.hypot(w[0] - t * l.u[0], w[1] - t * l.u[1], w[2] - t * l.u[2]);
+  };
+  // depth of closest approach of the column to line l (the column runs along k from the entrance surface)
+  const depth = (l: CoreLine): number => {
+    if (l.n === null) return L / 2;
+    const b = k[0] * l.u[0] + k[1] * l.u[1] + k[2] * l.u[2];
+    return (b * (l.u[0] * w[0] + l.u[1] * w[1] + l.u[2] * w[2]) - (k[0] * w[0] + k[1] * w[1] + k[2] * w[2])) / (1 - b * b);
+  };
+  const reach = (l: CoreLine, x: number, y: number, margin: number): number => {
+    const d = Math.abs(offset(l, x, y));
+    const z = depth(l);
+    const m = l.r + margin;
+    return d < m && z > -m && z < L + m ? d : Infinity;
+  };
+  return {
+    near(x, y, margin) {
+      for (const l of lines) if (reach(l, x, y, margin) < Infinity) return true;
+      return false;
+    },
+    escape(out, x, y) {
+      let best = lines[0];
+      let bestD = Infinity;
+      for (const l of lines) {
+        const d = reach(l, x, y, 0);
+        if (d < bestD) {
+          bestD = d;
+          best = l;
+        }
+      }
+      const s = offset(best, x, y);
+      const r = best.r * (1 + 1e-6);
+      // image-plane direction across the line, and the shifts that put the column at distance r on each side
+      let dx: number;
+      let dy: number;
+      let a: number;
+      let b: number;
+      if (best.n !== null) {
+        dx = best.n[0] * ex0 + best.n[1] * ex1 + best.n[2] * ex2;
+        dy = best.n[0] * ey0 + best.n[1] * ey1 + best.n[2] * ey2;
+        const side = s >= 0 ? 1 : -1;
+        a = side * r - s;
+        b = -side * r - s;
+      } else {
+        // end-on: radially away from the line in the image plane, and the opposite side
+        dx = w[0] * ex0 + w[1] * ex1 + w[2] * ex2;
+        dy = w[0] * ey0 + w[1] * ey1 + w[2] * ey2;
+        const dl = Math.hypot(dx, dy);
+        if (dl > 1e-12) {
+          dx /= dl;
+          dy /= dl;
+        } else {
+          dx = 1;
+          dy = 0;
+        }
+        a = r - dl;
+        b = -r - dl;
+      }
+      out[0] = x + a * dx;
+      out[1] = y + a * dy;
+      out[2] = x + b * dx;
+      out[3] = y + b * dy;
+    },
+  };
+}
+
+/** The pixels of a job whose area reaches a core (1) and the others (0), row-major. */
+export function coreMask(job: RenderJob): Uint8Array {
+  const { width, height, pixel_nm } = job;
+  const mask = new Uint8Array(width * height);
+  const cores = coreGeometry(job);
+  if (cores === null) return mask;
+  const margin = Math.SQRT1_2 * pixel_nm;
+  for (let j = 0, q = 0; j < height; j++) {
+    const y = (j + 0.5 - height / 2) * pixel_nm;
+    for (let i = 0; i < width; i++, q++) {
+      if (cores.near((i + 0.5 - width / 2) * pixel_nm, y, margin)) mask[q] = 1;
+    }
+  }
+  return mask;
+}
