@@ -9,3 +9,14 @@ export class InputError extends Error {
     super(message);
   }
 }
+
+/**
+ * A short excerpt of user input for an error message: at most `max`
+ * characters (the start and the length when longer), control characters and
+ * line breaks shown as spaces, so a message stays one short line.
+ */
+export function excerpt(text: string, max = 60): string {
+  const flat = text.replace(/[\u0000-\u001f\u007f-\u009f\u2028\u2029]/g, ' ');
+  if (flat.length <= max) return flat;
+  return `${flat.slice(0, Math.max(8, max - 20))}... (${text.length} characters)`;
+}

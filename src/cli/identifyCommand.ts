@@ -4,13 +4,15 @@
  * verdict, write the comparison figure (PNG, SVG), the HTML report and the
  * result as JSON into the output folder.
  */
-import { readFileSync } from 'node:fs';
 import { basename, join, resolve } from 'node:path';
 import { InputError } from '../errors.js';
 import { parseScenario } from '../scenario/parse.js';
 import { renderScenario } from '../imaging/renderScenario.js';
 import { createRenderPool } from '../imaging/workerPool.js';
 import { decodeImage } from '../imageio/readImage.js';
+import { MAX_FILE_BYTES } from '../imageio/types.js';
+import { readInputFile } from './readInput.js';
+import { excerpt } from '../errors.js';
 import { identify, type IdentifyResult } from '../analysis/identify.js';
 import { prepareMicrographs, type MicrographInput } from '../analysis/identifyMicrographs.js';
 import { parseMicrographArgument, parseMicrographSettings } from '../analysis/identifySettings.js';
@@ -49,14 +51,8 @@ function intOption(name: string, v: string | number | undefined, lo: number, hi:
 
 function readMicrograph(arg: string): MicrographInput {
   const { conditionId, file } = parseMicrographArgument(arg);
-  let bytes: Uint8Array;
-  try {
-    bytes = readFileSync(file);
-  } catch (err) {
-    const code = (err as NodeJS.ErrnoException).code;
-    throw new InputError(`micrograph file "${file}" for ${conditionId} cannot be read (${code ?? 'error'}); check the path`);
-  }
-  const img = decodeImage(bytes, `micrograph file "${file}"`);
+  const bytes = readInputFile(file, `micrograph file for ${excerpt(conditionId, 40)}`, MAX_FILE_BYTES);
+  const img = decodeImage(bytes, `micrograph file "${excerpt(file, 80)}"`);
   return {
     conditionId,
     image: img,

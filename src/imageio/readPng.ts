@@ -9,7 +9,7 @@
 import pngjs from 'pngjs';
 import { InputError } from '../errors.js';
 import { lumaRec601 } from './luminance.js';
-import { type DecodedImage, MAX_PIXELS } from './types.js';
+import { type DecodedImage, MAX_PIXELS, MAX_SIDE } from './types.js';
 
 const { PNG } = pngjs;
 
@@ -91,8 +91,8 @@ export function decodePng(bytes: Uint8Array, name: string): DecodedImage {
   const scan = scanChunks(bytes, name);
   const { width, height, colourType, depth } = scan;
   if (width === 0 || height === 0) throw new InputError(`${name} is a PNG file with no pixels; save the micrograph again.`);
-  if (width * height > MAX_PIXELS) {
-    throw new InputError(`${name} has ${width} x ${height} pixels, more than thinfoil reads (${MAX_PIXELS}); crop or bin it first.`);
+  if (width * height > MAX_PIXELS || width > MAX_SIDE || height > MAX_SIDE) {
+    throw new InputError(`${name} has ${width} x ${height} pixels, more than thinfoil reads (8192 x 8192 = ${MAX_PIXELS} pixels, at most ${MAX_SIDE} on a side); crop or bin it first.`);
   }
   let png: { data: Uint8Array | Uint16Array };
   try {
