@@ -12,7 +12,7 @@ import { beamName, blochRow, type BlochRow } from '../imaging/blochRow.js';
 import { blochTable, projectedPotential, type BlochTable } from '../analysis/blochTables.js';
 import { linspace, rockingCurves, thicknessCurves, waveProfiles } from '../analysis/blochCurves.js';
 import { toCsv, type CsvCell } from '../output/csv.js';
-import { writeFileAtomic } from '../output/atomicWrite.js';
+import { OutputSet } from '../output/outputSet.js';
 import { plotFigure } from '../output/graphics/figure.js';
 import { PALETTE, type PlotSeries, type PlotSpec } from '../output/graphics/plot.js';
 import { parseAbsorption, parseKv } from './options.js';
@@ -321,15 +321,17 @@ function complexText(re: number, im: number): string {
   return `${r.toFixed(4)}${i < 0 ? '-' : '+'}${Math.abs(i).toFixed(4)}i`;
 }
 
-/** Write the files of a run into dir (atomically, one by one); returns their paths. */
+/** Write the files of a run into dir as one output set (see src/output/outputSet.ts); returns their paths. */
 export function writeBlochFiles(run: BlochRun, dir: string): string[] {
-  const out: string[] = [];
-  for (const [name, data] of run.files) {
-    const p = path.join(dir, name);
-    writeFileAtomic(p, data);
-    out.push(p);
+  const set = OutputSet.begin(dir);
+  try {
+    const out = [...run.files].map(([name, data]) => set.write(name, data));
+    set.commit();
+    return out;
+  } catch (e) {
+    set.abort();
+    throw e;
   }
-  return out;
 }
 
 export function blochCommand(materialName: string, indices: string, opts: BlochOptions): void {

@@ -19,7 +19,7 @@ import { parseMicrographArgument, parseMicrographSettings } from '../analysis/id
 import { isSyntheticName } from '../analysis/synthetic.js';
 import { comparisonFigure, comparisonFigureData } from '../output/comparisonFigure.js';
 import { identifyReportHtml } from '../output/report.js';
-import { ensureOutputDir, writeFileAtomic } from '../output/atomicWrite.js';
+import { OutputSet } from '../output/outputSet.js';
 import { progressBar } from './progress.js';
 import { printJson, sig, table } from './run.js';
 import { slug } from './renderCommand.js';
@@ -90,10 +90,30 @@ export async function runIdentify(scenarioFile: string, opts: IdentifyCommandOpt
   }
   const micrographs = prepareMicrographs(sc, inputs, settings);
   const dir = opts.out ?? join('out', `${slug(sc.name)}-identify`);
-  ensureOutputDir(dir);
-  const inputsToProtect = [scenarioFile, ...inputs.map((m) => m.source)];
+  // checked before the work: the inputs must not lie in the folder this run replaces
+  const set = OutputSet.begin(dir, { inputs: [scenarioFile, ...inputs.map((m) => m.source)] });
+  try {
+    const out = await identifyInto(set, scenarioFile, sc, micrographs, { defectIndex, top, bootstrap: B, seed }, opts.threads, onProgress);
+    set.commit();
+    return out;
+  } catch (e) {
+    set.abort();
+    throw e;
+  }
+}
 
-  const pool = createRenderPool(opts.threads);
+async function identifyInto(
+  set: OutputSet,
+  scenarioFile: string,
+  sc: ReturnType<typeof parseScenario>,
+  micrographs: ReturnType<typeof prepareMicrographs>,
+  o: { defectIndex: number; top: number; bootstrap: number; seed: number },
+  threads: number | undefined,
+  onProgress?: (message: string, fraction: number) => void,
+): Promise<IdentifyOutput> {
+  const { defectIndex, top, bootstrap: B, seed } = o;
+
+  const pool = createRenderPool(threads);
   let result: IdentifyResult;
   try {
     result = await identify(sc, micrographs, (s) => renderScenario(s, pool), {
@@ -109,17 +129,17 @@ export async function runIdentify(scenarioFile: string, opts: IdentifyCommandOpt
 
   const fig = comparisonFigure(comparisonFigureData(result));
   const files = {
-    figurePng: join(dir, 'identify-figure.png'),
-    figureSvg: join(dir, 'identify-figure.svg'),
-    report: join(dir, 'identify-report.html'),
-    json: join(dir, 'identify.json'),
+    figurePng: set.finalPath('identify-figure.png'),
+    figureSvg: set.finalPath('identify-figure.svg'),
+    report: set.finalPath('identify-report.html'),
+    json: set.finalPath('identify.json'),
   };
-  const w = (path: string, data: Uint8Array | string) => writeFileAtomic(path, data, { protectedPaths: inputsToProtect });
+  const w = (path: string, data: Uint8Array | string) => set.write(basename(path), data);
   w(files.figurePng, fig.png);
   w(files.figureSvg, fig.svg);
   w(files.report, identifyReportHtml(result, { scenarioFile: basename(scenarioFile), figurePng: fig.png, figureFiles: [basename(files.figurePng), basename(files.figureSvg)] }));
   w(files.json, `${JSON.stringify(resultJson(result, files), null, 2)}\n`);
-  return { result, dir, files };
+  return { result, dir: set.dir, files };
 }
 
 /** The JSON form of a result (what --json prints, plus details in identify.json). */

@@ -1,10 +1,11 @@
 /** `thinfoil render <scenario>`: bright- and dark-field images of every condition. */
+import { createHash } from 'node:crypto';
 import { join } from 'node:path';
 import type { Scenario } from '../scenario/types.js';
 import { renderScenario, type ConditionImages } from '../imaging/renderScenario.js';
 import { createRenderPool } from '../imaging/workerPool.js';
 import { writeConditionImages, type ImageEntry } from '../output/imageFiles.js';
-import { ensureOutputDir, writeFileAtomic } from '../output/atomicWrite.js';
+import { OutputSet } from '../output/outputSet.js';
 import { loadScenario } from './loadScenario.js';
 import { scenarioWarnings } from '../analysis/scenarioWarnings.js';
 import { printJson, sig, table } from './run.js';
@@ -15,13 +16,25 @@ export interface RenderOptions {
   json?: boolean;
 }
 
+/**
+ * Folder name for a scenario name: lower-case Latin letters and digits joined
+ * by '-'. When the name holds anything else (accents, other scripts) a short
+ * hash of the whole name is appended, so names that differ only there stay
+ * in different folders.
+ */
 export function slug(name: string): string {
-  return name.toLowerCase().replace(/[^a-z0-9]+/g, '-').replace(/^-|-$/g, '') || 'scenario';
+  const base = name.toLowerCase().replace(/[^a-z0-9]+/g, '-').replace(/^-|-$/g, '').slice(0, 60).replace(/-$/, '');
+  const plain = /^[A-Za-z0-9 _.-]*$/.test(name) && base !== '';
+  if (plain) return base;
+  const hash = createHash('sha256').update(name, 'utf8').digest('hex').slice(0, 8);
+  return base === '' ? `scenario-${hash}` : `${base}-${hash}`;
 }
 
-/** Render a scenario and write its images; shared by `render` and `demo`. */
-export async function renderAndWrite(sc: Scenario, dir: string, showProgress: boolean): Promise<{ images: ConditionImages[]; entries: ImageEntry[]; seconds: number }> {
-  ensureOutputDir(dir);
+/**
+ * Render a scenario and write its images into an output set (not committed
+ * here); shared by `render` and `demo`.
+ */
+export async function renderAndWrite(sc: Scenario, set: OutputSet, showProgress: boolean): Promise<{ images: ConditionImages[]; entries: ImageEntry[]; seconds: number }> {
   const bar = progressBar(showProgress);
   const pool = createRenderPool();
   const t0 = performance.now();
@@ -33,7 +46,7 @@ export async function renderAndWrite(sc: Scenario, dir: string, showProgress: bo
     await pool.close();
   }
   const seconds = (performance.now() - t0) / 1000;
-  const entries = writeConditionImages(dir, images, sc.name);
+  const entries = writeConditionImages((name, data) => set.write(name, data), images, sc.name);
   const summary = {
     scenario: sc.name,
     note: 'Simulated images (column approximation, isotropic elasticity); a model, not a measurement.',
@@ -43,7 +56,7 @@ export async function renderAndWrite(sc: Scenario, dir: string, showProgress: bo
     conditions: images.map((ci) => conditionSummary(ci)),
     images: entries,
   };
-  writeFileAtomic(join(dir, 'render.json'), `${JSON.stringify(summary, null, 2)}\n`);
+  set.write('render.json', `${JSON.stringify(summary, null, 2)}\n`);
   return { images, entries, seconds };
 }
 
@@ -68,7 +81,16 @@ export async function renderCommand(file: string, opts: RenderOptions): Promise<
   const warnings = scenarioWarnings(sc);
   for (const w of warnings) process.stderr.write(`thinfoil: warning: ${w}\n`);
   const dir = opts.out ?? join('out', slug(sc.name));
-  const { images, entries, seconds } = await renderAndWrite(sc, dir, !opts.json);
+  const set = OutputSet.begin(dir, { inputs: [file] });
+  let result: Awaited<ReturnType<typeof renderAndWrite>>;
+  try {
+    result = await renderAndWrite(sc, set, !opts.json);
+    set.commit();
+  } catch (e) {
+    set.abort();
+    throw e;
+  }
+  const { images, entries, seconds } = result;
   if (opts.json) {
     printJson({ images: entries.map(({ stretch, ...e }) => ({ ...e, stretch })), warnings });
     return;
