@@ -6,8 +6,22 @@
 export class InputError extends Error {
   override readonly name = 'InputError';
   constructor(message: string) {
-    super(message);
+    super(oneShortLine(message));
   }
+}
+
+/** Longest message kept whole; longer ones are cut (a refusal is one short line). */
+const MAX_MESSAGE = 400;
+
+/**
+ * A message as one line that quotes user input only as short excerpts:
+ * line breaks become spaces, quoted parts over 60 characters are shortened,
+ * and the whole is cut at MAX_MESSAGE characters.
+ */
+function oneShortLine(message: string): string {
+  let m = message.replace(/[\r\n\u2028\u2029]+/g, ' ').replace(/"([^"]{61,})"/g, (_, q: string) => `"${excerpt(q)}"`);
+  if (m.length > MAX_MESSAGE) m = `${m.slice(0, MAX_MESSAGE - 40)} ... (message shortened)`;
+  return m;
 }
 
 /**

@@ -1,4 +1,5 @@
 /** `thinfoil demo`: renders the built-in invented scenario and prints what it found. */
+import { jsonText } from '../output/json.js';
 import { join } from 'node:path';
 import { DEMO_SCENARIO } from '../scenario/demo.js';
 import { parseScenario } from '../scenario/parse.js';
@@ -35,7 +36,7 @@ export async function demoCommand(opts: { out?: string }): Promise<void> {
 }
 
 async function demoMain(sc: ReturnType<typeof parseScenario>, set: OutputSet): Promise<void> {
-  set.write('scenario.json', `${JSON.stringify(DEMO_SCENARIO, null, 2)}\n`);
+  set.write('scenario.json', `${jsonText(DEMO_SCENARIO, 2)}\n`);
   const { images, entries, seconds } = await renderAndWrite(sc, set, true);
   process.stdout.write(
     `material ${sc.material.name}, ${sc.kV} kV, foil ${sc.thickness_nm} nm, ${sc.image.width_px} x ${sc.image.height_px} px at ${sc.image.pixel_nm} nm; ` +
@@ -53,7 +54,7 @@ async function demoMain(sc: ReturnType<typeof parseScenario>, set: OutputSet): P
   const vis = visibilityTable(sc);
   const visText = formatVisibility(sc, vis);
   set.write('visibility.txt', visText);
-  set.write('visibility.json', `${JSON.stringify({ scenario: sc.name, rows: vis }, null, 2)}\n`);
+  set.write('visibility.json', `${jsonText({ scenario: sc.name, rows: vis }, 2)}\n`);
   process.stdout.write(`\nvisibility (g.b rule of thumb):\n${visText}`);
   for (const d of sc.defects) {
     if (d.type === 'dissociated') {
@@ -94,7 +95,7 @@ async function demoIdentification(demoDir: string): Promise<void> {
     args.push(`${m.conditionId}=${file}`);
     settings[m.conditionId] = { field: m.field, pixel_nm: m.pixel_nm, gAngle_deg: m.truth.gAngle_deg, blur_nm: DEMO_SYNTHESIS.blur_nm };
   }
-  const scenarioFile = inputs.write('identify-scenario.json', `${JSON.stringify({ ...DEMO_IDENTIFY_SCENARIO, micrographs: settings }, null, 2)}\n`);
+  const scenarioFile = inputs.write('identify-scenario.json', `${jsonText({ ...DEMO_IDENTIFY_SCENARIO, micrographs: settings }, 2)}\n`);
   inputs.commit();
   process.stdout.write(`${syn.length} synthetic micrographs (signal-to-noise ${DEMO_SYNTHESIS.snr}, blur ${DEMO_SYNTHESIS.blur_nm} nm, 10 % background gradient, random shift and rotation) written to ${dir}\n\n`);
   const out = await runIdentify(scenarioFile, { micrograph: args, out: join(demoDir, 'identify') });

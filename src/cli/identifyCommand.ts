@@ -4,6 +4,7 @@
  * verdict, write the comparison figure (PNG, SVG), the HTML report and the
  * result as JSON into the output folder.
  */
+import { jsonText } from '../output/json.js';
 import { basename, join, resolve } from 'node:path';
 import { InputError } from '../errors.js';
 import { parseScenario } from '../scenario/parse.js';
@@ -138,7 +139,7 @@ async function identifyInto(
   w(files.figurePng, fig.png);
   w(files.figureSvg, fig.svg);
   w(files.report, identifyReportHtml(result, { scenarioFile: basename(scenarioFile), figurePng: fig.png, figureFiles: [basename(files.figurePng), basename(files.figureSvg)] }));
-  w(files.json, `${JSON.stringify(resultJson(result, files), null, 2)}\n`);
+  w(files.json, `${jsonText(resultJson(result, files), 2)}\n`);
   return { result, dir: set.dir, files };
 }
 

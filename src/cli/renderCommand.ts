@@ -1,4 +1,5 @@
 /** `thinfoil render <scenario>`: bright- and dark-field images of every condition. */
+import { jsonText } from '../output/json.js';
 import { createHash } from 'node:crypto';
 import { join } from 'node:path';
 import type { Scenario } from '../scenario/types.js';
@@ -56,7 +57,7 @@ export async function renderAndWrite(sc: Scenario, set: OutputSet, showProgress:
     conditions: images.map((ci) => conditionSummary(ci)),
     images: entries,
   };
-  set.write('render.json', `${JSON.stringify(summary, null, 2)}\n`);
+  set.write('render.json', `${jsonText(summary, 2)}\n`);
   return { images, entries, seconds };
 }
 
