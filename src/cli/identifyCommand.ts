@@ -35,9 +35,20 @@ export interface IdentifyCommandOptions {
   top?: string | number;
   bootstrap?: string | number;
   seed?: string | number;
+  /** Progress as JSON lines on stderr. */
+  progressJson?: boolean;
   /** Render threads (default: all cores). */
   threads?: number;
 }
+
+/** Largest --bootstrap (1000 copies estimate a standard deviation to a few per cent: common practice). */
+export const MAX_BOOTSTRAP = 1000;
+/**
+ * Largest simulated area per micrograph (crop plus the shift margin on each
+ * side, after binning): every candidate is rendered on it. 768 x 768 pixels is
+ * three times the default 256-pixel comparison side.
+ */
+export const MAX_SIMULATED_PIXELS = 768 * 768;
 
 /** The scenario key this command reads besides the ones parseScenario knows. */
 export const MICROGRAPHS_KEY = 'micrographs';
@@ -78,7 +89,7 @@ export async function runIdentify(scenarioFile: string, opts: IdentifyCommandOpt
   const args = opts.micrograph === undefined ? [] : Array.isArray(opts.micrograph) ? opts.micrograph : [opts.micrograph];
   const defectIndex = intOption('--defect', opts.defect, 0, Math.max(0, sc.defects.length - 1), 0);
   const top = intOption('--top', opts.top, 1, 8, 4);
-  const B = intOption('--bootstrap', opts.bootstrap, 0, 10000, 50);
+  const B = intOption('--bootstrap', opts.bootstrap, 0, MAX_BOOTSTRAP, 50);
   const seed = intOption('--seed', opts.seed, 0, 2 ** 31 - 1, 1);
   const inputs = args.map(readMicrograph);
   // the direction of g on a micrograph cannot be guessed: a wrong angle ranks the wrong candidate first
@@ -90,6 +101,15 @@ export async function runIdentify(scenarioFile: string, opts: IdentifyCommandOpt
     }
   }
   const micrographs = prepareMicrographs(sc, inputs, settings);
+  for (const m of micrographs) {
+    const w = m.width + 2 * m.margin;
+    const h = m.height + 2 * m.margin;
+    if (w * h > MAX_SIMULATED_PIXELS) {
+      throw new InputError(
+        `micrographs.${excerpt(m.conditionId, 40)}: each candidate would be simulated on ${w} x ${h} pixels (crop ${m.width} x ${m.height} after binning by ${m.bin}, plus ${m.margin} pixels of shift on each side), more than the limit of 768 x 768; raise "bin" or lower "maxShift_nm" or the crop`,
+      );
+    }
+  }
   const dir = opts.out ?? join('out', `${slug(sc.name)}-identify`);
   // checked before the work: the inputs must not lie in the folder this run replaces
   const set = OutputSet.begin(dir, { inputs: [scenarioFile, ...inputs.map((m) => m.source)] });
@@ -200,7 +220,7 @@ export function resultJson(res: IdentifyResult, files?: IdentifyOutput['files'])
 }
 
 export async function identifyCommand(scenarioFile: string, opts: IdentifyCommandOptions): Promise<void> {
-  const bar = progressBar(!opts.json);
+  const bar = progressBar({ jsonLines: opts.progressJson === true });
   let out: IdentifyOutput;
   try {
     out = await runIdentify(scenarioFile, opts, (msg, f) => bar.update(msg.length > 48 ? `${msg.slice(0, 45)}...` : msg, f));

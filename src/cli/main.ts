@@ -63,6 +63,7 @@ program
   .argument('<scenario>', 'scenario file (JSON)')
   .option('--out <dir>', 'output folder (default out/<scenario name>)')
   .option('--json', 'one JSON object on stdout listing the images')
+  .option('--progress-json', 'progress as JSON lines {"progress", "stage"} on stderr (a bar is drawn on a terminal otherwise)')
   .action(run(() => import('./renderCommand.js'), 'renderCommand'));
 
 program
@@ -92,6 +93,7 @@ program
   .description('fault nature (intrinsic / extrinsic outer fringes) and inclusion misfit sign, by simulation')
   .argument('<scenario>', 'scenario file (JSON)')
   .option('--json', 'JSON on stdout')
+  .option('--progress-json', 'progress as JSON lines {"progress", "stage"} on stderr (a bar is drawn on a terminal otherwise)')
   .action(run(() => import('./faultCommand.js'), 'faultCommand'));
 
 const collect = (v: string, prev: string[]) => [...prev, v];
@@ -106,6 +108,7 @@ program
   .option('--top <n>', 'leading candidates fully registered, resampled and shown (default 4)')
   .option('--bootstrap <n>', 'bootstrap copies for the noise of the scores (default 50)')
   .option('--seed <n>', 'seed of the bootstrap (default 1)')
+  .option('--progress-json', 'progress as JSON lines {"progress", "stage"} on stderr (a bar is drawn on a terminal otherwise)')
   .action(run(() => import('./identifyCommand.js'), 'identifyCommand'));
 
 program

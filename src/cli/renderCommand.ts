@@ -15,6 +15,7 @@ import { progressBar } from './progress.js';
 export interface RenderOptions {
   out?: string;
   json?: boolean;
+  progressJson?: boolean;
 }
 
 /**
@@ -35,7 +36,7 @@ export function slug(name: string): string {
  * Render a scenario and write its images into an output set (not committed
  * here); shared by `render` and `demo`.
  */
-export async function renderAndWrite(sc: Scenario, set: OutputSet, showProgress: boolean): Promise<{ images: ConditionImages[]; entries: ImageEntry[]; seconds: number }> {
+export async function renderAndWrite(sc: Scenario, set: OutputSet, showProgress: boolean | Parameters<typeof progressBar>[0]): Promise<{ images: ConditionImages[]; entries: ImageEntry[]; seconds: number }> {
   const bar = progressBar(showProgress);
   const pool = createRenderPool();
   const t0 = performance.now();
@@ -85,7 +86,7 @@ export async function renderCommand(file: string, opts: RenderOptions): Promise<
   const set = OutputSet.begin(dir, { inputs: [file] });
   let result: Awaited<ReturnType<typeof renderAndWrite>>;
   try {
-    result = await renderAndWrite(sc, set, !opts.json);
+    result = await renderAndWrite(sc, set, { jsonLines: opts.progressJson === true });
     set.commit();
   } catch (e) {
     set.abort();
