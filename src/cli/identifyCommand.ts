@@ -63,7 +63,7 @@ function intOption(name: string, v: string | number | undefined, lo: number, hi:
 
 function readMicrograph(arg: string): MicrographInput {
   const { conditionId, file } = parseMicrographArgument(arg);
-  const bytes = readInputFile(file, `micrograph file for ${excerpt(conditionId, 40)}`, MAX_FILE_BYTES);
+  const bytes = readInputFile(file, 'micrograph file', MAX_FILE_BYTES, ` for ${excerpt(conditionId, 40)}`);
   const img = decodeImage(bytes, `micrograph file "${excerpt(file, 80)}"`);
   return {
     conditionId,

@@ -16,10 +16,10 @@ function mb(n: number): string {
 
 /**
  * The bytes of a regular file no larger than `maxBytes`; `what` names the
- * file in messages (e.g. `scenario file`).
+ * file in messages (e.g. `scenario file`), `context` follows the path (e.g. ` for g200`).
  */
-export function readInputFile(path: string, what: string, maxBytes: number): Buffer {
-  const shown = `"${excerpt(path, 80)}"`;
+export function readInputFile(path: string, what: string, maxBytes: number, context = ''): Buffer {
+  const shown = `"${excerpt(path, 80)}"${context}`;
   let st: fs.Stats;
   try {
     st = fs.statSync(path);
