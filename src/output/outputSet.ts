@@ -27,7 +27,10 @@ import { excerpt, InputError } from '../errors.js';
 export const SET_MARKER = '.thinfoil-output';
 
 /** Names thinfoil writes (for folders of versions before the marker). */
-const OWN_NAME = /^(render\.json|scenario\.json|visibility\.(txt|json)|faults-and-inclusions\.txt|identify(-figure\.(png|svg)|-report\.html|\.json|-scenario\.json)?|.+-(bf|df)\.(png|tif)|synthetic-.+\.tif|identify|bloch-.+\.(csv|png|svg)|.+\.tmp)$/;
+const OWN_NAME = /^(render\.json|scenario\.json|visibility\.(txt|json)|faults-and-inclusions\.txt|identify(-figure\.(png|svg)|-report\.html|\.json|-scenario\.json|-micrographs)?|.+-(bf|df)\.(png|tif)|bloch-waves\.csv|(thickness|rocking|profiles)\.(csv|png|svg))$/;
+
+/** A folder without the marker is taken as an earlier thinfoil set only if it holds one of these. */
+const LEGACY_SUMMARY = new Set(['render.json', 'identify.json', 'bloch-waves.csv', 'visibility.txt']);
 
 const USER_FIXABLE: Readonly<Record<string, string>> = {
   EACCES: 'permission denied',
@@ -159,8 +162,10 @@ export class OutputSet {
       if (st !== undefined) {
         if (!st.isDirectory()) throw new InputError(`${option}: "${shown}" is a file, not a folder; choose a folder`);
         const entries = fs.readdirSync(abs);
-        if (!entries.includes(SET_MARKER)) {
-          const foreign = entries.find((n) => !OWN_NAME.test(n) && !n.startsWith('.'));
+        const visible = entries.filter((n) => !n.startsWith('.'));
+        if (!entries.includes(SET_MARKER) && visible.length > 0) {
+          // a folder of an earlier version: only thinfoil's names, with one of its summaries
+          const foreign = visible.find((n) => !OWN_NAME.test(n)) ?? (visible.some((n) => LEGACY_SUMMARY.has(n)) ? undefined : visible[0]);
           if (foreign !== undefined) {
             throw new InputError(
               `${option}: the folder "${shown}" holds files thinfoil did not write (e.g. "${excerpt(foreign, 40)}") and an output folder is replaced whole; choose a new or empty folder`,

@@ -75,10 +75,15 @@ describe('OutputSet in-process', () => {
     fs.mkdirSync(foreign);
     fs.writeFileSync(path.join(foreign, 'thesis.tex'), 'x');
     expect(() => OutputSet.begin(foreign)).toThrow(/holds files thinfoil did not write/);
+    // micrographs named like thinfoil's images, without any thinfoil summary: not taken as an old set
+    const mics = path.join(work, 'mics');
+    fs.mkdirSync(mics);
+    fs.writeFileSync(path.join(mics, 'g200-df.png'), 'measured');
+    expect(() => OutputSet.begin(mics)).toThrow(/holds files thinfoil did not write \(e\.g\. "g200-df\.png"\)/);
     const dir = path.join(work, 'withinput');
     writeSet(dir, { 'g200-df.png': 'old' });
     expect(() => OutputSet.begin(dir, { inputs: [path.join(dir, 'g200-df.png')] })).toThrow(/lies in the output folder/);
-    expect(fs.readdirSync(work).filter((n) => n.startsWith('.withinput.') || n.startsWith('.mine.'))).toEqual([]);
+    expect(fs.readdirSync(work).filter((n) => n.startsWith('.withinput.') || n.startsWith('.mine.') || n.startsWith('.mics.'))).toEqual([]);
   });
 });
 
