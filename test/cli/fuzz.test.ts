@@ -89,8 +89,25 @@ function mutate(seed: number): Json {
   return s;
 }
 
+/** Valid JSON (so no bare NaN or Infinity) holding no null anywhere (non-finite numbers become null in JSON.stringify). */
 function numbersOk(text: string): boolean {
-  return !/\bnull\b|\bNaN\b|\bInfinity\b/.test(text);
+  let ok = true;
+  const walk = (v: unknown): void => {
+    if (v === null) ok = false;
+    else if (Array.isArray(v)) v.forEach(walk);
+    else if (typeof v === 'object') Object.values(v as object).forEach(walk);
+  };
+  if (text.trim() === '') return true;
+  try {
+    walk(JSON.parse(text)); // one document (render.json) ...
+  } catch {
+    try {
+      for (const line of text.split('\n').filter((l) => l.trim() !== '')) walk(JSON.parse(line)); // ... or JSON lines
+    } catch {
+      return false;
+    }
+  }
+  return ok;
 }
 
 function listTree(dir: string): string[] {
