@@ -19,7 +19,7 @@ const MAX_MESSAGE = 400;
  * and the whole is cut at MAX_MESSAGE characters.
  */
 function oneShortLine(message: string): string {
-  let m = message.replace(/[\r\n\u2028\u2029]+/g, ' ').replace(/"([^"]{61,})"/g, (_, q: string) => `"${excerpt(q)}"`);
+  let m = message.replace(/[\r\n\u2028\u2029]+/g, ' ').replace(/"([^"]*)"/g, (whole, q: string) => (q.length > 60 ? `"${excerpt(q)}"` : whole));
   if (m.length > MAX_MESSAGE) m = `${m.slice(0, MAX_MESSAGE - 40)} ... (message shortened)`;
   return m;
 }

@@ -77,3 +77,13 @@ describe('index strings check finiteness and magnitude like arrays', () => {
     expect(parseVectorWithFraction('1/2[1 1 0]', 'b')).toEqual([0.5, 0.5, 0]);
   });
 });
+
+describe('InputError messages are one short line', () => {
+  it('long quoted input is shortened, the prose between quotes is kept, line breaks become spaces', () => {
+    const prose = 'are not all finite numbers; give ordinary numbers such as a longer text here';
+    expect(new InputError(`b: the indices "[1e400 0 0]" ${prose} "1 -1 0".`).message).toBe(`b: the indices "[1e400 0 0]" ${prose} "1 -1 0".`);
+    const m = new InputError(`name "${'x'.repeat(500)}" is\nbad`).message;
+    expect(m).toBe(`name "${'x'.repeat(40)}... (500 characters)" is bad`);
+    expect(new InputError('y'.repeat(5000)).message.length).toBeLessThanOrEqual(400);
+  });
+});
