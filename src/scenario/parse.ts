@@ -24,6 +24,8 @@ export const MAX_LABEL_CHARS = 80;
 /** Most conditions and defects in one scenario (render and identify time grow with both). */
 export const MAX_CONDITIONS = 24;
 export const MAX_DEFECTS = 100;
+/** Largest beams x foil thickness (beam-nm) for many-beam conditions: 31 beams through 1 um. */
+export const MAX_BEAM_NM = 31 * 1000;
 /** Smallest pixel accepted (nm): far below atomic spacings, within TIFF's resolution field. */
 export const MIN_PIXEL_NM = 0.01;
 
@@ -68,6 +70,12 @@ export function parseScenario(raw: unknown): Scenario {
   if (condList.length > MAX_CONDITIONS) fail('conditions', `holds ${condList.length} conditions; give at most ${MAX_CONDITIONS} per scenario`);
   if (Array.isArray(o.defects) && o.defects.length > MAX_DEFECTS) fail('defects', `holds ${o.defects.length} defects; give at most ${MAX_DEFECTS} per scenario`);
   const conditions = condList.map((c, i) => readCondition(c, joinPath('conditions', i), material, beam, foilNormal, kV, absorption));
+  conditions.forEach((c, i) => {
+    const n = c.beams.kind === 'row' ? c.beams.count : c.beams.kind === 'set' ? c.beams.beams.length + 1 : 2;
+    if (n > 2 && n * thickness_nm > MAX_BEAM_NM) {
+      fail(joinPath(joinPath('conditions', i), 'beams'), `${n} beams through ${thickness_nm} nm exceed the limit of ${MAX_BEAM_NM} beam-nm (31 beams through 1 um); use fewer beams or a thinner foil`);
+    }
+  });
   const ids = new Set<string>();
   conditions.forEach((c, i) => {
     if (ids.has(c.id)) fail(joinPath(joinPath('conditions', i), 'id'), `"${c.id}" is used twice; give every condition its own id`);

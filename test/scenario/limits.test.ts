@@ -57,6 +57,14 @@ describe('scenario limits checked by the parser', () => {
       },
       'separation_nm: is needed because the stacking-fault energy',
     ],
+    [
+      'a 31-beam row through 10 um',
+      (s: any) => {
+        s.foil.thickness_nm = 10000;
+        s.conditions[0].beams = { row: 31 };
+      },
+      'conditions[0].beams: 31 beams through 10000 nm exceed the limit',
+    ],
     ['b "[1e400 0 0]"', (s: any) => (s.defects[0].b = '[1e400 0 0]'), 'defects[0].b: the indices "[1e400 0 0]" are not all finite numbers'],
     ['b "0.5[1e308 0 0]"', (s: any) => (s.defects[0].b = '0.5[1e308 0 0]'), 'defects[0].b: the indices'],
     ['b [1e-320, 0, 0]', (s: any) => (s.defects[0].b = [1e-320, 0, 0]), 'defects[0].b: the indices'],
