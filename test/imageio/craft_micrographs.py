@@ -261,6 +261,31 @@ png = b"\x89PNG\r\n\x1a\n" + chunk(b"IHDR", struct.pack(">IIBBBBB", 16384, 16384
 open(path("png_16384.png"), "wb").write(png)
 add_error("png_16384.png", "more than thinfoil reads")
 
+
+
+# Adam7-interlaced PNG (ISO/IEC 15948, 8.2), written by hand with filter type 0, read back by PIL
+def adam7_png(arr):
+    h, w = arr.shape
+    raw = bytearray()
+    for x0, y0, dx, dy in [(0, 0, 8, 8), (4, 0, 8, 8), (0, 4, 4, 8), (2, 0, 4, 4), (0, 2, 2, 4), (1, 0, 2, 2), (0, 1, 1, 2)]:
+        sub = arr[y0::dy, x0::dx]
+        if sub.shape[0] == 0 or sub.shape[1] == 0:
+            continue
+        for row in sub:
+            raw += b"\0" + row.tobytes()
+    return b"\x89PNG\r\n\x1a\n" + chunk(b"IHDR", struct.pack(">IIBBBBB", w, h, 8, 0, 0, 0, 1)) + \
+        chunk(b"IDAT", zlib.compress(bytes(raw))) + chunk(b"IEND", b"")
+
+
+inter = rng.integers(0, 256, size=(37, 45), dtype=np.uint8)
+open(path("png_adam7.png"), "wb").write(adam7_png(inter))
+add_ok("png_adam7.png", inter)
+# interlaced, 100 x 100 pixels declared, 50 MB of zeros in a small IDAT
+open(path("png_adam7_bomb.png"), "wb").write(
+    b"\x89PNG\r\n\x1a\n" + chunk(b"IHDR", struct.pack(">IIBBBBB", 100, 100, 8, 0, 0, 0, 1)) +
+    chunk(b"IDAT", zlib.compress(b"\0" * 50_000_000)) + chunk(b"IEND", b""))
+add_error("png_adam7_bomb.png", "decompresses to more than its size allows")
+
 with open(path("manifest.json"), "w") as f:
     json.dump(manifest, f)
 print(len(manifest))

@@ -82,7 +82,7 @@ describe('crafted micrographs: prerequisites', () => {
       if (IN_CI) expect.fail('dist/ is not built; run npx tsc -p tsconfig.build.json');
       ctx.skip('dist/ is not built');
     }
-    expect(CRAFTED.cases.length).toBe(66);
+    expect(CRAFTED.cases.length).toBe(68);
   });
 });
 
