@@ -6,7 +6,7 @@
 export class InputError extends Error {
   override readonly name = 'InputError';
   constructor(message: string) {
-    super(message);
+    super(oneShortLine(message));
   }
 }
 
@@ -20,4 +20,29 @@ export class InternalError extends Error {
   constructor(message: string) {
     super(message);
   }
+}
+
+/** Longest message kept whole; longer ones are cut (a refusal is one short line). */
+const MAX_MESSAGE = 400;
+
+/**
+ * A message as one line that quotes user input only as short excerpts:
+ * line breaks become spaces, quoted parts over 60 characters are shortened,
+ * and the whole is cut at MAX_MESSAGE characters.
+ */
+function oneShortLine(message: string): string {
+  let m = message.replace(/[\r\n\u2028\u2029]+/g, ' ').replace(/"([^"]*)"/g, (whole, q: string) => (q.length > 60 ? `"${excerpt(q)}"` : whole));
+  if (m.length > MAX_MESSAGE) m = `${m.slice(0, MAX_MESSAGE - 40)} ... (message shortened)`;
+  return m;
+}
+
+/**
+ * A short excerpt of user input for an error message: at most `max`
+ * characters (the start and the length when longer), control characters and
+ * line breaks shown as spaces, so a message stays one short line.
+ */
+export function excerpt(text: string, max = 60): string {
+  const flat = text.replace(/[\u0000-\u001f\u007f-\u009f\u2028\u2029]/g, ' ');
+  if (flat.length <= max) return flat;
+  return `${flat.slice(0, Math.max(8, max - 20))}... (${text.length} characters)`;
 }

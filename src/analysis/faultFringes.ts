@@ -77,11 +77,15 @@ export function faultReadings(f: FaultSpec): { reading: string; vector: Vec3 }[]
     : [{ reading: 'intrinsic', vector: other }, { reading: 'extrinsic', vector: f.vector }];
 }
 
-export function analyseFaults(sc: Scenario, samples = 400): FaultConditionAnalysis[] {
+/** `onStep(label)` is called before each fault and condition (for progress). */
+export function analyseFaults(sc: Scenario, samples = 400, onStep?: (label: string) => void): FaultConditionAnalysis[] {
   const out: FaultConditionAnalysis[] = [];
   for (const d of sc.defects) {
     if (d.type !== 'fault') continue;
-    for (const c of sc.conditions) out.push(analyseOne(sc, d, resolveCondition(sc, c), samples));
+    for (const c of sc.conditions) {
+      onStep?.(`${d.label}, ${c.id}`);
+      out.push(analyseOne(sc, d, resolveCondition(sc, c), samples));
+    }
   }
   return out;
 }

@@ -35,11 +35,13 @@ export interface InclusionConditionAnalysis {
   readonly readings: readonly LobeReading[];
 }
 
-export function analyseInclusions(sc: Scenario, gridHalf = 24): InclusionConditionAnalysis[] {
+/** `onStep(label)` is called before each inclusion and condition (for progress). */
+export function analyseInclusions(sc: Scenario, gridHalf = 24, onStep?: (label: string) => void): InclusionConditionAnalysis[] {
   const out: InclusionConditionAnalysis[] = [];
   for (const d of sc.defects) {
     if (d.type !== 'inclusion') continue;
     for (const c of sc.conditions) {
+      onStep?.(`${d.label}, ${c.id}`);
       const rc = resolveCondition(sc, c);
       const readings = ([1, -1] as const).map((sign) => lobes(sc, d, rc, sign * Math.abs(d.strain), gridHalf));
       out.push({ inclusion: d.label, condition: c.id, g: c.g, readings });

@@ -12,7 +12,7 @@ import { beamName, blochRow, type BlochRow } from '../imaging/blochRow.js';
 import { blochTable, projectedPotential, type BlochTable } from '../analysis/blochTables.js';
 import { linspace, rockingCurves, thicknessCurves, waveProfiles } from '../analysis/blochCurves.js';
 import { toCsv, type CsvCell } from '../output/csv.js';
-import { writeFileAtomic } from '../output/atomicWrite.js';
+import { OutputSet } from '../output/outputSet.js';
 import { plotFigure } from '../output/graphics/figure.js';
 import { PALETTE, type PlotSeries, type PlotSpec } from '../output/graphics/plot.js';
 import { parseAbsorption, parseKv } from './options.js';
@@ -322,15 +322,17 @@ function complexText(re: number, im: number): string {
   return `${r.toFixed(4)}${i < 0 ? '-' : '+'}${Math.abs(i).toFixed(4)}i`;
 }
 
-/** Write the files of a run into dir (atomically, one by one); returns their paths. */
+/** Write the files of a run into dir as one output set (see src/output/outputSet.ts); returns their paths. */
 export function writeBlochFiles(run: BlochRun, dir: string): string[] {
-  const out: string[] = [];
-  for (const [name, data] of run.files) {
-    const p = path.join(dir, name);
-    writeFileAtomic(p, data);
-    out.push(p);
+  const set = OutputSet.begin(dir);
+  try {
+    const out = [...run.files].map(([name, data]) => set.write(name, data));
+    set.commit();
+    return out;
+  } catch (e) {
+    set.abort();
+    throw e;
   }
-  return out;
 }
 
 export function blochCommand(materialName: string, indices: string, opts: BlochOptions): void {
@@ -352,13 +354,13 @@ export function blochCommand(materialName: string, indices: string, opts: BlochO
       s_per_nm: run.s_per_nm,
       w: run.w,
       xi_nm: r.reflection.xi_nm,
-      xiAbs_nm: Number.isFinite(r.reflection.xiAbs_nm) ? r.reflection.xiAbs_nm : null,
-      xiAbs0_nm: Number.isFinite(r.reflection.xiAbs0_nm) ? r.reflection.xiAbs0_nm : null,
+      xiAbs_nm: Number.isFinite(r.reflection.xiAbs_nm) ? r.reflection.xiAbs_nm : 'none',
+      xiAbs0_nm: Number.isFinite(r.reflection.xiAbs0_nm) ? r.reflection.xiAbs0_nm : 'none',
       thickness_nm: run.thickness_nm,
       planes_x_over_d: run.table.planes,
       waves: run.table.waves.map((w) => ({
         ...w,
-        absorptionLength_nm: Number.isFinite(w.absorptionLength_nm) ? w.absorptionLength_nm : null,
+        absorptionLength_nm: Number.isFinite(w.absorptionLength_nm) ? w.absorptionLength_nm : 'none',
       })),
       out: dir,
       files: written,

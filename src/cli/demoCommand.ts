@@ -1,9 +1,10 @@
 /** `thinfoil demo`: renders the built-in invented scenario and prints what it found. */
+import { jsonText } from '../output/json.js';
 import { join } from 'node:path';
 import { DEMO_SCENARIO } from '../scenario/demo.js';
 import { parseScenario } from '../scenario/parse.js';
 import { visibilityTable } from '../analysis/visibilityTable.js';
-import { writeFileAtomic } from '../output/atomicWrite.js';
+import { OutputSet } from '../output/outputSet.js';
 import { renderAndWrite } from './renderCommand.js';
 import { formatVisibility } from './visibilityCommand.js';
 import { sig, table } from './run.js';
@@ -22,8 +23,21 @@ export async function demoCommand(opts: { out?: string }): Promise<void> {
   const sc = parseScenario(DEMO_SCENARIO);
   process.stdout.write(`thinfoil demo: ${sc.name}\n`);
   process.stdout.write('All data in this demo are invented; the images are simulations (a model), not measurements.\n\n');
-  writeFileAtomic(join(dir, 'scenario.json'), `${JSON.stringify(DEMO_SCENARIO, null, 2)}\n`);
-  const { images, entries, seconds } = await renderAndWrite(sc, dir, true);
+  const set = OutputSet.begin(dir);
+  try {
+    await demoMain(sc, set);
+    set.commit();
+  } catch (e) {
+    set.abort();
+    throw e;
+  }
+  process.stdout.write(`\nwritten to ${dir}: <condition>-bf.png / -df.png (viewing), .tif (float intensities), render.json, visibility.txt\n`);
+  await demoIdentification(dir);
+}
+
+async function demoMain(sc: ReturnType<typeof parseScenario>, set: OutputSet): Promise<void> {
+  set.write('scenario.json', `${jsonText(DEMO_SCENARIO, 2)}\n`);
+  const { images, entries, seconds } = await renderAndWrite(sc, set, true);
   process.stdout.write(
     `material ${sc.material.name}, ${sc.kV} kV, foil ${sc.thickness_nm} nm, ${sc.image.width_px} x ${sc.image.height_px} px at ${sc.image.pixel_nm} nm; ` +
       `${images.length} conditions rendered in ${sig(seconds, 3)} s\n\n`,
@@ -39,8 +53,8 @@ export async function demoCommand(opts: { out?: string }): Promise<void> {
   ));
   const vis = visibilityTable(sc);
   const visText = formatVisibility(sc, vis);
-  writeFileAtomic(join(dir, 'visibility.txt'), visText);
-  writeFileAtomic(join(dir, 'visibility.json'), `${JSON.stringify({ scenario: sc.name, rows: vis }, null, 2)}\n`);
+  set.write('visibility.txt', visText);
+  set.write('visibility.json', `${jsonText({ scenario: sc.name, rows: vis }, 2)}\n`);
   process.stdout.write(`\nvisibility (simulated strip across each line, g.b rule beside it):\n${visText}`);
   for (const d of sc.defects) {
     if (d.type === 'dissociated') {
@@ -50,18 +64,16 @@ export async function demoCommand(opts: { out?: string }): Promise<void> {
   const fr = faultReport(sc);
   const frText = formatFaults(fr.faults) + formatInclusions(fr.inclusions);
   if (frText) {
-    writeFileAtomic(join(dir, 'faults-and-inclusions.txt'), frText);
+    set.write('faults-and-inclusions.txt', frText);
     process.stdout.write(`\nfault nature and misfit sign read-outs (simulated):\n${frText}`);
   }
-  process.stdout.write(`\nwritten to ${dir}: <condition>-bf.png / -df.png (viewing), .tif (float intensities), render.json, visibility.txt\n`);
-  await demoIdentification(join(dir, 'identify'));
 }
 
 /**
  * The demo's last act: SYNTHETIC micrographs of a hidden candidate, then the
  * identification that a user would run on real ones.
  */
-async function demoIdentification(dir: string): Promise<void> {
+async function demoIdentification(demoDir: string): Promise<void> {
   process.stdout.write(`\n--- identification from SYNTHETIC micrographs (made here from a hidden Burgers vector; not measured) ---\n`);
   const sc = parseScenario(DEMO_IDENTIFY_SCENARIO);
   const hidden = identificationCandidates(sc).find((c) => c.label === DEMO_HIDDEN_CANDIDATE);
@@ -75,16 +87,18 @@ async function demoIdentification(dir: string): Promise<void> {
   }
   const args: string[] = [];
   const settings: Record<string, unknown> = {};
+  // the synthetic micrographs are the identification's inputs: their own folder, beside its output
+  const dir = join(demoDir, 'identify-micrographs');
+  const inputs = OutputSet.begin(dir);
   for (const m of syn) {
-    const file = join(dir, syntheticFileName(m.conditionId, m.field));
-    writeFileAtomic(file, encodeFloatTiff(m.data, m.width, m.height, { pixel_nm: m.pixel_nm, description: 'SYNTHETIC micrograph made by thinfoil demo from a hidden candidate; not a measurement' }));
+    const file = inputs.write(syntheticFileName(m.conditionId, m.field), encodeFloatTiff(m.data, m.width, m.height, { pixel_nm: m.pixel_nm, description: 'SYNTHETIC micrograph made by thinfoil demo from a hidden candidate; not a measurement' }));
     args.push(`${m.conditionId}=${file}`);
     settings[m.conditionId] = { field: m.field, pixel_nm: m.pixel_nm, gAngle_deg: m.truth.gAngle_deg, blur_nm: DEMO_SYNTHESIS.blur_nm };
   }
-  const scenarioFile = join(dir, 'identify-scenario.json');
-  writeFileAtomic(scenarioFile, `${JSON.stringify({ ...DEMO_IDENTIFY_SCENARIO, micrographs: settings }, null, 2)}\n`);
+  const scenarioFile = inputs.write('identify-scenario.json', `${jsonText({ ...DEMO_IDENTIFY_SCENARIO, micrographs: settings }, 2)}\n`);
+  inputs.commit();
   process.stdout.write(`${syn.length} synthetic micrographs (signal-to-noise ${DEMO_SYNTHESIS.snr}, blur ${DEMO_SYNTHESIS.blur_nm} nm, 10 % background gradient, random shift and rotation) written to ${dir}\n\n`);
-  const out = await runIdentify(scenarioFile, { micrograph: args, out: dir });
+  const out = await runIdentify(scenarioFile, { micrograph: args, out: join(demoDir, 'identify') });
   process.stdout.write(formatIdentify(out));
   const best = out.result.ranking[0]?.candidate;
   process.stdout.write(`\nhidden truth: ${hidden.label} -> ${best === hidden.label ? 'recovered as the best candidate' : `NOT recovered (best: ${best})`}\n`);

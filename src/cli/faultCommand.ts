@@ -5,6 +5,7 @@ import { formatVector } from '../scenario/parse.js';
 import type { Scenario } from '../scenario/types.js';
 import { loadScenario, warnAbout } from './loadScenario.js';
 import { printJson, sig, table } from './run.js';
+import { progressBar } from './progress.js';
 
 function direction(d: readonly [number, number]): string {
   // image: +x right, +y down; report as compass-like words and an angle counter-clockwise from +x
@@ -60,14 +61,25 @@ export function formatInclusions(rows: readonly InclusionConditionAnalysis[]): s
   );
 }
 
-export function faultReport(sc: Scenario): { faults: FaultConditionAnalysis[]; inclusions: InclusionConditionAnalysis[] } {
-  return { faults: analyseFaults(sc), inclusions: analyseInclusions(sc) };
+export function faultReport(sc: Scenario, onStep?: (label: string, fraction: number) => void): { faults: FaultConditionAnalysis[]; inclusions: InclusionConditionAnalysis[] } {
+  const nf = sc.defects.filter((d) => d.type === 'fault').length;
+  const ni = sc.defects.filter((d) => d.type === 'inclusion').length;
+  const total = (nf + ni) * sc.conditions.length;
+  let k = 0;
+  const step = onStep === undefined ? undefined : (label: string) => onStep(`analysing ${label}`, total === 0 ? 1 : k++ / total);
+  return { faults: analyseFaults(sc, 400, step), inclusions: analyseInclusions(sc, 24, step) };
 }
 
-export function faultCommand(file: string, opts: { json?: boolean }): void {
+export function faultCommand(file: string, opts: { json?: boolean; progressJson?: boolean }): void {
   const sc = loadScenario(file);
   const warnings = warnAbout(sc);
-  const r = faultReport(sc);
+  const bar = progressBar({ jsonLines: opts.progressJson === true });
+  let r: ReturnType<typeof faultReport>;
+  try {
+    r = faultReport(sc, (label, f) => bar.update(label.length > 48 ? `${label.slice(0, 45)}...` : label, f));
+  } finally {
+    bar.done();
+  }
   if (opts.json) {
     printJson({ scenario: sc.name, ...r, warnings });
     return;

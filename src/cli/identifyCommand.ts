@@ -4,21 +4,24 @@
  * verdict, write the comparison figure (PNG, SVG), the HTML report and the
  * result as JSON into the output folder.
  */
-import { readFileSync } from 'node:fs';
 import { describeAbsorption } from '../scattering/absorption.js';
+import { jsonText } from '../output/json.js';
 import { basename, join, resolve } from 'node:path';
 import { InputError } from '../errors.js';
 import { parseScenario } from '../scenario/parse.js';
 import { renderScenario } from '../imaging/renderScenario.js';
 import { createRenderPool } from '../imaging/workerPool.js';
 import { decodeImage } from '../imageio/readImage.js';
+import { MAX_FILE_BYTES } from '../imageio/types.js';
+import { readInputFile } from './readInput.js';
+import { excerpt } from '../errors.js';
 import { identify, type IdentifyResult } from '../analysis/identify.js';
 import { prepareMicrographs, type MicrographInput } from '../analysis/identifyMicrographs.js';
 import { parseMicrographArgument, parseMicrographSettings } from '../analysis/identifySettings.js';
 import { isSyntheticName } from '../analysis/synthetic.js';
 import { comparisonFigure, comparisonFigureData } from '../output/comparisonFigure.js';
 import { identifyReportHtml } from '../output/report.js';
-import { ensureOutputDir, writeFileAtomic } from '../output/atomicWrite.js';
+import { OutputSet } from '../output/outputSet.js';
 import { progressBar } from './progress.js';
 import { printJson, sig, table } from './run.js';
 import { slug } from './renderCommand.js';
@@ -33,9 +36,20 @@ export interface IdentifyCommandOptions {
   top?: string | number;
   bootstrap?: string | number;
   seed?: string | number;
+  /** Progress as JSON lines on stderr. */
+  progressJson?: boolean;
   /** Render threads (default: all cores). */
   threads?: number;
 }
+
+/** Largest --bootstrap (1000 copies estimate a standard deviation to a few per cent: common practice). */
+export const MAX_BOOTSTRAP = 1000;
+/**
+ * Largest simulated area per micrograph (crop plus the shift margin on each
+ * side, after binning): every candidate is rendered on it. 768 x 768 pixels is
+ * three times the default 256-pixel comparison side.
+ */
+export const MAX_SIMULATED_PIXELS = 768 * 768;
 
 /** The scenario key this command reads besides the ones parseScenario knows. */
 export const MICROGRAPHS_KEY = 'micrographs';
@@ -50,14 +64,8 @@ function intOption(name: string, v: string | number | undefined, lo: number, hi:
 
 function readMicrograph(arg: string): MicrographInput {
   const { conditionId, file } = parseMicrographArgument(arg);
-  let bytes: Uint8Array;
-  try {
-    bytes = readFileSync(file);
-  } catch (err) {
-    const code = (err as NodeJS.ErrnoException).code;
-    throw new InputError(`micrograph file "${file}" for ${conditionId} cannot be read (${code ?? 'error'}); check the path`);
-  }
-  const img = decodeImage(bytes, `micrograph file "${file}"`);
+  const bytes = readInputFile(file, 'micrograph file', MAX_FILE_BYTES, ` for ${excerpt(conditionId, 40)}`);
+  const img = decodeImage(bytes, `micrograph file "${excerpt(file, 80)}"`);
   return {
     conditionId,
     image: img,
@@ -82,7 +90,7 @@ export async function runIdentify(scenarioFile: string, opts: IdentifyCommandOpt
   const args = opts.micrograph === undefined ? [] : Array.isArray(opts.micrograph) ? opts.micrograph : [opts.micrograph];
   const defectIndex = intOption('--defect', opts.defect, 0, Math.max(0, sc.defects.length - 1), 0);
   const top = intOption('--top', opts.top, 1, 8, 4);
-  const B = intOption('--bootstrap', opts.bootstrap, 0, 10000, 50);
+  const B = intOption('--bootstrap', opts.bootstrap, 0, MAX_BOOTSTRAP, 50);
   const seed = intOption('--seed', opts.seed, 0, 2 ** 31 - 1, 1);
   const inputs = args.map(readMicrograph);
   // the direction of g on a micrograph cannot be guessed: a wrong angle ranks the wrong candidate first
@@ -94,11 +102,40 @@ export async function runIdentify(scenarioFile: string, opts: IdentifyCommandOpt
     }
   }
   const micrographs = prepareMicrographs(sc, inputs, settings);
+  for (const m of micrographs) {
+    const w = m.width + 2 * m.margin;
+    const h = m.height + 2 * m.margin;
+    if (w * h > MAX_SIMULATED_PIXELS) {
+      throw new InputError(
+        `micrographs.${excerpt(m.conditionId, 40)}: each candidate would be simulated on ${w} x ${h} pixels (crop ${m.width} x ${m.height} after binning by ${m.bin}, plus ${m.margin} pixels of shift on each side), more than the limit of 768 x 768; raise "bin" or lower "maxShift_nm" or the crop`,
+      );
+    }
+  }
   const dir = opts.out ?? join('out', `${slug(sc.name)}-identify`);
-  ensureOutputDir(dir);
-  const inputsToProtect = [scenarioFile, ...inputs.map((m) => m.source)];
+  // checked before the work: the inputs must not lie in the folder this run replaces
+  const set = OutputSet.begin(dir, { inputs: [scenarioFile, ...inputs.map((m) => m.source)] });
+  try {
+    const out = await identifyInto(set, scenarioFile, sc, micrographs, { defectIndex, top, bootstrap: B, seed }, opts.threads, onProgress);
+    set.commit();
+    return out;
+  } catch (e) {
+    set.abort();
+    throw e;
+  }
+}
 
-  const pool = createRenderPool(opts.threads);
+async function identifyInto(
+  set: OutputSet,
+  scenarioFile: string,
+  sc: ReturnType<typeof parseScenario>,
+  micrographs: ReturnType<typeof prepareMicrographs>,
+  o: { defectIndex: number; top: number; bootstrap: number; seed: number },
+  threads: number | undefined,
+  onProgress?: (message: string, fraction: number) => void,
+): Promise<IdentifyOutput> {
+  const { defectIndex, top, bootstrap: B, seed } = o;
+
+  const pool = createRenderPool(threads);
   let result: IdentifyResult;
   try {
     result = await identify(sc, micrographs, (s) => renderScenario(s, pool), {
@@ -114,17 +151,17 @@ export async function runIdentify(scenarioFile: string, opts: IdentifyCommandOpt
 
   const fig = comparisonFigure(comparisonFigureData(result));
   const files = {
-    figurePng: join(dir, 'identify-figure.png'),
-    figureSvg: join(dir, 'identify-figure.svg'),
-    report: join(dir, 'identify-report.html'),
-    json: join(dir, 'identify.json'),
+    figurePng: set.finalPath('identify-figure.png'),
+    figureSvg: set.finalPath('identify-figure.svg'),
+    report: set.finalPath('identify-report.html'),
+    json: set.finalPath('identify.json'),
   };
-  const w = (path: string, data: Uint8Array | string) => writeFileAtomic(path, data, { protectedPaths: inputsToProtect });
+  const w = (path: string, data: Uint8Array | string) => set.write(basename(path), data);
   w(files.figurePng, fig.png);
   w(files.figureSvg, fig.svg);
   w(files.report, identifyReportHtml(result, { scenarioFile: basename(scenarioFile), absorption: describeAbsorption(sc.absorption), figurePng: fig.png, figureFiles: [basename(files.figurePng), basename(files.figureSvg)] }));
-  w(files.json, `${JSON.stringify(resultJson(result, files), null, 2)}\n`);
-  return { result, dir, files };
+  w(files.json, `${jsonText(resultJson(result, files), 2)}\n`);
+  return { result, dir: set.dir, files };
 }
 
 /** The JSON form of a result (what --json prints, plus details in identify.json). */
@@ -184,7 +221,7 @@ export function resultJson(res: IdentifyResult, files?: IdentifyOutput['files'])
 }
 
 export async function identifyCommand(scenarioFile: string, opts: IdentifyCommandOptions): Promise<void> {
-  const bar = progressBar(!opts.json);
+  const bar = progressBar({ jsonLines: opts.progressJson === true });
   let out: IdentifyOutput;
   try {
     out = await runIdentify(scenarioFile, opts, (msg, f) => bar.update(msg.length > 48 ? `${msg.slice(0, 45)}...` : msg, f));

@@ -1,6 +1,6 @@
 /** Read and validate a scenario file (the file is never modified). */
-import { readFileSync } from 'node:fs';
-import { InputError } from '../errors.js';
+import { excerpt, InputError } from '../errors.js';
+import { MAX_SCENARIO_BYTES, readInputFile } from './readInput.js';
 import { parseScenario } from '../scenario/parse.js';
 import { locateJsonError } from '../scenario/jsonSyntax.js';
 import type { Scenario } from '../scenario/types.js';
@@ -8,13 +8,8 @@ import { scenarioWarnings } from '../analysis/scenarioWarnings.js';
 
 /** The raw JSON object of a scenario file; InputError when it cannot be read, is not JSON or not an object. */
 export function readScenarioJson(path: string): Record<string, unknown> {
-  let text: string;
-  try {
-    text = readFileSync(path, 'utf8');
-  } catch (e) {
-    const code = (e as NodeJS.ErrnoException).code;
-    throw new InputError(`scenario file "${path}" cannot be read (${code ?? 'error'}); check the path`);
-  }
+  let text = readInputFile(path, 'scenario file', MAX_SCENARIO_BYTES).toString('utf8');
+  const shown = `"${excerpt(path, 80)}"`;
   let raw: unknown;
   // a byte-order mark (some editors write one) is not part of the JSON text
   if (text.charCodeAt(0) === 0xfeff) text = text.slice(1);
@@ -22,11 +17,11 @@ export function readScenarioJson(path: string): Record<string, unknown> {
     raw = JSON.parse(text);
   } catch (e) {
     const at = locateJsonError(text);
-    if (at !== null) throw new InputError(`scenario file "${path}" is not valid JSON at line ${at.line}, column ${at.column}: ${at.message}`);
-    throw new InputError(`scenario file "${path}" is not valid JSON (${(e as Error).message.slice(0, 120)}); fix the syntax`);
+    if (at !== null) throw new InputError(`scenario file ${shown} is not valid JSON at line ${at.line}, column ${at.column}: ${at.message}`);
+    throw new InputError(`scenario file ${shown} is not valid JSON (${excerpt((e as Error).message, 100)}); fix the syntax`);
   }
   if (typeof raw !== 'object' || raw === null || Array.isArray(raw)) {
-    throw new InputError(`scenario file "${path}" must hold one JSON object { ... }`);
+    throw new InputError(`scenario file ${shown} must hold one JSON object { ... }`);
   }
   return raw as Record<string, unknown>;
 }

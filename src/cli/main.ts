@@ -65,6 +65,7 @@ program
   .option('--contrast <mode>', 'grey scale of the figures: "shared" (one scale for all conditions, default) or "each"', userOption(parseContrast), 'shared')
   .option('--blur-nm <sigma>', 'Gaussian point spread (standard deviation, nm) applied to the simulated images (default 0)', userOption(parseBlurNm), 0)
   .option('--json', 'one JSON object on stdout listing the images')
+  .option('--progress-json', 'progress as JSON lines {"progress", "stage"} on stderr (a bar is drawn on a terminal otherwise)')
   .action(run(() => import('./renderCommand.js'), 'renderCommand'));
 
 program
@@ -94,6 +95,7 @@ program
   .description('fault nature (intrinsic / extrinsic outer fringes) and inclusion misfit sign, by simulation')
   .argument('<scenario>', 'scenario file (JSON)')
   .option('--json', 'JSON on stdout')
+  .option('--progress-json', 'progress as JSON lines {"progress", "stage"} on stderr (a bar is drawn on a terminal otherwise)')
   .action(run(() => import('./faultCommand.js'), 'faultCommand'));
 
 const collect = (v: string, prev: string[]) => [...prev, v];
@@ -108,6 +110,7 @@ program
   .option('--top <n>', 'leading candidates fully registered, resampled and shown (default 4)')
   .option('--bootstrap <n>', 'bootstrap copies for the noise of the scores (default 50)')
   .option('--seed <n>', 'seed of the bootstrap (default 1)')
+  .option('--progress-json', 'progress as JSON lines {"progress", "stage"} on stderr (a bar is drawn on a terminal otherwise)')
   .action(run(() => import('./identifyCommand.js'), 'identifyCommand'));
 
 program

@@ -2,6 +2,7 @@
  * Shared CLI plumbing: run a command action, turning a user error into one
  * line on stderr and exit code 2, an internal failure into exit code 1.
  */
+import { jsonText } from '../output/json.js';
 import { InputError } from '../errors.js';
 
 export const EXIT_USER = 2;
@@ -30,7 +31,7 @@ export function reportAndExit(e: unknown): never {
 
 /** Print a JSON object as one line on stdout. */
 export function printJson(obj: unknown): void {
-  process.stdout.write(`${JSON.stringify(obj)}\n`);
+  process.stdout.write(`${jsonText(obj)}\n`);
 }
 
 /** Plain fixed-width text table. */

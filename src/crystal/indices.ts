@@ -50,11 +50,30 @@ function tokens(body: string): string[] | null {
   return NUMBER.test(body) ? [body] : null;
 }
 
+/**
+ * Largest index magnitude accepted (reflections, directions and Burgers
+ * vectors of real work stay far below), and the smallest non-zero largest
+ * component (below it the set is zero in all but rounding).
+ */
+export const MAX_INDEX = 100;
+export const MIN_INDEX = 1e-6;
+
+/** Finite, not absurdly large, not vanishingly small: the same for strings and arrays. */
+function checkMagnitude(values: readonly number[], field: string, shown: string): void {
+  if (!values.every((v) => Number.isFinite(v))) {
+    throw new InputError(`${field}: the indices ${shown} are not all finite numbers; give ordinary numbers such as "1 -1 0".`);
+  }
+  const big = Math.max(...values.map(Math.abs));
+  if (big > MAX_INDEX) throw new InputError(`${field}: the indices ${shown} exceed ${MAX_INDEX} in magnitude; give small indices such as "1 -1 0".`);
+  if (big > 0 && big < MIN_INDEX) throw new InputError(`${field}: the indices ${shown} are all below ${MIN_INDEX} (zero but for rounding); give a direction or plane such as "1 -1 0".`);
+}
+
 function checkSet(values: number[], field: string, n: IndexCount, shown: string): number[] {
   const okCount = n === '3or4' ? values.length === 3 || values.length === 4 : values.length === n;
   if (!okCount) {
     throw new InputError(`${field}: expected ${countText(n)} indices but found ${values.length} in ${shown}; write e.g. ${example(n)}.`);
   }
+  checkMagnitude(values, field, shown);
   if (values.length === 4 && Math.abs(values[0] + values[1] + values[2]) > 1e-9) {
     throw new InputError(`${field}: in the 4-index set ${shown} the third index must equal -(first + second); write e.g. "1 1 -2 0".`);
   }
@@ -88,7 +107,9 @@ export function parseVectorWithFraction(text: string | readonly number[], field:
   const open = [...t].findIndex((ch) => OPEN.includes(ch));
   if (open <= 0) return parseIndices(t, field, nIndices);
   const factor = parseFactor(t.slice(0, open).trim(), field, text, nIndices);
-  return parseIndices(t.slice(open), field, nIndices).map((v) => v * factor);
+  const values = parseIndices(t.slice(open), field, nIndices).map((v) => v * factor);
+  checkMagnitude(values, field, `"${text}"`);
+  return values;
 }
 
 function parseFactor(prefix: string, field: string, original: string, n: IndexCount): number {
@@ -101,7 +122,7 @@ function parseFactor(prefix: string, field: string, original: string, n: IndexCo
   if (m === null) throw new InputError(`${field}: cannot read the factor "${prefix}" in "${original}"; write e.g. ${hint}.`);
   const num = Number(m[1]);
   const den = m[2] === undefined ? 1 : Number(m[2]);
-  if (!(den > 0) || !Number.isFinite(num) || num === 0) {
+  if (!(den > 0) || !Number.isFinite(num) || !Number.isFinite(den) || num === 0) {
     throw new InputError(`${field}: the factor "${prefix}" in "${original}" must be a non-zero number or fraction; write e.g. ${hint}.`);
   }
   return num / den;

@@ -6,10 +6,11 @@
  * decoding, because pngjs would otherwise zero the pixels of the transparent
  * colour. The pixel size comes from a pHYs chunk in pixels per metre.
  */
+import { inflateSync } from 'node:zlib';
 import pngjs from 'pngjs';
 import { InputError } from '../errors.js';
 import { lumaRec601 } from './luminance.js';
-import { type DecodedImage, MAX_PIXELS } from './types.js';
+import { type DecodedImage, MAX_PIXELS, MAX_SIDE } from './types.js';
 
 const { PNG } = pngjs;
 
@@ -25,6 +26,9 @@ interface ChunkScan {
   height: number;
   colourType: number;
   depth: number;
+  interlace: number;
+  /** Byte ranges of the IDAT chunks' data. */
+  idat: Array<[number, number]>;
   pixel_nm?: number;
   /** The file without tRNS chunks (the same array when there is none). */
   cleaned: Uint8Array;
@@ -40,7 +44,8 @@ function scanChunks(bytes: Uint8Array, name: string): ChunkScan {
   const damaged = (why: string): InputError =>
     new InputError(`${name} is a damaged PNG file (${why}); save it again as PNG or TIFF.`);
   let at = 8;
-  let ihdr: { width: number; height: number; depth: number; colourType: number } | undefined;
+  let ihdr: { width: number; height: number; depth: number; colourType: number; interlace: number } | undefined;
+  const idat: Array<[number, number]> = [];
   let pixel_nm: number | undefined;
   const keep: Array<[number, number]> = [];
   let dropped = false;
@@ -57,12 +62,14 @@ function scanChunks(bytes: Uint8Array, name: string): ChunkScan {
         height: dv.getUint32(at + 12),
         depth: bytes[at + 16],
         colourType: bytes[at + 17],
+        interlace: bytes[at + 20],
       };
     } else if (type === 'pHYs' && len === 9 && bytes[at + 16] === 1) {
       const ppmX = dv.getUint32(at + 8);
       const ppmY = dv.getUint32(at + 12);
       if (ppmX > 0 && ppmX === ppmY) pixel_nm = 1e9 / ppmX; // unit 1 = metre
     }
+    if (type === 'IDAT') idat.push([at + 8, at + 8 + len]);
     if (type === 'tRNS') dropped = true;
     else keep.push([at, end]);
     at = end;
@@ -84,15 +91,29 @@ function scanChunks(bytes: Uint8Array, name: string): ChunkScan {
       o += b - a;
     }
   }
-  return { ...ihdr, cleaned, ...(pixel_nm !== undefined ? { pixel_nm } : {}) };
+  return { ...ihdr, idat, cleaned, ...(pixel_nm !== undefined ? { pixel_nm } : {}) };
 }
 
 export function decodePng(bytes: Uint8Array, name: string): DecodedImage {
   const scan = scanChunks(bytes, name);
   const { width, height, colourType, depth } = scan;
   if (width === 0 || height === 0) throw new InputError(`${name} is a PNG file with no pixels; save the micrograph again.`);
-  if (width * height > MAX_PIXELS) {
-    throw new InputError(`${name} has ${width} x ${height} pixels, more than thinfoil reads (${MAX_PIXELS}); crop or bin it first.`);
+  if (width * height > MAX_PIXELS || width > MAX_SIDE || height > MAX_SIDE) {
+    throw new InputError(`${name} has ${width} x ${height} pixels, more than thinfoil reads (8192 x 8192 = ${MAX_PIXELS} pixels, at most ${MAX_SIDE} on a side); crop or bin it first.`);
+  }
+  if (scan.interlace !== 0) {
+    // pngjs inflates interlaced images without a size cap: check the stream's size first.
+    // Adam7 (ISO/IEC 15948, 8.2) stores every pixel once plus one filter byte per row of each pass.
+    const channels = [1, 0, 3, 1, 2, 0, 4][colourType] ?? 4;
+    const bound = height * (Math.ceil((width * channels * depth) / 8) + 7) + 7 * 16;
+    const stream = Buffer.concat(scan.idat.map(([a, b]) => bytes.subarray(a, b)));
+    try {
+      inflateSync(stream, { maxOutputLength: bound });
+    } catch (err) {
+      const code = (err as NodeJS.ErrnoException).code;
+      const why = code === 'ERR_BUFFER_TOO_LARGE' ? 'its pixel data decompresses to more than its size allows' : 'its pixel data cannot be decompressed';
+      throw new InputError(`${name} is a damaged PNG file (${why}); save it again as PNG or TIFF.`);
+    }
   }
   let png: { data: Uint8Array | Uint16Array };
   try {

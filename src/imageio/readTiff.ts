@@ -1,7 +1,8 @@
 /**
  * TIFF (TIFF 6.0 specification, Adobe 1992) to grey values. The first page
  * only. The directory is read by tiffDirectory.ts; the strips or tiles are
- * decompressed by utif (uncompressed, LZW, Deflate, PackBits). This module
+ * decompressed by tiffCodecs.ts (uncompressed, LZW, Deflate, PackBits), each
+ * checked to decode to exactly the bytes the geometry asks for. This module
  * then turns the bytes into samples in the file's byte order, undoes
  * horizontal differencing (Predictor 2, TIFF 6.0 section 14) itself, and
  * makes one grey value per pixel:
@@ -12,23 +13,15 @@
  * Samples: 8, 16 or 32-bit unsigned or signed integers, 32-bit IEEE float.
  * 32-bit integers above 2^24 in magnitude are rounded to the nearest float.
  */
-import { createRequire } from 'node:module';
 import { InputError } from '../errors.js';
 import { lumaRec601 } from './luminance.js';
 import { readFirstDirectory, type TiffDirectory } from './tiffDirectory.js';
-import { type DecodedImage, MAX_PIXELS } from './types.js';
+import { type DecodedImage, MAX_PIXELS, MAX_RAW_BYTES, MAX_SIDE } from './types.js';
+import { type BlockResult, inflateDecode, lzwDecode, packBitsDecode } from './tiffCodecs.js';
 
-/** The part of utif's API used here (utif 3.1). */
-interface UtifIfd {
-  [tag: string]: unknown;
-  data?: Uint8Array;
-}
-interface UtifApi {
-  decodeImage(buffer: ArrayBuffer, ifd: UtifIfd): void;
-}
-const require = createRequire(import.meta.url);
-/** utif (and pako behind it) is loaded on the first compressed file, not at start-up. */
-let utif: UtifApi | undefined;
+/** Largest tile side accepted (a tile is decoded into one buffer). */
+const MAX_TILE_SIDE = 8192;
+
 
 /** Field tags (TIFF 6.0, sections 8, 14, 15, 19). */
 const T = {
@@ -48,6 +41,7 @@ const T = {
   resolutionUnit: 296,
   imageDescription: 270,
   predictor: 317,
+  extraSamples: 338,
   colorMap: 320,
   tileWidth: 322,
   tileLength: 323,
@@ -56,7 +50,7 @@ const T = {
   sampleFormat: 339,
 } as const;
 
-/** Compression schemes utif decodes and this reader accepts; 32946 is the older code for Deflate. */
+/** Compression schemes this reader decodes (tiffCodecs.ts); 32946 is the older code for Deflate. */
 const READABLE_COMPRESSION = new Set([1, 5, 8, 32946, 32773]);
 const COMPRESSION_NAME: Readonly<Record<number, string>> = {
   2: 'CCITT modified Huffman',
@@ -127,42 +121,71 @@ interface Layout {
   width: number;
   height: number;
   spp: number;
-  bps: number;
+  sampleBytes: number;
   compression: number;
-  photometric: number;
   tiled: boolean;
   tileWidth: number;
   tileLength: number;
   rowsPerStrip: number;
   offsets: number[];
   counts: number[];
+  /** Bytes block i must decode to. */
+  needBytes: (i: number) => number;
+  /** Bytes of a full strip or tile. */
+  fullBlockBytes: number;
 }
 
-/** Decompress strips or tiles with utif; returns the pixel bytes row by row. */
-function decompressWithUtif(bytes: Uint8Array, L: Layout, damaged: (why: string) => InputError): Uint8Array {
-  const ifd: UtifIfd = {
-    t256: [L.width],
-    t257: [L.height],
-    t258: new Array<number>(L.spp).fill(L.bps),
-    t259: [L.compression],
-    t262: [L.photometric],
-    t277: [L.spp],
-    t284: [1],
-  };
-  if (L.tiled) Object.assign(ifd, { t322: [L.tileWidth], t323: [L.tileLength], t324: L.offsets, t325: L.counts });
-  else Object.assign(ifd, { t273: L.offsets, t278: [L.rowsPerStrip], t279: L.counts });
-  // utif views its input through `.buffer`, so hand it a buffer holding just this
-  // file (a copy when `bytes` is a view into a larger buffer, such as a pooled Buffer)
-  const whole = bytes.byteOffset === 0 && bytes.byteLength === bytes.buffer.byteLength;
-  const buffer = (whole ? bytes.buffer : new Uint8Array(bytes).buffer) as ArrayBuffer;
-  try {
-    utif ??= require('utif') as UtifApi;
-    utif.decodeImage(buffer, ifd);
-  } catch (err) {
-    throw damaged(`the pixel data cannot be decompressed: ${err instanceof Error ? err.message : String(err)}`);
+const CODECS: Readonly<Record<number, (src: Uint8Array, out: Uint8Array) => BlockResult>> = {
+  5: lzwDecode,
+  8: inflateDecode,
+  32773: packBitsDecode,
+};
+
+/**
+ * Decompress every strip or tile into one buffer of the image's rows (file
+ * byte order). Each block must decode to exactly the bytes its geometry
+ * asks for (a strip may also hold its full RowsPerStrip rows); anything
+ * else means the layout fields do not describe the data and is refused.
+ */
+function decodeBlocks(bytes: Uint8Array, L: Layout, damaged: (why: string) => InputError): Uint8Array {
+  const rowBytes = L.width * L.spp * L.sampleBytes;
+  const raw = new Uint8Array(L.height * rowBytes);
+  const block = new Uint8Array(L.fullBlockBytes); // reused for every block
+  const what = L.tiled ? 'tile' : 'strip';
+  const across = Math.ceil(L.width / L.tileWidth);
+  const n = L.tiled ? across * Math.ceil(L.height / L.tileLength) : Math.ceil(L.height / L.rowsPerStrip);
+  for (let i = 0; i < n; i++) {
+    const need = L.needBytes(i);
+    let got: number;
+    if (L.compression === 1) {
+      block.set(bytes.subarray(L.offsets[i], L.offsets[i] + need), 0);
+      got = need;
+    } else {
+      const src = bytes.subarray(L.offsets[i], L.offsets[i] + L.counts[i]);
+      const r = CODECS[L.compression](src, block);
+      if (r.error !== undefined) throw damaged(`${what} ${i}: ${r.error}`);
+      if (r.overflow) {
+        throw damaged(`${what} ${i} decompresses to more than the ${L.fullBlockBytes} bytes its size and SamplesPerPixel/BitsPerSample allow`);
+      }
+      if (r.written < need) throw damaged(`${what} ${i} decompresses to ${r.written} bytes where ${need} are needed`);
+      got = r.written;
+    }
+    if (!L.tiled) {
+      raw.set(block.subarray(0, Math.min(got, raw.length - i * L.rowsPerStrip * rowBytes)), i * L.rowsPerStrip * rowBytes);
+      continue;
+    }
+    // copy the part of the tile that lies inside the image (TIFF 6.0, section 15)
+    const x0 = (i % across) * L.tileWidth;
+    const y0 = Math.floor(i / across) * L.tileLength;
+    const tileRow = L.tileWidth * L.spp * L.sampleBytes;
+    const copy = (Math.min(L.width, x0 + L.tileWidth) - x0) * L.spp * L.sampleBytes;
+    const rows = Math.min(L.height, y0 + L.tileLength) - y0;
+    for (let r = 0; r < rows; r++) {
+      const from = r * tileRow;
+      raw.set(block.subarray(from, from + copy), (y0 + r) * rowBytes + x0 * L.spp * L.sampleBytes);
+    }
   }
-  if (ifd.data === undefined) throw damaged('there is no pixel data');
-  return ifd.data;
+  return raw;
 }
 
 /** The same bits read as the file's sample format. */
@@ -211,13 +234,17 @@ export function decodeTiff(bytes: Uint8Array, name: string): DecodedImage {
   const width = one(T.width);
   const height = one(T.height);
   if (width === 0 || height === 0) throw new InputError(`${name} is a TIFF file with no pixels; save the micrograph again.`);
-  if (width * height > MAX_PIXELS) {
-    throw new InputError(`${name} has ${width} x ${height} pixels, more than thinfoil reads (${MAX_PIXELS}); crop or bin it first.`);
+  if (width * height > MAX_PIXELS || width > MAX_SIDE || height > MAX_SIDE) {
+    throw new InputError(`${name} has ${width} x ${height} pixels, more than thinfoil reads (8192 x 8192 = ${MAX_PIXELS} pixels, at most ${MAX_SIDE} on a side); crop or bin it first.`);
   }
   const spp = one(T.samplesPerPixel, 1);
   if (spp < 1) throw damaged('SamplesPerPixel is 0');
+  if (spp > 16) throw damaged(`SamplesPerPixel is ${spp}`);
   const bpsList = list(T.bitsPerSample) ?? [1];
   const bps = bpsList[0];
+  if (bpsList.length !== 1 && bpsList.length !== spp) {
+    throw damaged(`BitsPerSample lists ${bpsList.length} values for ${spp} sample(s) per pixel`);
+  }
   if (bpsList.some((b) => b !== bps)) {
     throw cannot(name, `uses different bit depths per channel (${bpsList.join(', ')})`, 'save it as greyscale with 8, 16 or 32 bit');
   }
@@ -240,11 +267,15 @@ export function decodeTiff(bytes: Uint8Array, name: string): DecodedImage {
   if (compression === 32946) compression = 8; // same zlib stream (TIFF technical note 2)
   const photometric = one(T.photometric, 1);
   if (photometric === 0 || photometric === 1) {
+    const extra = list(T.extraSamples)?.length ?? 0;
+    if (spp !== 1 + extra) throw damaged(`a greyscale image with ${spp} samples per pixel but ${extra} declared extra sample(s)`);
     if (photometric === 0 && format !== 1) {
       throw cannot(name, 'stores signed or float samples with white as zero', 'save it with black as zero (BlackIsZero)');
     }
   } else if (photometric === 2) {
     if (spp < 3) throw damaged(`an RGB image with ${spp} sample(s) per pixel`);
+    const extra = list(T.extraSamples)?.length ?? 0;
+    if (spp !== 3 + extra) throw damaged(`an RGB image with ${spp} samples per pixel but ${extra} declared extra sample(s)`);
   } else if (photometric === 3) {
     if (spp !== 1 || format !== 1 || bps === 32) throw cannot(name, `uses a ${bps}-bit palette`, 'save it as greyscale');
   } else {
@@ -264,16 +295,17 @@ export function decodeTiff(bytes: Uint8Array, name: string): DecodedImage {
   }
   if (predictor !== 1 && predictor !== 2 && predictor !== 3) throw damaged(`unknown predictor ${predictor}`);
   const tiled = dir.numbers.has(T.tileWidth);
-  if (tiled && !dir.littleEndian && bps === 16) {
-    throw cannot(name, 'is a big-endian tiled 16-bit TIFF', 'save it little-endian or with strips');
-  }
 
-  // strip or tile layout, checked against the file size
-  const rowBytes = width * spp * (bps / 8);
+  // strip or tile layout, checked against the file size and against each other
+  const sampleBytes = bps / 8;
+  const rowBytes = width * spp * sampleBytes;
+  const rawBytes = height * rowBytes;
+  if (rawBytes > MAX_RAW_BYTES) {
+    throw new InputError(`${name} holds ${Math.round(rawBytes / 2 ** 20)} MB of pixel data, more than thinfoil reads (${MAX_RAW_BYTES / 2 ** 20} MB); save it as greyscale or crop it first.`);
+  }
   const offsets = list(tiled ? T.tileOffsets : T.stripOffsets);
   const counts = list(tiled ? T.tileByteCounts : T.stripByteCounts);
   let blockCount: number;
-  let blockBytes: number; // uncompressed size of a full strip or tile
   let rowsPerStrip = height;
   let tileWidth = width;
   let tileLength = height;
@@ -281,54 +313,68 @@ export function decodeTiff(bytes: Uint8Array, name: string): DecodedImage {
     tileWidth = one(T.tileWidth);
     tileLength = one(T.tileLength);
     if (tileWidth === 0 || tileLength === 0) throw damaged('the tile size is 0');
+    if (tileWidth > MAX_TILE_SIDE || tileLength > MAX_TILE_SIDE) {
+      throw cannot(name, `uses ${tileWidth} x ${tileLength} pixel tiles (more than ${MAX_TILE_SIDE} on a side)`, 'save it with strips or smaller tiles');
+    }
     blockCount = Math.ceil(width / tileWidth) * Math.ceil(height / tileLength);
-    blockBytes = tileWidth * tileLength * spp * (bps / 8);
   } else {
     rowsPerStrip = Math.min(one(T.rowsPerStrip, height), height);
     if (rowsPerStrip === 0) throw damaged('RowsPerStrip is 0');
     blockCount = Math.ceil(height / rowsPerStrip);
-    blockBytes = rowsPerStrip * rowBytes;
   }
-  if (offsets === undefined || offsets.length < blockCount) throw damaged('the pixel data offsets are missing');
+  const fullBlockBytes = tiled ? tileWidth * tileLength * spp * sampleBytes : rowsPerStrip * rowBytes;
+  if (offsets === undefined || offsets.length < blockCount) {
+    throw damaged(`the image needs ${blockCount} ${tiled ? 'tiles' : 'strips'} but the file locates ${offsets?.length ?? 0}`);
+  }
   if (compression !== 1 && (counts === undefined || counts.length < blockCount)) throw damaged('the pixel data sizes are missing');
+  if (counts !== undefined && counts.length < blockCount) throw damaged('the pixel data sizes are unreadable');
+  /** Bytes block i must decode to: a full tile, or the rows of strip i that lie inside the image. */
+  const needBytes = (i: number): number => (tiled ? fullBlockBytes : Math.min(rowsPerStrip, height - i * rowsPerStrip) * rowBytes);
   for (let i = 0; i < blockCount; i++) {
-    const stored = compression === 1 ? blockBytes : (counts as number[])[i];
-    // the last strip of an uncompressed file may be shorter than a full strip
-    const need = compression === 1 && !tiled && i === blockCount - 1 ? (height - i * rowsPerStrip) * rowBytes : stored;
-    if (offsets[i] + need > bytes.length) throw damaged('the pixel data runs past the end of the file');
+    const need = needBytes(i);
+    let stored: number;
+    if (compression === 1) {
+      stored = need;
+      const declared = counts?.[i];
+      // uncompressed: the declared size must be the geometry's (a short final strip may be stored full size)
+      if (declared !== undefined && declared !== need && !(declared === fullBlockBytes && !tiled)) {
+        throw damaged(
+          `${tiled ? 'tile' : 'strip'} ${i} holds ${declared} bytes but ${width} x ${height} pixels with ${spp} sample(s) of ${bps} bits need ${need}`,
+        );
+      }
+    } else {
+      stored = (counts as number[])[i];
+    }
+    if (!Number.isInteger(offsets[i]) || offsets[i] + stored > bytes.length) throw damaged('the pixel data runs past the end of the file');
   }
 
   const count = width * height * spp;
-  const sampleBytes = bps / 8;
   let raw: Uint8Array;
-  let order16LE = dir.littleEndian;
   if (compression === 1 && !tiled) {
     // uncompressed strips: plain copies, in the file's byte order
-    raw = new Uint8Array(height * rowBytes);
+    raw = new Uint8Array(rawBytes);
     for (let i = 0; i < blockCount; i++) {
       const start = i * rowsPerStrip * rowBytes;
-      const len = Math.min(blockBytes, raw.length - start);
-      raw.set(bytes.subarray(offsets[i], offsets[i] + len), start);
+      raw.set(bytes.subarray(offsets[i], offsets[i] + needBytes(i)), start);
     }
   } else {
-    const layout: Layout = {
+    raw = decodeBlocks(bytes, {
       width,
       height,
       spp,
-      bps,
+      sampleBytes,
       compression,
-      photometric,
       tiled,
       tileWidth,
       tileLength,
       rowsPerStrip,
       offsets,
-      counts: counts ?? new Array<number>(blockCount).fill(blockBytes),
-    };
-    raw = decompressWithUtif(bytes, layout, damaged);
-    order16LE = true; // utif puts 16-bit samples of big-endian files into little-endian order
-    if (raw.length < count * sampleBytes) throw damaged('there is too little pixel data');
+      counts: counts ?? [],
+      needBytes,
+      fullBlockBytes,
+    }, damaged);
   }
+  const order16LE = dir.littleEndian;
 
   const samples = samplesFrom(raw, count, bps, order16LE, dir.littleEndian);
   if (predictor === 2) undoPredictor(samples, width, height, spp, tiled ? tileWidth : width);

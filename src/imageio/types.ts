@@ -15,5 +15,13 @@ export interface DecodedImage {
   pixel_nm?: number;
 }
 
-/** Largest image accepted (2^28 pixels, 1 GiB as Float32). */
-export const MAX_PIXELS = 2 ** 28;
+/**
+ * Largest micrograph accepted: 8192 x 8192 pixels (2^26; 256 MiB as Float32),
+ * at most 32768 pixels on a side, checked from the header before decoding.
+ */
+export const MAX_PIXELS = 8192 * 8192;
+export const MAX_SIDE = 32768;
+/** Largest uncompressed pixel data of a TIFF (all samples), checked before decoding. */
+export const MAX_RAW_BYTES = 512 * 2 ** 20;
+/** Largest micrograph file read (checked on the file's size before reading). */
+export const MAX_FILE_BYTES = 1024 * 2 ** 20;

@@ -3,9 +3,7 @@
  * contrast-stretched PNG for viewing and a 32-bit float TIFF holding the
  * intensity as a fraction of the incident beam.
  */
-import { join } from 'node:path';
 import type { ConditionImages } from '../imaging/renderScenario.js';
-import { writeFileAtomic } from './atomicWrite.js';
 import { autoStretch, encodeGreyPng, stretchToBytes } from './png.js';
 import { encodeFloatTiff } from './tiff.js';
 
@@ -38,21 +36,22 @@ export function imageStats(img: Float32Array): { min: number; max: number; mean:
   return { min, max, mean: sum / img.length };
 }
 
-export function writeConditionImages(dir: string, images: readonly ConditionImages[], scenarioName: string): ImageEntry[] {
+/** Writes one file of the output set by name and returns the path to report (e.g. OutputSet.write). */
+export type SetWriter = (name: string, data: Uint8Array | string) => string;
+
+export function writeConditionImages(write: SetWriter, images: readonly ConditionImages[], scenarioName: string): ImageEntry[] {
   const entries: ImageEntry[] = [];
   for (const ci of images) {
     for (const field of ['bf', 'df'] as const) {
       const img = field === 'bf' ? ci.bf : ci.df;
       const base = `${ci.condition.id}-${field}`;
-      const png = join(dir, `${base}.png`);
-      const tiff = join(dir, `${base}.tif`);
       const stretch = autoStretch(img);
-      writeFileAtomic(png, encodeGreyPng(stretchToBytes(img, stretch.lo, stretch.hi), ci.width, ci.height));
+      const png = write(`${base}.png`, encodeGreyPng(stretchToBytes(img, stretch.lo, stretch.hi), ci.width, ci.height));
       const g = ci.condition.g;
       const description =
         `thinfoil simulation (model, not a measurement): ${scenarioName}; condition ${ci.condition.id}, ` +
         `g = (${g.join(' ')}), ${field === 'bf' ? 'bright field' : 'dark field'}, intensity as a fraction of the incident beam`;
-      writeFileAtomic(tiff, encodeFloatTiff(img, ci.width, ci.height, { pixel_nm: ci.pixel_nm, description }));
+      const tiff = write(`${base}.tif`, encodeFloatTiff(img, ci.width, ci.height, { pixel_nm: ci.pixel_nm, description }));
       const st = imageStats(img);
       entries.push({
         condition: ci.condition.id,

@@ -18,6 +18,25 @@ import { array, fail, isObject, joinPath, number, object, onlyKeys, required, st
 import type { BeamSet, CandidateSpec, Condition, DefectSpec, Deviation, ImageSpec, Scenario } from './types.js';
 import { MAX_PIXELS, MAX_SIDE_PX } from './types.js';
 
+/** Longest scenario name, condition id and defect or candidate label (characters). */
+export const MAX_NAME_CHARS = 200;
+export const MAX_ID_CHARS = 64;
+export const MAX_LABEL_CHARS = 80;
+/** Most conditions and defects in one scenario (render and identify time grow with both). */
+export const MAX_CONDITIONS = 24;
+export const MAX_DEFECTS = 100;
+/** Largest beams x foil thickness (beam-nm) for many-beam conditions: 31 beams through 1 um. */
+export const MAX_BEAM_NM = 31 * 1000;
+/** Smallest pixel accepted (nm): far below atomic spacings, within TIFF's resolution field. */
+export const MIN_PIXEL_NM = 0.01;
+
+/** A non-empty string of at most `max` characters. */
+function shortString(v: unknown, path: string, max: number): string {
+  const s = string(v, path);
+  if (s.length > max) fail(path, `is ${s.length} characters long; give at most ${max}`);
+  return s;
+}
+
 /** Tolerance on g being perpendicular to its beam (degrees). */
 export const PERPENDICULAR_TOLERANCE_DEG = 5;
 
@@ -32,7 +51,7 @@ const TOP_KEYS = [
 export function parseScenario(raw: unknown): Scenario {
   const o = object(raw, '(scenario)');
   onlyKeys(o, TOP_KEYS, '');
-  const name = o.name === undefined ? 'scenario' : string(o.name, 'name');
+  const name = o.name === undefined ? 'scenario' : shortString(o.name, 'name', MAX_NAME_CHARS);
   const material = readMaterial(required(o, 'material', '', '"Ni"'));
   const kV = number(required(o, 'kV', '', '200'), 'kV', { min: 10, max: 3000, unit: 'kV' });
 
@@ -51,7 +70,15 @@ export function parseScenario(raw: unknown): Scenario {
   const absorption = readAbsorption(o.absorption);
 
   const condList = array(required(o, 'conditions', '', '[{ "id": "g200", "g": [2, 0, 0], "s_per_nm": 0 }]'), 'conditions', 1);
+  if (condList.length > MAX_CONDITIONS) fail('conditions', `holds ${condList.length} conditions; give at most ${MAX_CONDITIONS} per scenario`);
+  if (Array.isArray(o.defects) && o.defects.length > MAX_DEFECTS) fail('defects', `holds ${o.defects.length} defects; give at most ${MAX_DEFECTS} per scenario`);
   const conditions = condList.map((c, i) => readCondition(c, joinPath('conditions', i), material, beam, foilNormal, kV, absorption));
+  conditions.forEach((c, i) => {
+    const n = c.beams.kind === 'row' ? c.beams.nMax - c.beams.nMin + 1 : c.beams.kind === 'set' ? c.beams.beams.length + 1 : 2;
+    if (n > 2 && n * thickness_nm > MAX_BEAM_NM) {
+      fail(joinPath(joinPath('conditions', i), 'beams'), `${n} beams through ${thickness_nm} nm exceed the limit of ${MAX_BEAM_NM} beam-nm (31 beams through 1 um); use fewer beams or a thinner foil`);
+    }
+  });
   const ids = new Set<string>();
   conditions.forEach((c, i) => {
     if (ids.has(c.id)) fail(joinPath(joinPath('conditions', i), 'id'), `"${c.id}" is used twice; give every condition its own id`);
@@ -92,7 +119,7 @@ function readImage(v: unknown): ImageSpec {
   onlyKeys(o, ['width_px', 'height_px', 'pixel_nm'], 'image');
   const width_px = number(required(o, 'width_px', 'image', '256'), 'image.width_px', { integer: true, min: 1, max: MAX_SIDE_PX, unit: 'pixels' });
   const height_px = number(required(o, 'height_px', 'image', '256'), 'image.height_px', { integer: true, min: 1, max: MAX_SIDE_PX, unit: 'pixels' });
-  const pixel_nm = number(required(o, 'pixel_nm', 'image', '0.5'), 'image.pixel_nm', { above: 0, max: 1000, unit: 'nm' });
+  const pixel_nm = number(required(o, 'pixel_nm', 'image', '0.5'), 'image.pixel_nm', { min: MIN_PIXEL_NM, max: 1000, unit: 'nm' });
   if (width_px * height_px > MAX_PIXELS) {
     fail('image', `${width_px} x ${height_px} pixels exceeds the limit of ${MAX_PIXELS} pixels (2048 x 2048); use fewer, larger pixels`);
   }
@@ -185,7 +212,7 @@ function readAbsorption(v: unknown): AbsorptionSetting {
 function readCondition(v: unknown, path: string, m: Material, refBeam: Vec3, foilNormal: Vec3, kV: number, absorption: AbsorptionSetting): Condition {
   const o = object(v, path);
   onlyKeys(o, ['id', 'g', 's_per_nm', 'w', 'beam', 'beams', 'weakBeam'], path);
-  const id = string(required(o, 'id', path, '"g200"'), joinPath(path, 'id'));
+  const id = shortString(required(o, 'id', path, '"g200"'), joinPath(path, 'id'), MAX_ID_CHARS);
   if (!/^[A-Za-z0-9_.-]+$/.test(id)) fail(joinPath(path, 'id'), `"${id}" is used in file names; use only letters, digits, "-", "_" and "."`);
   const g = readPlane(required(o, 'g', path, '[2, 0, 0]'), joinPath(path, 'g'), m);
   if (norm(g) === 0) fail(joinPath(path, 'g'), 'must not be 000; give the reflection used for imaging, e.g. [2, 0, 0]');
@@ -237,7 +264,7 @@ function readDefect(v: unknown, path: string, m: Material, thickness_nm: number,
   const o = object(v, path);
   const type = string(required(o, 'type', path, '"dislocation"'), joinPath(path, 'type'));
   const at = (k: string) => joinPath(path, k);
-  const label = (kind: string) => (o.label === undefined ? `${kind} ${path}` : string(o.label, at('label')));
+  const label = (kind: string) => (o.label === undefined ? `${kind} ${path}` : shortString(o.label, at('label'), MAX_LABEL_CHARS));
   const core = () => (o.core_nm === undefined ? {} : { core_nm: number(o.core_nm, at('core_nm'), { above: 0, max: 10, unit: 'nm' }) });
   const burgers = (example: string) => {
     const b = readVector(required(o, 'b', path, `"${example}"`), at('b'), m);
@@ -290,6 +317,9 @@ function readDefect(v: unknown, path: string, m: Material, thickness_nm: number,
       const sep = o.separation_nm === undefined ? {} : { separation_nm: number(o.separation_nm, at('separation_nm'), { above: 0, max: 1000, unit: 'nm' }) };
       if (o.separation_nm === undefined && m.stackingFaultEnergy_mJ_per_m2 === undefined) {
         fail(at('separation_nm'), `is needed because material "${m.name}" has no stacking-fault energy; give the partial separation in nm`);
+      }
+      if (o.separation_nm === undefined && !((m.stackingFaultEnergy_mJ_per_m2 ?? 0) >= 1)) {
+        fail(at('separation_nm'), `is needed because the stacking-fault energy of "${m.name}" is ${m.stackingFaultEnergy_mJ_per_m2} mJ/m^2 (below 1), so the partials would part without bound; give the partial separation in nm or a positive energy`);
       }
       return { type, label: label('dissociated dislocation'), b, plane, line, point_nm: readPoint(o.point_nm, at('point_nm'), thickness_nm), ...sep, ...core() };
     }
@@ -375,7 +405,7 @@ function readCandidates(v: unknown, path: string, m: Material): CandidateSpec[] 
   const b = readVector(required(o, 'b', path, '"1/2[1 1 0]"'), joinPath(path, 'b'), m);
   if (norm(b) === 0) fail(joinPath(path, 'b'), 'is zero; give a nonzero Burgers vector');
   const line = o.line === undefined ? undefined : readDirection(o.line, joinPath(path, 'line'), m);
-  const label = o.label === undefined ? `b = ${formatVector(b)}` : string(o.label, joinPath(path, 'label'));
+  const label = o.label === undefined ? `b = ${formatVector(b)}` : shortString(o.label, joinPath(path, 'label'), MAX_LABEL_CHARS);
   return [line === undefined ? { label, b } : { label, b, line }];
 }
 

@@ -85,7 +85,7 @@ describe('thinfoil reflection', () => {
     [['reflection', 'Al', '1,1,1', '--kv', 'abc'], /--kv/],
     [['reflection', 'Al', '1,1,1', '--kv', '5000'], /--kv/],
     [['reflection', 'Al', '1,1,1', '--kv', '0x10'], /--kv/],
-    [['reflection', 'Cu', '500,0,0'], /beyond the range/],
+    [['reflection', 'Cu', '500,0,0'], /exceed 100 in magnitude/],
     [['bloch', 'Cu', '2,0,0', '--s', '1e308'], /--s/],
     [['reflection', 'Al', '{111}'], /^thinfoil: reflection indices: "\{111\}" is a family .*one plane .*"\(111\)"/],
   ])('bad input %j: exit code 2, one clear sentence', (args, pattern) => {

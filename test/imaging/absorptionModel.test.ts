@@ -11,6 +11,7 @@ import { mkdtempSync, readFileSync, rmSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { describe, expect, it } from 'vitest';
+import { OutputSet } from '../../src/output/outputSet.js';
 import { renderAndWrite } from '../../src/cli/renderCommand.js';
 import { scenario } from './helpers.js';
 import { resolveCondition } from '../../src/imaging/resolveCondition.js';
@@ -122,7 +123,9 @@ describe('render.json names the absorption used', () => {
     const dir = mkdtempSync(join(tmpdir(), 'thinfoil-abs-'));
     try {
       const sc = scenario({ absorption: given, image: { width_px: 4, height_px: 4, pixel_nm: 1 } });
-      await renderAndWrite(sc, dir, false);
+      const set = OutputSet.begin(dir);
+      await renderAndWrite(sc, set, false);
+      set.commit();
       const j = JSON.parse(readFileSync(join(dir, 'render.json'), 'utf8'));
       expect(j.absorption.setting).toBe(setting);
       expect(j.absorption.model).toMatch(text);
