@@ -44,7 +44,7 @@ export async function demoCommand(opts: { out?: string }): Promise<void> {
   process.stdout.write(`\nvisibility (g.b rule of thumb):\n${visText}`);
   for (const d of sc.defects) {
     if (d.type === 'dissociated') {
-      process.stdout.write(`\n${d.label}: partial separation ${sig(dissociationWidth_nm(sc.material, d), 3)} nm (isotropic equilibrium width for ${sc.material.stackingFaultEnergy_mJ_per_m2} mJ/m^2)\n`);
+      process.stdout.write(`\n${d.label}: partial separation ${sig(dissociationWidth_nm(sc.material, d, undefined, sc.elasticity), 3)} nm (${sc.elasticity} equilibrium width for ${sc.material.stackingFaultEnergy_mJ_per_m2} mJ/m^2)\n`);
     }
   }
   const fr = faultReport(sc);

@@ -9,6 +9,7 @@ import { loadScenario } from './loadScenario.js';
 import { scenarioWarnings } from '../analysis/scenarioWarnings.js';
 import { printJson, sig, table } from './run.js';
 import { progressBar } from './progress.js';
+import { describeElasticity } from '../elasticity/elasticityNote.js';
 
 export interface RenderOptions {
   out?: string;
@@ -34,10 +35,12 @@ export async function renderAndWrite(sc: Scenario, dir: string, showProgress: bo
   }
   const seconds = (performance.now() - t0) / 1000;
   const entries = writeConditionImages(dir, images, sc.name);
+  const el = describeElasticity(sc);
   const summary = {
     scenario: sc.name,
-    note: 'Simulated images (column approximation, isotropic elasticity); a model, not a measurement.',
+    note: `Simulated images (column approximation, ${el.model} elasticity); a model, not a measurement.`,
     material: sc.material.name,
+    elasticity: el,
     kV: sc.kV,
     thickness_nm: sc.thickness_nm,
     conditions: images.map((ci) => conditionSummary(ci)),

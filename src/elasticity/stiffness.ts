@@ -118,3 +118,12 @@ export function isotropicVoigt(G: number, nu: number): number[] {
   const lambda = (2 * G * nu) / (1 - 2 * nu);
   return voigtStiffness({ C11: lambda + 2 * G, C12: lambda, C44: G }, 'cubic');
 }
+
+/** The Voigt stiffness (GPa) of a material from its Cij (cubic or hexagonal lattice; the x3 axis along c). */
+export function materialStiffness(m: { readonly name: string; readonly lattice: { readonly system: string }; readonly elastic: { readonly cij_GPa: object } }): number[] {
+  const sym = m.lattice.system;
+  if (sym !== 'cubic' && sym !== 'hexagonal' && sym !== 'tetragonal' && sym !== 'orthorhombic') {
+    throw new InputError(`material ${m.name}: no stiffness matrix for a ${sym} lattice; use "elasticity": "isotropic".`);
+  }
+  return voigtStiffness(m.elastic.cij_GPa as Record<string, number>, sym, `material ${m.name} elastic.cij_GPa`);
+}

@@ -14,14 +14,14 @@ import { constrainedStrain } from '../elasticity/inclusion.js';
 import { parseFamily } from '../crystal/symmetry.js';
 import { InputError } from '../errors.js';
 import { array, fail, isObject, joinPath, number, object, onlyKeys, required, string } from './check.js';
-import type { BeamSet, CandidateSpec, Condition, DefectSpec, Deviation, ImageSpec, Scenario } from './types.js';
+import type { BeamSet, CandidateSpec, Condition, DefectSpec, Deviation, Elasticity, ImageSpec, Scenario } from './types.js';
 import { MAX_PIXELS, MAX_SIDE_PX } from './types.js';
 
 /** Tolerance on g being perpendicular to its beam (degrees). */
 export const PERPENDICULAR_TOLERANCE_DEG = 5;
 
 const TOP_KEYS = [
-  'name', 'material', 'kV', 'foil', 'beam', 'imageX', 'image', 'absorption', 'conditions', 'defects', 'candidates', 'description',
+  'name', 'material', 'kV', 'foil', 'beam', 'imageX', 'image', 'absorption', 'elasticity', 'conditions', 'defects', 'candidates', 'description',
   // settings of micrographs, read by `thinfoil identify` (src/analysis/identifySettings.ts)
   'micrographs',
 ] as const;
@@ -46,6 +46,8 @@ export function parseScenario(raw: unknown): Scenario {
 
   const image = readImage(o.image);
   const absorption = o.absorption === undefined ? 0.1 : number(o.absorption, 'absorption', { min: 0, max: 1, unit: "xi_g / xi'_g" });
+
+  const elasticity = readElasticity(o.elasticity);
 
   const condList = array(required(o, 'conditions', '', '[{ "id": "g200", "g": [2, 0, 0], "s_per_nm": 0 }]'), 'conditions', 1);
   const conditions = condList.map((c, i) => readCondition(c, joinPath('conditions', i), material, beam, foilNormal, kV, absorption));
@@ -73,7 +75,14 @@ export function parseScenario(raw: unknown): Scenario {
   const defects = o.defects === undefined ? [] : array(o.defects, 'defects').map((d, i) => readDefect(d, joinPath('defects', i), material, thickness_nm, beam));
   const candidates = o.candidates === undefined ? [] : array(o.candidates, 'candidates').flatMap((c, i) => readCandidates(c, joinPath('candidates', i), material));
 
-  return { name, material, kV, thickness_nm, foilNormal, beam, imageX_cart, image, absorption, conditions, defects, candidates };
+  return { name, material, kV, thickness_nm, foilNormal, beam, imageX_cart, image, absorption, elasticity, conditions, defects, candidates };
+}
+
+/** "elasticity": "anisotropic" (default: every material carries its Cij) or "isotropic". */
+function readElasticity(v: unknown): Elasticity {
+  if (v === undefined) return 'anisotropic';
+  if (v === 'anisotropic' || v === 'isotropic') return v;
+  return fail('elasticity', `must be "anisotropic" (Stroh solution from the material's Cij, the default) or "isotropic" (Hirth & Lothe closed form), got ${JSON.stringify(v)}`);
 }
 
 function readMaterial(v: unknown): Material {

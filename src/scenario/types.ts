@@ -119,6 +119,8 @@ export interface ImageSpec {
   readonly pixel_nm: number;
 }
 
+export type Elasticity = 'anisotropic' | 'isotropic';
+
 export interface Scenario {
   readonly name: string;
   readonly material: Material;
@@ -133,6 +135,12 @@ export interface Scenario {
   readonly image: ImageSpec;
   /** xi_g / xi'_g. */
   readonly absorption: number;
+  /**
+   * Elastic solution for straight dislocations (and partials, ribbons):
+   * "anisotropic" (Stroh, from the material's Cij; the default) or
+   * "isotropic" (Hirth & Lothe closed form with the Voigt-Reuss-Hill G, nu).
+   */
+  readonly elasticity: Elasticity;
   readonly conditions: readonly Condition[];
   readonly defects: readonly DefectSpec[];
   readonly candidates: readonly CandidateSpec[];
