@@ -463,6 +463,10 @@ function lnDiff2(ar: number, ai: number, br: number, bi: number, cr: number, ci:
   S[1] = (yi * er - yr * ei) / e2;
 }
 
+// scratch of applyLog (no allocation per call; not re-entrant, JS runs one call at a time per thread)
+const LZR = new Float64Array(3), LZI = new Float64Array(3), LFR = new Float64Array(9), LFI = new Float64Array(9);
+const LYR = new Float64Array(3), LYI = new Float64Array(3);
+
 /**
  * v = A ln(x1 I + x2 T3) c (complex 3-vector into out[0..5] as re, im pairs)
  * for complex x1, x2 such that all x1 + x2 p lie in one open half-plane.
@@ -472,7 +476,11 @@ function applyLog(
   x1r: number, x1i: number, x2r: number, x2i: number,
   tr: Float64Array, ti: Float64Array, ar: Float64Array, ai: Float64Array, cr: Float64Array, ci: Float64Array, diagonal: boolean,
 ): void {
-  const zr = [0, 0, 0], zi = [0, 0, 0], Fr = new Float64Array(9), Fi = new Float64Array(9);
+  const zr = LZR, zi = LZI, Fr = LFR, Fi = LFI;
+  if (!diagonal) {
+    Fr.fill(0);
+    Fi.fill(0);
+  }
   for (let k = 0; k < 3; k++) {
     const pr = tr[k * 4], pi = ti[k * 4];
     zr[k] = x1r + x2r * pr - x2i * pi;
@@ -500,12 +508,15 @@ function applyLog(
     Fi[2] += kr * S[1] + ki * S[0];
   }
   // y = F c, out = A y
-  const yr = [0, 0, 0], yi = [0, 0, 0];
-  for (let i = 0; i < 3; i++)
-    for (let j = i; j < 3; j++) {
+  const yr = LYR, yi = LYI;
+  for (let i = 0; i < 3; i++) {
+    yr[i] = 0;
+    yi[i] = 0;
+    for (let j = i; j < (diagonal ? i + 1 : 3); j++) {
       yr[i] += Fr[i * 3 + j] * cr[j] - Fi[i * 3 + j] * ci[j];
       yi[i] += Fr[i * 3 + j] * ci[j] + Fi[i * 3 + j] * cr[j];
     }
+  }
   for (let i = 0; i < 3; i++) {
     let sr = 0, si = 0;
     for (let j = 0; j < 3; j++) {
@@ -680,6 +691,8 @@ export function anisotropicDislocation(opts: AnisotropicDislocationOptions): Dis
     v[2] = v[5] * INV_PI + O2;
   };
 
+  const B0 = Float64Array.of(B0x, B0y, B0z);
+  const bb = Float64Array.of(bx, by, bz);
   const fullGradient = (out: Float64Array, x: number, yy: number, z: number): void => {
     const dx = x - px, dy = yy - py, dz = z - pz;
     const x1 = mx * dx + my * dy + mz * dz;
@@ -706,8 +719,6 @@ export function anisotropicDislocation(opts: AnisotropicDislocationOptions): Dis
     const gx = 2 * (x1 * mx + x2 * nx), gy = 2 * (x1 * my + x2 * ny), gz = 2 * (x1 * mz + x2 * nz);
     const cq = mq / q; // grad ln q = cq grad rho^2
     const cf = (q - r2 * mq) / (q * q); // grad f = cf grad rho^2
-    const B0 = [B0x, B0y, B0z];
-    const bb = [bx, by, bz];
     for (let i = 0; i < 3; i++) {
       // smooth angular part Psi = Phi - b theta/2pi, Phi = R_sing - B0 ln rho^2
       const psi = v[i] - B0[i] * lnr2 - bb[i] * theta * INV_2PI;
@@ -772,19 +783,41 @@ export function anisotropicDislocation(opts: AnisotropicDislocationOptions): Dis
         const s0r = (rr[0] * c0r - ri[0] * c0i) * INV_PI, s0i = (rr[0] * c0i + ri[0] * c0r) * INV_PI;
         const s1r = (rr[1] * c1r - ri[1] * c1i) * INV_PI, s1i = (rr[1] * c1i + ri[1] * c1r) * INV_PI;
         const s2r = (rr[2] * c2r - ri[2] * c2i) * INV_PI, s2i = (rr[2] * c2i + ri[2] * c2r) * INV_PI;
+        // core only: g.R_sing = sum Im(w_a ln z_a) + g.offset, w_a = (g^T A)_a c_a / pi
+        const ga = [0, 0, 0], gai = [0, 0, 0];
+        for (let a = 0; a < 3; a++) for (let i = 0; i < 3; i++) {
+          ga[a] += g[i] * aRe[i * 3 + a];
+          gai[a] += g[i] * aIm[i * 3 + a];
+        }
+        const w0r = (ga[0] * c0r - gai[0] * c0i) * INV_PI, w0i = (ga[0] * c0i + gai[0] * c0r) * INV_PI;
+        const w1r = (ga[1] * c1r - gai[1] * c1i) * INV_PI, w1i = (ga[1] * c1i + gai[1] * c1r) * INV_PI;
+        const w2r = (ga[2] * c2r - gai[2] * c2i) * INV_PI, w2i = (ga[2] * c2i + gai[2] * c2r) * INV_PI;
+        const gB0 = g0 * B0x + g1 * B0y + g2 * B0z;
+        const gb = g0 * bx + g1 * by + g2 * bz;
+        const gO = g0 * O0 + g1 * O1 + g2 * O2;
         return (x, yy, z) => {
           const dx = x - px, dy = yy - py, dz = z - pz;
           const x1 = mx * dx + my * dy + mz * dz;
           const x2 = nx * dx + ny * dy + nz * dz;
-          if (x1 * x1 + x2 * x2 < rm2) return core(x1, x2, x, yy, z);
+          const r2 = x1 * x1 + x2 * x2;
           const z0r = x1 + x2 * p0r, z0i = x2 * p0i;
           const z1r = x1 + x2 * p1r, z1i = x2 * p1i;
           const z2r = x1 + x2 * p2r, z2i = x2 * p2i;
-          return (
-            (s0i * z0r - s0r * z0i) / (z0r * z0r + z0i * z0i) +
-            (s1i * z1r - s1r * z1i) / (z1r * z1r + z1i * z1i) +
-            (s2i * z2r - s2r * z2i) / (z2r * z2r + z2i * z2i)
-          );
+          const a0 = z0r * z0r + z0i * z0i, a1 = z1r * z1r + z1i * z1i, a2 = z2r * z2r + z2i * z2i;
+          if (r2 >= rm2) return (s0i * z0r - s0r * z0i) / a0 + (s1i * z1r - s1r * z1i) / a1 + (s2i * z2r - s2r * z2i) / a2;
+          // inside the core: the same terms as fullGradient, contracted with g and k
+          if (r2 === 0) return 0;
+          const sing = (s0i * z0r - s0r * z0i) / a0 + (s1i * z1r - s1r * z1i) / a1 + (s2i * z2r - s2r * z2i) / a2;
+          const gR =
+            0.5 * (w0i * Math.log(a0) + w1i * Math.log(a1) + w2i * Math.log(a2)) +
+            w0r * Math.atan2(z0i, z0r) + w1r * Math.atan2(z1i, z1r) + w2r * Math.atan2(z2i, z2r) + gO;
+          const o = 1 - r2 / rm2;
+          const q = r2 + rc2 * o * o * o;
+          const mq = 1 - 3 * rcm * o * o;
+          const f = r2 / q;
+          const psi = gR - gB0 * Math.log(r2) - gb * (phiD + Math.atan2(x2, x1)) * INV_2PI;
+          const kr = 2 * (x1 * mk + x2 * nk); // grad(rho^2) . k
+          return f * sing + kr * (gB0 * (mq / q) - (f * gB0) / r2 + psi * ((q - r2 * mq) / (q * q)));
         };
       }
       const r0r = rr[0] * INV_PI, r0i = ri[0] * INV_PI, r1r = rr[1] * INV_PI, r1i = ri[1] * INV_PI, r2r = rr[2] * INV_PI, r2i = ri[2] * INV_PI;

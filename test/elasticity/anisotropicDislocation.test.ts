@@ -109,7 +109,7 @@ describe('anisotropic dislocation: isotropic limit (Hirth & Lothe 1982 ch. 3 clo
 });
 
 describe('anisotropic dislocation: the diagonal and the degenerate-safe (triangular) evaluation agree on both sides of the threshold', () => {
-  it('Cu, alpha-Fe, Zn, random lines: forced triangular form = diagonal form to 1e-11', () => {
+  it('Cu, alpha-Fe, Zn, random lines: forced triangular form = diagonal form to 1e-11, core included', () => {
     const r = rng(31);
     for (const V of [CU, FE, ZN]) {
       for (let i = 0; i < 4; i++) {
@@ -118,6 +118,12 @@ describe('anisotropic dislocation: the diagonal and the degenerate-safe (triangu
         expect(anisotropicLine(opts).modes.diagonal).toBe(true);
         const pts: Vec3[] = [];
         for (let k = 0; k < 40; k++) pts.push(randomPoint(r, 4));
+        // and points inside the modified core (rho < 2 |b| = 0.5 nm), where the directional fast path has its own branch
+        const e1 = perp(u, r), e2 = cross(unitOf(u), e1);
+        for (let k = 0; k < 40; k++) {
+          const rho = 0.5 * r(), ang = 2 * Math.PI * r(), s = 2 * r() - 1;
+          pts.push([0, 1, 2].map((i) => P[i] + rho * (Math.cos(ang) * e1[i] + Math.sin(ang) * e2[i]) + s * u[i]) as unknown as Vec3);
+        }
         const d = fieldDiff(anisotropicDislocation(opts), anisotropicDislocation({ ...opts, forceTriangular: true }), pts, [2, 0, -1], unitOf([1, 1, 3]));
         expect(Math.max(d.d, d.g, d.dir)).toBeLessThan(1e-11);
       }
