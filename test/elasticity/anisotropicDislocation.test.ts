@@ -9,6 +9,9 @@ import { anisotropicRibbonWidth_nm, ribbonWidth_nm } from '../../src/elasticity/
 import type { DisplacementField } from '../../src/elasticity/field.js';
 import { fdGradient, maxAbs, maxAbsDiff, polygonIntegral, randomUnit, rng } from './helpers.js';
 import { runPython } from '../crystal/pythonReference.js';
+import { listMaterials } from '../../src/crystal/materials.js';
+import { materialStiffness } from '../../src/elasticity/stiffness.js';
+import { directionToCartesian } from '../../src/crystal/lattice.js';
 
 // Library constants (data/materials.json, Simmons & Wang 1971; from memory there)
 const CU = voigtStiffness({ C11: 168.4, C12: 121.4, C44: 75.4 }, 'cubic');
@@ -343,6 +346,33 @@ describe('anisotropic dislocation: independent Stroh implementation (scripts/ref
     const out = runPython<RefCase[]>(code, cases);
     if (out === null) return ctx.skip('python3 with numpy is not available');
     compare(out);
+  });
+});
+
+describe('anisotropic dislocation: every library material (data/materials.json)', () => {
+  it('has Cij with a named source, and gives a finite field whose Burgers circuit closes to b for symmetry axes and random lines', () => {
+    const r = rng(77);
+    for (const m of listMaterials()) {
+      expect(m.sources.elastic, m.name).toMatch(/\w/);
+      const V = materialStiffness(m);
+      const dirs: Vec3[] = m.lattice.system === 'hexagonal' ? [[0, 0, 1], [1, 0, 0], [1, 1, 0], [1, 0, 1]] : [[0, 0, 1], [1, 1, 0], [1, 1, 1], [1, 1, 2]];
+      const lines = [...dirs.map((d) => directionToCartesian(m.lattice, d)), randomUnit(r)];
+      for (const u of lines) {
+        const b = scale(randomUnit(r), 0.25);
+        const f = anisotropicDislocation({ b_nm: b, line: u, point_nm: [0, 0, 0], stiffness_GPa: V });
+        const e1 = perp(u, r), e2 = cross(unitOf(u), e1);
+        const verts = [[-2, -2], [2, -2], [2, 2], [-2, 2]].map(([s, t]) => [0, 1, 2].map((i) => s * e1[i] + t * e2[i]) as unknown as Vec3);
+        const got = polygonIntegral(f, verts, 16, 12);
+        expect(maxAbsDiff(got, b), `${m.name} line ${u.map((x) => x.toFixed(3)).join(' ')}`).toBeLessThan(1e-9);
+        const o = new Float64Array(9);
+        for (const x of [[0, 0, 0], [0.1, 0.05, 0], [1, 2, 3]] as Vec3[]) {
+          f.displacement(o, x[0], x[1], x[2]);
+          expect(o.subarray(0, 3).every(Number.isFinite)).toBe(true);
+          f.gradient(o, x[0], x[1], x[2]);
+          expect(o.every(Number.isFinite)).toBe(true);
+        }
+      }
+    }
   });
 });
 
