@@ -37,7 +37,7 @@
  * series), so it is exact to rounding at any degeneracy. When the three p are
  * well separated (relative gap > DIAGONAL_GAP) the triangular block is
  * diagonalised once per line and the classic sum over three modes is used.
- * The energy-factor matrix (Hirth & Lothe eq. 13-?: E/L = b.K.b/(4 pi) ln(R/r0))
+ * The energy-factor matrix (Hirth & Lothe ch. 13: E/L = b.K.b/(4 pi) ln(R/r0))
  * is K = 2 Im B G^-1 B^T, also free of eigenvectors.
  *
  * Constant of the displacement (a rigid translation, irrelevant to images but
