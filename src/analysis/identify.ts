@@ -25,6 +25,7 @@ import { gaussianBlur, removePlane } from './preprocess.js';
 import { blockResample, correlationLength, decide, DEFAULT_SIGMAS, DEFAULT_SPREAD, fitAmplitudes, pairStats, type PairStats, type Verdict } from './ranking.js';
 import { DEFAULT_MAX_ROTATION_DEG, DEFAULT_MAX_SCALE, createCorrelator, extractWindow, findPeak, register, type Correlator, type PreparedTemplate, type RegistrationOptions, type RegistrationResult } from './registration.js';
 import { flipRowsView, imageView, toFloat64 } from '../imaging/imageView.js';
+import { describeElasticity } from '../elasticity/elasticityNote.js';
 
 /** Renders a scenario (one condition) into its images; the CLI passes renderScenario with one shared pool. */
 export type Renderer = (sc: Scenario) => Promise<readonly ConditionImages[]>;
@@ -72,6 +73,8 @@ export interface RankedCandidate {
 
 export interface IdentifyResult {
   readonly scenario: string;
+  /** The elasticity the simulations used, in one sentence (src/elasticity/elasticityNote.ts). */
+  readonly elasticity: string;
   readonly defectIndex: number;
   readonly defectLabel: string;
   readonly micrographs: readonly PreparedMicrograph[];
@@ -207,6 +210,7 @@ export async function identify(sc: Scenario, micrographs: readonly PreparedMicro
     : '';
   return {
     scenario: sc.name,
+    elasticity: describeElasticity(sc).text,
     defectIndex,
     defectLabel: sc.defects[defectIndex].label,
     micrographs,

@@ -58,7 +58,7 @@ async function demoMain(sc: ReturnType<typeof parseScenario>, set: OutputSet): P
   process.stdout.write(`\nvisibility (simulated strip across each line, g.b rule beside it):\n${visText}`);
   for (const d of sc.defects) {
     if (d.type === 'dissociated') {
-      process.stdout.write(`\n${d.label}: partial separation ${sig(dissociationWidth_nm(sc.material, d), 3)} nm (isotropic equilibrium width for ${sc.material.stackingFaultEnergy_mJ_per_m2} mJ/m^2)\n`);
+      process.stdout.write(`\n${d.label}: partial separation ${sig(dissociationWidth_nm(sc.material, d, undefined, sc.elasticity), 3)} nm (${sc.elasticity} equilibrium width for ${sc.material.stackingFaultEnergy_mJ_per_m2} mJ/m^2)\n`);
     }
   }
   const fr = faultReport(sc);

@@ -17,6 +17,7 @@ import { conditionFigure, contactSheet, contrastNote, displayWindows, type Contr
 import { conditionGeometry, planeText } from '../geometry/conditionGeometry.js';
 import { blurImages } from '../analysis/pointSpread.js';
 import { describeAbsorption } from '../scattering/absorption.js';
+import { describeElasticity } from '../elasticity/elasticityNote.js';
 
 export interface RenderOptions {
   out?: string;
@@ -85,10 +86,12 @@ export async function renderAndWrite(
   images.forEach((ci, i) => writeFigure(`${ci.condition.id}-figure`, conditionFigure(ci, geometries[i], windows[i], note, sc.name)));
   writeFigure('contact-sheet', contactSheet(images, geometries, windows, note, sc.name));
   const masks = images.map((ci) => writeCoreMask(set, ci));
+  const el = describeElasticity(sc);
   const summary = {
     scenario: sc.name,
-    note: 'Simulated images (column approximation, isotropic elasticity); a model, not a measurement.',
+    note: `Simulated images (column approximation, ${el.model} elasticity); a model, not a measurement.`,
     material: sc.material.name,
+    elasticity: el,
     kV: sc.kV,
     thickness_nm: sc.thickness_nm,
     absorption: { setting: sc.absorption, model: describeAbsorption(sc.absorption) },

@@ -296,12 +296,21 @@ function hessenbergToSchur(n: number, hr: Float64Array, hi: Float64Array, zr: Fl
   }
 }
 
+/** Complex Schur form A = Z T Z^H: T upper triangular, Z unitary (both row-major n x n). */
+export interface ComplexSchurResult {
+  readonly n: number;
+  readonly tRe: Float64Array;
+  readonly tIm: Float64Array;
+  readonly zRe: Float64Array;
+  readonly zIm: Float64Array;
+}
+
 /**
- * Eigenvalues and right eigenvectors of the complex n x n matrix (aRe, aIm)
- * (row-major; not modified). Eigenvalues are returned in the order in which
- * they appear on the diagonal of the Schur form (no sorting).
+ * Complex Schur decomposition of the n x n matrix (aRe, aIm) (row-major; not
+ * modified): steps 1 and 2 above. The eigenvalues are the diagonal of T in no
+ * particular order.
  */
-export function complexEigen(n: number, aRe: Float64Array, aIm: Float64Array): ComplexEigenResult {
+export function complexSchur(n: number, aRe: Float64Array, aIm: Float64Array): ComplexSchurResult {
   if (!Number.isInteger(n) || n < 1) throw new RangeError(`complexEigen: n must be a positive integer, got ${n}`);
   if (aRe.length < n * n || aIm.length < n * n) throw new RangeError('complexEigen: matrix arrays are shorter than n*n');
   const hr = Float64Array.from(aRe.subarray(0, n * n));
@@ -315,6 +324,16 @@ export function complexEigen(n: number, aRe: Float64Array, aIm: Float64Array): C
   const zi = new Float64Array(n * n);
   toHessenberg(n, hr, hi, zr, zi);
   hessenbergToSchur(n, hr, hi, zr, zi);
+  return { n, tRe: hr, tIm: hi, zRe: zr, zIm: zi };
+}
+
+/**
+ * Eigenvalues and right eigenvectors of the complex n x n matrix (aRe, aIm)
+ * (row-major; not modified). Eigenvalues are returned in the order in which
+ * they appear on the diagonal of the Schur form (no sorting).
+ */
+export function complexEigen(n: number, aRe: Float64Array, aIm: Float64Array): ComplexEigenResult {
+  const { tRe: hr, tIm: hi, zRe: zr, zIm: zi } = complexSchur(n, aRe, aIm);
 
   const valuesRe = new Float64Array(n);
   const valuesIm = new Float64Array(n);

@@ -32,6 +32,7 @@ import { type Vec3, add, cross, dot, norm, scale, sub } from '../math/vec3.js';
 import { InputError } from '../errors.js';
 import { type Lattice, directionToCartesian, planeNormalToCartesian } from '../crystal/lattice.js';
 import { nonZeroVec3, poisson, positive } from './checks.js';
+import { energyFactorMatrix } from './anisotropicDislocation.js';
 
 export interface ShockleySplitOptions {
   /** Conventional cubic cell of the fcc crystal. */
@@ -167,4 +168,27 @@ export function ribbonWidth_nm(
  */
 export function ribbonPartialPoints(pair: ShockleyPair, centre_nm: Vec3, width_nm: number): [Vec3, Vec3] {
   return [add(centre_nm, scale(pair.ribbonDirection, -width_nm / 2)), add(centre_nm, scale(pair.ribbonDirection, width_nm / 2))];
+}
+
+/**
+ * Equilibrium separation (nm) of two parallel partials in an anisotropic
+ * crystal (Hirth & Lothe 1982, ch. 13): the interaction energy per unit length
+ * of two parallel straight dislocations is -(b1.K.b2 / 2 pi) ln r + a function
+ * of the angle only, so the force along the line joining them (here the glide
+ * direction in the common plane) is b1.K.b2 / (2 pi d), K the energy-factor
+ * matrix of the line direction (anisotropicDislocation.ts). Balanced by the
+ * fault energy gamma: d = b1.K.b2 / (2 pi gamma). In the isotropic limit
+ * K = G (u u) + G/(1-nu) (I - u u), which is `ribbonWidth_nm`.
+ */
+export function anisotropicRibbonWidth_nm(b1_nm: Vec3, b2_nm: Vec3, u: Vec3, stiffness_GPa: readonly number[], sfe_mJ_per_m2: number): number {
+  const gamma = positive(sfe_mJ_per_m2, 'stackingFaultEnergy_mJ_per_m2', 'give the intrinsic stacking-fault energy in mJ/m^2');
+  const b1 = nonZeroVec3(b1_nm, 'partial b1_nm');
+  const b2 = nonZeroVec3(b2_nm, 'partial b2_nm');
+  const K = energyFactorMatrix(stiffness_GPa, nonZeroVec3(u, 'line direction'));
+  let s = 0;
+  for (let i = 0; i < 3; i++) for (let j = 0; j < 3; j++) s += b1[i] * K[i * 3 + j] * b2[j];
+  if (!(s > 0)) {
+    throw new InputError('these partials attract each other, so no ribbon of finite width is in equilibrium; check b1, b2 and the line direction.');
+  }
+  return (1e3 * s) / (2 * Math.PI * gamma);
 }

@@ -120,6 +120,8 @@ export interface ImageSpec {
   readonly pixel_nm: number;
 }
 
+export type Elasticity = 'anisotropic' | 'isotropic';
+
 export interface Scenario {
   readonly name: string;
   readonly material: Material;
@@ -134,6 +136,12 @@ export interface Scenario {
   readonly image: ImageSpec;
   /** "thermal-diffuse" (absorption per beam from the Debye-Waller factors, the default) or a constant ratio xi_g / xi'_g. */
   readonly absorption: AbsorptionSetting;
+  /**
+   * Elastic solution for straight dislocations (and partials, ribbons):
+   * "anisotropic" (Stroh, from the material's Cij; the default) or
+   * "isotropic" (Hirth & Lothe closed form with the Voigt-Reuss-Hill G, nu).
+   */
+  readonly elasticity: Elasticity;
   readonly conditions: readonly Condition[];
   readonly defects: readonly DefectSpec[];
   readonly candidates: readonly CandidateSpec[];

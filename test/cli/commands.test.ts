@@ -68,6 +68,9 @@ describe('thinfoil demo', () => {
     expect(r.out).toMatch(/invented/);
     const summary = JSON.parse(readFileSync(join(out, 'render.json'), 'utf8'));
     expect(summary.images.length).toBeGreaterThanOrEqual(8);
+    // render.json says which elasticity the fields used (default: anisotropic, from the material's Cij)
+    expect(summary.elasticity.model).toBe('anisotropic');
+    expect(summary.note).toMatch(/anisotropic elasticity/);
     for (const e of summary.images) {
       expect(existsSync(e.png)).toBe(true);
       expect(existsSync(e.tiff)).toBe(true);

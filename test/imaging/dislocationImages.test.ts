@@ -206,3 +206,35 @@ describe('pixels near a dislocation core are area-averaged', () => {
     expect(averaged).toBeLessThan(raw / 2);
   });
 });
+
+describe('anisotropic elasticity in copper (Zener ratio 3.2): g.b = 0 and g.(b x u) = 0 do not guarantee invisibility', () => {
+  // Source (from memory): Head 1967, Phys. Stat. Sol. 19, 185, and Head, Humble, Clarebrough, Morton & Forwood 1973,
+  // Computed Electron Micrographs and Defect Identification, ch. 4; Hirth & Lothe 1982 ch. 13: in an anisotropic
+  // crystal an edge dislocation whose line is not normal to a mirror plane has a displacement component along its
+  // line, so g.b = 0 = g.(b x u) with g parallel to u leaves residual contrast; in isotropic elasticity the edge
+  // displacement lies in the plane normal to u and the image vanishes exactly. Case: edge a/2[1-10] along [111]
+  // (no mirror plane of m-3m is normal to [111]), g = 111 parallel to the line, beam [1-10] (line in the foil plane).
+  // The assertion is only as strong as that statement: isotropic contrast ~ 0, anisotropic contrast clearly above it.
+  const edge111 = (elasticity: string) =>
+    scenario({
+      elasticity,
+      beam: [1, -1, 0],
+      foil: { thickness_nm: 100, normal: [1, -1, 0] },
+      imageX: [1, 1, 1],
+      image: { width_px: 4, height_px: 120, pixel_nm: 0.5 },
+      conditions: [{ id: 'g111', g: [1, 1, 1], w: 0.3 }],
+      defects: [{ type: 'dislocation', b: '1/2[1 -1 0]', line: [1, 1, 1], point_nm: [0, 0, 50] }],
+    });
+  it('edge a/2[1-10] along [111], g = 111: invisible with isotropic elasticity, residual contrast with anisotropic', async () => {
+    const [iso] = await render(edge111('isotropic'));
+    const [ani] = await render(edge111('anisotropic'));
+    const ci = maxContrast(iso.bf, iso.background.bf) / iso.background.bf;
+    const ca = maxContrast(ani.bf, ani.background.bf) / ani.background.bf;
+    expect(ci).toBeLessThan(1e-5);
+    expect(ca).toBeGreaterThan(0.02);
+  });
+  it('"elasticity" defaults to anisotropic and a bad value names the field', () => {
+    expect(scenario({}).elasticity).toBe('anisotropic');
+    expect(() => scenario({ elasticity: 'cubic' })).toThrow(/^elasticity: must be "anisotropic"/);
+  });
+});
