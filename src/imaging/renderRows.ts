@@ -32,6 +32,11 @@ export interface RenderJob {
   readonly coreSupersample?: boolean;
   /** Present for a systematic row of more than two beams: the many-beam engine is used instead of the two-beam one. */
   readonly manyBeam?: ManyBeamJob;
+  /**
+   * false: integrate every column on its own even where columns of straight defects could share one long
+   * column (translationColumns.ts); default true (chosen automatically where it applies).
+   */
+  readonly shareColumns?: boolean;
 }
 
 export interface ManyBeamJob {
@@ -268,7 +273,7 @@ export function renderRows(job: RenderJob, row0: number, row1: number, bf: Float
     return { slices: n, columns: n };
   }
   const near = job.coreSupersample === false ? null : coreProximity(job);
-  const S = CORE_SUBSAMPLES;
+  const pix = new Float64Array(2);
   let columns = 0;
   let k = 0;
   for (let j = row0; j < row1; j++) {
@@ -276,19 +281,9 @@ export function renderRows(job: RenderJob, row0: number, row1: number, bf: Float
     for (let i = 0; i < width; i++, k++) {
       const x = pixelX(i, width, pixel_nm);
       if (near !== null && near(x, y)) {
-        // the pixel's area is averaged (S x S columns): the intensity varies on the scale of the core, far below a pixel
-        let a = 0;
-        let b = 0;
-        for (let q = 0; q < S; q++) {
-          for (let r = 0; r < S; r++) {
-            ev.column(out, x + ((r + 0.5) / S - 0.5) * pixel_nm, y + ((q + 0.5) / S - 0.5) * pixel_nm);
-            a += out[0] * out[0] + out[1] * out[1];
-            b += out[2] * out[2] + out[3] * out[3];
-          }
-        }
-        bf[k] = a / (S * S);
-        df[k] = b / (S * S);
-        columns += S * S;
+        columns += averagedPixel(ev, out, pix, x, y, pixel_nm);
+        bf[k] = pix[0];
+        df[k] = pix[1];
       } else {
         ev.column(out, x, y);
         bf[k] = out[0] * out[0] + out[1] * out[1];
@@ -298,6 +293,27 @@ export function renderRows(job: RenderJob, row0: number, row1: number, bf: Float
     }
   }
   return { slices: ev.stats.slices, columns };
+}
+
+/**
+ * Bright and dark field of the pixel at (x, y) averaged over CORE_SUBSAMPLES^2 columns spread over its
+ * area (the intensity varies on the scale of the core, far below a pixel), into pix[0..1]; scratch out
+ * holds 4 numbers. Returns the number of columns.
+ */
+export function averagedPixel(ev: ColumnEvaluator, out: Float64Array, pix: Float64Array, x: number, y: number, pixel_nm: number): number {
+  const S = CORE_SUBSAMPLES;
+  let a = 0;
+  let b = 0;
+  for (let q = 0; q < S; q++) {
+    for (let r = 0; r < S; r++) {
+      ev.column(out, x + ((r + 0.5) / S - 0.5) * pixel_nm, y + ((q + 0.5) / S - 0.5) * pixel_nm);
+      a += out[0] * out[0] + out[1] * out[1];
+      b += out[2] * out[2] + out[3] * out[3];
+    }
+  }
+  pix[0] = a / (S * S);
+  pix[1] = b / (S * S);
+  return S * S;
 }
 
 /** Sub-columns per axis averaged in a pixel whose column passes close to a dislocation core. */

@@ -9,6 +9,7 @@ import { availableParallelism } from 'node:os';
 import { existsSync } from 'node:fs';
 import { fileURLToPath } from 'node:url';
 import { renderRows, type RenderJob } from './renderRows.js';
+import { renderTranslated, translationPlan } from './translationColumns.js';
 import { InputError } from '../errors.js';
 
 export interface RenderedImage {
@@ -33,6 +34,8 @@ interface BandReply {
   userError?: boolean;
   row0: number;
   row1: number;
+  /** Translation method: the part rendered (full-size images, zero outside its classes). */
+  part?: number;
   bf: Float32Array;
   df: Float32Array;
   slices: number;
@@ -54,8 +57,12 @@ export function createRenderPool(threads = availableParallelism()): RenderPool {
       const n = job.width * job.height;
       const bf = new Float32Array(n);
       const df = new Float32Array(n);
+      const plan = translationPlan(job);
+      // translation method: parts of the classes of pixels; otherwise bands of rows
+      const parts = plan === null ? 0 : Math.min(threads * 4, plan.starts.length);
       const bandRows = Math.max(1, Math.floor(job.height / (threads * 8)));
       let next = 0;
+      let nextPart = 0;
       let done = 0;
       let slices = 0;
       await Promise.all(
@@ -63,6 +70,16 @@ export function createRenderPool(threads = availableParallelism()): RenderPool {
           (w) =>
             new Promise<void>((resolve, reject) => {
               const ask = () => {
+                if (plan !== null) {
+                  if (nextPart >= parts) {
+                    w.off('message', onMessage);
+                    w.off('error', onError);
+                    resolve();
+                    return;
+                  }
+                  w.postMessage({ job, plan, part: nextPart++, parts });
+                  return;
+                }
                 if (next >= job.height) {
                   w.off('message', onMessage);
                   w.off('error', onError);
@@ -81,11 +98,21 @@ export function createRenderPool(threads = availableParallelism()): RenderPool {
                   reject(m.userError ? new InputError(m.error ?? 'bad input') : new Error(m.error));
                   return;
                 }
-                bf.set(m.bf, m.row0 * job.width);
-                df.set(m.df, m.row0 * job.width);
+                if (m.part !== undefined) {
+                  // full-size part: every pixel belongs to exactly one part, the others hold 0
+                  for (let k = 0; k < n; k++) {
+                    bf[k] += m.bf[k];
+                    df[k] += m.df[k];
+                  }
+                  done++;
+                  onProgress?.(Math.round((done / parts) * job.height), job.height);
+                } else {
+                  bf.set(m.bf, m.row0 * job.width);
+                  df.set(m.df, m.row0 * job.width);
+                  done += m.row1 - m.row0;
+                  onProgress?.(done, job.height);
+                }
                 slices += m.slices;
-                done += m.row1 - m.row0;
-                onProgress?.(done, job.height);
                 ask();
               };
               const onError = (e: Error) => reject(e);
@@ -110,7 +137,8 @@ function inThreadPool(): RenderPool {
       const n = job.width * job.height;
       const bf = new Float32Array(n);
       const df = new Float32Array(n);
-      const stats = renderRows(job, 0, job.height, bf, df);
+      const plan = translationPlan(job);
+      const stats = plan === null ? renderRows(job, 0, job.height, bf, df) : renderTranslated(job, plan, 0, 1, bf, df);
       onProgress?.(job.height, job.height);
       return { bf, df, slices: stats.slices };
     },
