@@ -2,7 +2,7 @@
 /** The thinfoil command line. */
 import { Command, CommanderError } from 'commander';
 import { action, EXIT_USER, reportAndExit } from './run.js';
-import { parseAbsorption, parseKv } from './options.js';
+import { parseAbsorption, parseDemoSize, parseKv } from './options.js';
 import { InputError } from '../errors.js';
 
 // a closed pipe (`thinfoil ... | head`) ends the program quietly
@@ -63,6 +63,7 @@ program
   .argument('<scenario>', 'scenario file (JSON)')
   .option('--out <dir>', 'output folder (default out/<scenario name>)')
   .option('--json', 'one JSON object on stdout listing the images')
+  .option('--each-column', 'integrate every column on its own, also where straight defects let columns share one long column (slower; for checking)')
   .action(run(() => import('./renderCommand.js'), 'renderCommand'));
 
 program
@@ -112,6 +113,7 @@ program
   .command('demo')
   .description('render the built-in invented demo scenario into out/demo')
   .option('--out <dir>', 'output folder', 'out/demo')
+  .option('--size <px>', 'side of the rendered images in pixels, same field of view (default 256)', userOption(parseDemoSize))
   .action(run(() => import('./demoCommand.js'), 'demoCommand'));
 
 /** Options that take a value (from the declarations above): the token after them is never a positional argument. */

@@ -13,3 +13,10 @@ export function numberOption(name: string, lo: number, hi: number, unit: string)
 
 export const parseKv = numberOption('--kv', 10, 3000, 'the accelerating voltage in kV');
 export const parseAbsorption = numberOption('--absorption', 0, 1, "the ratio xi_g/xi'_g");
+
+/** `demo --size`: a whole number of pixels per side. */
+export function parseDemoSize(text: string): number {
+  const v = numberOption('--size', 16, 1024, 'the image side in pixels')(text);
+  if (!Number.isInteger(v)) throw new InputError(`--size: ${v} is not a whole number; give the image side in pixels (16..1024)`);
+  return v;
+}

@@ -13,6 +13,8 @@ import { progressBar } from './progress.js';
 export interface RenderOptions {
   out?: string;
   json?: boolean;
+  /** Integrate every column on its own (no translation method). */
+  eachColumn?: boolean;
 }
 
 export function slug(name: string): string {
@@ -20,14 +22,14 @@ export function slug(name: string): string {
 }
 
 /** Render a scenario and write its images; shared by `render` and `demo`. */
-export async function renderAndWrite(sc: Scenario, dir: string, showProgress: boolean): Promise<{ images: ConditionImages[]; entries: ImageEntry[]; seconds: number }> {
+export async function renderAndWrite(sc: Scenario, dir: string, showProgress: boolean, shareColumns = true): Promise<{ images: ConditionImages[]; entries: ImageEntry[]; seconds: number }> {
   ensureOutputDir(dir);
   const bar = progressBar(showProgress);
   const pool = createRenderPool();
   const t0 = performance.now();
   let images: ConditionImages[];
   try {
-    images = await renderScenario(sc, pool, (i, d, t) => bar.update(`rendering ${sc.conditions[i].id} (${i + 1}/${sc.conditions.length})`, d / t));
+    images = await renderScenario(sc, pool, (i, d, t) => bar.update(`rendering ${sc.conditions[i].id} (${i + 1}/${sc.conditions.length})`, d / t), undefined, shareColumns);
   } finally {
     bar.done();
     await pool.close();
@@ -68,7 +70,7 @@ export async function renderCommand(file: string, opts: RenderOptions): Promise<
   const warnings = scenarioWarnings(sc);
   for (const w of warnings) process.stderr.write(`thinfoil: warning: ${w}\n`);
   const dir = opts.out ?? join('out', slug(sc.name));
-  const { images, entries, seconds } = await renderAndWrite(sc, dir, !opts.json);
+  const { images, entries, seconds } = await renderAndWrite(sc, dir, !opts.json, opts.eachColumn !== true);
   if (opts.json) {
     printJson({ images: entries.map(({ stretch, ...e }) => ({ ...e, stretch })), warnings });
     return;

@@ -154,6 +154,14 @@ describe('thinfoil render', () => {
     }
     expect(readFileSync(file, 'utf8')).toBe(before); // the input is never modified
     expect(existsSync(join(out, 'render.json'))).toBe(true);
+    // --each-column integrates every column on its own: the same images within the integrator tolerance (1e-4)
+    const each = run('render', file, '--out', join(dir, 'each'), '--json', '--each-column');
+    expect(each.code, each.err).toBe(0);
+    const je = JSON.parse(each.out);
+    je.images.forEach((e: { mean: number; min: number; max: number }, k: number) => {
+      expect(Math.abs(e.mean - j.images[k].mean)).toBeLessThan(1e-4);
+      expect(Math.abs(e.max - j.images[k].max)).toBeLessThan(1e-4);
+    });
   });
 
   const bad: [string, (s: any) => void, RegExp][] = [
