@@ -5,8 +5,11 @@
 // Columns:
 //   process  whole CLI process (`node dist/cli/main.js render|demo`): start-up, workers, writing files
 //   warm     in this process, worker pool already started, median of 3 renders (the pure image work)
-//   1 thread in this process, renderRows on the main thread (no workers), once, after a warm-up
-// Usage: node bench/table.mjs [--quick] [--no-process]
+//   1 thread in this process, on the main thread (no workers), once, after a warm-up
+// Every column shows wall-clock seconds and CPU seconds (all threads; for the whole process from
+// /usr/bin/time). On a shared machine the wall clock also counts waiting for a core; CPU seconds
+// do not, so the ratios use CPU seconds (baseline: one thread, CPU = wall).
+// Usage: node bench/table.mjs [--no-process]
 import { spawnSync } from 'node:child_process';
 import { mkdtempSync, rmSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
@@ -16,6 +19,7 @@ import { renderJob } from '../dist/imaging/renderScenario.js';
 import { resolveCondition } from '../dist/imaging/resolveCondition.js';
 import { createRenderPool } from '../dist/imaging/workerPool.js';
 import { renderRows } from '../dist/imaging/renderRows.js';
+import { renderTranslated, translationPlan } from '../dist/imaging/translationColumns.js';
 
 const args = process.argv.slice(2);
 const withProcess = !args.includes('--no-process');
@@ -42,6 +46,26 @@ function bareLoop(n) {
   const s = (performance.now() - t0) / 1000;
   if (!Number.isFinite(out[4 * n - 1])) throw new Error('baseline overflowed');
   return s;
+}
+const cpuNow = () => {
+  const u = process.cpuUsage();
+  return (u.user + u.system) / 1e6;
+};
+/** Wall and CPU seconds of f (async allowed). */
+async function clock(f) {
+  const c0 = cpuNow();
+  const t0 = performance.now();
+  const r = await f();
+  return { wall: (performance.now() - t0) / 1000, cpu: cpuNow() - c0, r };
+}
+/** Wall and CPU seconds of a child process (CPU from /usr/bin/time). */
+function processClock(args) {
+  const t0 = performance.now();
+  const p = spawnSync('/usr/bin/time', ['-f', 'CPU %U %S', process.execPath, ...args], { encoding: 'utf8' });
+  const wall = (performance.now() - t0) / 1000;
+  if (p.status !== 0) throw new Error(`${args[1]} failed: ${p.stderr}`);
+  const m = /CPU ([\d.]+) ([\d.]+)/.exec(p.stderr);
+  return { wall, cpu: m ? Number(m[1]) + Number(m[2]) : NaN };
 }
 function median(f, k = 3) {
   const t = [];
@@ -88,37 +112,28 @@ try {
     const n = job.width * job.height;
     const base = median(() => bareLoop(n));
     await pool.render(job); // warm-up (JIT in the workers)
-    const ts = [];
-    for (let k = 0; k < 3; k++) {
-      const t0 = performance.now();
-      await pool.render(job);
-      ts.push((performance.now() - t0) / 1000);
-    }
-    const warm = ts.sort((a, b) => a - b)[1];
+    const warms = [];
+    for (let k = 0; k < 3; k++) warms.push(await clock(() => pool.render(job)));
+    const warm = warms.sort((a, b) => a.wall - b.wall)[1];
     const bf = new Float32Array(n);
     const df = new Float32Array(n);
-    renderRows(job, 0, Math.min(8, job.height), bf, df); // warm-up
-    const t1 = performance.now();
-    const st = renderRows(job, 0, job.height, bf, df);
-    const one = (performance.now() - t1) / 1000;
-    let proc = NaN;
+    const plan = translationPlan(job);
+    const inThread = () => (plan === null ? renderRows(job, 0, job.height, bf, df) : renderTranslated(job, plan, 0, 1, bf, df));
+    inThread(); // warm-up
+    const one = await clock(inThread);
+    const st = one.r;
+    let proc = { wall: NaN, cpu: NaN };
     if (withProcess) {
       const file = join(tmp, 'scenario.json');
       writeFileSync(file, JSON.stringify(r.scenario));
-      const t2 = performance.now();
-      const p = spawnSync(process.execPath, ['dist/cli/main.js', 'render', file, '--out', join(tmp, 'out'), '--json'], { encoding: 'utf8' });
-      proc = (performance.now() - t2) / 1000;
-      if (p.status !== 0) throw new Error(`render failed: ${p.stderr}`);
+      proc = processClock(['dist/cli/main.js', 'render', file, '--out', join(tmp, 'out'), '--json']);
     }
-    results.push({ work: r.work, target: r.target, base, proc, warm, one, slicesPerColumn: st.slices / n });
+    results.push({ work: r.work, target: r.target, base, proc, warm, one, path: plan === null ? 'each column' : 'shared columns', slicesPerColumn: st.slices / n });
   }
   if (withProcess) {
     const base = median(() => bareLoop(256 * 256));
-    const t0 = performance.now();
-    const p = spawnSync(process.execPath, ['dist/cli/main.js', 'demo', '--out', join(tmp, 'demo')], { encoding: 'utf8' });
-    const proc = (performance.now() - t0) / 1000;
-    if (p.status !== 0) throw new Error(`demo failed: ${p.stderr}`);
-    results.push({ work: '`npm run demo` (whole command, all conditions and the identification)', target: 8, base, proc, warm: NaN, one: NaN, slicesPerColumn: NaN });
+    const proc = processClock(['dist/cli/main.js', 'demo', '--out', join(tmp, 'demo')]);
+    results.push({ work: '`npm run demo` (whole command, all conditions and the identification)', target: 8, base, proc, warm: { wall: NaN, cpu: NaN }, one: { wall: NaN, cpu: NaN }, path: '-', slicesPerColumn: NaN });
   }
 } finally {
   await pool.close();
@@ -126,12 +141,13 @@ try {
 }
 
 const f = (x) => (Number.isFinite(x) ? x.toPrecision(3) : '-');
-const ratio = (x, b) => (Number.isFinite(x) ? `${(x / b).toPrecision(3)}x` : '-');
+const cell = (t, b) => (Number.isFinite(t.wall) ? `${f(t.wall)} / ${f(t.cpu)} (${(t.cpu / b).toPrecision(3)}x)` : '-');
 console.log(`baseline: bare loop of 2x2 complex matrix-vector products, pixels x ${SLICES} slices, one thread, same run`);
-console.log(`${pool.threads} worker threads; process = whole CLI command; warm = pool already started (median of 3); 1 thread = main thread, no workers`);
+console.log(`${pool.threads} worker threads; cells: wall s / CPU s (CPU ratio to the baseline); process = whole CLI command;`);
+console.log('warm = pool already started (median of 3); 1 thread = main thread, no workers');
 console.log('');
-console.log('| work | baseline s | process s (ratio) | warm s (ratio) | 1 thread s (ratio) | slices/column | target s |');
-console.log('|---|---|---|---|---|---|---|');
+console.log('| work | baseline s | process | warm | 1 thread | path | slices/column | target s |');
+console.log('|---|---|---|---|---|---|---|---|');
 for (const r of results) {
-  console.log(`| ${r.work} | ${f(r.base)} | ${f(r.proc)} (${ratio(r.proc, r.base)}) | ${f(r.warm)} (${ratio(r.warm, r.base)}) | ${f(r.one)} (${ratio(r.one, r.base)}) | ${f(r.slicesPerColumn)} | <= ${r.target} |`);
+  console.log(`| ${r.work} | ${f(r.base)} | ${cell(r.proc, r.base)} | ${cell(r.warm, r.base)} | ${cell(r.one, r.base)} | ${r.path} | ${f(r.slicesPerColumn)} | <= ${r.target} |`);
 }
