@@ -1,9 +1,11 @@
 /**
  * The translation method (generalised columns, Head, Humble, Clarebrough,
  * Morton & Forwood 1973) must give the same images as integrating every
- * column on its own. Both paths run at integrator tolerance 1e-9 so that their
- * difference is the method's, not the integrator's (at the default 1e-4 they
- * may differ by up to the tolerance). The reference here is the project's own
+ * column on its own. Both paths run at integrator tolerance 1e-7 (each within
+ * about 1e-7 of the exact column) so that a difference above 1e-6 is the
+ * method's, not the integrator's (at the default 1e-4 they may differ by up to
+ * the tolerance; at 1e-9 they agree to float32 rounding, 6e-8, on a 256 x 256
+ * image, a run too long for the suite). The reference here is the project's own
  * column-by-column path, whose physics is checked against SciPy, odex and
  * published formulas in test/dynamics/ and the other test/imaging/ files: this
  * test checks an exact identity (a re-arrangement of the same products), not
@@ -17,10 +19,10 @@ import { renderRows, type RenderJob } from '../../src/imaging/renderRows.js';
 import { renderTranslated, translationPlan } from '../../src/imaging/translationColumns.js';
 import { createRenderPool } from '../../src/imaging/workerPool.js';
 
-const TIGHT = 1e-9;
+const TIGHT = 1e-7;
 
 function job(over: Record<string, unknown>, tol = TIGHT): RenderJob {
-  const sc = scenario({ image: { width_px: 30, height_px: 30, pixel_nm: 1.8 }, conditions: [{ id: 'g', g: [2, 0, 0], w: 0.5 }], ...over });
+  const sc = scenario({ image: { width_px: 24, height_px: 24, pixel_nm: 2.2 }, conditions: [{ id: 'g', g: [2, 0, 0], w: 0.5 }], ...over });
   return renderJob(sc, resolveCondition(sc, sc.conditions[0]), tol);
 }
 
@@ -41,7 +43,7 @@ function bothPaths(j: RenderJob) {
   return { diff, contrast, plan: plan! };
 }
 
-describe('translation method equals column-by-column integration (exact identity, both at tol 1e-9)', () => {
+describe('translation method equals column-by-column integration (exact identity, both at tol 1e-7)', () => {
   const cases: [string, Record<string, unknown>][] = [
     ['inclined mixed dislocation (projection along the image diagonal)', { defects: [{ type: 'dislocation', b: '1/2[1 0 1]', line: [1, 1, 2], point_nm: [0, 0, 50] }] }],
     [
@@ -82,14 +84,14 @@ describe('translation method equals column-by-column integration (exact identity
   }
 
   it('pixels reaching a dislocation core (3 x 3 averaged) agree too', () => {
-    // pixels of 1.8 nm are coarser than the core radius |b| = 0.26 nm: the core pixels are averaged
+    // pixels of 2.2 nm are coarser than the core radius |b| = 0.26 nm: the core pixels are averaged
     const j = job({ defects: [{ type: 'dislocation', b: '1/2[1 0 1]', line: [1, 1, 2], point_nm: [0, 0, 50] }] });
     expect(j.coreSupersample).not.toBe(false);
     const { diff } = bothPaths({ ...j, coreSupersample: true });
     expect(diff).toBeLessThan(1e-6);
   });
 
-  it('the worker pool and the in-thread path use it and give the column-by-column image at tol 1e-9', async () => {
+  it('the worker pool and the in-thread path use it and give the column-by-column image at tol 1e-7', async () => {
     const j = job({ defects: [{ type: 'dislocation', b: '1/2[1 0 1]', line: [1, 1, 2], point_nm: [0, 0, 50] }] });
     const pool = createRenderPool(1);
     const shared = await pool.render(j);
