@@ -473,8 +473,7 @@ function integrate(
   if (out.length < 2 * sys.n) throw new InputError(`out has ${out.length} numbers: give at least 2N = ${2 * sys.n}.`);
   const n = sys.n;
   const wk = sys.work;
-  const { ur, ui, yr, yi, kr, ki } = wk;
-  const hmax = sys.maxStep_nm;
+  const { ur, ui } = wk;
   wk.betaPrime = betaPrime;
   wk.dRdz = dRdz;
   wk.stats.accepted = 0;
@@ -500,8 +499,60 @@ function integrate(
   // psi (Bloch amplitudes) lives in ur/ui between steps
   ur.set(sys.psi0Re);
   ui.set(sys.psi0Im);
+  const accepted = march(sys, 0, thickness, jumps, nJumps, stride, tol);
+  wk.betaPrime = null;
+  wk.dRdz = null;
 
-  let z = 0;
+  // phi = C psi
+  const { cRe, cIm } = sys;
+  for (let i = 0; i < n; i++) {
+    let a = 0;
+    let b = 0;
+    for (let j = 0; j < n; j++) {
+      const cr = cRe[i * n + j];
+      const ci = cIm[i * n + j];
+      a += cr * ur[j] - ci * ui[j];
+      b += cr * ui[j] + ci * ur[j];
+    }
+    out[2 * i] = a;
+    out[2 * i + 1] = b;
+  }
+  return accepted;
+}
+
+/**
+ * Propagates Bloch-wave amplitudes psi (interleaved [re, im] per wave, 2N,
+ * in place) of a systematic row from depth a to depth b > a through
+ * beta'(z), with the same stepping and tolerance as integrateColumnN (a fresh
+ * first step at a). No faults. Returns the number of accepted steps. Used by
+ * the translation method, which keeps the transfer matrices of stretches.
+ */
+export function propagateBlochN(psi: Float64Array, sys: ColumnSystem, a: number, b: number, betaPrime: (z_nm: number) => number, tol: number): number {
+  if (sys.strainDim !== 1) throw new InputError('this column system was prepared for a general beam set: propagateBlochN takes a systematic row.');
+  const n = sys.n;
+  const wk = sys.work;
+  for (let j = 0; j < n; j++) {
+    wk.ur[j] = psi[2 * j];
+    wk.ui[j] = psi[2 * j + 1];
+  }
+  wk.betaPrime = betaPrime;
+  wk.dRdz = null;
+  const accepted = march(sys, a, b, NO_JUMPS, 0, 2, tol);
+  wk.betaPrime = null;
+  for (let j = 0; j < n; j++) {
+    psi[2 * j] = wk.ur[j];
+    psi[2 * j + 1] = wk.ui[j];
+  }
+  return accepted;
+}
+
+/** Steps the Bloch amplitudes in work.ur/ui from depth zStart to zStop, applying the jumps on the way. */
+function march(sys: ColumnSystem, zStart: number, zStop: number, jumps: Float64Array, nJumps: number, stride: 2 | 4, tol: number): number {
+  const n = sys.n;
+  const wk = sys.work;
+  const { ur, ui, yr, yi, kr, ki } = wk;
+  const hmax = sys.maxStep_nm;
+  let z = zStart;
   let jumpIdx = 0;
   let accepted = 0;
   let rejected = 0;
@@ -520,8 +571,8 @@ function integrate(
       fsalValid = false;
       level = -1;
     }
-    if (z >= thickness) break;
-    const zEnd = jumpIdx < nJumps ? jumps[jumpIdx * stride] : thickness;
+    if (z >= zStop) break;
+    const zEnd = jumpIdx < nJumps ? jumps[jumpIdx * stride] : zStop;
 
     if (!fsalValid) {
       rhs(sys, z, -1, ur, ui, k1r, k1i);
@@ -616,23 +667,6 @@ function integrate(
   }
   wk.stats.accepted = accepted;
   wk.stats.rejected = rejected;
-  wk.betaPrime = null;
-  wk.dRdz = null;
-
-  // phi = C psi
-  const { cRe, cIm } = sys;
-  for (let i = 0; i < n; i++) {
-    let a = 0;
-    let b = 0;
-    for (let j = 0; j < n; j++) {
-      const cr = cRe[i * n + j];
-      const ci = cIm[i * n + j];
-      a += cr * ur[j] - ci * ui[j];
-      b += cr * ui[j] + ci * ur[j];
-    }
-    out[2 * i] = a;
-    out[2 * i + 1] = b;
-  }
   return accepted;
 }
 

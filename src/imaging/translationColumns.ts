@@ -1,7 +1,8 @@
 /**
  * The translation method for straight defects (generalised columns; Head,
  * Humble, Clarebrough, Morton & Forwood 1973, "Computed Electron Micrographs
- * and Defect Identification"), for the two-beam engine.
+ * and Defect Identification"), for the two-beam engine (here) and systematic
+ * rows (translationColumnsN.ts).
  *
  * When every displacement field is invariant along one direction u (straight
  * dislocations parallel to u) and every jump surface contains u (fault
@@ -32,6 +33,13 @@ import { mulMatrix, setIdentity, stretchMatrix, type MatrixParams, type StretchC
 import { DEFAULT_MAX_SLICE_NM } from '../dynamics/twoBeamColumn.js';
 import { activeSurfaces, CORE_SUBSAMPLES, coreProximity, type RenderJob, type RowStats } from './renderRows.js';
 import { buildField } from './fieldSpecs.js';
+import { classWindowsN } from './translationColumnsN.js';
+
+/**
+ * Amplitudes of the K columns through (x0, y0) + k step, k = 0..K-1, from one long column:
+ * amp[4k..4k+3] = (re phi0, im phi0, re phig, im phig). stats.slices counts the work.
+ */
+export type ClassWindows = ((amp: Float64Array, x0: number, y0: number, K: number) => void) & { readonly stats: { slices: number } };
 
 /** Largest integer component of the pixel step along the projected line. */
 const MAX_STEP = 8;
@@ -92,7 +100,8 @@ function invariantDirection(job: RenderJob): Vec3 | null {
  * pixel step, an end-on line) or would gain little.
  */
 export function translationPlan(job: RenderJob): TranslationPlan | null {
-  if (job.manyBeam !== undefined || job.rk4Steps !== undefined || job.shareColumns === false) return null;
+  // two beams, or a systematic row (translationColumnsN.ts); general beam sets go column by column
+  if (job.manyBeam?.beamVectors !== undefined || job.rk4Steps !== undefined || job.shareColumns === false) return null;
   const u = invariantDirection(job);
   if (u === null) return null;
   const { frame, width, height, pixel_nm } = job;
@@ -156,7 +165,7 @@ function gcd(a: number, b: number): number {
 export function renderTranslated(job: RenderJob, plan: TranslationPlan, part: number, parts: number, bf: Float32Array, df: Float32Array): RowStats {
   const { width, height, pixel_nm } = job;
   const near = job.coreSupersample === false ? null : coreProximity(job);
-  const windows = classWindows(job, plan);
+  const windows = job.manyBeam === undefined ? classWindows(job, plan) : classWindowsN(job, plan);
   const maxK = Math.max(width, height) + 1;
   const amp = new Float64Array(4 * maxK);
   const isNear = new Uint8Array(maxK);
@@ -228,7 +237,7 @@ export function renderTranslated(job: RenderJob, plan: TranslationPlan, part: nu
  * For one job: a function that fills amp[4k..4k+3] (re phi0, im phi0, re phig, im phig) for the K
  * columns through (x0, y0) + k step, k = 0..K-1, from one long column.
  */
-function classWindows(job: RenderJob, plan: TranslationPlan) {
+function classWindows(job: RenderJob, plan: TranslationPlan): ClassWindows {
   const { width, height, pixel_nm, frame, g_cart, params, tol } = job;
   const L = frame.columnLength_nm;
   const field = buildField(job.model.fields);
