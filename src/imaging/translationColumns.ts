@@ -52,6 +52,8 @@ export interface TranslationPlan {
   readonly D: number;
   /** First pixel (i, j) of every class, as index j * width + i. */
   readonly starts: Int32Array;
+  /** Total length of the long columns (nm), a measure of the work. */
+  readonly pathLength_nm: number;
 }
 
 /** The common invariant direction of every field and jump surface of the job, or null. */
@@ -150,7 +152,7 @@ export function translationPlan(job: RenderJob): TranslationPlan | null {
   }
   // worth it only when the long columns are much shorter than all columns together
   if (starts.length > (width * height) / 4 || pathLength > 0.5 * width * height * L) return null;
-  return { di, dj, D, starts: Int32Array.from(starts) };
+  return { di, dj, D, starts: Int32Array.from(starts), pathLength_nm: pathLength };
 }
 
 function gcd(a: number, b: number): number {
