@@ -122,6 +122,10 @@ interface Work {
   dRdz: ((z: number, out3: Float64Array) => void) | null;
   /** statistics of the last integration */
   readonly stats: { accepted: number; rejected: number; evaluations: number };
+  /** ladder level the last march would have used next (propagateBlochN can start from it) */
+  lastLevel: number;
+  /** step length whose phase table `custom` holds (NaN: none) */
+  customH: number;
 }
 
 const DEFAULT_MAX_STEP_NM = 5;
@@ -204,6 +208,8 @@ function prepare(input: ManyBeamInput, factors: Float64Array, strainDim: 1 | 3, 
     betaPrime: null,
     dRdz: null,
     stats: { accepted: 0, rejected: 0, evaluations: 0 },
+    lastLevel: -1,
+    customH: NaN,
   };
   return {
     n,
@@ -524,10 +530,11 @@ function integrate(
  * Propagates Bloch-wave amplitudes psi (interleaved [re, im] per wave, 2N,
  * in place) of a systematic row from depth a to depth b > a through
  * beta'(z), with the same stepping and tolerance as integrateColumnN (a fresh
- * first step at a). No faults. Returns the number of accepted steps. Used by
+ * first step at a, or the ladder level startLevel, e.g. the lastLevel of the
+ * previous stretch). No faults. Returns the number of accepted steps. Used by
  * the translation method, which keeps the transfer matrices of stretches.
  */
-export function propagateBlochN(psi: Float64Array, sys: ColumnSystem, a: number, b: number, betaPrime: (z_nm: number) => number, tol: number): number {
+export function propagateBlochN(psi: Float64Array, sys: ColumnSystem, a: number, b: number, betaPrime: (z_nm: number) => number, tol: number, startLevel = -1): number {
   if (sys.strainDim !== 1) throw new InputError('this column system was prepared for a general beam set: propagateBlochN takes a systematic row.');
   const n = sys.n;
   const wk = sys.work;
@@ -537,7 +544,7 @@ export function propagateBlochN(psi: Float64Array, sys: ColumnSystem, a: number,
   }
   wk.betaPrime = betaPrime;
   wk.dRdz = null;
-  const accepted = march(sys, a, b, NO_JUMPS, 0, 2, tol);
+  const accepted = march(sys, a, b, NO_JUMPS, 0, 2, tol, startLevel);
   wk.betaPrime = null;
   for (let j = 0; j < n; j++) {
     psi[2 * j] = wk.ur[j];
@@ -547,7 +554,7 @@ export function propagateBlochN(psi: Float64Array, sys: ColumnSystem, a: number,
 }
 
 /** Steps the Bloch amplitudes in work.ur/ui from depth zStart to zStop, applying the jumps on the way. */
-function march(sys: ColumnSystem, zStart: number, zStop: number, jumps: Float64Array, nJumps: number, stride: 2 | 4, tol: number): number {
+function march(sys: ColumnSystem, zStart: number, zStop: number, jumps: Float64Array, nJumps: number, stride: 2 | 4, tol: number, startLevel = -1): number {
   const n = sys.n;
   const wk = sys.work;
   const { ur, ui, yr, yi, kr, ki } = wk;
@@ -557,7 +564,7 @@ function march(sys: ColumnSystem, zStart: number, zStop: number, jumps: Float64A
   let accepted = 0;
   let rejected = 0;
   let fsalValid = false;
-  let level = -1; // ladder level of the next step; -1: choose a fresh first step
+  let level = startLevel; // ladder level of the next step; -1: choose a fresh first step
   let h = 0;
   const k1r = kr[0], k1i = ki[0], k2r = kr[1], k2i = ki[1], k3r = kr[2], k3i = ki[2];
   const k4r = kr[3], k4i = ki[3], k5r = kr[4], k5i = ki[4], k6r = kr[5], k6i = ki[5], k7r = kr[6], k7i = ki[6];
@@ -594,7 +601,10 @@ function march(sys: ColumnSystem, zStart: number, zStop: number, jumps: Float64A
     if (z + h >= zEnd || zEnd - (z + h) < 1e-12 * Math.max(1, zEnd)) {
       h = zEnd - z;
       lastStep = true;
-      tabulateE(sys, h, wk.custom);
+      if (h !== wk.customH) {
+        tabulateE(sys, h, wk.custom);
+        wk.customH = h; // the columns of one stretch matrix end with the same step: tabulated once
+      }
       wk.tab = wk.custom;
     } else {
       wk.tab = levelTable(sys, level);
@@ -667,6 +677,7 @@ function march(sys: ColumnSystem, zStart: number, zStop: number, jumps: Float64A
   }
   wk.stats.accepted = accepted;
   wk.stats.rejected = rejected;
+  wk.lastLevel = level;
   return accepted;
 }
 

@@ -89,18 +89,25 @@ export function classWindowsN(job: RenderJob, plan: TranslationPlan): ClassWindo
   const stats = { slices: 0 };
   const byPosition = (a: number, b: number): number => evPos[a] - evPos[b] || evCode[a] - evCode[b];
 
-  /** Matrix of the stretch [a, b] into E at element m. */
-  const stretch = (m: number, a: number, b: number): void => {
+  /**
+   * Matrix of the stretch [a, b] into E at element m. Every column starts at ladder level `level`
+   * (-1: a fresh first step, as the column path takes after a fault or breakpoint); returns the level
+   * the first column would take next, for the following stretch.
+   */
+  const stretch = (m: number, a: number, b: number, level: number): number => {
     const o = nn * m;
+    let next = -1;
     for (let j = 0; j < n; j++) {
       psi.fill(0);
       psi[2 * j] = 1;
-      stats.slices += propagateBlochN(psi, sys, a, b, betaPrime, stepTol);
+      stats.slices += propagateBlochN(psi, sys, a, b, betaPrime, stepTol, level);
+      if (j === 0) next = sys.work.lastLevel;
       for (let i = 0; i < n; i++) {
         E[o + 2 * (i * n + j)] = psi[2 * i];
         E[o + 2 * (i * n + j) + 1] = psi[2 * i + 1];
       }
     }
+    return next;
   };
   /** Fault matrix C^-1 diag(exp(i n_j alpha)) C into E at element m. */
   const fault = (m: number, alpha: number): void => {
@@ -188,17 +195,21 @@ export function classWindowsN(job: RenderJob, plan: TranslationPlan): ClassWindo
     order.subarray(0, ne).sort(byPosition);
     let m = 0;
     let zPrev = 0;
+    let level = -1;
     for (let e = 0; e < ne; e++) {
       const ev0 = order[e];
       const z = evPos[ev0];
       if (z > zPrev) {
-        stretch(m++, zPrev, z);
+        level = stretch(m++, zPrev, z, level);
         zPrev = z;
       }
       const code = evCode[ev0];
       if (code === 0) last[evRef[ev0]] = m;
       else if (code === 2) first[evRef[ev0]] = m;
-      else if (code === 1) fault(m++, faultAlpha[evRef[ev0]]);
+      else if (code === 1) {
+        fault(m++, faultAlpha[evRef[ev0]]);
+        level = -1;
+      } else level = -1; // breakpoint: a fresh first step, as in the column path
     }
     let frontEnd = 0;
     let backEnd = 0;
