@@ -41,6 +41,9 @@ import { classWindowsN } from './translationColumnsN.js';
  */
 export type ClassWindows = ((amp: Float64Array, x0: number, y0: number, K: number) => void) & { readonly stats: { slices: number } };
 
+/** Most beams of a systematic row for which columns are shared. */
+const MAX_SHARED_BEAMS = 15;
+
 /** Largest integer component of the pixel step along the projected line. */
 const MAX_STEP = 8;
 
@@ -104,6 +107,9 @@ function invariantDirection(job: RenderJob): Vec3 | null {
 export function translationPlan(job: RenderJob): TranslationPlan | null {
   // two beams, or a systematic row (translationColumnsN.ts); general beam sets go column by column
   if (job.manyBeam?.beamVectors !== undefined || job.rk4Steps !== undefined || job.shareColumns === false) return null;
+  // N beams: a stretch matrix costs N propagations and a window product N^3; beyond 15 beams columns are cheaper
+  const beams = job.manyBeam?.input.excitationErrors_per_nm.length ?? 1;
+  if (beams > MAX_SHARED_BEAMS) return null;
   const u = invariantDirection(job);
   if (u === null) return null;
   const { frame, width, height, pixel_nm } = job;
@@ -151,7 +157,7 @@ export function translationPlan(job: RenderJob): TranslationPlan | null {
     }
   }
   // worth it only when the long columns are much shorter than all columns together
-  if (starts.length > (width * height) / 4 || pathLength > 0.5 * width * height * L) return null;
+  if (starts.length > (width * height) / 4 || beams * pathLength > 0.5 * width * height * L) return null;
   return { di, dj, D, starts: Int32Array.from(starts), pathLength_nm: pathLength };
 }
 
