@@ -101,10 +101,11 @@ function invariantDirection(job: RenderJob): Vec3 | null {
 
 /**
  * Whether the job can use the translation method, and its plan; null when it
- * cannot (many beams, other defects, a projected direction that is not a small
- * pixel step, an end-on line) or would gain little.
+ * cannot (general beam sets, other defects, a projected direction that is not a
+ * small pixel step, an end-on line) or would gain little (ignoreGain: plan
+ * anyway, for tests on small images).
  */
-export function translationPlan(job: RenderJob): TranslationPlan | null {
+export function translationPlan(job: RenderJob, options: { readonly ignoreGain?: boolean } = {}): TranslationPlan | null {
   // two beams, or a systematic row (translationColumnsN.ts); general beam sets go column by column
   if (job.manyBeam?.beamVectors !== undefined || job.rk4Steps !== undefined || job.shareColumns === false) return null;
   // N beams: a stretch matrix costs N propagations and a window product N^3; beyond 15 beams columns are cheaper
@@ -157,7 +158,7 @@ export function translationPlan(job: RenderJob): TranslationPlan | null {
     }
   }
   // worth it only when the long columns are much shorter than all columns together
-  if (starts.length > (width * height) / 4 || beams * pathLength > 0.5 * width * height * L) return null;
+  if (!options.ignoreGain && (starts.length > (width * height) / 4 || beams * pathLength > 0.5 * width * height * L)) return null;
   return { di, dj, D, starts: Int32Array.from(starts), pathLength_nm: pathLength };
 }
 

@@ -31,7 +31,8 @@ function bothPaths(j: RenderJob) {
   const col = { bf: new Float32Array(n), df: new Float32Array(n) };
   const tr = { bf: new Float32Array(n), df: new Float32Array(n) };
   renderRows(j, 0, j.height, col.bf, col.df);
-  const plan = translationPlan(j);
+  // small test images gain little; the identity holds whatever the gain
+  const plan = translationPlan(j, { ignoreGain: true });
   expect(plan, 'the translation method applies').not.toBeNull();
   renderTranslated(j, plan!, 0, 1, tr.bf, tr.df);
   let diff = 0;
