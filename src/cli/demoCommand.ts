@@ -18,25 +18,28 @@ import { createRenderPool } from '../imaging/workerPool.js';
 import { encodeFloatTiff } from '../output/tiff.js';
 import { formatIdentify, runIdentify } from './identifyCommand.js';
 
-export async function demoCommand(opts: { out?: string }): Promise<void> {
+export async function demoCommand(opts: { out?: string; size?: number }): Promise<void> {
   const dir = opts.out ?? join('out', 'demo');
-  const sc = parseScenario(DEMO_SCENARIO);
+  const side = opts.size ?? DEMO_SCENARIO.image.width_px;
+  // --size keeps the field of view: the pixel grows as the image shrinks
+  const demo = side === DEMO_SCENARIO.image.width_px ? DEMO_SCENARIO : { ...DEMO_SCENARIO, image: { width_px: side, height_px: side, pixel_nm: (DEMO_SCENARIO.image.pixel_nm * DEMO_SCENARIO.image.width_px) / side } };
+  const sc = parseScenario(demo);
   process.stdout.write(`thinfoil demo: ${sc.name}\n`);
   process.stdout.write('All data in this demo are invented; the images are simulations (a model), not measurements.\n\n');
   const set = OutputSet.begin(dir);
   try {
-    await demoMain(sc, set);
+    await demoMain(sc, demo, set);
     set.commit();
   } catch (e) {
     set.abort();
     throw e;
   }
-  process.stdout.write(`\nwritten to ${dir}: <condition>-bf.png / -df.png (viewing), .tif (float intensities), render.json, visibility.txt\n`);
+  process.stdout.write(`\nwritten to ${dir}: <condition>-bf.png / -df.png (viewing), .tif (float intensities), <condition>-figure.png and contact-sheet.png (annotated), render.json, visibility.txt\n`);
   await demoIdentification(dir);
 }
 
-async function demoMain(sc: ReturnType<typeof parseScenario>, set: OutputSet): Promise<void> {
-  set.write('scenario.json', `${jsonText(DEMO_SCENARIO, 2)}\n`);
+async function demoMain(sc: ReturnType<typeof parseScenario>, demo: object, set: OutputSet): Promise<void> {
+  set.write('scenario.json', `${jsonText(demo, 2)}\n`);
   const { images, entries, seconds } = await renderAndWrite(sc, set, true);
   process.stdout.write(
     `material ${sc.material.name}, ${sc.kV} kV, foil ${sc.thickness_nm} nm, ${sc.image.width_px} x ${sc.image.height_px} px at ${sc.image.pixel_nm} nm; ` +

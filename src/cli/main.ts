@@ -2,7 +2,7 @@
 /** The thinfoil command line. */
 import { Command, CommanderError } from 'commander';
 import { action, EXIT_USER, reportAndExit } from './run.js';
-import { parseAbsorption, parseBlurNm, parseContrast, parseKv } from './options.js';
+import { parseAbsorption, parseBlurNm, parseContrast, parseDemoSize, parseKv } from './options.js';
 import { InputError } from '../errors.js';
 
 // a closed pipe (`thinfoil ... | head`) ends the program quietly
@@ -66,6 +66,7 @@ program
   .option('--blur-nm <sigma>', 'Gaussian point spread (standard deviation, nm) applied to the simulated images (default 0)', userOption(parseBlurNm), 0)
   .option('--json', 'one JSON object on stdout listing the images')
   .option('--progress-json', 'progress as JSON lines {"progress", "stage"} on stderr (a bar is drawn on a terminal otherwise)')
+  .option('--each-column', 'integrate every column on its own, also where straight defects let columns share one long column (slower; for checking)')
   .action(run(() => import('./renderCommand.js'), 'renderCommand'));
 
 program
@@ -158,6 +159,7 @@ program
   .command('demo')
   .description('render the built-in invented demo scenario into out/demo')
   .option('--out <dir>', 'output folder', 'out/demo')
+  .option('--size <px>', 'side of the rendered images in pixels, same field of view (default 256)', userOption(parseDemoSize))
   .action(run(() => import('./demoCommand.js'), 'demoCommand'));
 
 /** Options that take a value (from the declarations above): the token after them is never a positional argument. */

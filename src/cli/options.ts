@@ -25,3 +25,10 @@ export function parseContrast(text: string): 'shared' | 'each' {
   if (text === 'shared' || text === 'each') return text;
   throw new InputError(`--contrast: "${text.slice(0, 40)}" is not a contrast mode; give "shared" (one scale for all conditions) or "each"`);
 }
+
+/** `demo --size`: a whole number of pixels per side. */
+export function parseDemoSize(text: string): number {
+  const v = numberOption('--size', 16, 1024, 'the image side in pixels')(text);
+  if (!Number.isInteger(v)) throw new InputError(`--size: ${v} is not a whole number; give the image side in pixels (16..1024)`);
+  return v;
+}

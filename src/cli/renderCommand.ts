@@ -25,6 +25,8 @@ export interface RenderOptions {
   progressJson?: boolean;
   contrast?: ContrastMode;
   blurNm?: number;
+  /** Integrate every column on its own (no translation method). */
+  eachColumn?: boolean;
 }
 
 /** How the images are shown and blurred (render and demo). */
@@ -33,6 +35,8 @@ export interface ImageOptions {
   readonly contrast: ContrastMode;
   /** Standard deviation (nm) of a Gaussian point spread applied to the simulated intensities; 0: none. */
   readonly blur_nm: number;
+  /** Let columns of straight defects share one long column (translation method); false integrates every column on its own. Default true. */
+  readonly shareColumns?: boolean;
 }
 
 export const DEFAULT_IMAGE_OPTIONS: ImageOptions = { contrast: 'shared', blur_nm: 0 };
@@ -68,7 +72,7 @@ export async function renderAndWrite(
   const t0 = performance.now();
   let images: ConditionImages[];
   try {
-    images = await renderScenario(sc, pool, (i, d, t) => bar.update(`rendering ${sc.conditions[i].id} (${i + 1}/${sc.conditions.length})`, d / t));
+    images = await renderScenario(sc, pool, (i, d, t) => bar.update(`rendering ${sc.conditions[i].id} (${i + 1}/${sc.conditions.length})`, d / t), undefined, opts.shareColumns !== false);
   } finally {
     bar.done();
     await pool.close();
@@ -194,7 +198,7 @@ export async function renderCommand(file: string, opts: RenderOptions): Promise<
   const set = OutputSet.begin(dir, { inputs: [file] });
   let result: Awaited<ReturnType<typeof renderAndWrite>>;
   try {
-    result = await renderAndWrite(sc, set, { jsonLines: opts.progressJson === true }, warnings, { contrast: opts.contrast ?? 'shared', blur_nm: opts.blurNm ?? 0 });
+    result = await renderAndWrite(sc, set, { jsonLines: opts.progressJson === true }, warnings, { contrast: opts.contrast ?? 'shared', blur_nm: opts.blurNm ?? 0, shareColumns: opts.eachColumn !== true });
     set.commit();
   } catch (e) {
     set.abort();

@@ -122,6 +122,10 @@ interface Work {
   dRdz: ((z: number, out3: Float64Array) => void) | null;
   /** statistics of the last integration */
   readonly stats: { accepted: number; rejected: number; evaluations: number };
+  /** ladder level the last march would have used next (propagateBlochN can start from it) */
+  lastLevel: number;
+  /** step length whose phase table `custom` holds (NaN: none) */
+  customH: number;
 }
 
 const DEFAULT_MAX_STEP_NM = 5;
@@ -204,6 +208,8 @@ function prepare(input: ManyBeamInput, factors: Float64Array, strainDim: 1 | 3, 
     betaPrime: null,
     dRdz: null,
     stats: { accepted: 0, rejected: 0, evaluations: 0 },
+    lastLevel: -1,
+    customH: NaN,
   };
   return {
     n,
@@ -473,8 +479,7 @@ function integrate(
   if (out.length < 2 * sys.n) throw new InternalError(`out has ${out.length} numbers: give at least 2N = ${2 * sys.n}.`);
   const n = sys.n;
   const wk = sys.work;
-  const { ur, ui, yr, yi, kr, ki } = wk;
-  const hmax = sys.maxStep_nm;
+  const { ur, ui } = wk;
   wk.betaPrime = betaPrime;
   wk.dRdz = dRdz;
   wk.stats.accepted = 0;
@@ -500,13 +505,66 @@ function integrate(
   // psi (Bloch amplitudes) lives in ur/ui between steps
   ur.set(sys.psi0Re);
   ui.set(sys.psi0Im);
+  const accepted = march(sys, 0, thickness, jumps, nJumps, stride, tol);
+  wk.betaPrime = null;
+  wk.dRdz = null;
 
-  let z = 0;
+  // phi = C psi
+  const { cRe, cIm } = sys;
+  for (let i = 0; i < n; i++) {
+    let a = 0;
+    let b = 0;
+    for (let j = 0; j < n; j++) {
+      const cr = cRe[i * n + j];
+      const ci = cIm[i * n + j];
+      a += cr * ur[j] - ci * ui[j];
+      b += cr * ui[j] + ci * ur[j];
+    }
+    out[2 * i] = a;
+    out[2 * i + 1] = b;
+  }
+  return accepted;
+}
+
+/**
+ * Propagates Bloch-wave amplitudes psi (interleaved [re, im] per wave, 2N,
+ * in place) of a systematic row from depth a to depth b > a through
+ * beta'(z), with the same stepping and tolerance as integrateColumnN (a fresh
+ * first step at a, or the ladder level startLevel, e.g. the lastLevel of the
+ * previous stretch). No faults. Returns the number of accepted steps. Used by
+ * the translation method, which keeps the transfer matrices of stretches.
+ */
+export function propagateBlochN(psi: Float64Array, sys: ColumnSystem, a: number, b: number, betaPrime: (z_nm: number) => number, tol: number, startLevel = -1): number {
+  if (sys.strainDim !== 1) throw new InternalError('this column system was prepared for a general beam set: propagateBlochN takes a systematic row.');
+  const n = sys.n;
+  const wk = sys.work;
+  for (let j = 0; j < n; j++) {
+    wk.ur[j] = psi[2 * j];
+    wk.ui[j] = psi[2 * j + 1];
+  }
+  wk.betaPrime = betaPrime;
+  wk.dRdz = null;
+  const accepted = march(sys, a, b, NO_JUMPS, 0, 2, tol, startLevel);
+  wk.betaPrime = null;
+  for (let j = 0; j < n; j++) {
+    psi[2 * j] = wk.ur[j];
+    psi[2 * j + 1] = wk.ui[j];
+  }
+  return accepted;
+}
+
+/** Steps the Bloch amplitudes in work.ur/ui from depth zStart to zStop, applying the jumps on the way. */
+function march(sys: ColumnSystem, zStart: number, zStop: number, jumps: Float64Array, nJumps: number, stride: 2 | 4, tol: number, startLevel = -1): number {
+  const n = sys.n;
+  const wk = sys.work;
+  const { ur, ui, yr, yi, kr, ki } = wk;
+  const hmax = sys.maxStep_nm;
+  let z = zStart;
   let jumpIdx = 0;
   let accepted = 0;
   let rejected = 0;
   let fsalValid = false;
-  let level = -1; // ladder level of the next step; -1: choose a fresh first step
+  let level = startLevel; // ladder level of the next step; -1: choose a fresh first step
   let h = 0;
   const k1r = kr[0], k1i = ki[0], k2r = kr[1], k2i = ki[1], k3r = kr[2], k3i = ki[2];
   const k4r = kr[3], k4i = ki[3], k5r = kr[4], k5i = ki[4], k6r = kr[5], k6i = ki[5], k7r = kr[6], k7i = ki[6];
@@ -520,8 +578,8 @@ function integrate(
       fsalValid = false;
       level = -1;
     }
-    if (z >= thickness) break;
-    const zEnd = jumpIdx < nJumps ? jumps[jumpIdx * stride] : thickness;
+    if (z >= zStop) break;
+    const zEnd = jumpIdx < nJumps ? jumps[jumpIdx * stride] : zStop;
 
     if (!fsalValid) {
       rhs(sys, z, -1, ur, ui, k1r, k1i);
@@ -543,7 +601,10 @@ function integrate(
     if (z + h >= zEnd || zEnd - (z + h) < 1e-12 * Math.max(1, zEnd)) {
       h = zEnd - z;
       lastStep = true;
-      tabulateE(sys, h, wk.custom);
+      if (h !== wk.customH) {
+        tabulateE(sys, h, wk.custom);
+        wk.customH = h; // the columns of one stretch matrix end with the same step: tabulated once
+      }
       wk.tab = wk.custom;
     } else {
       wk.tab = levelTable(sys, level);
@@ -616,23 +677,7 @@ function integrate(
   }
   wk.stats.accepted = accepted;
   wk.stats.rejected = rejected;
-  wk.betaPrime = null;
-  wk.dRdz = null;
-
-  // phi = C psi
-  const { cRe, cIm } = sys;
-  for (let i = 0; i < n; i++) {
-    let a = 0;
-    let b = 0;
-    for (let j = 0; j < n; j++) {
-      const cr = cRe[i * n + j];
-      const ci = cIm[i * n + j];
-      a += cr * ur[j] - ci * ui[j];
-      b += cr * ui[j] + ci * ur[j];
-    }
-    out[2 * i] = a;
-    out[2 * i + 1] = b;
-  }
+  wk.lastLevel = level;
   return accepted;
 }
 

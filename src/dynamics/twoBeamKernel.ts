@@ -32,13 +32,14 @@
 const PI = Math.PI;
 
 /**
- * Multiplies the amplitudes st[o..o+3] = (re phi0, im phi0, re phig, im phig)
- * in place by exp(Omega) of one slice of length h (nm).
- * qr, qi: real and imaginary parts of q (nm^-1); se: s + mean beta' (nm^-1);
- * eps: the Magnus correction (0 for a constant s_e); invXi0: 1/xi'_0 (nm^-1).
+ * Writes exp(Omega) of one slice of length h (nm) into m[o..o+7] as
+ * (re t00, im t00, re t01, im t01, re t10, im t10, re t11, im t11), acting on
+ * (phi0, phig). qr, qi: real and imaginary parts of q (nm^-1); se: s + mean
+ * beta' (nm^-1); eps: the Magnus correction (0 for a constant s_e); invXi0:
+ * 1/xi'_0 (nm^-1).
  */
-export function stepSlice(
-  st: Float64Array,
+export function slabMatrix(
+  m: Float64Array,
   o: number,
   qr: number,
   qi: number,
@@ -102,19 +103,43 @@ export function stepSlice(
   const th = ph * se;
   const cp = Math.cos(th);
   const sp = Math.sin(th);
+  m[o] = cp * t00r - sp * t00i;
+  m[o + 1] = cp * t00i + sp * t00r;
+  m[o + 2] = cp * t01r - sp * t01i;
+  m[o + 3] = cp * t01i + sp * t01r;
+  m[o + 4] = cp * t10r - sp * t10i;
+  m[o + 5] = cp * t10i + sp * t10r;
+  m[o + 6] = cp * t11r - sp * t11i;
+  m[o + 7] = cp * t11i + sp * t11r;
+}
 
+// scratch of stepSlice (not re-entrant; no allocation per call)
+const T = new Float64Array(8);
+
+/**
+ * Multiplies the amplitudes st[o..o+3] = (re phi0, im phi0, re phig, im phig)
+ * in place by exp(Omega) of one slice of length h (nm) (the matrix of
+ * slabMatrix, same arguments).
+ */
+export function stepSlice(
+  st: Float64Array,
+  o: number,
+  qr: number,
+  qi: number,
+  se: number,
+  eps: number,
+  h: number,
+  invXi0: number,
+): void {
+  slabMatrix(T, 0, qr, qi, se, eps, h, invXi0);
   const x0r = st[o];
   const x0i = st[o + 1];
   const xgr = st[o + 2];
   const xgi = st[o + 3];
-  const n0r = t00r * x0r - t00i * x0i + t01r * xgr - t01i * xgi;
-  const n0i = t00r * x0i + t00i * x0r + t01r * xgi + t01i * xgr;
-  const ngr = t10r * x0r - t10i * x0i + t11r * xgr - t11i * xgi;
-  const ngi = t10r * x0i + t10i * x0r + t11r * xgi + t11i * xgr;
-  st[o] = cp * n0r - sp * n0i;
-  st[o + 1] = cp * n0i + sp * n0r;
-  st[o + 2] = cp * ngr - sp * ngi;
-  st[o + 3] = cp * ngi + sp * ngr;
+  st[o] = T[0] * x0r - T[1] * x0i + T[2] * xgr - T[3] * xgi;
+  st[o + 1] = T[0] * x0i + T[1] * x0r + T[2] * xgi + T[3] * xgr;
+  st[o + 2] = T[4] * x0r - T[5] * x0i + T[6] * xgr - T[7] * xgi;
+  st[o + 3] = T[4] * x0i + T[5] * x0r + T[6] * xgi + T[7] * xgr;
 }
 
 /**

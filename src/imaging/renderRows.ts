@@ -33,6 +33,11 @@ export interface RenderJob {
   readonly coreSupersample?: boolean;
   /** Present for a systematic row of more than two beams: the many-beam engine is used instead of the two-beam one. */
   readonly manyBeam?: ManyBeamJob;
+  /**
+   * false: integrate every column on its own even where columns of straight defects could share one long
+   * column (translationColumns.ts); default true (chosen automatically where it applies).
+   */
+  readonly shareColumns?: boolean;
 }
 
 export interface ManyBeamJob {

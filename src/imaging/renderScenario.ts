@@ -45,9 +45,10 @@ export function manyBeamJob(sc: Scenario, c: ResolvedCondition): ManyBeamJob | u
   return { input: blochRowInput(row, c.s_per_nm), orders: row.orders, incident: row.incident, darkField: row.darkField };
 }
 
-export function renderJob(sc: Scenario, c: ResolvedCondition, tol = DEFAULT_TOLERANCE): RenderJob {
+export function renderJob(sc: Scenario, c: ResolvedCondition, tol = DEFAULT_TOLERANCE, shareColumns = true): RenderJob {
   const mb = manyBeamJob(sc, c);
   return {
+    ...(shareColumns ? {} : { shareColumns: false }),
     ...(mb === undefined ? {} : { manyBeam: mb }),
     width: sc.image.width_px,
     height: sc.image.height_px,
@@ -72,12 +73,14 @@ export async function renderScenario(
   pool: RenderPool,
   onProgress?: (conditionIndex: number, doneRows: number, totalRows: number) => void,
   tol = DEFAULT_TOLERANCE,
+  /** false: every column integrated on its own (no translation method for straight defects). */
+  shareColumns = true,
 ): Promise<ConditionImages[]> {
   const result: ConditionImages[] = [];
   for (let i = 0; i < sc.conditions.length; i++) {
     const c = resolveCondition(sc, sc.conditions[i]);
     const progress: Progress | undefined = onProgress ? (d, t) => onProgress(i, d, t) : undefined;
-    const job = renderJob(sc, c, tol);
+    const job = renderJob(sc, c, tol, shareColumns);
     const img = await pool.render(job, progress);
     result.push({
       condition: c,

@@ -9,6 +9,7 @@ import { availableParallelism } from 'node:os';
 import { existsSync } from 'node:fs';
 import { fileURLToPath } from 'node:url';
 import { renderRows, type RenderJob } from './renderRows.js';
+import { renderTranslated, translationPlan, type TranslationPlan } from './translationColumns.js';
 import { InputError } from '../errors.js';
 
 export interface RenderedImage {
@@ -33,6 +34,8 @@ interface BandReply {
   userError?: boolean;
   row0: number;
   row1: number;
+  /** Translation method: the part rendered (full-size images, zero outside its classes). */
+  part?: number;
   bf: Float32Array;
   df: Float32Array;
   slices: number;
@@ -47,15 +50,26 @@ function workerFile(): string | null {
 export function createRenderPool(threads = availableParallelism()): RenderPool {
   const file = workerFile();
   if (file === null || threads <= 1) return inThreadPool();
-  const workers = Array.from({ length: threads }, () => new Worker(file));
+  // Workers start on the first job that needs them (a worker costs a start-up and its own JIT warm-up).
+  // A larger young generation: the first bands run unoptimised code that boxes doubles, and scavenges are then frequent.
+  let started: Worker[] | null = null;
+  const inThread = inThreadPool();
   return {
     threads,
     async render(job, onProgress) {
+      const plan = translationPlan(job);
+      // small shared-column jobs are done here: cheaper than starting and warming up workers
+      if (plan !== null && sharedWork(job, plan) < IN_THREAD_WORK) return inThread.render(job, onProgress);
+      started ??= Array.from({ length: threads }, () => new Worker(file, { resourceLimits: { maxYoungGenerationSizeMb: 64 } }));
+      const workers = started;
       const n = job.width * job.height;
       const bf = new Float32Array(n);
       const df = new Float32Array(n);
+      // translation method: parts of the classes of pixels; otherwise bands of rows
+      const parts = plan === null ? 0 : Math.min(threads * 4, plan.starts.length);
       const bandRows = Math.max(1, Math.floor(job.height / (threads * 8)));
       let next = 0;
+      let nextPart = 0;
       let done = 0;
       let slices = 0;
       await Promise.all(
@@ -63,6 +77,16 @@ export function createRenderPool(threads = availableParallelism()): RenderPool {
           (w) =>
             new Promise<void>((resolve, reject) => {
               const ask = () => {
+                if (plan !== null) {
+                  if (nextPart >= parts) {
+                    w.off('message', onMessage);
+                    w.off('error', onError);
+                    resolve();
+                    return;
+                  }
+                  w.postMessage({ job, plan, part: nextPart++, parts });
+                  return;
+                }
                 if (next >= job.height) {
                   w.off('message', onMessage);
                   w.off('error', onError);
@@ -81,11 +105,21 @@ export function createRenderPool(threads = availableParallelism()): RenderPool {
                   reject(m.userError ? new InputError(m.error ?? 'bad input') : new Error(m.error));
                   return;
                 }
-                bf.set(m.bf, m.row0 * job.width);
-                df.set(m.df, m.row0 * job.width);
+                if (m.part !== undefined) {
+                  // full-size part: every pixel belongs to exactly one part, the others hold 0
+                  for (let k = 0; k < n; k++) {
+                    bf[k] += m.bf[k];
+                    df[k] += m.df[k];
+                  }
+                  done++;
+                  onProgress?.(Math.round((done / parts) * job.height), job.height);
+                } else {
+                  bf.set(m.bf, m.row0 * job.width);
+                  df.set(m.df, m.row0 * job.width);
+                  done += m.row1 - m.row0;
+                  onProgress?.(done, job.height);
+                }
                 slices += m.slices;
-                done += m.row1 - m.row0;
-                onProgress?.(done, job.height);
                 ask();
               };
               const onError = (e: Error) => reject(e);
@@ -98,10 +132,24 @@ export function createRenderPool(threads = availableParallelism()): RenderPool {
       return { bf, df, slices };
     },
     async close() {
-      await Promise.all(workers.map((w) => w.terminate()));
+      if (started !== null) await Promise.all(started.map((w) => w.terminate()));
+      started = null;
     },
   };
 }
+
+/**
+ * Work of a shared-column job in nm of long column times N^2 for N beams (two beams: 1). Measured
+ * (bench/table.mjs): a 256 x 256 two-beam image of one inclined dislocation is about 1.2e5 nm and
+ * 0.17 CPU s, while two workers add about 1 CPU s of start-up and warm-up per process.
+ */
+function sharedWork(job: RenderJob, plan: TranslationPlan): number {
+  const nb = job.manyBeam?.input.excitationErrors_per_nm.length ?? 1;
+  return plan.pathLength_nm * nb * nb;
+}
+
+/** Shared-column jobs below this work (see sharedWork) are rendered in the calling thread. */
+const IN_THREAD_WORK = 4e5;
 
 function inThreadPool(): RenderPool {
   return {
@@ -110,7 +158,8 @@ function inThreadPool(): RenderPool {
       const n = job.width * job.height;
       const bf = new Float32Array(n);
       const df = new Float32Array(n);
-      const stats = renderRows(job, 0, job.height, bf, df);
+      const plan = translationPlan(job);
+      const stats = plan === null ? renderRows(job, 0, job.height, bf, df) : renderTranslated(job, plan, 0, 1, bf, df);
       onProgress?.(job.height, job.height);
       return { bf, df, slices: stats.slices };
     },

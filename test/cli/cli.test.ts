@@ -182,6 +182,14 @@ describe('thinfoil render', () => {
     expect(core.count).toBeGreaterThan(0);
     expect(core.count).toBeLessThan(24 * 20 / 4);
     expect(existsSync(core.mask)).toBe(true);
+    // --each-column integrates every column on its own: the same images within the integrator tolerance (1e-4)
+    const each = run('render', file, '--out', join(dir, 'each'), '--json', '--each-column');
+    expect(each.code, each.err).toBe(0);
+    const je = JSON.parse(each.out);
+    je.images.forEach((e: { mean: number; min: number; max: number }, k: number) => {
+      expect(Math.abs(e.mean - j.images[k].mean)).toBeLessThan(1e-4);
+      expect(Math.abs(e.max - j.images[k].max)).toBeLessThan(1e-4);
+    });
   });
 
   const bad: [string, (s: any) => void, RegExp][] = [

@@ -52,6 +52,7 @@ describe('thinfoil bloch', () => {
     [['bloch', 'Cu', '2,0,0', '--beams', '4'], /--beams/],
     [['bloch', 'Cu', '2,0,0', '--s', '0.01', '--w', '1'], /--s|--w/],
     [['bloch', 'Cu', '2,0,0', '--thickness', '-3'], /--thickness/],
+    [['demo', '--size', '10.5'], /--size/],
   ])('bad input %j: exit code 2', (args, pattern) => {
     const r = run(...(args as string[]));
     expect(r.code).toBe(2);
@@ -63,9 +64,11 @@ describe('thinfoil bloch', () => {
 describe('thinfoil demo', () => {
   it('renders the invented demo, says it is invented, and writes images and tables', () => {
     const out = mkdtempSync(join(tmpdir(), 'thinfoil-demo-'));
-    const r = run('demo', '--out', out);
+    // --size 64 keeps the test short (same scenario, same field of view, coarser pixels); every check stays
+    const r = run('demo', '--out', out, '--size', '64');
     expect(r.code, r.err).toBe(0);
     expect(r.out).toMatch(/invented/);
+    expect(r.out).toMatch(/64 x 64 px at 2 nm/);
     const summary = JSON.parse(readFileSync(join(out, 'render.json'), 'utf8'));
     expect(summary.images.length).toBeGreaterThanOrEqual(8);
     // render.json says which elasticity the fields used (default: anisotropic, from the material's Cij)

@@ -172,12 +172,10 @@ describe('error control', () => {
   it('a near-singular spike (rho = 0.01 nm) gives finite, accurate values with a bounded slice count', () => {
     const f = dislocation(1, 0.01, 41.3);
     const st: ColumnStats = { slices: 0 };
-    const t0 = performance.now();
     integrateColumn(out, p, 100, f, none, 1e-4, st);
-    const ms = performance.now() - t0;
     expect(Number.isFinite(out[0] + out[1] + out[2] + out[3])).toBe(true);
+    // bounded work (the time of this column is in bench/guards.mjs, not here)
     expect(st.slices).toBeLessThan(1000);
-    expect(ms).toBeLessThan(200);
     // reference: RK4 with h = 1/200 of the peak width (2e5 steps)
     const ref = new Float64Array(4);
     rk4Column(ref, p, 100, f, 2e5);
@@ -196,13 +194,11 @@ describe('error control', () => {
 
   it('an unresolvable beta\' (oscillating faster than MIN_SLICE_NM) hits the guards and ends', () => {
     const st: ColumnStats = { slices: 0 };
-    const t0 = performance.now();
     integrateColumn(out, p, 100, (z) => 50 * Math.sin((2 * Math.PI * z) / 3e-4), none, 1e-4, st);
-    const ms = performance.now() - t0;
     expect(Number.isFinite(out[0] + out[1] + out[2] + out[3])).toBe(true);
+    // bounded work (its time is in bench/guards.mjs, not here)
     expect(st.slices).toBeLessThanOrEqual(MAX_SLICES + 1);
     expect(st.forced ?? 0).toBeGreaterThan(0);
-    expect(ms).toBeLessThan(500);
   });
 
   it('adds to the caller\'s counters', () => {

@@ -1,0 +1,253 @@
+/**
+ * The translation method (translationColumns.ts) for the many-beam engine
+ * with a systematic row: the same classes of pixels, long columns and
+ * sliding windows, with N x N transfer matrices in the Bloch-wave basis of
+ * the perfect crystal. A stretch's matrix is built column by column: each
+ * unit Bloch amplitude vector is propagated through the stretch by the
+ * column integrator's own stepper (propagateBlochN, same tolerance); a fault
+ * is C^-1 diag(exp(i n_j alpha)) C; a dislocation's depth of closest approach
+ * is a stretch boundary (the fresh first step the column path gets there).
+ * A pixel's amplitudes are the rows (transmitted, g) of C W psi0, W its
+ * window product.
+ */
+import { columnEntryOffset } from '../geometry/frames.js';
+import { prepareColumnSystem, propagateBlochN } from '../dynamics/manyBeam.js';
+import { activeSurfaces, MANY_BEAM_TOL_FACTOR, type RenderJob } from './renderRows.js';
+import { buildField } from './fieldSpecs.js';
+import type { TranslationPlan, ClassWindows } from './translationColumns.js';
+
+/** out[o..] = a[ao..] x b[bo..], N x N complex, interleaved [re, im], row-major. out may not alias a or b. */
+function mulN(out: Float64Array, o: number, a: Float64Array, ao: number, b: Float64Array, bo: number, n: number): void {
+  for (let i = 0; i < n; i++) {
+    for (let j = 0; j < n; j++) {
+      let re = 0;
+      let im = 0;
+      for (let k = 0; k < n; k++) {
+        const ar = a[ao + 2 * (i * n + k)];
+        const ai = a[ao + 2 * (i * n + k) + 1];
+        const br = b[bo + 2 * (k * n + j)];
+        const bi = b[bo + 2 * (k * n + j) + 1];
+        re += ar * br - ai * bi;
+        im += ar * bi + ai * br;
+      }
+      out[o + 2 * (i * n + j)] = re;
+      out[o + 2 * (i * n + j) + 1] = im;
+    }
+  }
+}
+
+function identityN(m: Float64Array, o: number, n: number): void {
+  m.fill(0, o, o + 2 * n * n);
+  for (let i = 0; i < n; i++) m[o + 2 * (i * n + i)] = 1;
+}
+
+export function classWindowsN(job: RenderJob, plan: TranslationPlan): ClassWindows {
+  const mbj = job.manyBeam;
+  if (mbj === undefined || mbj.beamVectors !== undefined) throw new Error('classWindowsN: a systematic-row job is required');
+  const { width, height, frame, g_cart, tol } = job;
+  const L = frame.columnLength_nm;
+  const sys = prepareColumnSystem(mbj.input, mbj.orders, { incident: mbj.incident });
+  const n = sys.n;
+  const nn = 2 * n * n;
+  const stepTol = tol * MANY_BEAM_TOL_FACTOR;
+  const field = buildField(job.model.fields);
+  const dir = field === null ? null : field.directional(g_cart, frame.ez);
+  const surfaces = activeSurfaces(job);
+  const lines = job.model.fields.flatMap((f) => (f.kind === 'dislocation' ? [{ p: f.point_nm, u: f.line }] : []));
+  const [kx, ky, kz] = frame.ez;
+  const [ex0, ex1, ex2] = frame.ex;
+  const [ey0, ey1, ey2] = frame.ey;
+  const c0 = new Float64Array(3);
+  const betaPrime = dir === null ? () => 0 : (z: number): number => dir(c0[0] + z * kx, c0[1] + z * ky, c0[2] + z * kz);
+  const { D } = plan;
+  const maxK = Math.max(width, height) + 1;
+  // events: 0 end of window k, 1 fault (ref = surface), 2 start of window k, 3 breakpoint
+  const nMaxEvents = 2 * maxK + surfaces.length + lines.length;
+  const evPos = new Float64Array(nMaxEvents);
+  const evCode = new Int32Array(nMaxEvents);
+  const evRef = new Int32Array(nMaxEvents);
+  const order = new Int32Array(nMaxEvents);
+  const faultAlpha = new Float64Array(surfaces.length);
+  const first = new Int32Array(maxK);
+  const last = new Int32Array(maxK);
+  const nMaxElements = nMaxEvents + 1;
+  const E = new Float64Array(nn * nMaxElements);
+  const F = new Float64Array(nn * nMaxElements);
+  const B = new Float64Array(nn);
+  const T = new Float64Array(nn);
+  const psi = new Float64Array(2 * n);
+  const v = new Float64Array(2 * n);
+  const w = new Float64Array(2 * n);
+  // psi0 and the rows of C for the transmitted and the g beam
+  const psi0 = new Float64Array(2 * n);
+  for (let j = 0; j < n; j++) {
+    psi0[2 * j] = sys.psi0Re[j];
+    psi0[2 * j + 1] = sys.psi0Im[j];
+  }
+  const r0 = mbj.incident * n;
+  const rg = mbj.darkField * n;
+  const stats = { slices: 0 };
+  const byPosition = (a: number, b: number): number => evPos[a] - evPos[b] || evCode[a] - evCode[b];
+
+  /**
+   * Matrix of the stretch [a, b] into E at element m. Every column starts at ladder level `level`
+   * (-1: a fresh first step, as the column path takes after a fault or breakpoint); returns the level
+   * the first column would take next, for the following stretch.
+   */
+  const stretch = (m: number, a: number, b: number, level: number): number => {
+    const o = nn * m;
+    let next = -1;
+    for (let j = 0; j < n; j++) {
+      psi.fill(0);
+      psi[2 * j] = 1;
+      stats.slices += propagateBlochN(psi, sys, a, b, betaPrime, stepTol, level);
+      if (j === 0) next = sys.work.lastLevel;
+      for (let i = 0; i < n; i++) {
+        E[o + 2 * (i * n + j)] = psi[2 * i];
+        E[o + 2 * (i * n + j) + 1] = psi[2 * i + 1];
+      }
+    }
+    return next;
+  };
+  /** Fault matrix C^-1 diag(exp(i n_j alpha)) C into E at element m. */
+  const fault = (m: number, alpha: number): void => {
+    const o = nn * m;
+    const { cRe, cIm, cInvRe, cInvIm } = sys;
+    for (let i = 0; i < n; i++) {
+      for (let j = 0; j < n; j++) {
+        let re = 0;
+        let im = 0;
+        for (let k = 0; k < n; k++) {
+          const ang = mbj.orders[k] * alpha;
+          const pr = Math.cos(ang);
+          const pi = Math.sin(ang);
+          // (C^-1)_ik phase_k C_kj
+          const ar = cInvRe[i * n + k] * pr - cInvIm[i * n + k] * pi;
+          const ai = cInvRe[i * n + k] * pi + cInvIm[i * n + k] * pr;
+          re += ar * cRe[k * n + j] - ai * cIm[k * n + j];
+          im += ar * cIm[k * n + j] + ai * cRe[k * n + j];
+        }
+        E[o + 2 * (i * n + j)] = re;
+        E[o + 2 * (i * n + j) + 1] = im;
+      }
+    }
+  };
+  /** v = M psi0 for the matrix at M[mo..]. */
+  const apply = (out: Float64Array, M: Float64Array, mo: number, x: Float64Array): void => {
+    for (let i = 0; i < n; i++) {
+      let re = 0;
+      let im = 0;
+      for (let k = 0; k < n; k++) {
+        const ar = M[mo + 2 * (i * n + k)];
+        const ai = M[mo + 2 * (i * n + k) + 1];
+        re += ar * x[2 * k] - ai * x[2 * k + 1];
+        im += ar * x[2 * k + 1] + ai * x[2 * k];
+      }
+      out[2 * i] = re;
+      out[2 * i + 1] = im;
+    }
+  };
+
+  const run = (amp: Float64Array, x: number, y: number, K: number): void => {
+    const tau0 = columnEntryOffset(frame, x, y);
+    const cx = x * ex0 + y * ey0 + tau0 * kx;
+    const cy = x * ex1 + y * ey1 + tau0 * ky;
+    const cz = x * ex2 + y * ey2 + tau0 * kz;
+    c0[0] = cx;
+    c0[1] = cy;
+    c0[2] = cz;
+    let ne = 0;
+    for (let k = 0; k < K; k++) {
+      evPos[ne] = k * D + L;
+      evCode[ne] = 0;
+      evRef[ne++] = k;
+      evPos[ne] = k * D;
+      evCode[ne] = 2;
+      evRef[ne++] = k;
+    }
+    const zEnd = (K - 1) * D + L;
+    for (let s = 0; s < surfaces.length; s++) {
+      const f = surfaces[s];
+      const zc = ((f.p[0] - cx) * f.n[0] + (f.p[1] - cy) * f.n[1] + (f.p[2] - cz) * f.n[2]) / f.kn;
+      if (!(zc > 0 && zc < zEnd)) continue;
+      if (f.halfPlane) {
+        const t = (cx + zc * kx - f.p[0]) * f.into[0] + (cy + zc * ky - f.p[1]) * f.into[1] + (cz + zc * kz - f.p[2]) * f.into[2];
+        if (t <= 0) continue;
+      }
+      faultAlpha[s] = f.kn > 0 ? f.alpha : -f.alpha;
+      evPos[ne] = zc;
+      evCode[ne] = 1;
+      evRef[ne++] = s;
+    }
+    for (let d = 0; d < lines.length; d++) {
+      const { p, u } = lines[d];
+      const b = kx * u[0] + ky * u[1] + kz * u[2];
+      const den = 1 - b * b;
+      if (den < 1e-9) continue;
+      const w0x = cx - p[0], w0y = cy - p[1], w0z = cz - p[2];
+      const zc = (b * (u[0] * w0x + u[1] * w0y + u[2] * w0z) - (kx * w0x + ky * w0y + kz * w0z)) / den;
+      if (!(zc > 0 && zc < zEnd)) continue;
+      evPos[ne] = zc;
+      evCode[ne] = 3;
+      evRef[ne++] = d;
+    }
+    for (let e = 0; e < ne; e++) order[e] = e;
+    order.subarray(0, ne).sort(byPosition);
+    let m = 0;
+    let zPrev = 0;
+    let level = -1;
+    for (let e = 0; e < ne; e++) {
+      const ev0 = order[e];
+      const z = evPos[ev0];
+      if (z > zPrev) {
+        level = stretch(m++, zPrev, z, level);
+        zPrev = z;
+      }
+      const code = evCode[ev0];
+      if (code === 0) last[evRef[ev0]] = m;
+      else if (code === 2) first[evRef[ev0]] = m;
+      else if (code === 1) {
+        fault(m++, faultAlpha[evRef[ev0]]);
+        level = -1;
+      } else level = -1; // breakpoint: a fresh first step, as in the column path
+    }
+    let frontEnd = 0;
+    let backEnd = 0;
+    identityN(B, 0, n);
+    for (let k = 0; k < K; k++) {
+      const a = first[k];
+      const b = last[k];
+      while (backEnd < b) {
+        mulN(T, 0, E, nn * backEnd, B, 0, n);
+        B.set(T);
+        backEnd++;
+      }
+      if (a >= frontEnd) {
+        if (backEnd > frontEnd) {
+          F.set(E.subarray(nn * (backEnd - 1), nn * backEnd), nn * (backEnd - 1));
+          for (let t = backEnd - 2; t >= frontEnd; t--) mulN(F, nn * t, F, nn * (t + 1), E, nn * t, n);
+        }
+        frontEnd = backEnd;
+        identityN(B, 0, n);
+      }
+      // psi at the exit = B F[a] psi0; phi = C psi for the transmitted and the g beam
+      if (a < frontEnd) apply(v, F, nn * a, psi0);
+      else v.set(psi0);
+      apply(w, B, 0, v);
+      let p0r = 0, p0i = 0, pgr = 0, pgi = 0;
+      for (let j = 0; j < n; j++) {
+        const wr = w[2 * j];
+        const wi = w[2 * j + 1];
+        p0r += sys.cRe[r0 + j] * wr - sys.cIm[r0 + j] * wi;
+        p0i += sys.cRe[r0 + j] * wi + sys.cIm[r0 + j] * wr;
+        pgr += sys.cRe[rg + j] * wr - sys.cIm[rg + j] * wi;
+        pgi += sys.cRe[rg + j] * wi + sys.cIm[rg + j] * wr;
+      }
+      amp[4 * k] = p0r;
+      amp[4 * k + 1] = p0i;
+      amp[4 * k + 2] = pgr;
+      amp[4 * k + 3] = pgi;
+    }
+  };
+  return Object.assign(run, { stats });
+}
