@@ -93,7 +93,7 @@ const weakBeam = {
   beam: [0, 0, 1],
   imageX: [1, 0, 0],
   image: { width_px: 256, height_px: 256, pixel_nm: 0.25 },
-  conditions: [{ id: 'wb', g: [2, 2, 0], weakBeam: 3, beams: { row: 7 } }],
+  conditions: [{ id: 'wb', g: [2, 2, 0], weakBeam: 3, beams: { row: [-2, 4] } }], // 7 beams holding 3g and 4g
   defects: [{ type: 'dislocation', b: '1/2[1 1 0]', line: [1, -1, 2], point_nm: [0, 0, 50] }],
 };
 

@@ -84,10 +84,11 @@ describe('translation method equals column-by-column integration (exact identity
     });
   }
 
-  it('5-beam systematic row (-2g..2g), weak beam g(3g), inclined dislocation (N x N Bloch-basis matrices)', () => {
+  it('5-beam systematic row (-g..3g), weak beam g(2g), inclined dislocation (N x N Bloch-basis matrices)', () => {
     const j = job({
       image: { width_px: 16, height_px: 16, pixel_nm: 2 },
-      conditions: [{ id: 'wb', g: [2, 2, 0], weakBeam: 3, beams: { row: 5 } }],
+      // a weak-beam row must hold ng and (n+1)g (issue 9): -g .. 3g for g(2g)
+      conditions: [{ id: 'wb', g: [2, 2, 0], weakBeam: 2, beams: { row: [-1, 3] } }],
       defects: [{ type: 'dislocation', b: '1/2[1 1 0]', line: [1, -1, 2], point_nm: [0, 0, 50] }],
     });
     expect(j.manyBeam).toBeDefined();
