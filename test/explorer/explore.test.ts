@@ -350,3 +350,27 @@ describe.skipIf(!HAVE_CHROMIUM)('thinfoil explore in chromium', () => {
     }
   });
 });
+
+describe('thinfoil explore refuses bad input before serving anything', () => {
+  function run(...args: string[]) {
+    const r = spawnSync(process.execPath, [CLI, 'explore', ...args], { cwd: ROOT, encoding: 'utf8', timeout: 20_000 });
+    return { code: r.status, out: r.stdout, err: r.stderr };
+  }
+  it('a missing file, a scenario the parser refuses and a bad --port: one sentence, exit code 2, nothing served', () => {
+    const dir = mkdtempSync(join(tmpdir(), 'thinfoil-explore-bad-'));
+    const bad = join(dir, 'bad.json');
+    writeFileSync(bad, JSON.stringify({ ...SCENARIO, foil: { thickness_nm: -5 } }));
+    const cases: [string[], RegExp][] = [
+      [[join(dir, 'nope.json')], /cannot be read/],
+      [[bad], /foil\.thickness_nm/],
+      [[join(ROOT, 'scenarios', 'copper-dislocations.json'), '--port', 'eighty'], /--port eighty/],
+    ];
+    for (const [args, msg] of cases) {
+      const r = run(...args);
+      expect(r.code, r.err).toBe(2);
+      expect(r.err).toMatch(msg);
+      expect(r.err).not.toMatch(/\n\s+at /);
+      expect(r.out).toBe('');
+    }
+  });
+});
