@@ -11,7 +11,7 @@ import { dot } from '../src/math/vec3.js';
 import { parseScenario, PERPENDICULAR_TOLERANCE_DEG } from '../src/scenario/parse.js';
 import type { Scenario } from '../src/scenario/types.js';
 import { resolveCondition, type ResolvedCondition } from '../src/imaging/resolveCondition.js';
-import { background, renderJob } from '../src/imaging/renderScenario.js';
+import { renderJob } from '../src/imaging/renderScenario.js';
 import type { RenderJob } from '../src/imaging/renderRows.js';
 import { isForbidden, reflectionParameters } from '../src/scattering/reflection.js';
 import { directionToCartesian, planeNormalToCartesian } from '../src/crystal/lattice.js';
@@ -158,6 +158,8 @@ class BandPool {
 let raw: Raw = {};
 let base: Scenario;
 const settings: Settings = { cond: 0, mode: 'w', value: 0, thickness: 100, defect: -1, depth: 0, g: [0, 0, 0], b: -1, beams: 2 };
+/** Settings the user has changed: only these are written into the scenario copy, so untouched entries keep the file's own form (weakBeam, 4 indices, ...). */
+const touched = { deviation: false, g: false, beams: false, thickness: false, depth: false };
 let reflections: Reflection[] = [];
 let burgersChoices: Vec3[] = [];
 
@@ -168,22 +170,28 @@ function defectDepthKey(d: Raw): 'centre_nm' | 'point_nm' {
 /** The scenario JSON with the current settings applied (a copy; the served file is never changed). */
 export function variantRaw(): Raw {
   const r = structuredClone(raw);
-  r.foil.thickness_nm = settings.thickness;
+  if (touched.thickness) r.foil.thickness_nm = settings.thickness;
   const c = r.conditions[settings.cond];
-  delete c.s_per_nm;
-  delete c.w;
-  delete c.weakBeam;
-  if (settings.mode === 'w') c.w = settings.value;
-  else c.s_per_nm = settings.value;
-  c.g = [...settings.g];
-  if (settings.beams === 2) delete c.beams;
-  else if (settings.beams > 2) c.beams = { row: settings.beams };
+  if (touched.deviation) {
+    delete c.s_per_nm;
+    delete c.w;
+    delete c.weakBeam;
+    if (settings.mode === 'w') c.w = settings.value;
+    else c.s_per_nm = settings.value;
+  }
+  if (touched.g) c.g = [...settings.g];
+  if (touched.beams) {
+    if (settings.beams === 2) delete c.beams;
+    else if (settings.beams > 2) c.beams = { row: settings.beams };
+  }
   if (settings.defect >= 0) {
     const d = r.defects[settings.defect];
     const key = defectDepthKey(d);
-    const p = Array.isArray(d[key]) ? [...d[key]] : [0, 0, 0];
-    p[2] = settings.depth;
-    d[key] = p;
+    if (touched.depth) {
+      const p = Array.isArray(d[key]) ? [...d[key]] : [0, 0, 0];
+      p[2] = settings.depth;
+      d[key] = p;
+    }
     if (settings.b >= 0 && 'b' in d) d.b = formatBurgers(burgersChoices[settings.b]);
   }
   return r;
@@ -232,10 +240,11 @@ function option(sel: HTMLSelectElement, value: string, text: string): void {
 
 /** Fill the controls from the scenario for condition `ci` (and the defect choice). */
 function loadCondition(ci: number): void {
-  const sc = parseScenario(variantOrRaw());
+  const sc = parseScenario(raw); // the condition as the file has it
   const c = sc.conditions[ci];
   const rc = resolveCondition(sc, c);
   settings.cond = ci;
+  touched.deviation = touched.g = touched.beams = false;
   settings.g = [...c.g] as Vec3;
   if (c.deviation.kind === 'w') {
     settings.mode = 'w';
@@ -257,14 +266,11 @@ function loadCondition(ci: number): void {
   showDeviation();
 }
 
-let loaded = false;
-function variantOrRaw(): Raw {
-  return loaded ? variantRaw() : raw;
-}
 
 function loadDefect(di: number): void {
   settings.defect = di;
   settings.b = -1;
+  touched.depth = false;
   el.burgers.replaceChildren();
   option(el.burgers, '-1', 'as in the file');
   burgersChoices = [];
@@ -345,7 +351,7 @@ function update(): void {
   const t0 = changeTime;
   setStatus('rendering ...');
   showInfo(sc, cond);
-  const rocking = rockingCurve(sc, cond);
+  requestRocking(rv);
   pool.submit(
     job,
     (bf, df) => {
@@ -356,7 +362,8 @@ function update(): void {
       state.pixel_nm = job.pixel_nm;
       state.scenario = rv;
       state.conditionId = cond.id;
-      draw(sc, cond, job, bf, df, rocking);
+      lastView = { sc, cond, job, bf, df };
+      redraw();
       state.lastMs = performance.now() - t0;
       state.renders++;
       setStatus(`${job.width} x ${job.height} pixels rendered in ${fmt(state.lastMs, 3)} ms (${navigatorThreads()} workers)`);
@@ -388,21 +395,44 @@ function showInfo(sc: Scenario, c: ResolvedCondition): void {
   el.info.textContent = lines.join('\n');
 }
 
-/** Perfect-crystal bright and dark field against w at the current thickness and beams. */
-function rockingCurve(sc: Scenario, c: ResolvedCondition): { w: Float64Array; bf: Float64Array; df: Float64Array } {
-  const n = 161;
-  const w = new Float64Array(n);
-  const bf = new Float64Array(n);
-  const df = new Float64Array(n);
-  const perfect: Scenario = { ...sc, defects: [] };
-  for (let i = 0; i < n; i++) {
-    w[i] = -4 + (8 * i) / (n - 1);
-    const ci: ResolvedCondition = { ...c, s_per_nm: w[i] / c.xi_nm, w: w[i] };
-    const b = background(renderJob(perfect, ci));
-    bf[i] = b.bf;
-    df[i] = b.df;
+interface Rocking {
+  readonly thickness_nm: number;
+  readonly w: Float64Array;
+  readonly bf: Float64Array;
+  readonly df: Float64Array;
+}
+
+let rockingWorker: Worker;
+let rockingGen = 0;
+let rockingKey = '';
+let rocking: Rocking | null = null;
+let lastView: { sc: Scenario; cond: ResolvedCondition; job: RenderJob; bf: Float32Array; df: Float32Array } | null = null;
+
+/** Ask the rocking-curve worker for the perfect-crystal curve, unless the last one still holds (it does not depend on w, s or the defects). */
+function requestRocking(rv: Raw): void {
+  const c = { ...rv.conditions[settings.cond] };
+  delete c.s_per_nm;
+  delete c.w;
+  delete c.weakBeam;
+  const key = JSON.stringify([settings.cond, { ...rv, defects: [], conditions: [c] }]);
+  if (key === rockingKey) return;
+  rockingKey = key;
+  rockingWorker.postMessage({ gen: ++rockingGen, scenario: rv, cond: settings.cond });
+}
+
+function rockingReply(m: { ok: boolean; gen: number; error?: string } & Partial<Rocking>): void {
+  if (m.gen !== rockingGen) return;
+  if (!m.ok) {
+    rocking = null;
+    setStatus(`no rocking curve: ${m.error}`, true);
+  } else {
+    rocking = { thickness_nm: m.thickness_nm!, w: m.w!, bf: m.bf!, df: m.df! };
   }
-  return { w, bf, df };
+  redraw();
+}
+
+function redraw(): void {
+  if (lastView !== null) draw(lastView.sc, lastView.cond, lastView.job, lastView.bf, lastView.df, rocking);
 }
 
 /** The chosen defect's position in this condition's image (x, y in nm) and the direction of the profile across it. */
@@ -484,7 +514,7 @@ function plot(shapes: Shape[], x0: number, y0: number, w: number, h: number, xs:
   }
 }
 
-function draw(sc: Scenario, c: ResolvedCondition, job: RenderJob, bf: Float32Array, df: Float32Array, rocking: ReturnType<typeof rockingCurve>): void {
+function draw(sc: Scenario, c: ResolvedCondition, job: RenderJob, bf: Float32Array, df: Float32Array, rocking: Rocking | null): void {
   const { width, height, pixel_nm } = job;
   const P = 320;
   const scale = P / Math.max(width, height);
@@ -543,7 +573,11 @@ function draw(sc: Scenario, c: ResolvedCondition, job: RenderJob, bf: Float32Arr
   }
   const y2 = y1 + 14;
   plot(shapes, M, y2, P, 210, ts, [{ ys: pb, colour: '#1f4e9c', name: 'BF' }, { ys: pd, colour: '#c0392b', name: 'DF' }], 'distance along the dashed line (nm)', `profile ${line.label}`, 0);
-  plot(shapes, 2 * M + P, y2, P, 210, rocking.w, [{ ys: rocking.bf, colour: '#1f4e9c', name: 'BF' }, { ys: rocking.df, colour: '#c0392b', name: 'DF' }], 'w = s xi_g', `perfect crystal, t = ${fmt(sc.thickness_nm)} nm`, c.w);
+  if (rocking !== null) {
+    plot(shapes, 2 * M + P, y2, P, 210, rocking.w, [{ ys: rocking.bf, colour: '#1f4e9c', name: 'BF' }, { ys: rocking.df, colour: '#c0392b', name: 'DF' }], 'w = s xi_g', `perfect crystal, t = ${fmt(rocking.thickness_nm)} nm`, c.w);
+  } else {
+    shapes.push({ kind: 'text', x: 2 * M + P + 44, y: y2 + 14, text: 'perfect crystal: computing ...', size: 12, fill: '#111' });
+  }
   lastFigure = { width: 2 * P + 3 * M, height: Math.ceil(y2 + 220), shapes };
   drawFigure(el.figure, lastFigure);
 }
@@ -625,23 +659,21 @@ async function main(): Promise<void> {
   el.thickness.max = String(Math.max(400, Math.ceil(2 * base.thickness_nm)));
   setPair(el.thickness, el.thicknessValue, settings.thickness);
   loadCondition(0);
-  loaded = true;
   loadDefect(base.defects.length > 0 ? 0 : -1);
   el.defect.value = String(settings.defect);
   pool = new BandPool(navigatorThreads());
+  rockingWorker = new Worker(new URL('./rocking.js', import.meta.url), { type: 'module' });
+  rockingWorker.onmessage = (e) => rockingReply(e.data);
 
   el.condition.addEventListener('change', () => {
-    loaded = false; // the new condition is read as the file has it
     loadCondition(Number(el.condition.value));
-    loaded = true;
     update();
   });
   el.reflection.addEventListener('change', () => {
     const r = reflections[Number(el.reflection.value)];
-    if (settings.mode === 'w') {
-      // keep w; s follows the new xi_g
-    }
+    // the deviation control keeps its value: with w, s follows the new xi_g
     settings.g = [...r.g] as Vec3;
+    touched.g = true;
     update();
   });
   for (const radio of [el.modeW, el.modeS]) {
@@ -650,16 +682,24 @@ async function main(): Promise<void> {
       const rc = resolveCondition(sc, sc.conditions[settings.cond]);
       settings.mode = el.modeW.checked ? 'w' : 's';
       settings.value = settings.mode === 'w' ? rc.w : rc.s_per_nm;
+      touched.deviation = true;
       showDeviation();
       update();
     });
   }
-  bindPair(el.deviation, el.deviationValue, (v) => (settings.value = v));
+  bindPair(el.deviation, el.deviationValue, (v) => {
+    settings.value = v;
+    touched.deviation = true;
+  });
   bindPair(el.thickness, el.thicknessValue, (v) => {
     settings.thickness = v;
+    touched.thickness = true;
     el.depth.max = String(v);
   });
-  bindPair(el.depth, el.depthValue, (v) => (settings.depth = v));
+  bindPair(el.depth, el.depthValue, (v) => {
+    settings.depth = v;
+    touched.depth = true;
+  });
   el.defect.addEventListener('change', () => {
     loadDefect(Number(el.defect.value));
     update();
@@ -670,6 +710,7 @@ async function main(): Promise<void> {
   });
   el.beams.addEventListener('change', () => {
     settings.beams = Number(el.beams.value);
+    touched.beams = true;
     update();
   });
   $('controls').addEventListener('submit', (e) => e.preventDefault());

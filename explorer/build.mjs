@@ -18,7 +18,7 @@ const nodeFsShim = {
 };
 
 await build({
-  entryPoints: { app: here('./app.ts'), worker: here('./worker.ts') },
+  entryPoints: { app: here('./app.ts'), worker: here('./worker.ts'), rocking: here('./rockingWorker.ts') },
   outdir,
   bundle: true,
   format: 'esm',

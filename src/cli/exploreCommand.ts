@@ -20,6 +20,7 @@ const PAGE_FILES: Readonly<Record<string, string>> = {
   '/style.css': 'text/css; charset=utf-8',
   '/app.js': 'text/javascript; charset=utf-8',
   '/worker.js': 'text/javascript; charset=utf-8',
+  '/rocking.js': 'text/javascript; charset=utf-8',
 };
 
 export function pageFiles(): Map<string, ServedFile> {

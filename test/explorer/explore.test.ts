@@ -190,7 +190,7 @@ describe.skipIf(!HAVE_CHROMIUM)('thinfoil explore in chromium', () => {
   });
 
   it('serves the page files and the scenario, and 404 for everything else (traversal, absolute paths, other hosts, other methods)', async () => {
-    for (const p of ['/', '/index.html', '/app.js', '/worker.js', '/style.css', '/scenario.json', '/app.js?v=1']) {
+    for (const p of ['/', '/index.html', '/app.js', '/worker.js', '/rocking.js', '/style.css', '/scenario.json', '/app.js?v=1']) {
       expect((await rawGet(served.port, p)).status, p).toBe(200);
     }
     const served_ = await rawGet(served.port, '/scenario.json');
@@ -238,6 +238,11 @@ describe.skipIf(!HAVE_CHROMIUM)('thinfoil explore in chromium', () => {
     expect(img.bf.every(Number.isFinite) && img.df.every(Number.isFinite)).toBe(true);
     expect(await page.locator('#reflection option').count()).toBeGreaterThan(4);
     expect(await page.locator('#reflection option:checked').textContent()).toMatch(/^2 0 0 +\(xi_g [0-9.]+ nm\)$/);
+    // nothing changed yet: "save" gives back the served scenario
+    const [download] = await Promise.all([page.waitForEvent('download'), page.click('#save')]);
+    const untouched = join(dir, 'untouched.json');
+    await download.saveAs(untouched);
+    expect(JSON.parse(readFileSync(untouched, 'utf8'))).toEqual(SCENARIO);
   });
 
   it('moving the w control changes the image', async () => {
@@ -273,7 +278,7 @@ describe.skipIf(!HAVE_CHROMIUM)('thinfoil explore in chromium', () => {
     expected.foil.thickness_nm = 70;
     expected.defects[0].point_nm = [2, -3, 25];
     expected.defects[0].b = String(bText).replace(/^b = /, '');
-    expected.conditions[0] = { id: 'g200', g: [-2, 0, 0], w: 1.2 };
+    expected.conditions = [{ id: 'g200', g: [-2, 0, 0], w: 1.2 }];
     const mine = join(dir, 'expected.json');
     writeFileSync(mine, JSON.stringify(expected));
     const cli = cliRender(mine, join(dir, 'cli-expected'), 'g200');
