@@ -311,15 +311,11 @@ function setPair(range: HTMLInputElement, num: HTMLInputElement, v: number): voi
 function showDeviation(): void {
   el.modeW.checked = settings.mode === 'w';
   el.modeS.checked = settings.mode === 's';
-  if (settings.mode === 'w') {
-    el.deviation.min = '-4';
-    el.deviation.max = '4';
-    el.deviation.step = '0.01';
-  } else {
-    el.deviation.min = '-0.2';
-    el.deviation.max = '0.2';
-    el.deviation.step = '0.0005';
-  }
+  // the slider reaches at least the file's value (a weak-beam w can be 10 or more)
+  const range = settings.mode === 'w' ? Math.max(4, Math.ceil(Math.abs(settings.value)) + 1) : Math.max(0.2, Math.ceil(Math.abs(settings.value) * 10 + 1) / 10);
+  el.deviation.min = String(-range);
+  el.deviation.max = String(range);
+  el.deviation.step = settings.mode === 'w' ? '0.01' : '0.0005';
   setPair(el.deviation, el.deviationValue, settings.value);
 }
 
@@ -351,7 +347,7 @@ function update(): void {
   const t0 = changeTime;
   setStatus('rendering ...');
   showInfo(sc, cond);
-  requestRocking(rv);
+  requestRocking(rv, Math.max(4, Math.ceil(Math.abs(cond.w)) + 1));
   pool.submit(
     job,
     (bf, df) => {
@@ -408,16 +404,16 @@ let rockingKey = '';
 let rocking: Rocking | null = null;
 let lastView: { sc: Scenario; cond: ResolvedCondition; job: RenderJob; bf: Float32Array; df: Float32Array } | null = null;
 
-/** Ask the rocking-curve worker for the perfect-crystal curve, unless the last one still holds (it does not depend on w, s or the defects). */
-function requestRocking(rv: Raw): void {
+/** Ask the rocking-curve worker for the perfect-crystal curve on -wMax..wMax, unless the last one still holds (it does not depend on w, s or the defects). */
+function requestRocking(rv: Raw, wMax: number): void {
   const c = { ...rv.conditions[settings.cond] };
   delete c.s_per_nm;
   delete c.w;
   delete c.weakBeam;
-  const key = JSON.stringify([settings.cond, { ...rv, defects: [], conditions: [c] }]);
+  const key = JSON.stringify([settings.cond, wMax, { ...rv, defects: [], conditions: [c] }]);
   if (key === rockingKey) return;
   rockingKey = key;
-  rockingWorker.postMessage({ gen: ++rockingGen, scenario: rv, cond: settings.cond });
+  rockingWorker.postMessage({ gen: ++rockingGen, scenario: rv, cond: settings.cond, wMax });
 }
 
 function rockingReply(m: { ok: boolean; gen: number; error?: string } & Partial<Rocking>): void {

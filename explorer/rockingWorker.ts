@@ -12,15 +12,17 @@ interface RockingRequest {
   readonly gen: number;
   readonly scenario: unknown;
   readonly cond: number;
+  /** The curve runs over -wMax..wMax. */
+  readonly wMax: number;
 }
 
-/** w from -4 to 4 in 161 steps. */
+/** Points of the curve. */
 export const ROCKING_POINTS = 161;
 
 const scope = self as unknown as { onmessage: ((e: MessageEvent<RockingRequest>) => void) | null; postMessage(m: unknown, transfer: Transferable[]): void };
 
 scope.onmessage = (e) => {
-  const { gen, scenario, cond } = e.data;
+  const { gen, scenario, cond, wMax } = e.data;
   try {
     const sc = parseScenario(scenario);
     const c = resolveCondition(sc, sc.conditions[cond]);
@@ -30,7 +32,7 @@ scope.onmessage = (e) => {
     const bf = new Float64Array(n);
     const df = new Float64Array(n);
     for (let i = 0; i < n; i++) {
-      w[i] = -4 + (8 * i) / (n - 1);
+      w[i] = -wMax + (2 * wMax * i) / (n - 1);
       const ci: ResolvedCondition = { ...c, s_per_nm: w[i] / c.xi_nm, w: w[i] };
       const b = background(renderJob(perfect, ci));
       bf[i] = b.bf;
