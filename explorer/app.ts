@@ -55,9 +55,12 @@ interface PageState {
   scenario: Raw | null;
   conditionId: string;
   error: string | null;
+  /** Rocking curves received, and the last one (perfect crystal, against w). */
+  rockings: number;
+  rocking: { thickness_nm: number; w: Float64Array; bf: Float64Array; df: Float64Array } | null;
 }
 
-const state: PageState = { renders: 0, lastMs: NaN, width: 0, height: 0, pixel_nm: 0, bf: null, df: null, scenario: null, conditionId: '', error: null };
+const state: PageState = { renders: 0, lastMs: NaN, width: 0, height: 0, pixel_nm: 0, bf: null, df: null, scenario: null, conditionId: '', error: null, rockings: 0, rocking: null };
 (window as unknown as { explorer: PageState }).explorer = state;
 
 const $ = <T extends HTMLElement>(id: string) => document.getElementById(id) as T;
@@ -424,6 +427,8 @@ function rockingReply(m: { ok: boolean; gen: number; error?: string } & Partial<
   } else {
     rocking = { thickness_nm: m.thickness_nm!, w: m.w!, bf: m.bf!, df: m.df! };
   }
+  state.rocking = rocking;
+  state.rockings++;
   redraw();
 }
 

@@ -105,7 +105,19 @@ function rawGet(port: number, path: string, opts: { method?: string; host?: stri
   });
 }
 
-type Window = { explorer: { renders: number; error: string | null; bf: Float32Array; df: Float32Array; width: number; height: number; lastMs: number } };
+type Window = {
+  explorer: {
+    renders: number;
+    error: string | null;
+    bf: Float32Array;
+    df: Float32Array;
+    width: number;
+    height: number;
+    lastMs: number;
+    rockings: number;
+    rocking: { thickness_nm: number; w: Float64Array; bf: Float64Array; df: Float64Array } | null;
+  };
+};
 
 async function renders(page: Page): Promise<number> {
   return page.evaluate(() => (window as unknown as Window).explorer.renders);
@@ -142,6 +154,62 @@ function maxAbsDiff(a: ArrayLike<number>, b: ArrayLike<number>): number {
   let m = 0;
   for (let i = 0; i < a.length; i++) m = Math.max(m, Math.abs(a[i] - b[i]));
   return m;
+}
+
+/** Wait until the page holds a rocking curve for the given thickness. */
+async function rockingFor(page: Page, thickness_nm: number): Promise<{ w: number[]; bf: number[]; df: number[] }> {
+  await page.waitForFunction((t) => (window as unknown as Window).explorer.rocking?.thickness_nm === t, thickness_nm, { timeout: 60_000 });
+  return page.evaluate(() => {
+    const r = (window as unknown as Window).explorer.rocking!;
+    return { w: Array.from(r.w), bf: Array.from(r.bf), df: Array.from(r.df) };
+  });
+}
+
+/**
+ * Two-beam perfect crystal with absorption, closed form written here from the
+ * slab matrix exp(pi i M t) with M = [[0, q], [q, 2 s]], q = 1/xi_g + i/xi'_g,
+ * sigma = sqrt(s^2 + q^2), times exp(-pi t / xi'_0), xi'_0 = xi'_g (Hirsch et
+ * al. 1965; physics.md): phi_0 = e(cos(pi sigma t) - i s sin(pi sigma t)/sigma),
+ * phi_g = e i q sin(pi sigma t)/sigma. Complex arithmetic by hand.
+ */
+function twoBeamClosedForm(w: number, xi: number, xiAbs: number, t: number): { bf: number; df: number } {
+  type C = [number, number];
+  const mul = (a: C, b: C): C => [a[0] * b[0] - a[1] * b[1], a[0] * b[1] + a[1] * b[0]];
+  const div = (a: C, b: C): C => {
+    const d = b[0] * b[0] + b[1] * b[1];
+    return [(a[0] * b[0] + a[1] * b[1]) / d, (a[1] * b[0] - a[0] * b[1]) / d];
+  };
+  const sqrt = (a: C): C => {
+    const r = Math.hypot(a[0], a[1]);
+    const re = Math.sqrt((r + a[0]) / 2);
+    const im = Math.sign(a[1] || 1) * Math.sqrt(Math.max(0, (r - a[0]) / 2));
+    return [re, im];
+  };
+  const cos = (a: C): C => [Math.cos(a[0]) * Math.cosh(a[1]), -Math.sin(a[0]) * Math.sinh(a[1])];
+  const sin = (a: C): C => [Math.sin(a[0]) * Math.cosh(a[1]), Math.cos(a[0]) * Math.sinh(a[1])];
+  const s = w / xi;
+  const q: C = [1 / xi, 1 / xiAbs];
+  const q2 = mul(q, q);
+  const sigma = sqrt([s * s + q2[0], q2[1]]);
+  const arg: C = [Math.PI * sigma[0] * t, Math.PI * sigma[1] * t];
+  const sn = div(sin(arg), sigma);
+  const e = Math.exp((-Math.PI * t) / xiAbs);
+  const phi0: C = [e * (cos(arg)[0] + s * sn[1]), e * (cos(arg)[1] - s * sn[0])];
+  const iq: C = [-q[1], q[0]];
+  const phig = mul(iq, sn).map((x) => e * x) as C;
+  return { bf: phi0[0] ** 2 + phi0[1] ** 2, df: phig[0] ** 2 + phig[1] ** 2 };
+}
+
+function checkRocking(r: { w: number[]; bf: number[]; df: number[] }, xi: number, xiAbs: number, t: number): void {
+  expect(r.w.length).toBeGreaterThan(100);
+  expect(Math.min(...r.w)).toBeLessThanOrEqual(-4);
+  expect(Math.max(...r.w)).toBeGreaterThanOrEqual(4);
+  for (let i = 0; i < r.w.length; i++) {
+    const c = twoBeamClosedForm(r.w[i], xi, xiAbs, t);
+    // exact slab matrices in both: agreement to rounding
+    expect(Math.abs(r.bf[i] - c.bf)).toBeLessThan(1e-9);
+    expect(Math.abs(r.df[i] - c.df)).toBeLessThan(1e-9);
+  }
 }
 
 function cliRender(file: string, out: string, id: string): { bf: Float32Array; df: Float32Array; width: number; height: number } {
@@ -238,6 +306,10 @@ describe.skipIf(!HAVE_CHROMIUM)('thinfoil explore in chromium', () => {
     expect(img.bf.every(Number.isFinite) && img.df.every(Number.isFinite)).toBe(true);
     expect(await page.locator('#reflection option').count()).toBeGreaterThan(4);
     expect(await page.locator('#reflection option:checked').textContent()).toMatch(/^2 0 0 +\(xi_g [0-9.]+ nm\)$/);
+    // the rocking curve against the closed form (xi_g, xi'_g from `thinfoil reflection`)
+    const refl = spawnSync(process.execPath, [CLI, 'reflection', 'Cu', '2,0,0', '--kv', '200', '--absorption', '0.1', '--json'], { cwd: ROOT, encoding: 'utf8' });
+    const { xi_nm, xiAbs_nm } = JSON.parse(refl.stdout) as { xi_nm: number; xiAbs_nm: number };
+    checkRocking(await rockingFor(page, 60), xi_nm, xiAbs_nm, 60);
     // nothing changed yet: "save" gives back the served scenario
     const [download] = await Promise.all([page.waitForEvent('download'), page.click('#save')]);
     const untouched = join(dir, 'untouched.json');
@@ -262,6 +334,9 @@ describe.skipIf(!HAVE_CHROMIUM)('thinfoil explore in chromium', () => {
       await setInput(page, id, v, 'change');
       await waitRender(page, n);
     }
+    // the rocking curve follows the thickness
+    const refl = JSON.parse(spawnSync(process.execPath, [CLI, 'reflection', 'Cu', '2,0,0', '--json'], { cwd: ROOT, encoding: 'utf8' }).stdout) as { xi_nm: number; xiAbs_nm: number };
+    checkRocking(await rockingFor(page, 70), refl.xi_nm, refl.xiAbs_nm, 70);
     const bText = await page.locator('#burgers option[value="2"]').textContent();
     let n = await renders(page);
     await setInput(page, 'burgers', '2', 'change');
@@ -349,6 +424,7 @@ describe.skipIf(!HAVE_CHROMIUM)('thinfoil explore in chromium', () => {
       const p = await ctx.newPage();
       await p.goto(s.url);
       await waitRender(p, 0);
+      await p.waitForFunction(() => (window as unknown as Window).explorer.rockings > 0, null, { timeout: 60_000 });
       await p.screenshot({ path: join(ROOT, 'docs', 'explorer.png') });
     } finally {
       s.proc.kill('SIGINT');
