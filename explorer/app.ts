@@ -14,7 +14,8 @@ import { resolveCondition, type ResolvedCondition } from '../src/imaging/resolve
 import { renderJob } from '../src/imaging/renderScenario.js';
 import type { RenderJob } from '../src/imaging/renderRows.js';
 import { isForbidden, reflectionParameters } from '../src/scattering/reflection.js';
-import { directionToCartesian, planeNormalToCartesian } from '../src/crystal/lattice.js';
+import { directionToCartesian, planeNormalToCartesian, usesFourIndices } from '../src/crystal/lattice.js';
+import { directionToFour, planeToFour } from '../src/crystal/millerBravais.js';
 import { formatBurgers, identificationCandidates } from '../src/analysis/candidates.js';
 import { autoStretch, stretchToBytes } from '../src/output/stretch.js';
 import { crystalToImagePoint, imagePointToCrystal, pixelX } from '../src/geometry/frames.js';
@@ -182,7 +183,7 @@ export function variantRaw(): Raw {
     if (settings.mode === 'w') c.w = settings.value;
     else c.s_per_nm = settings.value;
   }
-  if (touched.g) c.g = [...settings.g];
+  if (touched.g) c.g = gIndices(settings.g);
   if (touched.beams) {
     if (settings.beams === 2) delete c.beams;
     else if (settings.beams > 2) c.beams = { row: settings.beams };
@@ -195,7 +196,7 @@ export function variantRaw(): Raw {
       p[2] = settings.depth;
       d[key] = p;
     }
-    if (settings.b >= 0 && 'b' in d) d.b = formatBurgers(burgersChoices[settings.b]);
+    if (settings.b >= 0 && 'b' in d) d.b = burgersText(burgersChoices[settings.b]);
   }
   return r;
 }
@@ -204,7 +205,26 @@ function fmt(x: number, digits = 3): string {
   return Number.isFinite(x) ? String(Number(x.toPrecision(digits))) : String(x);
 }
 
-const idx = (v: Vec3) => v.map((x) => String(Math.round(x) + 0)).join(' ');
+/** Whether the scenario's material is written with four (Miller-Bravais) indices. */
+let fourIndices = false;
+
+/** A reflection as written in files and labels: (hkil) for hexagonal crystals. */
+const gIndices = (g: Vec3): number[] => (fourIndices ? [...planeToFour(g)] : [...g]).map((x) => Math.round(x) + 0);
+const idx = (g: Vec3) => gIndices(g).join(' ');
+
+/** A Burgers vector as text, "1/3[1 1 -2 0]" for hexagonal crystals. */
+function burgersText(b: Vec3): string {
+  if (!fourIndices) return formatBurgers(b);
+  const v = directionToFour(b);
+  for (const d of [1, 2, 3, 6]) {
+    const k = v.map((x) => x * d);
+    if (k.every((x) => Math.abs(x - Math.round(x)) < 1e-6)) {
+      const ints = k.map((x) => Math.round(x) + 0).join(' ');
+      return d === 1 ? `[${ints}]` : `1/${d}[${ints}]`;
+    }
+  }
+  return `[${v.join(' ')}]`;
+}
 
 /** Reflections within the parser's tolerance of perpendicular to the condition's beam, allowed by the structure, shortest first. */
 function allowedReflections(sc: Scenario, beam: Vec3, own: Vec3): Reflection[] {
@@ -296,7 +316,7 @@ function loadDefect(di: number): void {
         const b = cand.b;
         if (burgersChoices.some((x) => x[0] === b[0] && x[1] === b[1] && x[2] === b[2])) continue;
         burgersChoices.push(b);
-        option(el.burgers, String(burgersChoices.length - 1), `b = ${formatBurgers(b)}`);
+        option(el.burgers, String(burgersChoices.length - 1), `b = ${burgersText(b)}`);
       }
     } catch {
       // no candidates in the scenario: only the file's own b
@@ -388,7 +408,7 @@ function showInfo(sc: Scenario, c: ResolvedCondition): void {
     const d = sc.defects[settings.defect];
     if ('b' in d) {
       const gb = dot(c.g, d.b);
-      lines.push(`${d.label}: b = ${formatBurgers(d.b)}, g.b = ${fmt(gb, 3)}`);
+      lines.push(`${d.label}: b = ${burgersText(d.b)}, g.b = ${fmt(gb, 3)}`);
     }
   }
   el.info.textContent = lines.join('\n');
@@ -652,6 +672,7 @@ async function main(): Promise<void> {
   const res = await fetch('scenario.json', { cache: 'no-store' });
   raw = (await res.json()) as Raw;
   base = parseScenario(raw);
+  fourIndices = usesFourIndices(base.material.lattice);
   el.name.textContent = base.name;
   settings.thickness = base.thickness_nm;
   base.conditions.forEach((c, i) => option(el.condition, String(i), `${c.id}  (g = ${idx(c.g)})`));
