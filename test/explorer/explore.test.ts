@@ -61,7 +61,7 @@ const SCENARIO = {
   kV: 200,
   foil: { thickness_nm: 60, normal: [0, 0, 1] },
   beam: [0, 0, 1],
-  image: { width_px: 48, height_px: 40, pixel_nm: 1.2 },
+  image: { width_px: 40, height_px: 32, pixel_nm: 1.5 },
   absorption: 0.1,
   conditions: [
     { id: 'g200', g: [2, 0, 0], w: 0.5 },
@@ -302,7 +302,7 @@ describe.skipIf(!HAVE_CHROMIUM)('thinfoil explore in chromium', () => {
     await waitRender(page, 0);
     expect(consoleErrors).toEqual([]);
     const img = await images(page);
-    expect([img.width, img.height]).toEqual([48, 40]);
+    expect([img.width, img.height]).toEqual([40, 32]);
     expect(img.bf.every(Number.isFinite) && img.df.every(Number.isFinite)).toBe(true);
     expect(await page.locator('#reflection option').count()).toBeGreaterThan(4);
     expect(await page.locator('#reflection option:checked').textContent()).toMatch(/^2 0 0 +\(xi_g [0-9.]+ nm\)$/);
