@@ -8,7 +8,9 @@
  * the renderer is tested in test/imaging and test/dynamics.
  *
  * Without /usr/bin/chromium the browser tests are skipped on a developer
- * machine and fail under CI=true (.ci/run installs the chromium package).
+ * machine and fail under CI=true (.ci/run installs the chromium package); the
+ * server tests (404 for everything but its files, Ctrl-C) and the bad-input
+ * tests need no browser and always run.
  */
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { spawn, spawnSync, type ChildProcess } from 'node:child_process';
@@ -28,7 +30,8 @@ type HTMLCanvasElement = { width: number; height: number };
 
 const ROOT = join(import.meta.dirname, '..', '..');
 const CLI = join(ROOT, 'dist', 'cli', 'main.js');
-const CHROMIUM = '/usr/bin/chromium';
+/** Debian's chromium (THINFOIL_CHROMIUM may name another binary of the same package). */
+const CHROMIUM = process.env.THINFOIL_CHROMIUM ?? '/usr/bin/chromium';
 const IN_CI = process.env.CI === 'true';
 const HAVE_CHROMIUM = existsSync(CHROMIUM);
 const SCREENSHOT = process.env.THINFOIL_SCREENSHOT === '1';
@@ -221,39 +224,20 @@ function cliRender(file: string, out: string, id: string): { bf: Float32Array; d
   return { bf: bf.data, df: df.data, width: bf.width, height: bf.height };
 }
 
-describe.skipIf(!HAVE_CHROMIUM)('thinfoil explore in chromium', () => {
+describe('thinfoil explore server (no browser needed)', () => {
   let dir: string;
   let file: string;
   let served: Served;
-  let ctx: BrowserContext;
-  let page: Page;
-  const consoleErrors: string[] = [];
 
   beforeAll(async () => {
-    if (!existsSync(CLI) || !existsSync(join(ROOT, 'dist', 'explorer', 'page', 'app.js'))) {
-      throw new Error('dist/ or the explorer bundle is missing: run `npm run build` (npm test does it)');
-    }
-    const { chromium } = await import('playwright-core');
-    dir = mkdtempSync(join(tmpdir(), 'thinfoil-explore-'));
+    if (!existsSync(CLI)) throw new Error('dist/cli/main.js is missing: run `npm run build` (npm test does it)');
+    dir = mkdtempSync(join(tmpdir(), 'thinfoil-explore-server-'));
     file = join(dir, 'foil.json');
     writeFileSync(file, JSON.stringify(SCENARIO, null, 2));
     served = await serve(file);
-    ctx = await chromium.launchPersistentContext(mkdtempSync(join(tmpdir(), 'thinfoil-chromium-')), {
-      executablePath: CHROMIUM,
-      headless: true,
-      args: LAUNCH_ARGS,
-      acceptDownloads: true,
-      viewport: { width: 1060, height: 680 },
-    });
-    page = await ctx.newPage();
-    page.on('console', (m) => {
-      if (m.type() === 'error') consoleErrors.push(m.text());
-    });
-    page.on('pageerror', (e) => consoleErrors.push(e.message));
   });
 
-  afterAll(async () => {
-    await ctx?.close();
+  afterAll(() => {
     if (served && served.proc.exitCode === null) served.proc.kill('SIGKILL');
   });
 
@@ -295,6 +279,53 @@ describe.skipIf(!HAVE_CHROMIUM)('thinfoil explore in chromium', () => {
     expect((await rawGet(served.port, '/scenario.json', { method: 'PUT' })).status).toBe(404);
     expect((await rawGet(served.port, '/', { host: 'example.com' })).status).toBe(404);
     expect(readFileSync(file, 'utf8')).toBe(JSON.stringify(SCENARIO, null, 2));
+  });
+
+  it('stops on Ctrl-C (SIGINT) with exit code 0', async () => {
+    const exited = new Promise<number | null>((resolve) => served.proc.on('exit', (code) => resolve(code)));
+    served.proc.kill('SIGINT');
+    expect(await exited).toBe(0);
+    await expect(rawGet(served.port, '/')).rejects.toThrow(/ECONNREFUSED/);
+  });
+
+});
+
+const SUITE = HAVE_CHROMIUM ? 'thinfoil explore in chromium' : `thinfoil explore in chromium (SKIPPED: ${CHROMIUM} not found; install Debian's chromium package)`;
+
+describe.skipIf(!HAVE_CHROMIUM)(SUITE, () => {
+  let dir: string;
+  let file: string;
+  let served: Served;
+  let ctx: BrowserContext;
+  let page: Page;
+  const consoleErrors: string[] = [];
+
+  beforeAll(async () => {
+    if (!existsSync(CLI) || !existsSync(join(ROOT, 'dist', 'explorer', 'page', 'app.js'))) {
+      throw new Error('dist/ or the explorer bundle is missing: run `npm run build` (npm test does it)');
+    }
+    const { chromium } = await import('playwright-core');
+    dir = mkdtempSync(join(tmpdir(), 'thinfoil-explore-'));
+    file = join(dir, 'foil.json');
+    writeFileSync(file, JSON.stringify(SCENARIO, null, 2));
+    served = await serve(file);
+    ctx = await chromium.launchPersistentContext(mkdtempSync(join(tmpdir(), 'thinfoil-chromium-')), {
+      executablePath: CHROMIUM,
+      headless: true,
+      args: LAUNCH_ARGS,
+      acceptDownloads: true,
+      viewport: { width: 1060, height: 680 },
+    });
+    page = await ctx.newPage();
+    page.on('console', (m) => {
+      if (m.type() === 'error') consoleErrors.push(m.text());
+    });
+    page.on('pageerror', (e) => consoleErrors.push(e.message));
+  });
+
+  afterAll(async () => {
+    await ctx?.close();
+    if (served && served.proc.exitCode === null) served.proc.kill('SIGKILL');
   });
 
   it('loads without console errors and shows both fields', async () => {
@@ -407,13 +438,6 @@ describe.skipIf(!HAVE_CHROMIUM)('thinfoil explore in chromium', () => {
     expect(text).toContain('bright field');
     expect(text).toContain('dark field');
     expect(consoleErrors).toEqual([]);
-  });
-
-  it('stops on Ctrl-C (SIGINT) with exit code 0', async () => {
-    const exited = new Promise<number | null>((resolve) => served.proc.on('exit', (code) => resolve(code)));
-    served.proc.kill('SIGINT');
-    expect(await exited).toBe(0);
-    await expect(rawGet(served.port, '/')).rejects.toThrow(/ECONNREFUSED/);
   });
 
   it.runIf(SCREENSHOT)('writes the README screenshot (docs/explorer.png) of scenarios/copper-dislocations.json', async () => {
