@@ -156,6 +156,13 @@ program
   .action(run(() => import('./measureCommand.js'), 'measureCommand'));
 
 program
+  .command('explore')
+  .description('a local page (127.0.0.1) where g, s or w, thickness, defect depth, Burgers vector and beams can be changed and the images follow')
+  .argument('<scenario>', 'scenario file (JSON)')
+  .option('--port <n>', 'port to listen on (default: a free port)')
+  .action(run(() => import('./exploreCommand.js'), 'exploreCommand'));
+
+program
   .command('demo')
   .description('render the built-in invented demo scenario into out/demo')
   .option('--out <dir>', 'output folder', 'out/demo')
