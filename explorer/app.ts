@@ -249,7 +249,7 @@ function allowedReflections(sc: Scenario, beam: Vec3, own: Vec3): Reflection[] {
   const keep = withLength.slice(0, 24).map((x) => x.g);
   if (!keep.some((g) => g[0] === own[0] && g[1] === own[1] && g[2] === own[2])) keep.unshift(own);
   return keep.map((g) => {
-    const r = reflectionParameters(m, g, sc.kV, { absorptionRatio: sc.absorption });
+    const r = reflectionParameters(m, g, sc.kV, { absorption: sc.absorption });
     return { g, xi_nm: r.xi_nm, g_per_nm: r.g_per_nm };
   });
 }
@@ -276,13 +276,16 @@ function loadCondition(ci: number): void {
     settings.mode = 's';
     settings.value = rc.s_per_nm;
   }
-  settings.beams = c.beams.kind === 'two' ? 2 : c.beams.kind === 'row' ? c.beams.count : 0;
+  // a symmetric row -m g .. m g is offered as its beam count; any other row (a weak-beam row such as -3g .. 5g) or set as the file's
+  const symmetricRow = c.beams.kind === 'row' && c.beams.nMin === -c.beams.nMax;
+  settings.beams = c.beams.kind === 'two' ? 2 : c.beams.kind === 'row' && symmetricRow ? c.beams.nMax - c.beams.nMin + 1 : 0;
   reflections = allowedReflections(sc, c.beam, c.g);
   el.reflection.replaceChildren();
   reflections.forEach((r, i) => option(el.reflection, String(i), `${idx(r.g)}   (xi_g ${fmt(r.xi_nm, 4)} nm)`));
   el.reflection.value = String(reflections.findIndex((r) => r.g.every((x, k) => x === c.g[k])));
   el.beams.replaceChildren();
   if (c.beams.kind === 'set') option(el.beams, '0', `the file's beam set (${c.beams.beams.length + 2} beams)`);
+  if (c.beams.kind === 'row' && !symmetricRow) option(el.beams, '0', `the file's row ${c.beams.nMin}g .. ${c.beams.nMax}g (${c.beams.nMax - c.beams.nMin + 1} beams)`);
   option(el.beams, '2', '2 (two-beam)');
   for (const n of [3, 5, 7, 9, 11]) option(el.beams, String(n), `${n} (systematic row)`);
   el.beams.value = String(settings.beams);
