@@ -19,14 +19,15 @@ import { sig } from '../format.js';
  * (0.15 is a thickness in micrometres); foils thicker than 1000 nm are opaque
  * to 100-400 kV electrons in metals; pixels larger than 10 nm put a whole
  * dislocation image (about xi_g / 3 wide) into one or two pixels; pixels
- * smaller than 0.01 nm are far below any atomic spacing (a size in Angstrom
- * divided by 100?).
+ * smaller than 0.05 nm are far below any atomic spacing, where the column
+ * approximation says nothing (a size in Angstrom divided by 10 twice?); the
+ * parser refuses pixels below 0.01 nm outright.
  */
 export const PLAUSIBLE = {
   thicknessMin_nm: 5,
   thicknessMax_nm: 1000,
   pixelMax_nm: 10,
-  pixelMin_nm: 0.01,
+  pixelMin_nm: 0.05,
 } as const;
 
 /**

@@ -26,6 +26,8 @@ import { progressBar } from './progress.js';
 import { printJson, sig, table } from './run.js';
 import { slug } from './renderCommand.js';
 import { readScenarioJson } from './loadScenario.js';
+import { conditionGeometry, planeText } from '../geometry/conditionGeometry.js';
+import type { Lattice } from '../crystal/lattice.js';
 
 export interface IdentifyCommandOptions {
   /** "<conditionId>=<file>", one per micrograph. */
@@ -160,12 +162,13 @@ async function identifyInto(
   w(files.figurePng, fig.png);
   w(files.figureSvg, fig.svg);
   w(files.report, identifyReportHtml(result, { scenarioFile: basename(scenarioFile), absorption: describeAbsorption(sc.absorption), figurePng: fig.png, figureFiles: [basename(files.figurePng), basename(files.figureSvg)] }));
-  w(files.json, `${jsonText(resultJson(result, files), 2)}\n`);
+  w(files.json, `${jsonText(resultJson(result, files, sc.material.lattice), 2)}\n`);
   return { result, dir: set.dir, files };
 }
 
 /** The JSON form of a result (what --json prints, plus details in identify.json). */
-export function resultJson(res: IdentifyResult, files?: IdentifyOutput['files']) {
+/** The JSON form of a result; with the lattice, each condition also gets its geometry in crystal terms. */
+export function resultJson(res: IdentifyResult, files?: IdentifyOutput['files'], lattice?: Lattice) {
   return {
     scenario: res.scenario,
     note: 'Simulated images are a model, not a measurement.',
@@ -213,10 +216,24 @@ export function resultJson(res: IdentifyResult, files?: IdentifyOutput['files'])
       bin: m.bin,
       crop: m.crop,
       gAngle_deg: m.gAngle_deg,
+      ...(lattice === undefined ? {} : { geometry: identifyGeometry(lattice, m) }),
     })),
     settings: res.settings,
     seconds: res.seconds,
     ...(files ? { files } : {}),
+  };
+}
+
+/** Beam, foil normal, nearest zone and reflection of a micrograph's condition (four indices for hexagonal crystals). */
+function identifyGeometry(lattice: Lattice, m: IdentifyResult['micrographs'][number]) {
+  const g = conditionGeometry(lattice, m.resolved.frame, m.resolved.g_cart);
+  return {
+    reflection: planeText(lattice, m.condition.g),
+    beam: g.text.beam,
+    foilNormal: g.text.foilNormal,
+    nearestZone: { axis: g.nearestZone.text, angle_deg: g.nearestZone.angle_deg },
+    gAngleMicrograph_deg: m.gAngle_deg,
+    note: 'gAngleMicrograph_deg is the direction of g in the micrograph as given in its settings (counter-clockwise from +x, +y down)',
   };
 }
 

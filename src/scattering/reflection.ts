@@ -234,7 +234,7 @@ export function reflectionParameters(material: Material, hkl: Vec3, kV: number, 
     const inPhase = (Uabs.re * U.re + Uabs.im * U.im) / Math.hypot(U.re, U.im);
     if (!(inPhase > 0)) {
       throw new InputError(
-        `reflection g = ${label} of material "${material.name}": the thermal-diffuse model gives no positive absorption in phase with U_g (U'_g/U_g = ${(inPhase / Math.hypot(U.re, U.im)).toPrecision(2)}; at |g| = ${g.toPrecision(3)} nm^-1 this happens where the Gaussian scattering-factor fits no longer support the model, or for a compound's difference reflection), so it has no two-beam absorption length xi'_g; give a constant absorption ratio such as "absorption": 0.1, or use a many-beam set.`,
+        `reflection g = ${label} of material "${material.name}": no two-beam absorption length, since the thermal-diffuse model gives U'_g/U_g = ${(inPhase / Math.hypot(U.re, U.im)).toPrecision(2)} at |g| = ${g.toPrecision(3)} nm^-1 (beyond the scattering-factor fits, or a compound's difference reflection); give a constant absorption ratio such as "absorption": 0.1, or use a many-beam set.`,
       );
     }
     xiAbs = cosFactor / (lambda * inPhase);

@@ -69,6 +69,8 @@ const strips = JSON.parse(readFileSync(join(import.meta.dirname, '..', 'referenc
 describe('the verdict follows the simulated contrast of the actual condition', () => {
   const frac = (b: number[]) => `1/2[${b.map((x) => Math.round(2 * x)).join(' ')}]`;
   const sc = scenario({
+    // the reference integrates the isotropic Hirth & Lothe field
+    elasticity: 'isotropic',
     foil: { thickness_nm: strips.thickness_nm, normal: [0, 0, 1] },
     conditions: [{ id: 'g020', g: [0, 2, 0], w: strips.w }],
     defects: strips.cases.map((c) => ({ type: 'dislocation', b: frac(c.b), line: [1, 1, 2], point_nm: [0, 0, strips.depth_nm] })),

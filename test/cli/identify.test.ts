@@ -146,6 +146,9 @@ describe('thinfoil identify', () => {
     expect(html).not.toMatch(/<script|<link |src="http/); // self-contained
     const full = JSON.parse(readFileSync(j.files.json, 'utf8'));
     expect(full.conditions[0]).toMatchObject({ id: 'g200', pixel_nm: 1, synthetic: true });
+    // geometry of each condition in crystal terms (plumbing): reflection, beam, nearest zone
+    expect(full.conditions[0].geometry).toMatchObject({ reflection: '(2 0 0)' });
+    expect(full.conditions[0].geometry.nearestZone.axis).toMatch(/^\[/);
     // inputs are never modified
     for (const [f, h] of hashes) expect(sha(f)).toBe(h);
   });

@@ -144,8 +144,18 @@ describe.skipIf(!fs.existsSync(CLI))('render killed with SIGKILL at different mo
       const check = (when: string): string => {
         const names = completeSet(out);
         expect(names, `${when}, kill at ${delay}`).toBeDefined();
-        const summary = JSON.parse(fs.readFileSync(path.join(out, 'render.json'), 'utf8')) as { scenario: string; images: { png: string; tiff: string }[] };
-        const listed = summary.images.flatMap((e) => [path.basename(e.png), path.basename(e.tiff)]).concat('render.json').sort();
+        const summary = JSON.parse(fs.readFileSync(path.join(out, 'render.json'), 'utf8')) as {
+          scenario: string;
+          images: { png: string; tiff: string }[];
+          figures: { files: string[] };
+          conditions: { corePixels?: { mask: string } }[];
+        };
+        const listed = summary.images
+          .flatMap((e) => [path.basename(e.png), path.basename(e.tiff)])
+          .concat(summary.figures.files.map((f) => path.basename(f)))
+          .concat(summary.conditions.flatMap((c) => (c.corePixels === undefined ? [] : [path.basename(c.corePixels.mask)])))
+          .concat('render.json')
+          .sort();
         expect(names, `${when}: render.json lists exactly the images there`).toEqual(listed);
         return summary.scenario;
       };

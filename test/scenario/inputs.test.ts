@@ -116,7 +116,7 @@ describe('implausible values are warned about, impossible ones refused (threshol
     expect(w[0]).toMatch(/^foil\.thickness_nm is 0\.15 nm, thinner than 5 nm .*micrometres \(150 nm\)\?$/);
     expect(warningsOf((o) => (o.foil.thickness_nm = 4000))[0]).toMatch(/^foil\.thickness_nm is 4000 nm, thicker than/);
     expect(warningsOf((o) => (o.image.pixel_nm = 50))[0]).toMatch(/^image\.pixel_nm is 50 nm/);
-    expect(warningsOf((o) => (o.image.pixel_nm = 0.001))[0]).toMatch(/^image\.pixel_nm is 0\.001 nm/);
+    expect(warningsOf((o) => (o.image.pixel_nm = 0.02))[0]).toMatch(/^image\.pixel_nm is 0\.02 nm/);
   });
   it('a dislocation point at depth 500 nm in a 120 nm foil: where the line crosses the foil, and that it misses the view', () => {
     // line [1 -1 2] in an untilted (001) foil: it rises 2 nm in depth per sqrt(2) nm sideways, so from depth 500 nm
