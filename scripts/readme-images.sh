@@ -1,0 +1,14 @@
+#!/usr/bin/env bash
+# Regenerates the pictures the README shows, from the program itself (never drawn by hand):
+#   docs/demo-contact-sheet.png  the contact sheet of `thinfoil demo` (invented scenario, simulated images)
+#   docs/explorer.png            a screenshot of `thinfoil explore` (npm run screenshot; needs Debian's chromium)
+# Run from the repository root after `npm install`.
+set -euo pipefail
+cd "$(dirname "$0")/.."
+tmp="$(mktemp -d)"
+trap 'rm -rf "$tmp"' EXIT
+node dist/cli/main.js demo --out "$tmp/demo" > /dev/null
+mkdir -p docs
+cp "$tmp/demo/contact-sheet.png" docs/demo-contact-sheet.png
+if [ -x /usr/bin/chromium ]; then npm run --silent screenshot > /dev/null; fi
+echo "wrote docs/demo-contact-sheet.png${CHROMIUM_NOTE:-} (and docs/explorer.png when chromium is present)"
