@@ -57,7 +57,7 @@ export interface RowStats {
 }
 
 /** A jump surface reduced to what one image needs: its phase and geometry. */
-interface ActiveSurface {
+export interface ActiveSurface {
   /** alpha = 2 pi g.(R behind - R in front) for a column crossing along +normal. */
   readonly alpha: number;
   readonly p: Vec3;
@@ -84,6 +84,34 @@ export function activeSurfaces(job: RenderJob): ActiveSurface[] {
     out.push({ alpha: 2 * Math.PI * gR, p: s.point_nm, n: s.normal, kn, halfPlane: s.kind === 'half-plane', into: s.into ?? [0, 0, 0], jump: s.jump_nm });
   }
   return out;
+}
+
+/**
+ * Depth z in (0, zMax) at which the column c + z k crosses surface f (for a
+ * half-plane: only on the half-plane itself), or NaN when it does not.
+ */
+export function crossingDepth(f: ActiveSurface, cx: number, cy: number, cz: number, kx: number, ky: number, kz: number, zMax: number): number {
+  const zc = ((f.p[0] - cx) * f.n[0] + (f.p[1] - cy) * f.n[1] + (f.p[2] - cz) * f.n[2]) / f.kn;
+  if (!(zc > 0 && zc < zMax)) return NaN;
+  if (f.halfPlane) {
+    const t = (cx + zc * kx - f.p[0]) * f.into[0] + (cy + zc * ky - f.p[1]) * f.into[1] + (cz + zc * kz - f.p[2]) * f.into[2];
+    if (t <= 0) return NaN;
+  }
+  return zc;
+}
+
+/**
+ * Depth z in (0, zMax) of the column c + z k's closest approach to the line
+ * through p along unit u, or NaN when the column runs parallel to the line or
+ * the closest approach lies outside.
+ */
+export function closestApproachDepth(p: Vec3, u: Vec3, cx: number, cy: number, cz: number, kx: number, ky: number, kz: number, zMax: number): number {
+  const b = kx * u[0] + ky * u[1] + kz * u[2];
+  const den = 1 - b * b;
+  if (den < 1e-9) return NaN; // column parallel to the line
+  const w0x = cx - p[0], w0y = cy - p[1], w0z = cz - p[2];
+  const zc = (b * (u[0] * w0x + u[1] * w0y + u[2] * w0z) - (kx * w0x + ky * w0y + kz * w0z)) / den;
+  return zc > 0 && zc < zMax ? zc : NaN;
 }
 
 /** Evaluates single columns of one job: amplitudes at the exit surface for the column through image point (x, y). */
@@ -163,24 +191,14 @@ export function columnEvaluator(job: RenderJob): ColumnEvaluator {
       let count = 0;
       for (let s = 0; s < surfaces.length; s++) {
         const f = surfaces[s];
-        const zc = ((f.p[0] - cx) * f.n[0] + (f.p[1] - cy) * f.n[1] + (f.p[2] - cz) * f.n[2]) / f.kn;
-        if (!(zc > 0 && zc < L)) continue;
-        if (f.halfPlane) {
-          const t = (cx + zc * kx - f.p[0]) * f.into[0] + (cy + zc * ky - f.p[1]) * f.into[1] + (cz + zc * kz - f.p[2]) * f.into[2];
-          if (t <= 0) continue;
-        }
+        const zc = crossingDepth(f, cx, cy, cz, kx, ky, kz, L);
+        if (zc !== zc) continue; // NaN: no crossing
         // vector mode keeps the signed surface number (its jump is looked up below), else the phase
         count = insertByDepth(zs, as, count, zc, vector ? (f.kn > 0 ? s + 1 : -(s + 1)) : f.kn > 0 ? f.alpha : -f.alpha);
       }
       for (let d = 0; d < lines.length; d++) {
-        const { p, u } = lines[d];
-        const b = kx * u[0] + ky * u[1] + kz * u[2];
-        const den = 1 - b * b;
-        if (den < 1e-9) continue; // column parallel to the line
-        const w0x = cx - p[0], w0y = cy - p[1], w0z = cz - p[2];
-        const zc = (b * (u[0] * w0x + u[1] * w0y + u[2] * w0z) - (kx * w0x + ky * w0y + kz * w0z)) / den;
-        if (!(zc > 0 && zc < L)) continue;
-        count = insertByDepth(zs, as, count, zc, 0);
+        const zc = closestApproachDepth(lines[d].p, lines[d].u, cx, cy, cz, kx, ky, kz, L);
+        if (zc === zc) count = insertByDepth(zs, as, count, zc, 0);
       }
       for (let d = 0; d < spheres.length; d++) {
         // |c0 + z k - centre|^2 = r0^2  ->  z = -w.k +- sqrt((w.k)^2 - |w|^2 + r0^2), w = c0 - centre

@@ -31,7 +31,7 @@ import { cross, dot } from '../math/vec3.js';
 import { columnEntryOffset, pixelX } from '../geometry/frames.js';
 import { mulMatrix, setIdentity, stretchMatrix, type MatrixParams, type StretchCounters } from '../dynamics/twoBeamMatrix.js';
 import { DEFAULT_MAX_SLICE_NM } from '../dynamics/twoBeamColumn.js';
-import { activeSurfaces, columnEvaluator, type ColumnEvaluator, type RenderJob, type RowStats } from './renderRows.js';
+import { activeSurfaces, columnEvaluator, crossingDepth, type ColumnEvaluator, type RenderJob, type RowStats } from './renderRows.js';
 import { CORE_SUBSAMPLES, coreGeometry } from './cores.js';
 import { buildField } from './fieldSpecs.js';
 import { classWindowsN } from './translationColumnsN.js';
@@ -323,12 +323,8 @@ function classWindows(job: RenderJob, plan: TranslationPlan): ClassWindows {
     const zEnd = (K - 1) * D + L;
     for (let s = 0; s < surfaces.length; s++) {
       const f = surfaces[s];
-      const zc = ((f.p[0] - cx) * f.n[0] + (f.p[1] - cy) * f.n[1] + (f.p[2] - cz) * f.n[2]) / f.kn;
-      if (!(zc > 0 && zc < zEnd)) continue;
-      if (f.halfPlane) {
-        const t = (cx + zc * kx - f.p[0]) * f.into[0] + (cy + zc * ky - f.p[1]) * f.into[1] + (cz + zc * kz - f.p[2]) * f.into[2];
-        if (t <= 0) continue;
-      }
+      const zc = crossingDepth(f, cx, cy, cz, kx, ky, kz, zEnd);
+      if (zc !== zc) continue; // NaN: no crossing
       faultAlpha[s] = f.kn > 0 ? f.alpha : -f.alpha;
       evPos[n] = zc;
       evCode[n] = 1;

@@ -12,7 +12,7 @@
  */
 import { columnEntryOffset } from '../geometry/frames.js';
 import { prepareColumnSystem, propagateBlochN } from '../dynamics/manyBeam.js';
-import { activeSurfaces, MANY_BEAM_TOL_FACTOR, type RenderJob } from './renderRows.js';
+import { activeSurfaces, closestApproachDepth, crossingDepth, MANY_BEAM_TOL_FACTOR, type RenderJob } from './renderRows.js';
 import { buildField } from './fieldSpecs.js';
 import type { TranslationPlan, ClassWindows } from './translationColumns.js';
 
@@ -168,25 +168,16 @@ export function classWindowsN(job: RenderJob, plan: TranslationPlan): ClassWindo
     const zEnd = (K - 1) * D + L;
     for (let s = 0; s < surfaces.length; s++) {
       const f = surfaces[s];
-      const zc = ((f.p[0] - cx) * f.n[0] + (f.p[1] - cy) * f.n[1] + (f.p[2] - cz) * f.n[2]) / f.kn;
-      if (!(zc > 0 && zc < zEnd)) continue;
-      if (f.halfPlane) {
-        const t = (cx + zc * kx - f.p[0]) * f.into[0] + (cy + zc * ky - f.p[1]) * f.into[1] + (cz + zc * kz - f.p[2]) * f.into[2];
-        if (t <= 0) continue;
-      }
+      const zc = crossingDepth(f, cx, cy, cz, kx, ky, kz, zEnd);
+      if (zc !== zc) continue; // NaN: no crossing
       faultAlpha[s] = f.kn > 0 ? f.alpha : -f.alpha;
       evPos[ne] = zc;
       evCode[ne] = 1;
       evRef[ne++] = s;
     }
     for (let d = 0; d < lines.length; d++) {
-      const { p, u } = lines[d];
-      const b = kx * u[0] + ky * u[1] + kz * u[2];
-      const den = 1 - b * b;
-      if (den < 1e-9) continue;
-      const w0x = cx - p[0], w0y = cy - p[1], w0z = cz - p[2];
-      const zc = (b * (u[0] * w0x + u[1] * w0y + u[2] * w0z) - (kx * w0x + ky * w0y + kz * w0z)) / den;
-      if (!(zc > 0 && zc < zEnd)) continue;
+      const zc = closestApproachDepth(lines[d].p, lines[d].u, cx, cy, cz, kx, ky, kz, zEnd);
+      if (zc !== zc) continue;
       evPos[ne] = zc;
       evCode[ne] = 3;
       evRef[ne++] = d;
