@@ -17,6 +17,7 @@ import { drawFigure, type Figure } from './graphics/figure.js';
 import { textAdvance } from './graphics/font.js';
 import type { RGB, Surface } from './graphics/types.js';
 import { autoStretch, stretchToBytes } from './png.js';
+import { gArrow, plateText, scaleBar } from './imageMarks.js';
 
 export interface FigureColumn {
   readonly id: string;
@@ -61,8 +62,6 @@ const INK: RGB = [28, 28, 32];
 const SOFT: RGB = [95, 95, 105];
 const TEAL: RGB = [0, 122, 112];
 const AMBER: RGB = [205, 125, 0];
-const WHITE: RGB = [255, 255, 255];
-const BLACK: RGB = [0, 0, 0];
 const PAPER: RGB = [255, 255, 255];
 
 export const FIGURE_PX = 2000;
@@ -160,9 +159,9 @@ export function drawComparison(s: Surface, data: ComparisonFigureData, L: Figure
   data.columns.forEach((c, j) => {
     const { x, y } = L.cell(0, j);
     const box = drawImage(s, c.micrograph, c.width, c.height, x, y, L.cellW, L.cellH);
-    if (c.synthetic) tag(s, 'synthetic', box.x + 10, box.y + box.h - 14, 20);
-    gArrow(s, c.gAngle_deg, box.x + box.w - 58, box.y + 58, 70);
-    scaleBar(s, c.pixel_nm * c.width, box, 20);
+    if (c.synthetic) plateText(s, 'synthetic', box.x + 10, box.y + box.h - 14, 20);
+    gArrow(s, c.gAngle_deg, box.x + box.w - 58, box.y + 58, 70, 1.3);
+    scaleBar(s, c.pixel_nm * c.width, box, 1 / 4, 1.25);
   });
 
   data.rows.forEach((r, i) => {
@@ -172,8 +171,8 @@ export function drawComparison(s: Surface, data: ComparisonFigureData, L: Figure
       const c = data.columns[j];
       const { x, y } = L.cell(row, j);
       const box = drawImage(s, cell.image, c.width, c.height, x, y, L.cellW, L.cellH);
-      if (cell.note !== '') tag(s, cell.note, box.x + 10, box.y + 34, 24);
-      tag(s, `R² ${fmtScore(cell.r2)}`, box.x + 10, box.y + box.h - 14, 20);
+      if (cell.note !== '') plateText(s, cell.note, box.x + 10, box.y + 34, 24);
+      plateText(s, `R² ${fmtScore(cell.r2)}`, box.x + 10, box.y + box.h - 14, 20);
       if (r.mark !== 'none') s.strokeRect(box.x - 4, box.y - 4, box.w + 8, box.h + 8, r.mark === 'best' ? TEAL : AMBER, 6);
     });
   });
@@ -212,48 +211,7 @@ function drawImage(s: Surface, img: ArrayLike<number>, w: number, h: number, x: 
   return { x: bx, y: by, w: dw, h: dh };
 }
 
-/** Text on a white plate, for legibility over an image. */
-function tag(s: Surface, text: string, x: number, y: number, size: number): void {
-  const w = s.measureText(text, size);
-  s.fillRect(x - 5, y - size * 0.95, w + 10, size * 1.25, WHITE);
-  s.text(text, x, y, { size, color: INK });
-}
-
-/** g arrow centred at (cx, cy): screen angle counter-clockwise from +x (y down on the page). */
-function gArrow(s: Surface, angle_deg: number, cx: number, cy: number, len: number): void {
-  const a = (angle_deg * Math.PI) / 180;
-  const dx = (Math.cos(a) * len) / 2;
-  const dy = (-Math.sin(a) * len) / 2;
-  s.arrow(cx - dx, cy - dy, cx + dx, cy + dy, BLACK, 8, 22);
-  s.arrow(cx - dx, cy - dy, cx + dx, cy + dy, WHITE, 4, 18);
-  const lx = cx + dx * 1.45;
-  const ly = cy + dy * 1.45;
-  s.text('g', lx + 1, ly + 1, { size: 28, bold: true, color: BLACK, anchor: 'middle', baseline: 'middle' });
-  s.text('g', lx, ly, { size: 28, bold: true, color: WHITE, anchor: 'middle', baseline: 'middle' });
-}
-
-/** Scale bar of a 1-2-5 length near a quarter of the field, bottom right. */
-function scaleBar(s: Surface, field_nm: number, box: { x: number; y: number; w: number; h: number }, size: number): void {
-  const len_nm = niceLength(field_nm / 4);
-  const len = (len_nm / field_nm) * box.w;
-  const x1 = box.x + box.w - 14;
-  const x0 = x1 - len;
-  const y = box.y + box.h - 16;
-  s.fillRect(x0 - 2, y - 8, len + 4, 12, BLACK);
-  s.fillRect(x0, y - 6, len, 8, WHITE);
-  const label = `${len_nm} nm`;
-  const tw = s.measureText(label, size, true);
-  s.fillRect(x0 + len / 2 - tw / 2 - 4, y - 16 - size, tw + 8, size + 6, WHITE);
-  s.text(label, x0 + len / 2, y - 14, { size, bold: true, color: INK, anchor: 'middle' });
-}
-
-/** Largest 1, 2 or 5 times a power of ten not above x. */
-export function niceLength(x: number): number {
-  if (!(x > 0)) return 1;
-  const p = 10 ** Math.floor(Math.log10(x));
-  for (const m of [5, 2, 1]) if (m * p <= x) return Number((m * p).toPrecision(6));
-  return p;
-}
+export { niceLength } from './imageMarks.js';
 
 function fmtIndex(x: number): string {
   const r = Math.round(x * 1e6) / 1e6;

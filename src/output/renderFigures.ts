@@ -25,7 +25,8 @@ import { drawFigure, type Figure } from './graphics/figure.js';
 import { textAdvance } from './graphics/font.js';
 import type { RGB, Surface } from './graphics/types.js';
 import { autoStretch, stretchToBytes } from './png.js';
-import { niceLength, wrap } from './comparisonFigure.js';
+import { wrap } from './comparisonFigure.js';
+import { gArrow, plateText, scaleBar } from './imageMarks.js';
 
 export type ContrastMode = 'shared' | 'each';
 
@@ -143,8 +144,6 @@ export interface PanelLayout {
 
 const INK: RGB = [28, 28, 32];
 const SOFT: RGB = [95, 95, 105];
-const WHITE: RGB = [255, 255, 255];
-const BLACK: RGB = [0, 0, 0];
 const MARK: RGB = [150, 30, 30];
 
 interface PanelSpec {
@@ -167,49 +166,11 @@ function drawPanel(s: Surface, p: PanelSpec, x: number, y: number, cell: number)
   s.strokeRect(bx, by, w, h, INK, 1);
   const box = { x: bx, y: by, w, h };
   const fieldName = field === 'bf' ? 'bright field' : conditionLabel(ci).weakBeam ? 'weak-beam dark field' : 'dark field';
-  tag(s, fieldName, bx + 8, by + 24, 18);
-  tag(s, 'SIMULATED', bx + 8, by + h - 12, 16, MARK);
-  const bar = scaleBar(s, ci.pixel_nm, ci.width, box);
+  plateText(s, fieldName, bx + 8, by + 24, 18, { bold: true });
+  plateText(s, 'SIMULATED', bx + 8, by + h - 12, 16, { bold: true, color: MARK });
+  const bar = scaleBar(s, ci.pixel_nm * ci.width, box, 1 / 5);
   const arrow = gArrow(s, p.geometry.gAngle_deg, bx + w - 44, by + 44, 54);
   return { condition: ci.condition.id, field, box, scale: k, scaleBar: bar, arrow };
-}
-
-function tag(s: Surface, text: string, x: number, y: number, size: number, color: RGB = INK): void {
-  const w = s.measureText(text, size, true);
-  s.fillRect(x - 4, y - size * 0.95, w + 8, size * 1.25, WHITE);
-  s.text(text, x, y, { size, bold: true, color });
-}
-
-/** Scale bar of a 1-2-5 length near a fifth of the field, bottom right; its length in figure px is length_nm / pixel_nm times the panel's scale. */
-function scaleBar(s: Surface, pixel_nm: number, widthPx: number, box: { x: number; y: number; w: number; h: number }): PanelLayout['scaleBar'] {
-  const field_nm = pixel_nm * widthPx;
-  const length_nm = niceLength(field_nm / 5);
-  const len = (length_nm / field_nm) * box.w;
-  const x1 = box.x + box.w - 12;
-  const x0 = x1 - len;
-  const y = box.y + box.h - 14;
-  s.fillRect(x0 - 2, y - 7, len + 4, 10, BLACK);
-  s.fillRect(x0, y - 5, len, 6, WHITE);
-  const label = `${length_nm} nm`;
-  const size = 16;
-  const tw = s.measureText(label, size, true);
-  s.fillRect(x0 + len / 2 - tw / 2 - 4, y - 12 - size, tw + 8, size + 5, WHITE);
-  s.text(label, x0 + len / 2, y - 11, { size, bold: true, color: INK, anchor: 'middle' });
-  return { x0, x1, y: y - 2, length_nm };
-}
-
-/** g arrow centred at (cx, cy), screen angle counter-clockwise from +x (y down on the page). */
-function gArrow(s: Surface, angle_deg: number, cx: number, cy: number, len: number): PanelLayout['arrow'] {
-  const a = (angle_deg * Math.PI) / 180;
-  const dx = (Math.cos(a) * len) / 2;
-  const dy = (-Math.sin(a) * len) / 2;
-  s.arrow(cx - dx, cy - dy, cx + dx, cy + dy, BLACK, 6, 16);
-  s.arrow(cx - dx, cy - dy, cx + dx, cy + dy, WHITE, 3, 13);
-  const lx = cx + dx * 1.5;
-  const ly = cy + dy * 1.5;
-  s.text('g', lx + 1, ly + 1, { size: 22, bold: true, color: BLACK, anchor: 'middle', baseline: 'middle' });
-  s.text('g', lx, ly, { size: 22, bold: true, color: WHITE, anchor: 'middle', baseline: 'middle' });
-  return { x0: cx - dx, y0: cy - dy, x1: cx + dx, y1: cy + dy };
 }
 
 /** One sentence per field on how grey maps to intensity. */
