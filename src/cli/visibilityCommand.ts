@@ -2,7 +2,7 @@
 import type { Scenario } from '../scenario/types.js';
 import { visibilityTable, type VisibilityRow, type VisibilityTableEntry } from '../analysis/visibilityTable.js';
 import { VISIBLE_CONTRAST, WEAK_CONTRAST } from '../analysis/lineContrast.js';
-import { formatVector } from '../scenario/parse.js';
+import { formatDirectionIn, formatPlaneIn } from '../crystal/formatIndices.js';
 import { loadScenario, warnAbout } from './loadScenario.js';
 import { printJson, table } from './run.js';
 
@@ -16,8 +16,9 @@ function cell(e: VisibilityTableEntry): string {
 }
 
 export function formatVisibility(sc: Scenario, rows: readonly VisibilityRow[]): string {
-  const header = ['defect / candidate', 'b', 'u', ...sc.conditions.map((c) => `${c.id} (${c.g.join(' ')})`)];
-  const body = rows.map((r) => [r.subject, formatVector(r.b), r.line ? formatVector(r.line) : '-', ...r.entries.map(cell)]);
+  const l = sc.material.lattice;
+  const header = ['defect / candidate', 'b', 'u', ...sc.conditions.map((c) => `${c.id} ${formatPlaneIn(l, c.g)}`)];
+  const body = rows.map((r) => [r.subject, formatDirectionIn(l, r.b), r.line ? formatDirectionIn(l, r.line) : '-', ...r.entries.map(cell)]);
   return (
     table(header, body) +
     'cells: g.b (for g.b = 0 then g.(b x u) in brackets), the verdict from a simulated strip of columns across the line\n' +

@@ -1,0 +1,30 @@
+/**
+ * Four-index notation in printed output. Conversions worked by hand with the
+ * Miller-Bravais rules (Williams & Carter 2009, ch. 18; Hirth & Lothe 1982,
+ * ch. 1): planes (hkl) -> (h k -(h+k) l); directions [UVW] -> [uvtw] with
+ * u = (2U - V)/3, v = (2V - U)/3, t = -(u + v), w = W.
+ */
+import { describe, expect, it } from 'vitest';
+import { makeLattice } from '../../src/crystal/lattice.js';
+import { formatDirectionIn, formatPlaneIn, indicesWithFraction } from '../../src/crystal/formatIndices.js';
+
+const hex = makeLattice('hexagonal', { a: 0.321, c: 0.521 });
+const cubic = makeLattice('cubic', { a: 0.36 });
+
+describe('printed indices', () => {
+  it('hexagonal: the a-type Burgers vector [1 1 0] is 1/3[1 1 -2 0], [0 0 1] is [0 0 0 1], [1 0 0] is 1/3[2 -1 -1 0]', () => {
+    expect(formatDirectionIn(hex, [1, 1, 0])).toBe('1/3[1 1 -2 0]');
+    expect(formatDirectionIn(hex, [0, 0, 1])).toBe('[0 0 0 1]');
+    expect(formatDirectionIn(hex, [1, 0, 0])).toBe('1/3[2 -1 -1 0]');
+  });
+  it('hexagonal planes: (1 0 1) is (1 0 -1 1), (1 -1 0) is (1 -1 0 0)', () => {
+    expect(formatPlaneIn(hex, [1, 0, 1])).toBe('(1 0 -1 1)');
+    expect(formatPlaneIn(hex, [1, -1, 0])).toBe('(1 -1 0 0)');
+  });
+  it('cubic keeps three indices and a common fraction', () => {
+    expect(formatDirectionIn(cubic, [0.5, 0.5, 0])).toBe('1/2[1 1 0]');
+    expect(formatDirectionIn(cubic, [1 / 6, 1 / 6, -1 / 3])).toBe('1/6[1 1 -2]');
+    expect(formatPlaneIn(cubic, [2, 0, 0])).toBe('(2 0 0)');
+    expect(indicesWithFraction([0.123, 1, 0])).toBe('[0.123 1 0]');
+  });
+});
