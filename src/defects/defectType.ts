@@ -76,6 +76,10 @@ export type RowMaker = (subject: string, b: Vec3, line: Vec3 | undefined, simula
 export interface DefectType<S extends DefectSpec = DefectSpec> {
   /** The scenario's "type" string. */
   readonly type: S['type'];
+  /** The JSON key of the defect's position (image x, y and depth), e.g. "point_nm". */
+  readonly positionKey: string;
+  /** The defect's position: image x, y from the image centre and depth below the entrance surface (nm). */
+  position(d: S): Vec3;
   /** Validates the entry (every message names the JSON path and the fix) and returns the spec. */
   read(e: DefectEntry): S;
   /** Refuses (InputError) a defect that lies wholly outside the foil. */

@@ -9,6 +9,8 @@ import { burgersCandidates, burgersNote, dislocationWithCut, lineWarnings, refus
 
 export const dislocation: DefectType<DislocationSpec> = {
   type: 'dislocation',
+  positionKey: 'point_nm',
+  position: (d) => d.point_nm,
   read(e) {
     const { o, path, material: m } = e;
     onlyKeys(o, ['type', 'label', 'b', 'line', 'point_nm', 'core_nm'], path);

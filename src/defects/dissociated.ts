@@ -40,6 +40,8 @@ export function dissociationWidth_nm(m: Material, d: DissociatedSpec, pair: Shoc
 
 export const dissociated: DefectType<DissociatedSpec> = {
   type: 'dissociated',
+  positionKey: 'point_nm',
+  position: (d) => d.point_nm,
   read(e) {
     const { o, path, material: m } = e;
     const at = e.at;

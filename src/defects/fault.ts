@@ -32,6 +32,8 @@ function natureVector(m: Material, plane: Vec3, nature: 'intrinsic' | 'extrinsic
 
 export const fault: DefectType<FaultSpec> = {
   type: 'fault',
+  positionKey: 'point_nm',
+  position: (d) => d.point_nm,
   read(e) {
     const { o, path, material: m } = e;
     const at = e.at;

@@ -12,6 +12,8 @@ function signed(x: number): string {
 
 export const inclusion: DefectType<InclusionSpec> = {
   type: 'inclusion',
+  positionKey: 'centre_nm',
+  position: (d) => d.centre_nm,
   read(e) {
     const { o, path, material: m } = e;
     const at = e.at;

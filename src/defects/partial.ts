@@ -11,6 +11,8 @@ import { burgersCandidates, burgersNote, dislocationWithCut, lineWarnings, refus
 
 export const partial: DefectType<PartialSpec> = {
   type: 'partial',
+  positionKey: 'point_nm',
+  position: (d) => d.point_nm,
   read(e) {
     const { o, path, material: m } = e;
     const at = e.at;
