@@ -1,11 +1,24 @@
 /** A straight perfect dislocation: Burgers vector, line direction and a point on the line. */
+import type { Vec3 } from '../math/vec3.js';
 import { onlyKeys, required } from '../scenario/check.js';
 import { readDirection } from '../scenario/parse.js';
-import type { DislocationSpec } from '../scenario/types.js';
 import { imagePointToCrystal } from '../geometry/frames.js';
 import { modelOf, only } from '../analysis/visibilityTable.js';
 import type { DefectType } from './defectType.js';
 import { burgersCandidates, burgersNote, dislocationWithCut, lineWarnings, refuseLineOutsideFoil } from './lineDefect.js';
+
+export interface DislocationSpec {
+  readonly type: 'dislocation';
+  readonly label: string;
+  /** Burgers vector, lattice units. */
+  readonly b: Vec3;
+  /** Line direction u, lattice units. */
+  readonly line: Vec3;
+  /** A point on the line: x, y from the image centre in the reference image frame, z depth below the entrance surface (nm). */
+  readonly point_nm: Vec3;
+  /** Core radius used to regularise the field (nm). */
+  readonly core_nm?: number;
+}
 
 export const dislocation: DefectType<DislocationSpec> = {
   type: 'dislocation',

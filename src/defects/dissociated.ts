@@ -1,11 +1,12 @@
 /** A perfect fcc dislocation split into two Shockley partials with an intrinsic fault ribbon between them. */
+import type { Vec3 } from '../math/vec3.js';
 import { dot } from '../math/vec3.js';
 import { directionToCartesian } from '../crystal/lattice.js';
 import type { Material } from '../crystal/material.js';
 import { InputError } from '../errors.js';
 import { fail, number, onlyKeys, required } from '../scenario/check.js';
 import { readDirection, readPlane } from '../scenario/parse.js';
-import type { DissociatedSpec, Elasticity } from '../scenario/types.js';
+import type { Elasticity } from '../scenario/types.js';
 import { imagePointToCrystal } from '../geometry/frames.js';
 import { anisotropicRibbonWidth_nm, ribbonPartialPoints, ribbonWidth_nm, shockleySplit, type ShockleyPair } from '../elasticity/dissociation.js';
 import { materialStiffness } from '../elasticity/stiffness.js';
@@ -13,6 +14,22 @@ import type { DislocationFieldSpec } from '../imaging/fieldSpecs.js';
 import { modelOf, only } from '../analysis/visibilityTable.js';
 import type { DefectType } from './defectType.js';
 import { burgersCandidates, burgersNote, dislocationWithCut, lineWarnings, refuseLineOutsideFoil } from './lineDefect.js';
+
+/** A perfect fcc dislocation split into two Shockley partials with an intrinsic fault ribbon between them. */
+export interface DissociatedSpec {
+  readonly type: 'dissociated';
+  readonly label: string;
+  /** Perfect Burgers vector (a/2<110>). */
+  readonly b: Vec3;
+  /** Glide plane {111}. */
+  readonly plane: Vec3;
+  readonly line: Vec3;
+  /** Midpoint between the partials (image frame). */
+  readonly point_nm: Vec3;
+  /** Partial separation; omitted: the isotropic equilibrium width from the stacking-fault energy. */
+  readonly separation_nm?: number;
+  readonly core_nm?: number;
+}
 
 /** The two Shockley partials (in the order that makes the fault between them intrinsic) of a dissociated defect. */
 export function dissociationPair(m: Material, d: DissociatedSpec): ShockleyPair {

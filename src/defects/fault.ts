@@ -5,10 +5,27 @@ import { directionToCartesian, planeNormalToCartesian } from '../crystal/lattice
 import type { Material } from '../crystal/material.js';
 import { fail, joinPath, onlyKeys, required, string } from '../scenario/check.js';
 import { readPlane, readVector } from '../scenario/parse.js';
-import type { FaultSpec } from '../scenario/types.js';
 import { imagePointToCrystal } from '../geometry/frames.js';
 import { formatBurgers } from '../analysis/candidates.js';
 import type { DefectType } from './defectType.js';
+
+/** A planar fault crossing the whole foil. */
+export interface FaultSpec {
+  readonly type: 'fault';
+  readonly label: string;
+  /** Fault plane (plane indices). */
+  readonly plane: Vec3;
+  /**
+   * Fault vector R_f, lattice units: the displacement of the crystal behind
+   * the fault (the side the electrons reach second) relative to the crystal
+   * in front of it.
+   */
+  readonly vector: Vec3;
+  /** How the vector was given: "intrinsic", "extrinsic" or "vector". */
+  readonly nature: 'intrinsic' | 'extrinsic' | 'vector';
+  /** A point on the fault plane (image frame: x, y, depth). */
+  readonly point_nm: Vec3;
+}
 
 /**
  * Fault vector from the fault nature for an fcc {111} fault: removing a plane

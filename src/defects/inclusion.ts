@@ -1,10 +1,23 @@
 /** A coherent spherical inclusion (Ashby & Brown 1963): centre, radius and constrained strain (or misfit). */
+import type { Vec3 } from '../math/vec3.js';
 import { fail, joinPath, number, onlyKeys, required } from '../scenario/check.js';
-import type { InclusionSpec } from '../scenario/types.js';
 import { constrainedStrain } from '../elasticity/inclusion.js';
 import { imagePointToCrystal } from '../geometry/frames.js';
 import { sig } from '../format.js';
 import type { DefectType } from './defectType.js';
+
+/** A coherent spherical inclusion (Ashby & Brown 1963). */
+export interface InclusionSpec {
+  readonly type: 'inclusion';
+  readonly label: string;
+  /** Centre (image frame: x, y, depth). */
+  readonly centre_nm: Vec3;
+  readonly radius_nm: number;
+  /** Constrained strain eps (given directly or from the misfit delta). */
+  readonly strain: number;
+  /** The misfit delta when given. */
+  readonly misfit?: number;
+}
 
 function signed(x: number): string {
   return `${x >= 0 ? '+' : '-'}${Number(Math.abs(x).toPrecision(3))}`;

@@ -1,13 +1,27 @@
 /** A partial dislocation bounding a fault that runs from its line to the foil surfaces (the cut lies in the fault plane). */
+import type { Vec3 } from '../math/vec3.js';
 import { add, dot, norm, scale, sub, unit } from '../math/vec3.js';
 import { directionToCartesian, planeNormalToCartesian } from '../crystal/lattice.js';
 import { fail, onlyKeys, required } from '../scenario/check.js';
 import { readDirection, readPlane } from '../scenario/parse.js';
-import type { PartialSpec } from '../scenario/types.js';
 import { imagePointToCrystal } from '../geometry/frames.js';
 import { modelOf, only } from '../analysis/visibilityTable.js';
 import type { DefectType } from './defectType.js';
 import { burgersCandidates, burgersNote, dislocationWithCut, lineWarnings, refuseLineOutsideFoil } from './lineDefect.js';
+
+/** A partial dislocation bounding a fault that runs from its line to the foil surfaces. */
+export interface PartialSpec {
+  readonly type: 'partial';
+  readonly label: string;
+  readonly b: Vec3;
+  readonly line: Vec3;
+  readonly point_nm: Vec3;
+  /** Plane of the fault the partial bounds. */
+  readonly faultPlane: Vec3;
+  /** Crystal direction (projected into the fault plane, perpendicular to the line) from the line into the fault. */
+  readonly faultSide: Vec3;
+  readonly core_nm?: number;
+}
 
 export const partial: DefectType<PartialSpec> = {
   type: 'partial',

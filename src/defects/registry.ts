@@ -2,13 +2,15 @@
  * The defect types thinfoil knows, in the order the scenario parser names
  * them. A new type is its module (src/defects/<type>.ts) plus one line here.
  */
-import type { DefectSpec } from '../scenario/types.js';
 import type { DefectType } from './defectType.js';
-import { dislocation } from './dislocation.js';
-import { partial } from './partial.js';
-import { dissociated } from './dissociated.js';
-import { fault } from './fault.js';
-import { inclusion } from './inclusion.js';
+import { dislocation, type DislocationSpec } from './dislocation.js';
+import { partial, type PartialSpec } from './partial.js';
+import { dissociated, type DissociatedSpec } from './dissociated.js';
+import { fault, type FaultSpec } from './fault.js';
+import { inclusion, type InclusionSpec } from './inclusion.js';
+
+/** A validated scenario defect: one spec per type. */
+export type DefectSpec = DislocationSpec | PartialSpec | DissociatedSpec | FaultSpec | InclusionSpec;
 
 type AnyDefectType = { [T in DefectSpec['type']]: DefectType<Extract<DefectSpec, { type: T }>> }[DefectSpec['type']];
 
