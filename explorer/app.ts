@@ -17,6 +17,7 @@ import { isForbidden, reflectionParameters } from '../src/scattering/reflection.
 import { directionToCartesian, planeNormalToCartesian, usesFourIndices } from '../src/crystal/lattice.js';
 import { directionToFour, planeToFour } from '../src/crystal/millerBravais.js';
 import { formatBurgers, identificationCandidates } from '../src/analysis/candidates.js';
+import { defectTypeNamed, defectTypeOf } from '../src/defects/registry.js';
 import { autoStretch, stretchToBytes } from '../src/output/stretch.js';
 import { crystalToImagePoint, imagePointToCrystal, pixelX } from '../src/geometry/frames.js';
 import { referenceFrame } from '../src/imaging/scenarioFrame.js';
@@ -167,8 +168,8 @@ const touched = { deviation: false, g: false, beams: false, thickness: false, de
 let reflections: Reflection[] = [];
 let burgersChoices: Vec3[] = [];
 
-function defectDepthKey(d: Raw): 'centre_nm' | 'point_nm' {
-  return d.type === 'inclusion' ? 'centre_nm' : 'point_nm';
+function defectDepthKey(d: Raw): string {
+  return defectTypeNamed(String(d.type))?.positionKey ?? 'point_nm';
 }
 
 /** The scenario JSON with the current settings applied (a copy; the served file is never changed). */
@@ -307,7 +308,7 @@ function loadDefect(di: number): void {
     return;
   }
   const d = base.defects[di];
-  settings.depth = d.type === 'inclusion' ? d.centre_nm[2] : d.point_nm[2];
+  settings.depth = defectTypeOf(d).position(d)[2];
   el.depth.disabled = false;
   el.depthValue.disabled = false;
   el.depth.max = String(settings.thickness);
@@ -466,7 +467,7 @@ function profileLine(sc: Scenario, c: ResolvedCondition): { x: number; y: number
   const gl = Math.hypot(gx, gy) || 1;
   if (settings.defect < 0) return { x: 0, y: 0, dx: gx / gl, dy: gy / gl, label: 'through the centre, along g' };
   const d = sc.defects[settings.defect];
-  const p = d.type === 'inclusion' ? d.centre_nm : d.point_nm;
+  const p = defectTypeOf(d).position(d);
   const r = crystalToImagePoint(c.frame, imagePointToCrystal(referenceFrame(sc), p));
   if ('line' in d) {
     const u = directionToCartesian(sc.material.lattice, d.line);

@@ -7,8 +7,9 @@
  */
 import type { Vec3 } from '../math/vec3.js';
 import type { DefectSpec, Scenario } from '../scenario/types.js';
+import { defectTypeOf } from '../defects/registry.js';
 import { judge, type Verdict, type VisibilityEntry } from './visibility.js';
-import { defectModel, dissociationPair, type DefectModel, type DislocationFieldSpec } from '../imaging/fieldSpecs.js';
+import { defectModel, type DefectModel, type DislocationFieldSpec } from '../imaging/fieldSpecs.js';
 import { resolveCondition, type ResolvedCondition } from '../imaging/resolveCondition.js';
 import { lineContrast, type LineContrast, type SimulatedVerdict } from './lineContrast.js';
 
@@ -32,17 +33,18 @@ export interface VisibilityRow {
 }
 
 /** What to simulate for a row: a defect model and the line of it whose contrast is measured. */
-interface Simulation {
+export interface Simulation {
   readonly model: DefectModel;
   readonly line: DislocationFieldSpec;
 }
 
-function modelOf(sc: Scenario, d: DefectSpec): DefectModel {
+/** The defect model of one defect alone. */
+export function modelOf(sc: Scenario, d: DefectSpec): DefectModel {
   return defectModel({ ...sc, defects: [d] });
 }
 
 /** The model restricted to field/surface k (a dislocation's field and its cut come in the same order). */
-function only(m: DefectModel, k: number): Simulation {
+export function only(m: DefectModel, k: number): Simulation {
   return { model: { fields: [m.fields[k]], surfaces: [m.surfaces[k]] }, line: m.fields[k] as DislocationFieldSpec };
 }
 
@@ -67,18 +69,11 @@ export function visibilityTable(sc: Scenario, options: { simulate?: boolean } = 
   };
   const lines: Vec3[] = [];
   for (const d of sc.defects) {
-    if (d.type === 'dislocation' || d.type === 'partial') {
-      rows.push(make(d.label, 'defect', d.b, d.line, () => only(modelOf(sc, d), 0)));
-      lines.push(d.line);
-    } else if (d.type === 'dissociated') {
-      const m = modelOf(sc, d);
-      // the whole ribbon, measured across its first partial (the strip crosses both)
-      rows.push(make(`${d.label} (perfect b)`, 'defect', d.b, d.line, () => ({ model: m, line: m.fields[0] as DislocationFieldSpec })));
-      const pair = dissociationPair(sc.material, d);
-      rows.push(make(`${d.label}, partial 1`, 'defect', pair.b1, d.line, () => only(m, 0)));
-      rows.push(make(`${d.label}, partial 2`, 'defect', pair.b2, d.line, () => only(m, 1)));
-      lines.push(d.line);
-    }
+    const t = defectTypeOf(d);
+    const own = t.visibilityRows(sc, d, (subject, b, line, sim) => make(subject, 'defect', b, line, sim));
+    rows.push(...own);
+    const line = t.line(d);
+    if (own.length > 0 && line !== undefined) lines.push(line);
   }
   const soleLine = lines.length === 1 ? lines[0] : undefined;
   const mid = sc.thickness_nm / 2;

@@ -23,6 +23,7 @@ import { directionToCartesian } from '../crystal/lattice.js';
 import { imagePointToCrystal } from '../geometry/frames.js';
 import type { Candidate } from '../analysis/candidates.js';
 import { variantScenario } from '../analysis/candidates.js';
+import { defectTypeOf } from '../defects/registry.js';
 import type { Condition, Scenario } from '../scenario/types.js';
 import { resolveCondition } from '../imaging/resolveCondition.js';
 import { background, renderJob } from '../imaging/renderScenario.js';
@@ -56,11 +57,12 @@ export interface Strip {
 export function candidateStrips(sc: Scenario, candidates: readonly Candidate[], cond: Condition, opt: StripOptions = DEFAULT_STRIP): Strip {
   const n = candidates.length;
   const target = sc.defects[candidates[0].defectIndex];
-  if (!('line' in target) || !('point_nm' in target)) {
+  const type = defectTypeOf(target);
+  if (type.line(target) === undefined) {
     throw new InputError(`defects[${candidates[0].defectIndex}] is a "${target.type}"; planning compares images across a dislocation line, so choose a dislocation, partial or dissociated dislocation with --defect`);
   }
   const l = sc.material.lattice;
-  const P = imagePointToCrystal(referenceFrame(sc), target.point_nm);
+  const P = imagePointToCrystal(referenceFrame(sc), type.position(target));
   const contrast: Float64Array[] = [];
   const x = new Float64Array(opt.columns);
   const out = new Float64Array(4);

@@ -3,7 +3,7 @@
  * of the offending field and how to fix it.
  */
 import type { Vec3 } from '../math/vec3.js';
-import { add, angle, dot, norm, scale, sub, unit } from '../math/vec3.js';
+import { angle, dot, norm, scale, unit } from '../math/vec3.js';
 import type { Material } from '../crystal/material.js';
 import { getMaterial, parseMaterial } from '../crystal/materials.js';
 import { parseIndices, parseVectorWithFraction } from '../crystal/indices.js';
@@ -11,9 +11,10 @@ import { directionFromFour, planeFromFour } from '../crystal/millerBravais.js';
 import { directionToCartesian, planeNormalToCartesian, usesFourIndices } from '../crystal/lattice.js';
 import { reflectionParameters } from '../scattering/reflection.js';
 import { type AbsorptionSetting, DEFAULT_ABSORPTION, THERMAL_DIFFUSE } from '../scattering/absorption.js';
-import { constrainedStrain } from '../elasticity/inclusion.js';
 import { parseFamily } from '../crystal/symmetry.js';
 import { InputError } from '../errors.js';
+import type { DefectEntry } from '../defects/defectType.js';
+import { defectTypeNamed, defectTypeNames, defectTypeOf } from '../defects/registry.js';
 import { array, fail, isObject, joinPath, number, object, onlyKeys, required, string } from './check.js';
 import type { BeamSet, CandidateSpec, Condition, DefectSpec, Deviation, Elasticity, ImageSpec, Scenario } from './types.js';
 import { MAX_PIXELS, MAX_SIDE_PX } from './types.js';
@@ -272,81 +273,30 @@ function readCondition(v: unknown, path: string, m: Material, refBeam: Vec3, foi
 function readDefect(v: unknown, path: string, m: Material, thickness_nm: number, refBeam: Vec3): DefectSpec {
   const o = object(v, path);
   const type = string(required(o, 'type', path, '"dislocation"'), joinPath(path, 'type'));
-  const at = (k: string) => joinPath(path, k);
-  const label = (kind: string) => (o.label === undefined ? `${kind} ${path}` : shortString(o.label, at('label'), MAX_LABEL_CHARS));
-  const core = () => (o.core_nm === undefined ? {} : { core_nm: number(o.core_nm, at('core_nm'), { above: 0, max: 10, unit: 'nm' }) });
-  const burgers = (example: string) => {
-    const b = readVector(required(o, 'b', path, `"${example}"`), at('b'), m);
-    if (norm(b) === 0) fail(at('b'), `is zero; a dislocation needs a nonzero Burgers vector such as "${example}"`);
-    return b;
-  };
-  switch (type) {
-    case 'dislocation': {
-      onlyKeys(o, ['type', 'label', 'b', 'line', 'point_nm', 'core_nm'], path);
-      const b = burgers('1/2[1 1 0]');
-      const line = readDirection(required(o, 'line', path, '[1, -1, 0]'), at('line'), m);
-      return { type, label: label('dislocation'), b, line, point_nm: readPoint(o.point_nm, at('point_nm'), thickness_nm), ...core() };
-    }
-    case 'fault': {
-      onlyKeys(o, ['type', 'label', 'plane', 'vector', 'nature', 'point_nm'], path);
-      const plane = readPlane(required(o, 'plane', path, '[1, 1, 1]'), at('plane'), m);
-      if (norm(plane) === 0) fail(at('plane'), 'must not be (0 0 0)');
-      const point_nm = readPoint(o.point_nm, at('point_nm'), thickness_nm);
-      if ((o.vector === undefined) === (o.nature === undefined)) {
-        fail(path, 'must give exactly one of "vector" (e.g. "1/3[1 1 1]") and "nature" ("intrinsic" or "extrinsic")');
-      }
-      if (o.vector !== undefined) {
-        const vector = readVector(o.vector, at('vector'), m);
-        return { type, label: label('fault'), plane, vector, nature: 'vector', point_nm };
-      }
-      const nature = string(o.nature, at('nature'));
-      if (nature !== 'intrinsic' && nature !== 'extrinsic') fail(at('nature'), `"${nature}" is not a fault nature; use "intrinsic" or "extrinsic"`);
-      return { type, label: label(`${nature} fault`), plane, vector: natureVector(m, plane, nature, refBeam, at('nature')), nature, point_nm };
-    }
-    case 'partial': {
-      onlyKeys(o, ['type', 'label', 'b', 'line', 'point_nm', 'faultPlane', 'faultSide', 'core_nm'], path);
-      const b = burgers('1/6[1 1 -2]');
-      const line = readDirection(required(o, 'line', path, '[1, -1, 0]'), at('line'), m);
-      const faultPlane = readPlane(required(o, 'faultPlane', path, '[1, 1, 1]'), at('faultPlane'), m);
-      const faultSide = readDirection(required(o, 'faultSide', path, '[1, 1, -2]'), at('faultSide'), m);
-      const n = unit(planeNormalToCartesian(m.lattice, faultPlane));
-      const u = unit(cart(m, line));
-      if (Math.abs(dot(n, u)) > 0.02) fail(at('line'), 'must lie in the fault plane (perpendicular to the plane normal)');
-      const side = cart(m, faultSide);
-      const inPlane = sub(side, add(scale(n, dot(side, n)), scale(u, dot(side, u))));
-      if (norm(inPlane) < 1e-6 * norm(side)) fail(at('faultSide'), 'must point from the line into the fault, within the fault plane and not along the line');
-      return { type, label: label('partial'), b, line, point_nm: readPoint(o.point_nm, at('point_nm'), thickness_nm), faultPlane, faultSide, ...core() };
-    }
-    case 'dissociated': {
-      onlyKeys(o, ['type', 'label', 'b', 'line', 'plane', 'point_nm', 'separation_nm', 'core_nm'], path);
-      if (m.lattice.system !== 'cubic') fail(at('type'), 'dissociation into Shockley partials is available for fcc (cubic) materials only');
-      const b = burgers('1/2[1 -1 0]');
-      const plane = readPlane(required(o, 'plane', path, '[1, 1, 1]'), at('plane'), m);
-      const line = readDirection(required(o, 'line', path, '[1, -1, 0]'), at('line'), m);
-      const sep = o.separation_nm === undefined ? {} : { separation_nm: number(o.separation_nm, at('separation_nm'), { above: 0, max: 1000, unit: 'nm' }) };
-      if (o.separation_nm === undefined && m.stackingFaultEnergy_mJ_per_m2 === undefined) {
-        fail(at('separation_nm'), `is needed because material "${m.name}" has no stacking-fault energy; give the partial separation in nm`);
-      }
-      if (o.separation_nm === undefined && !((m.stackingFaultEnergy_mJ_per_m2 ?? 0) >= 1)) {
-        fail(at('separation_nm'), `is needed because the stacking-fault energy of "${m.name}" is ${m.stackingFaultEnergy_mJ_per_m2} mJ/m^2 (below 1), so the partials would part without bound; give the partial separation in nm or a positive energy`);
-      }
-      return { type, label: label('dissociated dislocation'), b, plane, line, point_nm: readPoint(o.point_nm, at('point_nm'), thickness_nm), ...sep, ...core() };
-    }
-    case 'inclusion': {
-      onlyKeys(o, ['type', 'label', 'centre_nm', 'radius_nm', 'misfit', 'strain'], path);
-      const centre_nm = readPoint(required(o, 'centre_nm', path, '[0, 0, 50]'), at('centre_nm'), thickness_nm);
-      const radius_nm = number(required(o, 'radius_nm', path, '5'), at('radius_nm'), { above: 0, max: 1000, unit: 'nm' });
-      if ((o.misfit === undefined) === (o.strain === undefined)) fail(path, 'must give exactly one of "misfit" (delta) and "strain" (constrained strain eps)');
-      if (o.misfit !== undefined) {
-        const misfit = number(o.misfit, at('misfit'), { min: -0.2, max: 0.2 });
-        // eps = delta (1 + nu) / (3 (1 - nu)) (Eshelby; Ashby & Brown 1963)
-        return { type, label: label('inclusion'), centre_nm, radius_nm, strain: constrainedStrain(misfit, m.elastic.poissonRatio), misfit };
-      }
-      return { type, label: label('inclusion'), centre_nm, radius_nm, strain: number(o.strain, at('strain'), { min: -0.2, max: 0.2 }) };
-    }
-    default:
-      fail(at('type'), `"${type}" is not a defect type thinfoil knows; use "dislocation", "partial", "dissociated", "fault" or "inclusion"`);
+  const module = defectTypeNamed(type);
+  if (module === undefined) {
+    const names = defectTypeNames().map((n) => `"${n}"`);
+    fail(joinPath(path, 'type'), `"${type}" is not a defect type thinfoil knows; use ${names.slice(0, -1).join(', ')} or ${names[names.length - 1]}`);
   }
+  const at = (k: string) => joinPath(path, k);
+  const entry: DefectEntry = {
+    o,
+    path,
+    material: m,
+    thickness_nm,
+    beam: refBeam,
+    at,
+    label: (kind) => (o.label === undefined ? `${kind} ${path}` : shortString(o.label, at('label'), MAX_LABEL_CHARS)),
+    core: () => (o.core_nm === undefined ? {} : { core_nm: number(o.core_nm, at('core_nm'), { above: 0, max: 10, unit: 'nm' }) }),
+    burgers: (example) => {
+      const b = readVector(required(o, 'b', path, `"${example}"`), at('b'), m);
+      if (norm(b) === 0) fail(at('b'), `is zero; a dislocation needs a nonzero Burgers vector such as "${example}"`);
+      return b;
+    },
+    point: (key) => readPoint(o[key], at(key), thickness_nm),
+    requiredPoint: (key, example) => readPoint(required(o, key, path, example), at(key), thickness_nm),
+  };
+  return module.read(entry);
 }
 
 /**
@@ -356,46 +306,7 @@ function readDefect(v: unknown, path: string, m: Material, thickness_nm: number,
  * somewhere is accepted; scenarioWarnings says where it crosses.)
  */
 function refuseOutsideFoil(d: DefectSpec, path: string, m: Material, t: number, foilNormal: Vec3): void {
-  const outside = (z: number) => z < 0 || z > t;
-  const fix = `give a depth from 0 to ${t} nm (the foil thickness)`;
-  if (d.type === 'inclusion') {
-    const z = d.centre_nm[2];
-    if (z + d.radius_nm < 0 || z - d.radius_nm > t) {
-      fail(joinPath(path, 'centre_nm'), `the inclusion (depth ${z} nm, radius ${d.radius_nm} nm) lies wholly outside the ${t} nm foil, where no crystal is; ${fix}`);
-    }
-    return;
-  }
-  const n = unit(cart(m, foilNormal));
-  const z = d.point_nm[2];
-  if (!outside(z)) return;
-  if (d.type === 'fault') {
-    const p = unit(planeNormalToCartesian(m.lattice, d.plane));
-    if (1 - Math.abs(dot(p, n)) < 1e-9) fail(joinPath(path, 'point_nm'), `the fault plane is parallel to the surfaces at depth ${z} nm, wholly outside the ${t} nm foil; ${fix}`);
-    return;
-  }
-  if (Math.abs(dot(unit(cart(m, d.line)), n)) < 1e-9) {
-    fail(joinPath(path, 'point_nm'), `the line is parallel to the surfaces at depth ${z} nm, wholly outside the ${t} nm foil; ${fix}`);
-  }
-}
-
-/**
- * Fault vector from the fault nature for an fcc {111} fault: removing a plane
- * (intrinsic) moves the crystal behind the fault towards the front by one
- * plane spacing, inserting one (extrinsic) moves it away: R_f = -/+ (1/3)<111>
- * with <111> the plane normal pointing to the side behind the fault (along the beam).
- */
-function natureVector(m: Material, plane: Vec3, nature: 'intrinsic' | 'extrinsic', refBeam: Vec3, path: string): Vec3 {
-  const fccBased = ['fcc', 'L1_2', 'diamond', 'zincblende', 'rocksalt', 'custom'].includes(m.structure);
-  const is111 = m.lattice.system === 'cubic' && plane.every((h) => Math.abs(Math.abs(h) - Math.abs(plane[0])) < 1e-9 && h !== 0);
-  if (!fccBased || !is111) {
-    fail(path, `is defined here for {111} faults in fcc-based cubic crystals only (material "${m.name}" is ${m.structure}); give the fault "vector" instead`);
-  }
-  const n = planeNormalToCartesian(m.lattice, plane);
-  const c = dot(n, cart(m, refBeam));
-  if (Math.abs(c) < 1e-9 * norm(n)) fail(path, 'cannot be turned into a vector for a fault plane seen edge-on (it contains the beam); give the fault "vector"');
-  const h = plane.map((x) => x / Math.abs(plane[0])) as unknown as Vec3; // (+-1 +-1 +-1)
-  const k = (Math.sign(c) * (nature === 'intrinsic' ? -1 : 1)) / 3;
-  return [h[0] * k, h[1] * k, h[2] * k];
+  defectTypeOf(d).refuseOutsideFoil(d, path, m, t, foilNormal);
 }
 
 function readPoint(v: unknown, path: string, thickness_nm: number): Vec3 {

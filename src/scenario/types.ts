@@ -6,6 +6,7 @@
 import type { Vec3 } from '../math/vec3.js';
 import type { Material } from '../crystal/material.js';
 import type { AbsorptionSetting } from '../scattering/absorption.js';
+import type { DefectSpec } from '../defects/registry.js';
 
 export type BeamSet =
   | { readonly kind: 'two' }
@@ -31,81 +32,13 @@ export type Deviation =
   /** Ewald sphere through n g: s_g = (n - 1) lambda g^2 / 2. */
   | { readonly kind: 'weakBeam'; readonly n: number };
 
-export interface DislocationSpec {
-  readonly type: 'dislocation';
-  readonly label: string;
-  /** Burgers vector, lattice units. */
-  readonly b: Vec3;
-  /** Line direction u, lattice units. */
-  readonly line: Vec3;
-  /** A point on the line: x, y from the image centre in the reference image frame, z depth below the entrance surface (nm). */
-  readonly point_nm: Vec3;
-  /** Core radius used to regularise the field (nm). */
-  readonly core_nm?: number;
-}
-
-/** A planar fault crossing the whole foil. */
-export interface FaultSpec {
-  readonly type: 'fault';
-  readonly label: string;
-  /** Fault plane (plane indices). */
-  readonly plane: Vec3;
-  /**
-   * Fault vector R_f, lattice units: the displacement of the crystal behind
-   * the fault (the side the electrons reach second) relative to the crystal
-   * in front of it.
-   */
-  readonly vector: Vec3;
-  /** How the vector was given: "intrinsic", "extrinsic" or "vector". */
-  readonly nature: 'intrinsic' | 'extrinsic' | 'vector';
-  /** A point on the fault plane (image frame: x, y, depth). */
-  readonly point_nm: Vec3;
-}
-
-/** A partial dislocation bounding a fault that runs from its line to the foil surfaces. */
-export interface PartialSpec {
-  readonly type: 'partial';
-  readonly label: string;
-  readonly b: Vec3;
-  readonly line: Vec3;
-  readonly point_nm: Vec3;
-  /** Plane of the fault the partial bounds. */
-  readonly faultPlane: Vec3;
-  /** Crystal direction (projected into the fault plane, perpendicular to the line) from the line into the fault. */
-  readonly faultSide: Vec3;
-  readonly core_nm?: number;
-}
-
-/** A perfect fcc dislocation split into two Shockley partials with an intrinsic fault ribbon between them. */
-export interface DissociatedSpec {
-  readonly type: 'dissociated';
-  readonly label: string;
-  /** Perfect Burgers vector (a/2<110>). */
-  readonly b: Vec3;
-  /** Glide plane {111}. */
-  readonly plane: Vec3;
-  readonly line: Vec3;
-  /** Midpoint between the partials (image frame). */
-  readonly point_nm: Vec3;
-  /** Partial separation; omitted: the isotropic equilibrium width from the stacking-fault energy. */
-  readonly separation_nm?: number;
-  readonly core_nm?: number;
-}
-
-/** A coherent spherical inclusion (Ashby & Brown 1963). */
-export interface InclusionSpec {
-  readonly type: 'inclusion';
-  readonly label: string;
-  /** Centre (image frame: x, y, depth). */
-  readonly centre_nm: Vec3;
-  readonly radius_nm: number;
-  /** Constrained strain eps (given directly or from the misfit delta). */
-  readonly strain: number;
-  /** The misfit delta when given. */
-  readonly misfit?: number;
-}
-
-export type DefectSpec = DislocationSpec | FaultSpec | PartialSpec | DissociatedSpec | InclusionSpec;
+// each defect type's spec lives in its module (src/defects/<type>.ts); the union in src/defects/registry.ts
+export type { DefectSpec };
+export type { DislocationSpec } from '../defects/dislocation.js';
+export type { PartialSpec } from '../defects/partial.js';
+export type { DissociatedSpec } from '../defects/dissociated.js';
+export type { FaultSpec } from '../defects/fault.js';
+export type { InclusionSpec } from '../defects/inclusion.js';
 
 export interface CandidateSpec {
   readonly label: string;
