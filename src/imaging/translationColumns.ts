@@ -31,8 +31,9 @@ import { cross, dot } from '../math/vec3.js';
 import { columnEntryOffset, pixelX } from '../geometry/frames.js';
 import { mulMatrix, setIdentity, stretchMatrix, type MatrixParams, type StretchCounters } from '../dynamics/twoBeamMatrix.js';
 import { DEFAULT_MAX_SLICE_NM } from '../dynamics/twoBeamColumn.js';
-import { activeSurfaces, columnEvaluator, crossingDepth, type ColumnEvaluator, type RenderJob, type RowStats } from './renderRows.js';
+import { activeSurfaces, columnEvaluator, type ColumnEvaluator, type RenderJob, type RowStats } from './renderRows.js';
 import { CORE_SUBSAMPLES, coreGeometry } from './cores.js';
+import { longColumnEvents } from './longColumnEvents.js';
 import { buildField } from './fieldSpecs.js';
 import { classWindowsN } from './translationColumnsN.js';
 
@@ -288,12 +289,9 @@ function classWindows(job: RenderJob, plan: TranslationPlan): ClassWindows {
   const { D } = plan;
   const maxK = Math.max(width, height) + 1;
   // events: positions and codes (0 end of window k, 1 fault, 2 start of window k) sorted by (position, code)
-  const nMaxEvents = 2 * maxK + surfaces.length;
-  const evPos = new Float64Array(nMaxEvents);
-  const evCode = new Int32Array(nMaxEvents);
-  const evRef = new Int32Array(nMaxEvents); // member k or fault index
-  const order = new Int32Array(nMaxEvents);
-  const faultAlpha = new Float64Array(surfaces.length);
+  const events = longColumnEvents(surfaces, [], maxK);
+  const { pos: evPos, code: evCode, ref: evRef, order, faultAlpha } = events;
+  const nMaxEvents = evPos.length;
   const first = new Int32Array(maxK); // element index where window k starts
   const last = new Int32Array(maxK); // element index where window k ends (exclusive)
   const nMaxElements = nMaxEvents + 1;
@@ -301,7 +299,6 @@ function classWindows(job: RenderJob, plan: TranslationPlan): ClassWindows {
   const F = new Float64Array(8 * nMaxElements);
   const B = new Float64Array(8);
   const T = new Float64Array(8);
-  const byPosition = (a: number, b: number): number => evPos[a] - evPos[b] || evCode[a] - evCode[b];
   const run = (amp: Float64Array, x: number, y: number, K: number): void => {
     const tau0 = columnEntryOffset(frame, x, y);
     const cx = x * ex0 + y * ey0 + tau0 * kx;
@@ -311,27 +308,7 @@ function classWindows(job: RenderJob, plan: TranslationPlan): ClassWindows {
     c0[1] = cy;
     c0[2] = cz;
     // events of this long column
-    let n = 0;
-    for (let k = 0; k < K; k++) {
-      evPos[n] = k * D + L;
-      evCode[n] = 0;
-      evRef[n++] = k;
-      evPos[n] = k * D;
-      evCode[n] = 2;
-      evRef[n++] = k;
-    }
-    const zEnd = (K - 1) * D + L;
-    for (let s = 0; s < surfaces.length; s++) {
-      const f = surfaces[s];
-      const zc = crossingDepth(f, cx, cy, cz, kx, ky, kz, zEnd);
-      if (zc !== zc) continue; // NaN: no crossing
-      faultAlpha[s] = f.kn > 0 ? f.alpha : -f.alpha;
-      evPos[n] = zc;
-      evCode[n] = 1;
-      evRef[n++] = s;
-    }
-    for (let e = 0; e < n; e++) order[e] = e;
-    order.subarray(0, n).sort(byPosition);
+    const n = events.collect(cx, cy, cz, frame.ez, K, D, L);
     // elements: stretches between consecutive events, and fault phases
     let m = 0;
     let zPrev = 0;

@@ -12,9 +12,10 @@
  */
 import { columnEntryOffset } from '../geometry/frames.js';
 import { prepareColumnSystem, propagateBlochN } from '../dynamics/manyBeam.js';
-import { activeSurfaces, closestApproachDepth, crossingDepth, MANY_BEAM_TOL_FACTOR, type RenderJob } from './renderRows.js';
+import { activeSurfaces, MANY_BEAM_TOL_FACTOR, type RenderJob } from './renderRows.js';
 import { buildField } from './fieldSpecs.js';
 import type { TranslationPlan, ClassWindows } from './translationColumns.js';
+import { longColumnEvents } from './longColumnEvents.js';
 
 /** out[o..] = a[ao..] x b[bo..], N x N complex, interleaved [re, im], row-major. out may not alias a or b. */
 function mulN(out: Float64Array, o: number, a: Float64Array, ao: number, b: Float64Array, bo: number, n: number): void {
@@ -62,12 +63,9 @@ export function classWindowsN(job: RenderJob, plan: TranslationPlan): ClassWindo
   const { D } = plan;
   const maxK = Math.max(width, height) + 1;
   // events: 0 end of window k, 1 fault (ref = surface), 2 start of window k, 3 breakpoint
-  const nMaxEvents = 2 * maxK + surfaces.length + lines.length;
-  const evPos = new Float64Array(nMaxEvents);
-  const evCode = new Int32Array(nMaxEvents);
-  const evRef = new Int32Array(nMaxEvents);
-  const order = new Int32Array(nMaxEvents);
-  const faultAlpha = new Float64Array(surfaces.length);
+  const events = longColumnEvents(surfaces, lines, maxK);
+  const { pos: evPos, code: evCode, ref: evRef, order, faultAlpha } = events;
+  const nMaxEvents = evPos.length;
   const first = new Int32Array(maxK);
   const last = new Int32Array(maxK);
   const nMaxElements = nMaxEvents + 1;
@@ -87,7 +85,6 @@ export function classWindowsN(job: RenderJob, plan: TranslationPlan): ClassWindo
   const r0 = mbj.incident * n;
   const rg = mbj.darkField * n;
   const stats = { slices: 0 };
-  const byPosition = (a: number, b: number): number => evPos[a] - evPos[b] || evCode[a] - evCode[b];
 
   /**
    * Matrix of the stretch [a, b] into E at element m. Every column starts at ladder level `level`
@@ -156,34 +153,7 @@ export function classWindowsN(job: RenderJob, plan: TranslationPlan): ClassWindo
     c0[0] = cx;
     c0[1] = cy;
     c0[2] = cz;
-    let ne = 0;
-    for (let k = 0; k < K; k++) {
-      evPos[ne] = k * D + L;
-      evCode[ne] = 0;
-      evRef[ne++] = k;
-      evPos[ne] = k * D;
-      evCode[ne] = 2;
-      evRef[ne++] = k;
-    }
-    const zEnd = (K - 1) * D + L;
-    for (let s = 0; s < surfaces.length; s++) {
-      const f = surfaces[s];
-      const zc = crossingDepth(f, cx, cy, cz, kx, ky, kz, zEnd);
-      if (zc !== zc) continue; // NaN: no crossing
-      faultAlpha[s] = f.kn > 0 ? f.alpha : -f.alpha;
-      evPos[ne] = zc;
-      evCode[ne] = 1;
-      evRef[ne++] = s;
-    }
-    for (let d = 0; d < lines.length; d++) {
-      const zc = closestApproachDepth(lines[d].p, lines[d].u, cx, cy, cz, kx, ky, kz, zEnd);
-      if (zc !== zc) continue;
-      evPos[ne] = zc;
-      evCode[ne] = 3;
-      evRef[ne++] = d;
-    }
-    for (let e = 0; e < ne; e++) order[e] = e;
-    order.subarray(0, ne).sort(byPosition);
+    const ne = events.collect(cx, cy, cz, frame.ez, K, D, L);
     let m = 0;
     let zPrev = 0;
     let level = -1;
