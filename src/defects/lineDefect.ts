@@ -20,6 +20,8 @@ import type { DislocationFieldSpec, JumpSurface } from '../imaging/fieldSpecs.js
 import { formatBurgers, type Candidate, type VisibilityNote } from '../analysis/candidates.js';
 import { judge } from '../analysis/visibility.js';
 import type { WarningContext } from './defectType.js';
+import { formatDirectionIn } from '../crystal/formatIndices.js';
+import { usesFourIndices } from '../crystal/lattice.js';
 
 /** A dislocation with an explicit cut: its field and the half-plane where R jumps by b. */
 export function dislocationWithCut(
@@ -143,7 +145,10 @@ export function burgersCandidates(sc: Scenario, defectIndex: number, keep: (b: V
       const key = `${formatVector(b)} ${formatVector(line)}`;
       if (seen.has(key)) continue;
       seen.add(key);
-      const label = spec.line === undefined ? `b = ${formatBurgers(b)}` : `b = ${formatBurgers(b)}, u = ${formatVector(line)}`;
+      // hexagonal crystals: four indices (1/3[1 1 -2 0]); cubic: the usual 1/2[1 1 0]
+      const l = sc.material.lattice;
+      const bText = usesFourIndices(l) ? formatDirectionIn(l, b) : formatBurgers(b);
+      const label = spec.line === undefined ? `b = ${bText}` : `b = ${bText}, u = ${usesFourIndices(l) ? formatDirectionIn(l, line) : formatVector(line)}`;
       out.push({ label, kind: 'burgers', defectIndex, defect: { ...target, b, line } as DefectSpec, b, line });
     }
   }

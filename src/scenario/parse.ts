@@ -18,6 +18,7 @@ import { defectTypeNamed, defectTypeNames, defectTypeOf } from '../defects/regis
 import { array, fail, isObject, joinPath, number, object, onlyKeys, required, string } from './check.js';
 import type { BeamSet, CandidateSpec, Condition, DefectSpec, Deviation, Elasticity, ImageSpec, Scenario } from './types.js';
 import { MAX_PIXELS, MAX_SIDE_PX } from './types.js';
+import { formatDirectionIn } from '../crystal/formatIndices.js';
 
 /** Longest scenario name, condition id and defect or candidate label (characters). */
 export const MAX_NAME_CHARS = 200;
@@ -325,13 +326,13 @@ function readCandidates(v: unknown, path: string, m: Material): CandidateSpec[] 
   const b = readVector(required(o, 'b', path, '"1/2[1 1 0]"'), joinPath(path, 'b'), m);
   if (norm(b) === 0) fail(joinPath(path, 'b'), 'is zero; give a nonzero Burgers vector');
   const line = o.line === undefined ? undefined : readDirection(o.line, joinPath(path, 'line'), m);
-  const label = o.label === undefined ? `b = ${formatVector(b)}` : shortString(o.label, joinPath(path, 'label'), MAX_LABEL_CHARS);
+  const label = o.label === undefined ? `b = ${candidateText(m, b)}` : shortString(o.label, joinPath(path, 'label'), MAX_LABEL_CHARS);
   return [line === undefined ? { label, b } : { label, b, line }];
 }
 
 function familyCandidates(text: string, path: string, m: Material): CandidateSpec[] {
   const vs = parseFamily(text, m, { collapseSign: true, field: path }).members;
-  return vs.map((b) => ({ label: `b = ${formatVector(b)}`, b }));
+  return vs.map((b) => ({ label: `b = ${candidateText(m, b)}`, b }));
 }
 
 /**
@@ -345,6 +346,11 @@ function refuseFamily(v: unknown, path: string, kind: 'vector' | 'plane'): void 
     path,
     `"${v}" is a family (angle brackets or braces), but one ${kind === 'plane' ? 'plane' : 'vector'} is meant here; write one member, e.g. "${member}"${kind === 'vector' ? ' (families of Burgers vectors belong in "candidates")' : ''}`,
   );
+}
+
+/** A candidate Burgers vector as text: four indices for hexagonal crystals (1/3[1 1 -2 0]), else formatVector. */
+function candidateText(m: Material, b: Vec3): string {
+  return usesFourIndices(m.lattice) ? formatDirectionIn(m.lattice, b) : formatVector(b);
 }
 
 /** A direction, 3 or 4 (hexagonal) indices, returned in 3-index lattice units. */

@@ -28,3 +28,18 @@ describe('printed indices', () => {
     expect(indicesWithFraction([0.123, 1, 0])).toBe('[0.123 1 0]');
   });
 });
+
+describe('candidate labels in the crystal notation', () => {
+  it('the a-type family of a hexagonal metal is labelled with four indices (1/3<1 1 -2 0>, Williams & Carter 2009 ch. 18)', async () => {
+    const { parseScenario } = await import('../../src/scenario/parse.js');
+    const sc = parseScenario({
+      name: 'hcp labels', material: 'Mg', kV: 200, foil: { thickness_nm: 100, normal: [0, 0, 0, 1] }, beam: [0, 0, 0, 1],
+      image: { width_px: 8, height_px: 8, pixel_nm: 1 }, conditions: [{ id: 'g', g: [1, -1, 0, 0], w: 0.5 }],
+      candidates: ['1/3<11-20>'],
+    });
+    const labels = sc.candidates.map((c) => c.label).sort();
+    expect(labels).toHaveLength(3);
+    for (const l of labels) expect(l).toMatch(/^b = 1\/3\[-?\d -?\d -?\d 0\]$/);
+    expect(labels).toContain('b = 1/3[1 1 -2 0]');
+  });
+});
