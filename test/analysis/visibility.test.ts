@@ -9,11 +9,11 @@ import { visibilityTable } from '../../src/analysis/visibilityTable.js';
 
 const cubic = makeLattice('cubic', { a: 0.36 });
 
-// The rule-of-thumb verdicts below check the transcription of published rules (the 0.64 threshold and the
+// The rule-of-thumb verdicts below check that the published rules are copied correctly (the 0.64 threshold and the
 // partial rules are from memory, as the rules' texts say) and hand-computed g.b and g.(b x u); they are not
 // physics checks of the images. Since the table's verdict now comes from a simulated strip, the physics is
 // checked at the end of this file against an independent scipy strip (scripts/ref_line_strip.py).
-describe('g.b rule-of-thumb verdicts (a transcription check, not physics)', () => {
+describe('g.b rule-of-thumb verdicts (checks that the rules are copied correctly, not physics)', () => {
   it('screw with g.b = 0: invisible (Hirsch et al. 1965)', () => {
     expect(judge(cubic, [2, 0, 0], [0, 0.5, 0.5], [0, 1, 1]).verdict).toBe('invisible');
   });
