@@ -38,6 +38,18 @@ export function columnEntryOffset(f: ImageFrame, x: number, y: number): number {
 }
 
 /**
+ * Where the column through image point (x, y) enters the foil, in crystal
+ * Cartesian nm, written into out[0..2] (no allocation: used once per column).
+ */
+export function columnEntryPoint(out: Float64Array, f: ImageFrame, x: number, y: number): Float64Array {
+  const tau0 = columnEntryOffset(f, x, y);
+  out[0] = x * f.ex[0] + y * f.ey[0] + tau0 * f.ez[0];
+  out[1] = x * f.ex[1] + y * f.ey[1] + tau0 * f.ez[1];
+  out[2] = x * f.ex[2] + y * f.ey[2] + tau0 * f.ez[2];
+  return out;
+}
+
+/**
  * Crystal Cartesian position of a point given as (x, y) in the image and
  * depth d below the entrance surface (measured along the foil normal): the
  * point that projects onto (x, y) along the beam and lies at that depth.

@@ -15,7 +15,7 @@
  * apart from the rendering.
  */
 import { cross } from '../math/vec3.js';
-import { columnEntryOffset } from '../geometry/frames.js';
+import { columnEntryPoint } from '../geometry/frames.js';
 import type { RenderJob } from './renderRows.js';
 
 /** Sub-columns per axis averaged in a pixel whose area reaches a core. */
@@ -60,10 +60,10 @@ export function coreGeometry(job: RenderJob): CoreGeometry | null {
   const w = new Float64Array(3);
   // offset of the column (x, y) from line l: writes w = c0 - p; returns the signed distance (w.n) or, end-on, the distance
   const offset = (l: CoreLine, x: number, y: number): number => {
-    const tau0 = columnEntryOffset(frame, x, y);
-    w[0] = x * ex0 + y * ey0 + tau0 * k[0] - l.p[0];
-    w[1] = x * ex1 + y * ey1 + tau0 * k[1] - l.p[1];
-    w[2] = x * ex2 + y * ey2 + tau0 * k[2] - l.p[2];
+    columnEntryPoint(w, frame, x, y);
+    w[0] -= l.p[0];
+    w[1] -= l.p[1];
+    w[2] -= l.p[2];
     if (l.n !== null) return w[0] * l.n[0] + w[1] * l.n[1] + w[2] * l.n[2];
     const t = w[0] * l.u[0] + w[1] * l.u[1] + w[2] * l.u[2];
     return Math.hypot(w[0] - t * l.u[0], w[1] - t * l.u[1], w[2] - t * l.u[2]);

@@ -8,7 +8,7 @@
 import type { Vec3 } from '../math/vec3.js';
 import { dot } from '../math/vec3.js';
 import type { ImageFrame } from '../geometry/frames.js';
-import { columnEntryOffset, pixelX } from '../geometry/frames.js';
+import { columnEntryPoint, pixelX } from '../geometry/frames.js';
 import { integrateColumn, perfectCrystal, type TwoBeamParams } from '../dynamics/twoBeam.js';
 import { rk4Column } from '../dynamics/rk4Reference.js';
 import type { ManyBeamInput } from '../dynamics/manyBeamStructureMatrix.js';
@@ -175,19 +175,14 @@ export function columnEvaluator(job: RenderJob): ColumnEvaluator {
   const none = new Float64Array(0);
   const zs = new Float64Array(nMax);
   const as = new Float64Array(nMax);
-  const [ex0, ex1, ex2] = frame.ex;
-  const [ey0, ey1, ey2] = frame.ey;
   return {
     perfect: false,
     stats,
     column(out, x, y) {
-      const tau0 = columnEntryOffset(frame, x, y);
-      const cx = x * ex0 + y * ey0 + tau0 * kx;
-      const cy = x * ex1 + y * ey1 + tau0 * ky;
-      const cz = x * ex2 + y * ey2 + tau0 * kz;
-      c0[0] = cx;
-      c0[1] = cy;
-      c0[2] = cz;
+      columnEntryPoint(c0, frame, x, y);
+      const cx = c0[0];
+      const cy = c0[1];
+      const cz = c0[2];
       let count = 0;
       for (let s = 0; s < surfaces.length; s++) {
         const f = surfaces[s];

@@ -28,7 +28,7 @@
  */
 import type { Vec3 } from '../math/vec3.js';
 import { cross, dot } from '../math/vec3.js';
-import { columnEntryOffset, pixelX } from '../geometry/frames.js';
+import { columnEntryOffset, columnEntryPoint, pixelX } from '../geometry/frames.js';
 import { mulMatrix, setIdentity, stretchMatrix, type MatrixParams, type StretchCounters } from '../dynamics/twoBeamMatrix.js';
 import { DEFAULT_MAX_SLICE_NM } from '../dynamics/twoBeamColumn.js';
 import { activeSurfaces, columnEvaluator, type ColumnEvaluator, type RenderJob, type RowStats } from './renderRows.js';
@@ -273,7 +273,7 @@ export function renderTranslated(job: RenderJob, plan: TranslationPlan, part: nu
  * columns through (x0, y0) + k step, k = 0..K-1, from one long column.
  */
 function classWindows(job: RenderJob, plan: TranslationPlan): ClassWindows {
-  const { width, height, pixel_nm, frame, g_cart, params, tol } = job;
+  const { width, height, frame, g_cart, params, tol } = job;
   const L = frame.columnLength_nm;
   const field = buildField(job.model.fields);
   const dir = field === null ? null : field.directional(g_cart, frame.ez);
@@ -282,8 +282,6 @@ function classWindows(job: RenderJob, plan: TranslationPlan): ClassWindows {
   const tolLen = (0.5 * tol) / L;
   const counters: StretchCounters = { slices: 0, forced: 0 };
   const [kx, ky, kz] = frame.ez;
-  const [ex0, ex1, ex2] = frame.ex;
-  const [ey0, ey1, ey2] = frame.ey;
   const c0 = new Float64Array(3);
   const betaPrime = dir === null ? () => 0 : (z: number): number => dir(c0[0] + z * kx, c0[1] + z * ky, c0[2] + z * kz);
   const { D } = plan;
@@ -300,13 +298,10 @@ function classWindows(job: RenderJob, plan: TranslationPlan): ClassWindows {
   const B = new Float64Array(8);
   const T = new Float64Array(8);
   const run = (amp: Float64Array, x: number, y: number, K: number): void => {
-    const tau0 = columnEntryOffset(frame, x, y);
-    const cx = x * ex0 + y * ey0 + tau0 * kx;
-    const cy = x * ex1 + y * ey1 + tau0 * ky;
-    const cz = x * ex2 + y * ey2 + tau0 * kz;
-    c0[0] = cx;
-    c0[1] = cy;
-    c0[2] = cz;
+    columnEntryPoint(c0, frame, x, y);
+    const cx = c0[0];
+    const cy = c0[1];
+    const cz = c0[2];
     // events of this long column
     const n = events.collect(cx, cy, cz, frame.ez, K, D, L);
     // elements: stretches between consecutive events, and fault phases

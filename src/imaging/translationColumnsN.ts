@@ -10,7 +10,7 @@
  * A pixel's amplitudes are the rows (transmitted, g) of C W psi0, W its
  * window product.
  */
-import { columnEntryOffset } from '../geometry/frames.js';
+import { columnEntryPoint } from '../geometry/frames.js';
 import { prepareColumnSystem, propagateBlochN } from '../dynamics/manyBeam.js';
 import { activeSurfaces, MANY_BEAM_TOL_FACTOR, type RenderJob } from './renderRows.js';
 import { buildField } from './fieldSpecs.js';
@@ -56,8 +56,6 @@ export function classWindowsN(job: RenderJob, plan: TranslationPlan): ClassWindo
   const surfaces = activeSurfaces(job);
   const lines = job.model.fields.flatMap((f) => (f.kind === 'dislocation' ? [{ p: f.point_nm, u: f.line }] : []));
   const [kx, ky, kz] = frame.ez;
-  const [ex0, ex1, ex2] = frame.ex;
-  const [ey0, ey1, ey2] = frame.ey;
   const c0 = new Float64Array(3);
   const betaPrime = dir === null ? () => 0 : (z: number): number => dir(c0[0] + z * kx, c0[1] + z * ky, c0[2] + z * kz);
   const { D } = plan;
@@ -146,13 +144,10 @@ export function classWindowsN(job: RenderJob, plan: TranslationPlan): ClassWindo
   };
 
   const run = (amp: Float64Array, x: number, y: number, K: number): void => {
-    const tau0 = columnEntryOffset(frame, x, y);
-    const cx = x * ex0 + y * ey0 + tau0 * kx;
-    const cy = x * ex1 + y * ey1 + tau0 * ky;
-    const cz = x * ex2 + y * ey2 + tau0 * kz;
-    c0[0] = cx;
-    c0[1] = cy;
-    c0[2] = cz;
+    columnEntryPoint(c0, frame, x, y);
+    const cx = c0[0];
+    const cy = c0[1];
+    const cz = c0[2];
     const ne = events.collect(cx, cy, cz, frame.ez, K, D, L);
     let m = 0;
     let zPrev = 0;
