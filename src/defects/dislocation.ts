@@ -3,9 +3,8 @@ import type { Vec3 } from '../math/vec3.js';
 import { onlyKeys, required } from '../scenario/check.js';
 import { readDirection } from '../scenario/parse.js';
 import { imagePointToCrystal } from '../geometry/frames.js';
-import { modelOf, only } from '../analysis/visibilityTable.js';
 import type { DefectType } from './defectType.js';
-import { burgersCandidates, burgersNote, dislocationWithCut, lineWarnings, refuseLineOutsideFoil } from './lineDefect.js';
+import { dislocationWithCut, singleLineParts } from './lineDefect.js';
 
 export interface DislocationSpec {
   readonly type: 'dislocation';
@@ -22,8 +21,6 @@ export interface DislocationSpec {
 
 export const dislocation: DefectType<DislocationSpec> = {
   type: 'dislocation',
-  positionKey: 'point_nm',
-  position: (d) => d.point_nm,
   read(e) {
     const { o, path, material: m } = e;
     onlyKeys(o, ['type', 'label', 'b', 'line', 'point_nm', 'core_nm'], path);
@@ -31,15 +28,10 @@ export const dislocation: DefectType<DislocationSpec> = {
     const line = readDirection(required(o, 'line', path, '[1, -1, 0]'), e.at('line'), m);
     return { type: 'dislocation', label: e.label('dislocation'), b, line, point_nm: e.point('point_nm'), ...e.core() };
   },
-  refuseOutsideFoil: refuseLineOutsideFoil,
   model(d, ctx, out) {
     const x = dislocationWithCut(ctx.cart(d.b), ctx.cart(d.line), imagePointToCrystal(ctx.ref, d.point_nm), ctx.poissonRatio, ctx.stiffness_GPa, undefined, d.core_nm);
     out.fields.push(x.field);
     out.surfaces.push(x.surface);
   },
-  warnings: lineWarnings,
-  line: (d) => d.line,
-  visibilityRows: (sc, d, row) => [row(d.label, d.b, d.line, () => only(modelOf(sc, d), 0))],
-  candidates: (sc, _d, i) => burgersCandidates(sc, i, () => true),
-  visibilityNote: burgersNote,
+  ...singleLineParts,
 };

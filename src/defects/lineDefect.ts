@@ -19,7 +19,10 @@ import type { Condition, DefectSpec, Scenario } from '../scenario/types.js';
 import type { DislocationFieldSpec, JumpSurface } from '../imaging/fieldSpecs.js';
 import { formatBurgers, type Candidate, type VisibilityNote } from '../analysis/candidates.js';
 import { judge } from '../analysis/visibility.js';
-import type { WarningContext } from './defectType.js';
+import type { RowMaker, WarningContext } from './defectType.js';
+import type { DislocationSpec } from './dislocation.js';
+import type { PartialSpec } from './partial.js';
+import { modelOf, only } from '../analysis/visibilityTable.js';
 import { formatDirectionIn } from '../crystal/formatIndices.js';
 import { usesFourIndices } from '../crystal/lattice.js';
 
@@ -166,3 +169,19 @@ export function burgersNote(lattice: Lattice, c: Candidate, cond: Condition): Vi
   }
   return { quantity: '' };
 }
+
+/**
+ * What a single straight line (a perfect dislocation, a partial) has in common
+ * besides reading and its cut: its point, the foil check, its warnings, one
+ * visibility row, and the Burgers vectors of the candidates list (both signs).
+ */
+export const singleLineParts = {
+  positionKey: 'point_nm',
+  position: (d: DislocationSpec | PartialSpec): Vec3 => d.point_nm,
+  refuseOutsideFoil: refuseLineOutsideFoil,
+  warnings: lineWarnings,
+  line: (d: DislocationSpec | PartialSpec): Vec3 => d.line,
+  visibilityRows: (sc: Scenario, d: DislocationSpec | PartialSpec, row: RowMaker) => [row(d.label, d.b, d.line, () => only(modelOf(sc, d), 0))],
+  candidates: (sc: Scenario, _d: DislocationSpec | PartialSpec, i: number): Candidate[] => burgersCandidates(sc, i, () => true),
+  visibilityNote: burgersNote,
+};

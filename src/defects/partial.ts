@@ -5,9 +5,8 @@ import { directionToCartesian, planeNormalToCartesian } from '../crystal/lattice
 import { fail, onlyKeys, required } from '../scenario/check.js';
 import { readDirection, readPlane } from '../scenario/parse.js';
 import { imagePointToCrystal } from '../geometry/frames.js';
-import { modelOf, only } from '../analysis/visibilityTable.js';
 import type { DefectType } from './defectType.js';
-import { burgersCandidates, burgersNote, dislocationWithCut, lineWarnings, refuseLineOutsideFoil } from './lineDefect.js';
+import { dislocationWithCut, singleLineParts } from './lineDefect.js';
 
 /** A partial dislocation bounding a fault that runs from its line to the foil surfaces. */
 export interface PartialSpec {
@@ -25,8 +24,6 @@ export interface PartialSpec {
 
 export const partial: DefectType<PartialSpec> = {
   type: 'partial',
-  positionKey: 'point_nm',
-  position: (d) => d.point_nm,
   read(e) {
     const { o, path, material: m } = e;
     const at = e.at;
@@ -43,7 +40,6 @@ export const partial: DefectType<PartialSpec> = {
     if (norm(inPlane) < 1e-6 * norm(side)) fail(at('faultSide'), 'must point from the line into the fault, within the fault plane and not along the line');
     return { type: 'partial', label: e.label('partial'), b, line, point_nm: e.point('point_nm'), faultPlane, faultSide, ...e.core() };
   },
-  refuseOutsideFoil: refuseLineOutsideFoil,
   model(d, ctx, out) {
     const n = unit(planeNormalToCartesian(ctx.sc.material.lattice, d.faultPlane));
     const side = ctx.cart(d.faultSide);
@@ -52,9 +48,5 @@ export const partial: DefectType<PartialSpec> = {
     out.fields.push(x.field);
     out.surfaces.push(x.surface);
   },
-  warnings: lineWarnings,
-  line: (d) => d.line,
-  visibilityRows: (sc, d, row) => [row(d.label, d.b, d.line, () => only(modelOf(sc, d), 0))],
-  candidates: (sc, _d, i) => burgersCandidates(sc, i, () => true),
-  visibilityNote: burgersNote,
+  ...singleLineParts,
 };
