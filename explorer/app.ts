@@ -9,7 +9,7 @@
 import type { Vec3 } from '../src/math/vec3.js';
 import { dot } from '../src/math/vec3.js';
 import { parseScenario, PERPENDICULAR_TOLERANCE_DEG } from '../src/scenario/parse.js';
-import type { Scenario } from '../src/scenario/types.js';
+import { beamCount, type Scenario } from '../src/scenario/types.js';
 import { resolveCondition, type ResolvedCondition } from '../src/imaging/resolveCondition.js';
 import { renderJob } from '../src/imaging/renderScenario.js';
 import type { RenderJob } from '../src/imaging/renderRows.js';
@@ -285,7 +285,7 @@ function loadCondition(ci: number): void {
   reflections.forEach((r, i) => option(el.reflection, String(i), `${idx(r.g)}   (xi_g ${fmt(r.xi_nm, 4)} nm)`));
   el.reflection.value = String(reflections.findIndex((r) => r.g.every((x, k) => x === c.g[k])));
   el.beams.replaceChildren();
-  if (c.beams.kind === 'set') option(el.beams, '0', `the file's beam set (${c.beams.beams.length + 2} beams)`);
+  if (c.beams.kind === 'set') option(el.beams, '0', `the file's beam set (${beamCount(c.beams)} beams)`);
   if (c.beams.kind === 'row' && !symmetricRow) option(el.beams, '0', `the file's row ${c.beams.nMin}g .. ${c.beams.nMax}g (${c.beams.nMax - c.beams.nMin + 1} beams)`);
   option(el.beams, '2', '2 (two-beam)');
   for (const n of [3, 5, 7, 9, 11]) option(el.beams, String(n), `${n} (systematic row)`);

@@ -19,6 +19,7 @@
  * The float TIFFs are not touched by any of this.
  */
 import { sig } from '../format.js';
+import { beamCount } from '../scenario/types.js';
 import type { ConditionImages } from '../imaging/renderScenario.js';
 import type { ConditionGeometry } from '../geometry/conditionGeometry.js';
 import { drawFigure, type Figure } from './graphics/figure.js';
@@ -115,7 +116,7 @@ export function conditionLabel(ci: ConditionImages): ConditionLabel {
       : c.deviationSource === 's'
         ? `s = ${sig(c.s_per_nm, 3)} /nm (w = ${sig(c.w, 3)})`
         : `weak beam ${c.deviationSource}, s = ${sig(c.s_per_nm, 3)} /nm`;
-  const beams = c.beams.kind === 'row' ? `${c.beams.nMax - c.beams.nMin + 1}-beam row (${c.beams.nMin}g .. ${c.beams.nMax}g)` : c.beams.kind === 'set' ? `${c.beams.beams.length + 2}-beam set` : 'two-beam';
+  const beams = c.beams.kind === 'row' ? `${beamCount(c.beams)}-beam row (${c.beams.nMin}g .. ${c.beams.nMax}g)` : c.beams.kind === 'set' ? `${beamCount(c.beams)}-beam set` : 'two-beam';
   const t = c.frame.thickness_nm;
   const L = c.frame.columnLength_nm;
   return {

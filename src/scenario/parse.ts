@@ -17,7 +17,7 @@ import type { DefectEntry } from '../defects/defectType.js';
 import { defectTypeNamed, defectTypeNames, defectTypeOf } from '../defects/registry.js';
 import { array, fail, isObject, joinPath, number, object, onlyKeys, required, string } from './check.js';
 import type { BeamSet, CandidateSpec, Condition, DefectSpec, Deviation, Elasticity, ImageSpec, Scenario } from './types.js';
-import { MAX_PIXELS, MAX_SIDE_PX } from './types.js';
+import { beamCount, MAX_PIXELS, MAX_SIDE_PX } from './types.js';
 import { formatDirectionIn } from '../crystal/formatIndices.js';
 
 /** Longest scenario name, condition id and defect or candidate label (characters). */
@@ -78,7 +78,7 @@ export function parseScenario(raw: unknown): Scenario {
   if (Array.isArray(o.defects) && o.defects.length > MAX_DEFECTS) fail('defects', `holds ${o.defects.length} defects; give at most ${MAX_DEFECTS} per scenario`);
   const conditions = condList.map((c, i) => readCondition(c, joinPath('conditions', i), material, beam, foilNormal, kV, absorption));
   conditions.forEach((c, i) => {
-    const n = c.beams.kind === 'row' ? c.beams.nMax - c.beams.nMin + 1 : c.beams.kind === 'set' ? c.beams.beams.length + 1 : 2;
+    const n = beamCount(c.beams);
     if (n > 2 && n * thickness_nm > MAX_BEAM_NM) {
       fail(joinPath(joinPath('conditions', i), 'beams'), `${n} beams through ${thickness_nm} nm exceed the limit of ${MAX_BEAM_NM} beam-nm (31 beams through 1 um); use fewer beams or a thinner foil`);
     }

@@ -15,6 +15,11 @@ export type BeamSet =
   /** Any set of beams (plane indices); 000 and g are always included. */
   | { readonly kind: 'set'; readonly beams: readonly Vec3[] };
 
+/** Number of beams of a set, 000 included (a set's `beams` already holds g). */
+export function beamCount(b: BeamSet): number {
+  return b.kind === 'two' ? 2 : b.kind === 'row' ? b.nMax - b.nMin + 1 : b.beams.length + 1;
+}
+
 export interface Condition {
   readonly id: string;
   /** Reflection g (plane indices, 3-index). */

@@ -14,7 +14,7 @@ import { scenario } from '../imaging/helpers.js';
 import { resolveCondition } from '../../src/imaging/resolveCondition.js';
 import type { ConditionImages } from '../../src/imaging/renderScenario.js';
 import { conditionGeometry, nearestZone, planeText, screenAngle_deg } from '../../src/geometry/conditionGeometry.js';
-import { conditionFigure, contactSheet, contrastNote, displayWindows } from '../../src/output/renderFigures.js';
+import { conditionFigure, conditionLabel, contactSheet, contrastNote, displayWindows } from '../../src/output/renderFigures.js';
 import { blurImages } from '../../src/analysis/pointSpread.js';
 import { directionToCartesian, makeLattice } from '../../src/crystal/lattice.js';
 import { imageFrame } from '../../src/geometry/frames.js';
@@ -207,5 +207,14 @@ describe('point spread (--blur-nm)', () => {
     let total = 0;
     for (const v of b.bf) total += v;
     expect(total).toBeCloseTo(1, 5);
+  });
+});
+
+describe('condition header', () => {
+  it('a beam set {200, 400} with g = 200 is 3 beams: 000, g and 400 (the parser puts g into the set once)', () => {
+    const sc = scenario({ conditions: [{ id: 's', g: [2, 0, 0], w: 0.5, beams: { set: [[2, 0, 0], [4, 0, 0]] } }] });
+    const rc = resolveCondition(sc, sc.conditions[0]);
+    const ci = { condition: rc, width: 4, height: 4, pixel_nm: 1, bf: new Float32Array(16), df: new Float32Array(16), background: { bf: 0.5, df: 0.2 }, slices: 0, coreMask: new Uint8Array(16) };
+    expect(conditionLabel(ci).beams).toBe('3-beam set');
   });
 });
