@@ -354,14 +354,12 @@ export function blochCommand(materialName: string, indices: string, opts: BlochO
       s_per_nm: run.s_per_nm,
       w: run.w,
       xi_nm: r.reflection.xi_nm,
-      xiAbs_nm: Number.isFinite(r.reflection.xiAbs_nm) ? r.reflection.xiAbs_nm : 'none',
-      xiAbs0_nm: Number.isFinite(r.reflection.xiAbs0_nm) ? r.reflection.xiAbs0_nm : 'none',
+      // printJson writes a non-finite number as "none" (output/json.ts)
+      xiAbs_nm: r.reflection.xiAbs_nm,
+      xiAbs0_nm: r.reflection.xiAbs0_nm,
       thickness_nm: run.thickness_nm,
       planes_x_over_d: run.table.planes,
-      waves: run.table.waves.map((w) => ({
-        ...w,
-        absorptionLength_nm: Number.isFinite(w.absorptionLength_nm) ? w.absorptionLength_nm : 'none',
-      })),
+      waves: run.table.waves,
       out: dir,
       files: written,
     });

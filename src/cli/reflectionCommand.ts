@@ -23,7 +23,6 @@ export function reflectionCommand(materialName: string, indices: string, opts: R
   const hkl = readPlane(indices, 'reflection indices', m);
   const absorption = opts.absorption ?? DEFAULT_ABSORPTION;
   const r = reflectionParameters(m, hkl, opts.kv, { absorption });
-  const finite = (x: number): number | null => (Number.isFinite(x) ? x : null);
   const result = {
     material: m.name,
     structure: m.structure,
@@ -39,9 +38,9 @@ export function reflectionCommand(materialName: string, indices: string, opts: R
     F_A: r.F_A,
     U_per_nm2: r.U_per_nm2,
     xi_nm: r.xi_nm,
-    // absorption lengths (null without absorption), U'_g and the normal absorption U'_0 in nm^-2
-    xiAbs_nm: finite(r.xiAbs_nm),
-    xiAbs0_nm: finite(r.xiAbs0_nm),
+    // absorption lengths ("none" without absorption, as printJson writes every non-finite number), U'_g and U'_0 in nm^-2
+    xiAbs_nm: r.xiAbs_nm,
+    xiAbs0_nm: r.xiAbs0_nm,
     absorptionRatio: r.absorptionRatio,
     Uabs_per_nm2: r.Uabs_per_nm2,
     Uabs0_per_nm2: r.Uabs0_per_nm2,

@@ -69,6 +69,15 @@ describe('thinfoil reflection', () => {
     expect(r.out).toMatch(/xi_g/);
   });
 
+  it('without absorption the absorption lengths are "none", never null (issue 10: JSON holds no null for a number)', () => {
+    const r = run('reflection', 'Cu', '2,0,0', '--absorption', '0', '--json');
+    expect(r.code).toBe(0);
+    const j = JSON.parse(r.out);
+    expect(j.xiAbs_nm).toBe('none');
+    expect(j.xiAbs0_nm).toBe('none');
+    expect(r.out).not.toMatch(/null/);
+  });
+
   it('takes four indices for a hexagonal material', () => {
     const r = run('reflection', 'Mg', '1,0,-1,1', '--json');
     expect(r.code).toBe(0);
