@@ -26,7 +26,8 @@ import { progressBar } from './progress.js';
 import { printJson, sig, table } from './run.js';
 import { slug } from './renderCommand.js';
 import { readScenarioJson } from './loadScenario.js';
-import { conditionGeometry, planeText } from '../geometry/conditionGeometry.js';
+import { conditionGeometry } from '../geometry/conditionGeometry.js';
+import { formatPlaneIn } from '../crystal/formatIndices.js';
 import type { Lattice } from '../crystal/lattice.js';
 
 export interface IdentifyCommandOptions {
@@ -228,7 +229,7 @@ export function resultJson(res: IdentifyResult, files?: IdentifyOutput['files'],
 function identifyGeometry(lattice: Lattice, m: IdentifyResult['micrographs'][number]) {
   const g = conditionGeometry(lattice, m.resolved.frame, m.resolved.g_cart);
   return {
-    reflection: planeText(lattice, m.condition.g),
+    reflection: formatPlaneIn(lattice, m.condition.g),
     beam: g.text.beam,
     foilNormal: g.text.foilNormal,
     nearestZone: { axis: g.nearestZone.text, angle_deg: g.nearestZone.angle_deg },

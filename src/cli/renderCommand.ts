@@ -14,7 +14,8 @@ import { scenarioWarnings } from '../analysis/scenarioWarnings.js';
 import { printJson, sig, table } from './run.js';
 import { progressBar } from './progress.js';
 import { conditionFigure, contactSheet, contrastNote, displayWindows, type ContrastMode } from '../output/renderFigures.js';
-import { conditionGeometry, planeText } from '../geometry/conditionGeometry.js';
+import { conditionGeometry } from '../geometry/conditionGeometry.js';
+import { formatPlaneIn } from '../crystal/formatIndices.js';
 import { blurImages } from '../analysis/pointSpread.js';
 import { describeAbsorption } from '../scattering/absorption.js';
 import { describeElasticity } from '../elasticity/elasticityNote.js';
@@ -117,7 +118,7 @@ export async function renderAndWrite(
 /** The geometry block of one condition in render.json (directions as crystal indices, largest |index| 1). */
 function conditionGeometryJson(sc: Scenario, ci: ConditionImages, g: ReturnType<typeof conditionGeometry>) {
   return {
-    reflection: planeText(sc.material.lattice, ci.condition.g),
+    reflection: formatPlaneIn(sc.material.lattice, ci.condition.g),
     gAngle_deg: g.gAngle_deg,
     gAngleConvention: 'degrees counter-clockwise from +x, +y pointing down in the image',
     imageX: g.imageX,

@@ -1,13 +1,15 @@
 /**
  * Directions and planes as text in the notation of their crystal: three
  * indices, or four (Miller-Bravais) for hexagonal crystals, with a common
- * fraction in front where one fits: "1/2[1 1 0]", "1/3[1 1 -2 0]", "(1 0 -1 1)".
+ * fraction in front where one fits: "1/2[1 1 0]", "1/3[1 1 -2 0]", "(1 0 -1 1)";
+ * and the list of low-index directions that zone searches walk through.
  */
 import type { Vec3 } from '../math/vec3.js';
 import { type Lattice, usesFourIndices } from './lattice.js';
 import { directionToFour, planeToFour } from './millerBravais.js';
 
-function clean(x: number): number {
+/** x rounded to 6 decimals, without a negative zero. */
+export function clean(x: number): number {
   const r = Math.round(x * 1e6) / 1e6;
   return r === 0 ? 0 : r;
 }
@@ -33,4 +35,17 @@ export function formatDirectionIn(l: Lattice, v: Vec3): string {
 export function formatPlaneIn(l: Lattice, g: Vec3): string {
   const idx = usesFourIndices(l) ? planeToFour(g) : g;
   return `(${idx.map((x) => String(clean(x))).join(' ')})`;
+}
+
+/**
+ * Every primitive lattice direction [uvw] (gcd 1) with |u|, |v|, |w| <= maxIndex, both signs,
+ * u slowest and w fastest from -maxIndex up.
+ */
+export function primitiveDirections(maxIndex: number): Vec3[] {
+  const gcd = (a: number, b: number): number => (b === 0 ? Math.abs(a) : gcd(b, a % b));
+  const out: Vec3[] = [];
+  for (let u = -maxIndex; u <= maxIndex; u++)
+    for (let v = -maxIndex; v <= maxIndex; v++)
+      for (let w = -maxIndex; w <= maxIndex; w++) if (gcd(gcd(u, v), w) === 1) out.push([u, v, w]);
+  return out;
 }

@@ -12,7 +12,8 @@ import type { Vec3 } from '../math/vec3.js';
 import { dot, norm } from '../math/vec3.js';
 import type { Lattice } from '../crystal/lattice.js';
 import { cartesianToDirection, directionToCartesian, usesFourIndices } from '../crystal/lattice.js';
-import { directionToFour, planeToFour } from '../crystal/millerBravais.js';
+import { directionToFour } from '../crystal/millerBravais.js';
+import { clean, primitiveDirections } from '../crystal/formatIndices.js';
 import type { ImageFrame } from './frames.js';
 
 export interface ZoneAxis {
@@ -53,34 +54,9 @@ export function crystalDirection(l: Lattice, v_cart: Vec3): number[] {
   return idx.map((x) => clean(x / m));
 }
 
-function clean(x: number): number {
-  const r = Math.round(x * 1e6) / 1e6;
-  return r === 0 ? 0 : r;
-}
-
 /** "[1 0.5 0]" from indices. */
 export function directionText(idx: readonly number[]): string {
   return `[${idx.map((x) => String(clean(x))).join(' ')}]`;
-}
-
-/** "(h k l)" or "(h k i l)" for a plane / reflection given in three indices. */
-export function planeText(l: Lattice, hkl: Vec3): string {
-  const idx = usesFourIndices(l) ? planeToFour(hkl) : hkl;
-  return `(${idx.map((x) => String(clean(x))).join(' ')})`;
-}
-
-/** Lattice directions [uvw] with |u|,|v|,|w| <= maxIndex, primitive (gcd 1), one of each +-pair. */
-function lowIndexDirections(maxIndex: number): Vec3[] {
-  const out: Vec3[] = [];
-  const gcd = (a: number, b: number): number => (b === 0 ? Math.abs(a) : gcd(b, a % b));
-  for (let u = -maxIndex; u <= maxIndex; u++)
-    for (let v = -maxIndex; v <= maxIndex; v++)
-      for (let w = -maxIndex; w <= maxIndex; w++) {
-        if (u === 0 && v === 0 && w === 0) continue;
-        if (gcd(gcd(u, v), w) !== 1) continue;
-        out.push([u, v, w]);
-      }
-  return out;
 }
 
 /**
@@ -92,7 +68,7 @@ function lowIndexDirections(maxIndex: number): Vec3[] {
 export function nearestZone(l: Lattice, beam_cart: Vec3, maxIndex = 3): ZoneAxis {
   const b = norm(beam_cart);
   let best: { uvw: Vec3; angle: number; size: number } | null = null;
-  for (const d of lowIndexDirections(maxIndex)) {
+  for (const d of primitiveDirections(maxIndex)) {
     const c = directionToCartesian(l, d);
     const cos = dot(c, beam_cart) / (norm(c) * b);
     if (cos <= 0) continue;

@@ -17,6 +17,7 @@ import type { Vec3 } from '../math/vec3.js';
 import { cross, dot, unit } from '../math/vec3.js';
 import type { Material } from '../crystal/material.js';
 import { directionToCartesian, planeNormalToCartesian, gLength_per_nm } from '../crystal/lattice.js';
+import { primitiveDirections } from '../crystal/formatIndices.js';
 import { isForbidden, reflectionParameters } from '../scattering/reflection.js';
 import type { AbsorptionSetting } from '../scattering/absorption.js';
 import { type Holder, type Orientation, type Tilts, beamAtTilts, reachableTilts, tiltBetween_deg } from './holder.js';
@@ -51,25 +52,17 @@ export interface ReachOptions {
   readonly absorption: AbsorptionSetting;
 }
 
-const gcd = (a: number, b: number): number => (b === 0 ? Math.abs(a) : gcd(b, a % b));
-
 /** Zone axes [uvw] (primitive, |u|,|v|,|w| <= n) reachable with the holder, nearest to the current beam first. */
 export function reachableZones(material: Material, o: Orientation, h: Holder, current: Tilts, n: number): ReachableZone[] {
   const l = material.lattice;
   const here = beamAtTilts(o, h.kind, current);
   const out: ReachableZone[] = [];
-  for (let u = -n; u <= n; u++) {
-    for (let v = -n; v <= n; v++) {
-      for (let w = -n; w <= n; w++) {
-        if (gcd(gcd(u, v), w) !== 1) continue;
-        const z: Vec3 = [u, v, w];
-        const c = directionToCartesian(l, z);
-        if (dot(c, o.Z) <= 0) continue; // each zone once, with the beam entering the foil's entrance side
-        const t = reachableTilts(o, h, c);
-        if (t.length === 0) continue;
-        out.push({ zone: z, tilts: t[0], fromCurrent_deg: tiltBetween_deg(here, c) });
-      }
-    }
+  for (const z of primitiveDirections(n)) {
+    const c = directionToCartesian(l, z);
+    if (dot(c, o.Z) <= 0) continue; // each zone once, with the beam entering the foil's entrance side
+    const t = reachableTilts(o, h, c);
+    if (t.length === 0) continue;
+    out.push({ zone: z, tilts: t[0], fromCurrent_deg: tiltBetween_deg(here, c) });
   }
   return out.sort((a, b) => a.fromCurrent_deg - b.fromCurrent_deg || zoneIndexSum(a.zone) - zoneIndexSum(b.zone));
 }

@@ -13,7 +13,8 @@ import pngjs from 'pngjs';
 import { scenario } from '../imaging/helpers.js';
 import { resolveCondition } from '../../src/imaging/resolveCondition.js';
 import type { ConditionImages } from '../../src/imaging/renderScenario.js';
-import { conditionGeometry, nearestZone, planeText, screenAngle_deg } from '../../src/geometry/conditionGeometry.js';
+import { conditionGeometry, nearestZone, screenAngle_deg } from '../../src/geometry/conditionGeometry.js';
+import { formatPlaneIn } from '../../src/crystal/formatIndices.js';
 import { conditionFigure, conditionLabel, contactSheet, contrastNote, displayWindows } from '../../src/output/renderFigures.js';
 import { blurImages } from '../../src/analysis/pointSpread.js';
 import { directionToCartesian, makeLattice } from '../../src/crystal/lattice.js';
@@ -102,7 +103,7 @@ describe('g direction and image frame in crystal terms', () => {
     expect(g.beam).toEqual([0, 0, 0, 1]);
     expect(g.text.beam).toBe('[0 0 0 1]');
     expect(g.nearestZone.text).toBe('[0 0 0 1]');
-    expect(planeText(lat, [1, 0, 0])).toBe('(1 0 -1 0)');
+    expect(formatPlaneIn(lat, [1, 0, 0])).toBe('(1 0 -1 0)');
     // imageX = [1 0 0] (3 indices) = 1/3[2 -1 -1 0] (Williams & Carter 2009, ch. 18, rule u = (2U - V)/3 ...)
     expect(g.imageX).toEqual([1, -0.5, -0.5, 0]);
   });
