@@ -7,7 +7,7 @@
 import { readFileSync } from 'node:fs';
 import { InputError } from '../errors.js';
 import { parseScenario } from '../scenario/parse.js';
-import { readScenarioJson } from './loadScenario.js';
+import { readScenarioBytes, scenarioJsonOf } from './loadScenario.js';
 import { startExplorerServer, type ServedFile } from '../explorer/server.js';
 
 export interface ExploreOptions {
@@ -47,10 +47,11 @@ function readPort(text: string | undefined): number {
 
 export async function exploreCommand(scenarioPath: string, opts: ExploreOptions): Promise<void> {
   const port = readPort(opts.port);
-  const raw = readScenarioJson(scenarioPath);
-  parseScenario(raw); // a scenario the renderer refuses is refused here, before anything is served
+  // read once: the bytes served are the bytes checked
+  const bytes = readScenarioBytes(scenarioPath);
+  parseScenario(scenarioJsonOf(bytes, scenarioPath)); // a scenario the renderer refuses is refused here, before anything is served
   const files = pageFiles();
-  files.set('/scenario.json', { type: 'application/json; charset=utf-8', body: readFileSync(scenarioPath) });
+  files.set('/scenario.json', { type: 'application/json; charset=utf-8', body: bytes });
   let srv;
   try {
     srv = await startExplorerServer(files, port);

@@ -24,7 +24,7 @@ import { identifyReportHtml } from '../output/report.js';
 import { OutputSet } from '../output/outputSet.js';
 import { progressBar } from './progress.js';
 import { printJson, sig, table } from './run.js';
-import { slug } from './renderCommand.js';
+import { slug } from './slug.js';
 import { readScenarioJson } from './loadScenario.js';
 import { conditionGeometry } from '../geometry/conditionGeometry.js';
 import { formatPlaneIn } from '../crystal/formatIndices.js';

@@ -8,7 +8,17 @@ import { scenarioWarnings } from '../analysis/scenarioWarnings.js';
 
 /** The raw JSON object of a scenario file; InputError when it cannot be read, is not JSON or not an object. */
 export function readScenarioJson(path: string): Record<string, unknown> {
-  let text = readInputFile(path, 'scenario file', MAX_SCENARIO_BYTES).toString('utf8');
+  return scenarioJsonOf(readScenarioBytes(path), path);
+}
+
+/** The bytes of a scenario file, read once with the size limit and the regular-file check of readInput.ts. */
+export function readScenarioBytes(path: string): Buffer {
+  return readInputFile(path, 'scenario file', MAX_SCENARIO_BYTES);
+}
+
+/** The JSON object held by a scenario file's bytes; InputError (naming `path`) when it is not JSON or not an object. */
+export function scenarioJsonOf(bytes: Buffer, path: string): Record<string, unknown> {
+  let text = bytes.toString('utf8');
   const shown = `"${excerpt(path, 80)}"`;
   let raw: unknown;
   // a byte-order mark (some editors write one) is not part of the JSON text
@@ -30,9 +40,9 @@ export function loadScenario(path: string): Scenario {
   return parseScenario(readScenarioJson(path));
 }
 
-/** The scenario's warnings (implausible values, defects outside the view ...), each printed as one line on stderr. */
-export function warnAbout(sc: Scenario): string[] {
-  const warnings = scenarioWarnings(sc);
+/** The scenario's warnings (implausible values, defects outside the view ...) and any `extra` ones, each printed as one line on stderr. */
+export function warnAbout(sc: Scenario, extra: readonly string[] = []): string[] {
+  const warnings = [...scenarioWarnings(sc), ...extra];
   for (const w of warnings) process.stderr.write(`thinfoil: warning: ${w}\n`);
   return warnings;
 }

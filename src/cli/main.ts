@@ -139,7 +139,7 @@ program
   .description('s and w from the Kikuchi line, thickness and xi_g from two-beam convergent-beam fringes, thickness from the projected width of a fault or length of a dislocation')
   .argument('<material>', 'material name from `thinfoil materials`')
   .option('--kv <kV>', 'accelerating voltage in kV', userOption(parseKv), 200)
-  .option('--absorption <r>', "absorption ratio xi_g/xi'_g", userOption(parseAbsorption), 0.1)
+  .option('--absorption <r>', "\"thermal-diffuse\" or a constant ratio xi_g/xi'_g (default 0.1; xi_g does not depend on it)", userOption(parseAbsorption), 0.1)
   .option('--g <hkl>', 'the reflection of the pattern (Kikuchi line, fringes)')
   .option('--spacing <R>', 'distance from 000 to the g spot (or between the 000 and g disc centres), any unit')
   .option('--kikuchi <x>', 'distance from the g spot to its excess Kikuchi line, same unit; positive outside the spot, negative between 000 and the spot')

@@ -15,10 +15,11 @@ import { fitFringes, fringeDeviations } from '../planning/convergentBeam.js';
 import { thicknessFromFaultWidth, thicknessFromLineLength } from '../planning/projectedWidth.js';
 import { numberOption } from './options.js';
 import { printJson, sig, table } from './run.js';
+import type { AbsorptionSetting } from '../scattering/absorptionSetting.js';
 
 export interface MeasureOptions {
   kv: number;
-  absorption: number;
+  absorption: AbsorptionSetting;
   g?: string;
   kikuchi?: string;
   angle?: string;
@@ -46,7 +47,7 @@ export function measureCommand(materialName: string, opts: MeasureOptions): void
     if (opts.g === undefined) throw new InputError('--g is missing; give the reflection g of the pattern, e.g. --g 2,0,0');
     if (opts.spacing === undefined) throw new InputError('--spacing is missing; give the distance from 000 to the g spot (or between the disc centres), in the units of the other distances');
     const g = readPlane(opts.g, '--g', m);
-    return { g, r: reflectionParameters(m, g, opts.kv, { absorptionRatio: opts.absorption }), R: positive('--spacing')(opts.spacing) };
+    return { g, r: reflectionParameters(m, g, opts.kv, { absorption: opts.absorption }), R: positive('--spacing')(opts.spacing) };
   };
   const err = opts.error === undefined ? undefined : numberOption('--error', 0, 1e9, 'the uncertainty of a distance measured on the pattern, same units')(opts.error);
   let any = false;
@@ -73,7 +74,7 @@ export function measureCommand(materialName: string, opts: MeasureOptions): void
     any = true;
     if (opts.g === undefined) throw new InputError('--g is missing; give the reflection g, e.g. --g 2,0,0');
     const g = readPlane(opts.g, '--g', m);
-    const r = reflectionParameters(m, g, opts.kv, { absorptionRatio: opts.absorption });
+    const r = reflectionParameters(m, g, opts.kv, { absorption: opts.absorption });
     const a = numberOption('--angle', -200, 200, 'the tilt from the Bragg position in mrad')(opts.angle) / 1000;
     const s = deviationFromAngle(a, r.lambda_nm, r.g_per_nm);
     result.deviationFromAngle = { g, deltaTheta_mrad: a * 1000, s_per_nm: s, w: s * r.xi_nm, xi_nm: r.xi_nm };

@@ -1,6 +1,6 @@
 /** Parsers for numeric command-line options: one clear sentence on bad input. */
 import { InputError } from '../errors.js';
-import { type AbsorptionSetting, THERMAL_DIFFUSE } from '../scattering/absorption.js';
+import { type AbsorptionSetting, THERMAL_DIFFUSE } from '../scattering/absorptionSetting.js';
 
 export function numberOption(name: string, lo: number, hi: number, unit: string) {
   return (text: string): number => {

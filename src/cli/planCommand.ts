@@ -17,7 +17,7 @@ import { beamInSpecimenFrame, checkRange, orientation, orientationFromBeam, with
 import { plan, PLAN_DEFAULTS, type PlanResult } from '../planning/plan.js';
 import { numberOption } from './options.js';
 import { loadScenario } from './loadScenario.js';
-import { slug } from './renderCommand.js';
+import { slug } from './slug.js';
 import { printJson, sig, table } from './run.js';
 
 export interface PlanCommandOptions {

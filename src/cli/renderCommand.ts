@@ -1,6 +1,5 @@
 /** `thinfoil render <scenario>`: bright- and dark-field images of every condition. */
 import { jsonText } from '../output/json.js';
-import { createHash } from 'node:crypto';
 import { join } from 'node:path';
 import type { Scenario } from '../scenario/types.js';
 import { InputError } from '../errors.js';
@@ -9,8 +8,8 @@ import { createRenderPool } from '../imaging/workerPool.js';
 import { writeConditionImages, type ImageEntry } from '../output/imageFiles.js';
 import { OutputSet } from '../output/outputSet.js';
 import { encodeGreyPng } from '../output/png.js';
-import { loadScenario } from './loadScenario.js';
-import { scenarioWarnings } from '../analysis/scenarioWarnings.js';
+import { loadScenario, warnAbout } from './loadScenario.js';
+import { slug } from './slug.js';
 import { printJson, sig, table } from './run.js';
 import { progressBar } from './progress.js';
 import { conditionFigure, contactSheet, contrastNote, displayWindows, type ContrastMode } from '../output/renderFigures.js';
@@ -41,20 +40,6 @@ export interface ImageOptions {
 }
 
 export const DEFAULT_IMAGE_OPTIONS: ImageOptions = { contrast: 'shared', blur_nm: 0 };
-
-/**
- * Folder name for a scenario name: lower-case Latin letters and digits joined
- * by '-'. When the name holds anything else (accents, other scripts) a short
- * hash of the whole name is appended, so names that differ only there stay
- * in different folders.
- */
-export function slug(name: string): string {
-  const base = name.toLowerCase().replace(/[^a-z0-9]+/g, '-').replace(/^-|-$/g, '').slice(0, 60).replace(/-$/, '');
-  const plain = /^[A-Za-z0-9 _.-]*$/.test(name) && base !== '';
-  if (plain) return base;
-  const hash = createHash('sha256').update(name, 'utf8').digest('hex').slice(0, 8);
-  return base === '' ? `scenario-${hash}` : `${base}-${hash}`;
-}
 
 /**
  * Render a scenario and write its images, figures and render.json (with the
@@ -193,8 +178,7 @@ export function costWarning(sc: Scenario): string | undefined {
 export async function renderCommand(file: string, opts: RenderOptions): Promise<void> {
   const sc = loadScenario(file);
   const cost = costWarning(sc);
-  const warnings = [...scenarioWarnings(sc), ...(cost === undefined ? [] : [cost])];
-  for (const w of warnings) process.stderr.write(`thinfoil: warning: ${w}\n`);
+  const warnings = warnAbout(sc, cost === undefined ? [] : [cost]);
   const dir = opts.out ?? join('out', slug(sc.name));
   const set = OutputSet.begin(dir, { inputs: [file] });
   let result: Awaited<ReturnType<typeof renderAndWrite>>;

@@ -71,14 +71,9 @@ import { electronCoefficients } from './scatteringFactor.js';
 import { packed } from './structureFactor.js';
 import { relativisticGamma, wavelength_nm } from './wavelength.js';
 
-/** Scenario / option spelling of the model. */
-export const THERMAL_DIFFUSE = 'thermal-diffuse';
+import { type AbsorptionSetting, THERMAL_DIFFUSE } from './absorptionSetting.js';
 
-/**
- * How absorption is set: a number r = xi_g / xi'_g in 0..1 (the constant ratio
- * U'_g = r U_g of Hirsch et al. 1965, common practice) or "thermal-diffuse" (this model).
- */
-export type AbsorptionSetting = number | typeof THERMAL_DIFFUSE;
+export { type AbsorptionSetting, THERMAL_DIFFUSE } from './absorptionSetting.js';
 
 /** The default everywhere (scenario, CLI, library): the TDS model. */
 export const DEFAULT_ABSORPTION: AbsorptionSetting = THERMAL_DIFFUSE;

@@ -110,7 +110,7 @@ describe('render cost guard (column-defect pairs; rate measured in this project,
 
 describe('output folder names', () => {
   it('names that differ only in non-Latin characters get different folders; plain names stay readable', async () => {
-    const { slug } = await import('../../src/cli/renderCommand.js');
+    const { slug } = await import('../../src/cli/slug.js');
     expect(slug('two dislocations in copper')).toBe('two-dislocations-in-copper');
     expect(slug('Kupfer-Versetzung ä')).not.toBe(slug('Kupfer-Versetzung ö'));
     expect(slug('Kupfer-Versetzung ä')).toMatch(/^kupfer-versetzung-[0-9a-f]{8}$/);
