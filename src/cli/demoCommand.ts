@@ -9,7 +9,7 @@ import { renderAndWrite } from './renderCommand.js';
 import { formatVisibility } from './visibilityCommand.js';
 import { sig, table } from './run.js';
 import { faultReport, formatFaults, formatInclusions } from './faultCommand.js';
-import { dissociationWidth_nm } from '../imaging/fieldSpecs.js';
+import { dissociationWidth_nm } from '../defects/dissociated.js';
 import { DEMO_HIDDEN_CANDIDATE, DEMO_IDENTIFY_SCENARIO, DEMO_MICROGRAPHS, DEMO_SYNTHESIS } from '../scenario/demoIdentify.js';
 import { identificationCandidates } from '../analysis/candidates.js';
 import { syntheticFileName, syntheticMicrographs } from '../analysis/synthetic.js';

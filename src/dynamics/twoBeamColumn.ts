@@ -96,9 +96,10 @@ export const MAX_SLICES = 4000;
 export const DEFAULT_MAX_SLICE_NM = 20;
 
 const PI = Math.PI;
-const G1 = 0.5 - Math.sqrt(3) / 6;
-const G2 = 0.5 + Math.sqrt(3) / 6;
-const EPS_K = -(Math.sqrt(3) / 6) * PI;
+/** Two-point Gauss-Legendre nodes on [0, 1] and the commutator coefficient of the fourth-order Magnus step (shared with twoBeamMatrix.ts). */
+export const G1 = 0.5 - Math.sqrt(3) / 6;
+export const G2 = 0.5 + Math.sqrt(3) / 6;
+export const EPS_K = -(Math.sqrt(3) / 6) * PI;
 
 // Scratch: [0..3] state, [4..7] one-step trial, [8..11] two-half trial,
 // [12..15] state after the first half. Not re-entrant (beta' must not call

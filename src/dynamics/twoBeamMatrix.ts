@@ -15,11 +15,7 @@
  * absorption), the same bound as the column integrator's.
  */
 import { slabMatrix } from './twoBeamKernel.js';
-import { MIN_SLICE_NM, MAX_SLICES } from './twoBeamColumn.js';
-
-const G1 = 0.5 - Math.sqrt(3) / 6;
-const G2 = 0.5 + Math.sqrt(3) / 6;
-const EPS_K = -(Math.sqrt(3) / 6) * Math.PI;
+import { EPS_K, G1, G2, MIN_SLICE_NM, MAX_SLICES } from './twoBeamColumn.js';
 
 /** out[o..o+7] = a[ao..] x b[bo..] (2 x 2 complex). out may not alias a or b. */
 export function mulMatrix(out: Float64Array, o: number, a: Float64Array, ao: number, b: Float64Array, bo: number): void {

@@ -18,9 +18,6 @@ import { materialStiffness } from '../elasticity/stiffness.js';
 import type { ModelContext, ModelParts } from '../defects/defectType.js';
 import { defectTypeOf } from '../defects/registry.js';
 
-// moved to the dissociated defect type; re-exported for existing callers
-export { dissociationPair, dissociationWidth_nm } from '../defects/dissociated.js';
-
 export interface DislocationFieldSpec {
   readonly kind: 'dislocation';
   readonly b_nm: Vec3;

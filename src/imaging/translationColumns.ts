@@ -33,7 +33,7 @@ import { mulMatrix, setIdentity, stretchMatrix, type MatrixParams, type StretchC
 import { DEFAULT_MAX_SLICE_NM } from '../dynamics/twoBeamColumn.js';
 import { activeSurfaces, columnEvaluator, type ColumnEvaluator, type RenderJob, type RowStats } from './renderRows.js';
 import { CORE_SUBSAMPLES, coreGeometry } from './cores.js';
-import { longColumnEvents } from './longColumnEvents.js';
+import { longColumnEvents, WINDOW_END, WINDOW_START } from './longColumnEvents.js';
 import { buildField } from './fieldSpecs.js';
 import { classWindowsN } from './translationColumnsN.js';
 
@@ -317,8 +317,8 @@ function classWindows(job: RenderJob, plan: TranslationPlan): ClassWindows {
         zPrev = z;
       }
       const code = evCode[ev0];
-      if (code === 0) last[evRef[ev0]] = m;
-      else if (code === 2) first[evRef[ev0]] = m;
+      if (code === WINDOW_END) last[evRef[ev0]] = m;
+      else if (code === WINDOW_START) first[evRef[ev0]] = m;
       else {
         const a = faultAlpha[evRef[ev0]];
         setIdentity(E, 8 * m);

@@ -15,7 +15,7 @@ import { prepareColumnSystem, propagateBlochN } from '../dynamics/manyBeam.js';
 import { activeSurfaces, MANY_BEAM_TOL_FACTOR, type RenderJob } from './renderRows.js';
 import { buildField } from './fieldSpecs.js';
 import type { TranslationPlan, ClassWindows } from './translationColumns.js';
-import { longColumnEvents } from './longColumnEvents.js';
+import { FAULT, longColumnEvents, WINDOW_END, WINDOW_START } from './longColumnEvents.js';
 
 /** out[o..] = a[ao..] x b[bo..], N x N complex, interleaved [re, im], row-major. out may not alias a or b. */
 function mulN(out: Float64Array, o: number, a: Float64Array, ao: number, b: Float64Array, bo: number, n: number): void {
@@ -160,9 +160,9 @@ export function classWindowsN(job: RenderJob, plan: TranslationPlan): ClassWindo
         zPrev = z;
       }
       const code = evCode[ev0];
-      if (code === 0) last[evRef[ev0]] = m;
-      else if (code === 2) first[evRef[ev0]] = m;
-      else if (code === 1) {
+      if (code === WINDOW_END) last[evRef[ev0]] = m;
+      else if (code === WINDOW_START) first[evRef[ev0]] = m;
+      else if (code === FAULT) {
         fault(m++, faultAlpha[evRef[ev0]]);
         level = -1;
       } else level = -1; // breakpoint: a fresh first step, as in the column path
