@@ -10,7 +10,7 @@ import { directionToCartesian, usesFourIndices } from '../crystal/lattice.js';
 import { directionToFour, planeToFour } from '../crystal/millerBravais.js';
 import { readDirection } from '../scenario/parse.js';
 import { InputError } from '../errors.js';
-import { ensureOutputDir, writeFileAtomic } from '../output/atomicWrite.js';
+import { OutputSet } from '../output/outputSet.js';
 import { stereogramFigure } from '../output/stereogram.js';
 import { formatBurgers } from '../analysis/candidates.js';
 import { beamInSpecimenFrame, checkRange, orientation, orientationFromBeam, withinRange, type Holder, type HolderKind, type Orientation } from '../planning/holder.js';
@@ -81,57 +81,66 @@ export async function planCommand(scenarioPath: string, opts: PlanCommandOptions
   const defect = num(opts.defect, '--defect', 0, 1e6, 'the index of a defect', 0);
   if (!Number.isInteger(defect)) throw new InputError(`--defect: ${defect} must be a whole number (the index of a defect, from 0)`);
   const minDifference = num(opts.minDifference, '--min-difference', 0.001, 2, 'a contrast difference (fraction of the background)', PLAN_DEFAULTS.strip.minDifference);
-  const result = plan(sc, {
-    holder,
-    orientation: o,
-    current: { primary_deg: current[0], secondary_deg: current[1] },
-    gMax_per_nm: num(opts.gMax, '--g-max', 0.5, 40, 'the largest |g| in nm^-1', PLAN_DEFAULTS.gMax_per_nm),
-    zoneIndexMax: zoneIndex,
-    offZone_deg: num(opts.offZone, '--off-zone', 0.5, 20, 'the tilt off the zone axis in degrees', PLAN_DEFAULTS.offZone_deg),
-    w: num(opts.w, '--w', -10, 10, 'the deviation w = s xi_g', PLAN_DEFAULTS.w),
-    defectIndex: defect,
-    strip: { ...PLAN_DEFAULTS.strip, minDifference },
-    exactUpTo: PLAN_DEFAULTS.exactUpTo,
-  });
+  // the output folder is checked before the planning work, so a refusal costs nothing
+  const set = OutputSet.begin(opts.out ?? join('out', `${slug(sc.name)}-plan`), { inputs: [scenarioPath] });
+  let json: ReturnType<typeof planJson> & { zeroTilt: { beam_cart: Vec3; primaryAxis_cart: Vec3 } };
+  let result: PlanResult;
+  let files: string[];
+  try {
+    result = plan(sc, {
+      holder,
+      orientation: o,
+      current: { primary_deg: current[0], secondary_deg: current[1] },
+      gMax_per_nm: num(opts.gMax, '--g-max', 0.5, 40, 'the largest |g| in nm^-1', PLAN_DEFAULTS.gMax_per_nm),
+      zoneIndexMax: zoneIndex,
+      offZone_deg: num(opts.offZone, '--off-zone', 0.5, 20, 'the tilt off the zone axis in degrees', PLAN_DEFAULTS.offZone_deg),
+      w: num(opts.w, '--w', -10, 10, 'the deviation w = s xi_g', PLAN_DEFAULTS.w),
+      defectIndex: defect,
+      strip: { ...PLAN_DEFAULTS.strip, minDifference },
+      exactUpTo: PLAN_DEFAULTS.exactUpTo,
+    });
 
-  // figure
-  const dir = opts.out ?? join('out', `${slug(sc.name)}-plan`);
-  const inFrame = (c: Vec3): Vec3 => [c[0] * o.X[0] + c[1] * o.X[1] + c[2] * o.X[2], c[0] * o.Y[0] + c[1] * o.Y[1] + c[2] * o.Y[2], c[0] * o.Z[0] + c[1] * o.Z[1] + c[2] * o.Z[2]];
-  const unitC = (uvw: Vec3) => {
-    const c = directionToCartesian(l, uvw);
-    const n = Math.hypot(...c);
-    return [c[0] / n, c[1] / n, c[2] / n] as Vec3;
-  };
-  const region: Vec3[] = [];
-  const [a0, a1] = primary, [b0, b1] = secondary;
-  const edge = (fa: (t: number) => number, fb: (t: number) => number) => {
-    for (let i = 0; i < 40; i++) region.push(beamInSpecimenFrame(kind, { primary_deg: fa(i / 40), secondary_deg: fb(i / 40) }));
-  };
-  if (kind === 'double') {
-    edge((t) => a0 + (a1 - a0) * t, () => b0);
-    edge(() => a1, (t) => b0 + (b1 - b0) * t);
-    edge((t) => a1 - (a1 - a0) * t, () => b1);
-    edge(() => a0, (t) => b1 - (b1 - b0) * t);
-  } else {
-    // the largest primary tilt swept over the rotation range bounds the region
-    const am = Math.max(Math.abs(a0), Math.abs(a1));
-    edge(() => am, (t) => -180 + 360 * t);
+    // figure
+    const inFrame = (c: Vec3): Vec3 => [c[0] * o.X[0] + c[1] * o.X[1] + c[2] * o.X[2], c[0] * o.Y[0] + c[1] * o.Y[1] + c[2] * o.Y[2], c[0] * o.Z[0] + c[1] * o.Z[1] + c[2] * o.Z[2]];
+    const unitC = (uvw: Vec3) => {
+      const c = directionToCartesian(l, uvw);
+      const n = Math.hypot(...c);
+      return [c[0] / n, c[1] / n, c[2] / n] as Vec3;
+    };
+    const region: Vec3[] = [];
+    const [a0, a1] = primary, [b0, b1] = secondary;
+    const edge = (fa: (t: number) => number, fb: (t: number) => number) => {
+      for (let i = 0; i < 40; i++) region.push(beamInSpecimenFrame(kind, { primary_deg: fa(i / 40), secondary_deg: fb(i / 40) }));
+    };
+    if (kind === 'double') {
+      edge((t) => a0 + (a1 - a0) * t, () => b0);
+      edge(() => a1, (t) => b0 + (b1 - b0) * t);
+      edge((t) => a1 - (a1 - a0) * t, () => b1);
+      edge(() => a0, (t) => b1 - (b1 - b0) * t);
+    } else {
+      // the largest primary tilt swept over the rotation range bounds the region
+      const am = Math.max(Math.abs(a0), Math.abs(a1));
+      edge(() => am, (t) => -180 + 360 * t);
+    }
+    const chosenIds = new Set(result.steps.map((s) => s.condition.id));
+    const fig = stereogramFigure({
+      title: `${sc.name}: plan (${kind === 'double' ? 'double tilt' : 'rotation holder'} ${a0}..${a1} / ${b0}..${b1} deg)`,
+      region,
+      zones: result.zones.map((z) => ({ v: inFrame(unitC(z.zone)), label: fmtV(z.zone) })),
+      steps: result.steps.map((s) => ({ v: inFrame(s.condition.beam_cart), label: fmtG(s.condition.g) })),
+      others: result.conditions.filter((c) => !chosenIds.has(c.id)).map((c) => ({ v: inFrame(c.beam_cart), label: fmtG(c.g) })),
+      start: inFrame(result.currentBeam_cart),
+    });
+    files = ['plan.png', 'plan.svg', 'plan.json'].map((n) => set.finalPath(n));
+    set.write('plan.png', fig.png);
+    set.write('plan.svg', fig.svg);
+    json = { ...planJson(sc.name, holder, result, files), zeroTilt: { beam_cart: o.Z, primaryAxis_cart: o.X } };
+    set.write('plan.json', JSON.stringify(json, null, 1) + '\n');
+    set.commit();
+  } catch (e) {
+    set.abort();
+    throw e;
   }
-  const chosenIds = new Set(result.steps.map((s) => s.condition.id));
-  const fig = stereogramFigure({
-    title: `${sc.name}: plan (${kind === 'double' ? 'double tilt' : 'rotation holder'} ${a0}..${a1} / ${b0}..${b1} deg)`,
-    region,
-    zones: result.zones.map((z) => ({ v: inFrame(unitC(z.zone)), label: fmtV(z.zone) })),
-    steps: result.steps.map((s) => ({ v: inFrame(s.condition.beam_cart), label: fmtG(s.condition.g) })),
-    others: result.conditions.filter((c) => !chosenIds.has(c.id)).map((c) => ({ v: inFrame(c.beam_cart), label: fmtG(c.g) })),
-    start: inFrame(result.currentBeam_cart),
-  });
-  ensureOutputDir(dir);
-  const files = [join(dir, 'plan.png'), join(dir, 'plan.svg'), join(dir, 'plan.json')];
-  writeFileAtomic(files[0], fig.png);
-  writeFileAtomic(files[1], fig.svg);
-  const json = { ...planJson(sc.name, holder, result, files), zeroTilt: { beam_cart: o.Z, primaryAxis_cart: o.X } };
-  writeFileAtomic(files[2], JSON.stringify(json, null, 1) + '\n');
   if (opts.json) {
     printJson(json);
     return;

@@ -27,10 +27,10 @@ import { excerpt, InputError } from '../errors.js';
 export const SET_MARKER = '.thinfoil-output';
 
 /** Names thinfoil writes (for folders of versions before the marker). */
-const OWN_NAME = /^(render\.json|scenario\.json|visibility\.(txt|json)|faults-and-inclusions\.txt|identify(-figure\.(png|svg)|-report\.html|\.json|-scenario\.json|-micrographs)?|.+-(bf|df)\.(png|tif)|bloch-waves\.csv|(thickness|rocking|profiles)\.(csv|png|svg))$/;
+const OWN_NAME = /^(render\.json|plan\.(png|svg|json)|scenario\.json|visibility\.(txt|json)|faults-and-inclusions\.txt|identify(-figure\.(png|svg)|-report\.html|\.json|-scenario\.json|-micrographs)?|.+-(bf|df)\.(png|tif)|bloch-waves\.csv|(thickness|rocking|profiles)\.(csv|png|svg))$/;
 
 /** A folder without the marker is taken as an earlier thinfoil set only if it holds one of these. */
-const LEGACY_SUMMARY = new Set(['render.json', 'identify.json', 'bloch-waves.csv', 'visibility.txt']);
+const LEGACY_SUMMARY = new Set(['render.json', 'plan.json', 'identify.json', 'bloch-waves.csv', 'visibility.txt']);
 
 const USER_FIXABLE: Readonly<Record<string, string>> = {
   EACCES: 'permission denied',

@@ -4,7 +4,7 @@
  */
 import { describe, expect, it } from 'vitest';
 import { spawnSync } from 'node:child_process';
-import { existsSync, mkdtempSync, readFileSync } from 'node:fs';
+import { existsSync, mkdtempSync, readdirSync, readFileSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 
@@ -29,12 +29,22 @@ describe('thinfoil plan', () => {
       expect(Math.abs(s.tilts_deg[1])).toBeLessThanOrEqual(30);
     }
     for (const f of ['plan.png', 'plan.svg', 'plan.json']) expect(existsSync(join(out, f))).toBe(true);
+    expect(existsSync(join(out, '.thinfoil-output')), 'the output-set marker').toBe(true);
     expect(readFileSync(join(out, 'plan.png')).subarray(1, 4).toString()).toBe('PNG');
     // the table form
     const t = run('plan', 'scenarios/copper-plan.json', '--out', out, '--holder', 'rotation', '--primary', '-25,25');
     expect(t.code, t.err).toBe(0);
     expect(t.out).toMatch(/in the order of least tilting/);
   }, 120_000);
+
+  it('writes one output set: a folder holding a file thinfoil did not write is refused before any planning, nothing in it changes', () => {
+    const out = mkdtempSync(join(tmpdir(), 'thinfoil-plan-'));
+    writeFileSync(join(out, 'notes.txt'), 'mine');
+    const r = run('plan', 'scenarios/copper-plan.json', '--out', out);
+    expect(r.code).toBe(2);
+    expect(r.err).toMatch(/--out: .*notes\.txt/);
+    expect(readdirSync(out)).toEqual(['notes.txt']);
+  });
 
   it.each([
     [['plan', 'scenarios/copper-plan.json', '--holder', 'triple'], /--holder/],
