@@ -61,11 +61,11 @@ export interface GlidePlane {
   readonly normal?: Vec3;
   /** One-sigma uncertainty of the normal's direction, degrees (from the fit's covariance). */
   readonly normalError_deg?: number;
-  /** Nearest low-index plane (indices up to 3) and the angle between the normals. */
+  /** A common slip plane within the tolerance if there is one, else the nearest low-index plane (indices up to 3); and the angle between the normals. */
   readonly nearest?: PlaneMatch;
-  /** True when the nearest plane is within max(2 sigma, 1 degree) of u x b. */
+  /** True when the plane reported in `nearest` is within max(2 sigma, 1 degree) of u x b. */
   readonly matches?: boolean;
-  /** The slip family of the nearest plane when it matches and is a common slip plane of the structure, else null. */
+  /** The slip family of the plane in `nearest` when a common slip plane of the structure lies within the tolerance (it is then the one reported), else null. */
   readonly slipFamily?: string | null;
 }
 
@@ -92,11 +92,39 @@ export function glidePlane(m: Material, fit: TraceFit, b: Vec3): GlidePlane {
     s2 += (turn * sd) ** 2;
   });
   const err = Math.sqrt(s2);
-  const near = nearestPlane(l, n, 3);
-  const matches = near.angle_deg <= Math.max(2 * err, 1);
-  // the plane indices of n: h_i = a_i . n (directBasis rows), via the Cartesian -> reciprocal relation
+  const tol = Math.max(2 * err, 1);
+  // a common slip plane of the structure within the tolerance wins over any other low-index plane
+  const slip = nearestSlipPlane(m, n);
   const idx = planeIndices(m, n);
-  return { b, angleToB_deg: a, screw: false, normal: idx, normalError_deg: err, nearest: near, matches, slipFamily: matches ? slipFamilyOf(m, near.hkl) : null };
+  if (slip !== null && slip.angle_deg <= tol) {
+    return { b, angleToB_deg: a, screw: false, normal: idx, normalError_deg: err, nearest: { hkl: slip.hkl, angle_deg: slip.angle_deg }, matches: true, slipFamily: slip.family };
+  }
+  const near = nearestPlane(l, n, 3);
+  return { b, angleToB_deg: a, screw: false, normal: idx, normalError_deg: err, nearest: near, matches: near.angle_deg <= tol, slipFamily: null };
+}
+
+/** The member of the structure's slip families whose normal is closest to n, with the angle between the normals. */
+export function nearestSlipPlane(m: Material, n_cart: Vec3): (PlaneMatch & { family: string }) | null {
+  const n = unit(n_cart);
+  let best: (PlaneMatch & { family: string }) | null = null;
+  for (const f of slipFamilies(m.structure)) {
+    for (const member of parseFamily(f, m, { collapseSign: true }).members) {
+      const c = Math.abs(dot(unit(planeNormalToCartesian(m.lattice, member)), n));
+      const ang = Math.acos(Math.min(1, c)) / DEG;
+      if (best === null || ang < best.angle_deg) best = { hkl: primitive(member), angle_deg: ang, family: f };
+    }
+  }
+  return best;
+}
+
+/** Plane indices scaled to the smallest whole numbers (members of a family are whole already up to a common factor). */
+function primitive(h: Vec3): Vec3 {
+  const r = h.map((x) => Math.round(x * 6)) as number[];
+  const gcd = (a: number, b: number): number => (b === 0 ? Math.abs(a) : gcd(b, a % b));
+  const g = r.reduce((acc, x) => gcd(acc, x), 0) || 1;
+  const first = r.find((x) => x !== 0) ?? 1;
+  const s = first < 0 ? -1 : 1;
+  return [(s * r[0]) / g + 0, (s * r[1]) / g + 0, (s * r[2]) / g + 0];
 }
 
 function planeIndices(m: Material, n: Vec3): Vec3 {

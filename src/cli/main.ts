@@ -156,6 +156,19 @@ program
   .action(run(() => import('./measureCommand.js'), 'measureCommand'));
 
 program
+  .command('traces')
+  .description('line direction u of a straight dislocation from its traces in two or more beam directions: u with its uncertainty, planes containing u, glide planes of candidate b, inclination from a projected length')
+  .argument('<material|scenario>', 'material name from `thinfoil materials`, or a scenario file (JSON) for its material, foil, conditions and candidates')
+  .option('--view <pairs>', 'one micrograph: "beam=U,V,W g=H,K,L gAngle=DEG lineAngle=DEG [error=DEG] [length=NM [lengthError=NM]]" or, with a scenario, "condition=ID lineAngle=DEG"; angles counter-clockwise from +x, +y down; repeat for each', collect, [])
+  .option('--angle-error <deg>', 'one-sigma error of each measured angle difference (line minus g), degrees (default 1)')
+  .option('--b <vector>', 'candidate Burgers vector for the glide planes, e.g. "1/2[1 1 0]" or a family "1/2<110>"; repeat for more (default: the scenario\'s candidates)', collect, [])
+  .option('--thickness <nm>', 'foil thickness for the projected-length check (default: the scenario\'s)')
+  .option('--thickness-error <nm>', 'one-sigma error of the thickness (default 0)')
+  .option('--normal <uvw>', 'foil normal as a crystal direction (default: the scenario\'s)')
+  .option('--json', 'one JSON object on stdout')
+  .action(run(() => import('./tracesCommand.js'), 'tracesCommand'));
+
+program
   .command('explore')
   .description('a local page (127.0.0.1) where g, s or w, thickness, defect depth, Burgers vector and beams can be changed and the images follow')
   .argument('<scenario>', 'scenario file (JSON)')

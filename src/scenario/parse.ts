@@ -319,7 +319,8 @@ function readPoint(v: unknown, path: string, thickness_nm: number): Vec3 {
 }
 
 function readCandidates(v: unknown, path: string, m: Material): CandidateSpec[] {
-  if (typeof v === 'string') return familyCandidates(v, path, m);
+  // a string is a family ("1/2<110>") or one explicit vector ("1/2[1 1 0]", "-1/6[1 1 -2]")
+  if (typeof v === 'string') return /[<>{}]/.test(v) ? familyCandidates(v, path, m) : readCandidates({ b: v }, path, m);
   const o = object(v, path);
   onlyKeys(o, ['b', 'line', 'family', 'label'], path);
   if (o.family !== undefined) return familyCandidates(string(o.family, joinPath(path, 'family')), joinPath(path, 'family'), m);
