@@ -70,7 +70,8 @@ export function ribbonStripGeometry(t: RibbonTarget): { c: ResolvedCondition; x0
   const ux = dot(u, c.frame.ex), uy = dot(u, c.frame.ey);
   const ul = Math.hypot(ux, uy);
   if (ul < 1e-6 * Math.hypot(...u)) throw new InputError(`defects[${t.defectIndex}].line runs along the beam of condition "${c.id}" (seen end-on), so no profile across it exists; choose another condition`);
-  const across: [number, number] = [-uy / ul, ux / ul];
+  // the line turned 90 degrees counter-clockwise on the screen (+y down), as in ribbonProfile.ts
+  const across: [number, number] = [uy / ul, -ux / ul];
   const pair = dissociationPair(sc.material, d);
   const r = pair.ribbonDirection;
   const projection = Math.abs(dot(r, c.frame.ex) * across[0] + dot(r, c.frame.ey) * across[1]);
@@ -215,21 +216,31 @@ export function widthFromSeparation(t: RibbonTarget, separation_nm: number, sepa
     throw new InputError(`the measured peak separation ${separation_nm.toFixed(2)} nm is not reproduced by any simulated ribbon width from ${Math.min(...grid).toFixed(2)} to ${Math.max(...grid).toFixed(2)} nm (${range}); check the condition (g, weak-beam n, beams), the depth and line of the defect, and --line-angle`);
   }
   let [wa, sa, wb, sb] = bracket;
-  // bisection with a secant step inside the bracket, to 1 % of the pixel size or 6 steps
-  for (let it = 0; it < 6 && Math.abs(wb - wa) > 0.01 * o.binWidth_nm; it++) {
+  let solved: { w: number; s: number } | null = null;
+  // regula falsi with a bisection fallback inside the bracket: until the simulated separation matches to
+  // 1e-3 of a bin, the bracket is 1 % of a bin wide, or after 8 steps
+  for (let it = 0; it < 8 && Math.abs(wb - wa) > 0.01 * o.binWidth_nm; it++) {
     let wm = wa + ((separation_nm - sa) * (wb - wa)) / (sb - sa || 1e-30);
-    if (!(wm > Math.min(wa, wb) && wm < Math.max(wa, wb))) wm = 0.5 * (wa + wb);
+    // alternate with bisection so that one end cannot stall
+    if (it % 2 === 1 || !(wm > Math.min(wa, wb) && wm < Math.max(wa, wb))) wm = 0.5 * (wa + wb);
     const sm = f(wm);
     if (sm === null) { wa = wm; continue; }
+    if (Math.abs(sm - separation_nm) < 1e-3 * o.binWidth_nm) { solved = { w: wm, s: sm }; break; }
     if ((sa - separation_nm) * (sm - separation_nm) <= 0) { wb = wm; sb = sm; } else { wa = wm; sa = sm; }
   }
-  if (Math.abs(sb - sa) > Math.max(2 * o.binWidth_nm, 0.1 * separation_nm)) {
+  if (solved === null && Math.abs(sb - sa) > Math.max(2 * o.binWidth_nm, 0.1 * separation_nm)) {
     throw new InputError(`the simulated peak separation jumps from ${sa.toFixed(2)} to ${sb.toFixed(2)} nm near a ribbon width of ${(0.5 * (wa + wb)).toFixed(2)} nm (another maximum of the profile takes over), so the measured ${separation_nm.toFixed(2)} nm has no unique width; narrow the peak search with --window or use a weak-beam condition with larger n`);
   }
-  const slope = (sb - sa) / (wb - wa || 1e-30);
-  const width = Math.abs(sb - sa) < 1e-12 ? 0.5 * (wa + wb) : wa + ((separation_nm - sa) * (wb - wa)) / (sb - sa);
-  // the measured separation's error through the slope; plus half the final bracket as the search's own error
-  const widthError = Math.hypot(separationError_nm / Math.abs(slope), 0.5 * Math.abs(wb - wa));
+  // the slope d(separation)/dW near the solution: from the two resolved simulated widths nearest to it
+  const width = solved !== null ? solved.w : Math.abs(sb - sa) < 1e-12 ? 0.5 * (wa + wb) : wa + ((separation_nm - sa) * (wb - wa)) / (sb - sa);
+  const near = sims
+    .filter((x) => x.separation_nm !== null)
+    .sort((p, q) => Math.abs(p.width_nm - width) - Math.abs(q.width_nm - width));
+  const far = near.find((x) => Math.abs(x.width_nm - near[0].width_nm) > 0.05 * o.binWidth_nm) ?? near[near.length - 1];
+  const slope = ((far.separation_nm as number) - (near[0].separation_nm as number)) / (far.width_nm - near[0].width_nm || 1e-30);
+  if (!(Math.abs(slope) > 1e-6)) throw new InputError('the simulated peak separation does not change with the ribbon width here, so the width cannot be read from it; use another weak-beam condition');
+  // the measured separation's error through the slope; plus half the final bracket when the search stopped on the bracket
+  const widthError = Math.hypot(separationError_nm / Math.abs(slope), solved !== null ? 0 : 0.5 * Math.abs(wb - wa));
   return { width_nm: width, widthError_nm: widthError, slope, projection: g.projection, simulated: sims };
 }
 
@@ -240,3 +251,48 @@ export function scenarioRibbonWidth_nm(t: RibbonTarget): number {
 }
 
 export type { Vec3 };
+
+/**
+ * How well the simulated strip at a width explains a measured profile: R^2 of
+ * the least-squares fit measured ~ a * simulated + c, both with their smooth
+ * background removed (StripOptions.background_nm), the simulation interpolated
+ * at the measured bins. Near 1: the same shape; low: the two measured peaks
+ * are probably not the partials of this ribbon (unresolved ribbon, another
+ * defect, wrong condition). The best over both senses of the profile and
+ * shifts of the simulation by up to 2 nm (the centre given may be off).
+ */
+export function profileAgreement(t: RibbonTarget, width_nm: number, o: StripOptions, x_nm: ArrayLike<number>, measured: ArrayLike<number>): number {
+  const s = simulatedStrip(t, width_nm, o);
+  const sim = removeBackground(s.x_nm, s.y, o.background_nm ?? 0);
+  const h = s.x_nm[1] - s.x_nm[0];
+  // a trace has no sense: the measured profile may run the other way; and the centre the user gave may be off
+  // the ribbon's centre by up to 2 nm: take the best over both senses and those shifts (steps of a quarter bin)
+  let best = -Infinity;
+  const step = Math.max(h, o.binWidth_nm / 4);
+  for (let d = -2; d <= 2 + 1e-9; d += step) {
+    best = Math.max(best, r2(sim, s.x_nm[0] - d, h, x_nm, measured, 1), r2(sim, s.x_nm[0] - d, h, x_nm, measured, -1));
+  }
+  return best;
+}
+
+function r2(sim: Float64Array, x0: number, h: number, x_nm: ArrayLike<number>, measured: ArrayLike<number>, sense: number): number {
+  const xs: number[] = [], ys: number[] = [];
+  for (let k = 0; k < x_nm.length; k++) {
+    const f = (sense * x_nm[k] - x0) / h;
+    const i = Math.floor(f);
+    if (i < 0 || i + 1 >= sim.length || !Number.isFinite(measured[k])) continue;
+    xs.push(sim[i] + (f - i) * (sim[i + 1] - sim[i]));
+    ys.push(measured[k]);
+  }
+  const n = xs.length;
+  if (n < 3) return NaN;
+  const mx = xs.reduce((p, q) => p + q, 0) / n, my = ys.reduce((p, q) => p + q, 0) / n;
+  let sxx = 0, sxy = 0, syy = 0;
+  for (let k = 0; k < n; k++) {
+    sxx += (xs[k] - mx) ** 2;
+    sxy += (xs[k] - mx) * (ys[k] - my);
+    syy += (ys[k] - my) ** 2;
+  }
+  if (!(sxx > 0) || !(syy > 0)) return NaN;
+  return (sxy * sxy) / (sxx * syy) * Math.sign(sxy);
+}

@@ -18,11 +18,14 @@ import { anisotropicSfeFromWidth_mJ_per_m2, isotropicSfeFromWidth_mJ_per_m2 } fr
 import { dissociationPair } from '../defects/dissociated.js';
 import { formatDirectionIn } from '../crystal/formatIndices.js';
 import { checkProfileOptions, lineProfile, removeBackground, twoPeaks } from '../analysis/ribbonProfile.js';
-import { ribbonDefect, ribbonStripGeometry, scenarioRibbonWidth_nm, widthFromSeparation, type RibbonTarget } from '../analysis/ribbonWidth.js';
+import { profileAgreement, ribbonDefect, ribbonStripGeometry, scenarioRibbonWidth_nm, widthFromSeparation, type RibbonTarget } from '../analysis/ribbonWidth.js';
 import { readScenarioJson } from './loadScenario.js';
 import { readInputFile } from './readInput.js';
 import { numberOption } from './options.js';
 import { printJson, sig, table } from './run.js';
+
+/** Shape agreement (R^2) below which the read-out is flagged (our choice). */
+const AGREEMENT = 0.5;
 
 export interface RibbonOptions {
   micrograph?: string;
@@ -105,9 +108,24 @@ export function ribbonCommand(scenarioPath: string, opts: RibbonOptions): void {
     binWidth_nm: bin,
   };
   checkProfileOptions(img, profileOptions);
-  const prof = lineProfile(img, profileOptions);
+  const full = lineProfile(img, profileOptions);
+  // bins beyond the micrograph's edge stay empty: keep the filled range symmetric about the centre
+  let lo = 0, hi = full.count.length - 1;
+  while (lo < hi && full.count[lo] === 0) lo++;
+  while (hi > lo && full.count[hi] === 0) hi--;
+  const reach = Math.min(-full.x_nm[lo], full.x_nm[hi]);
+  if (!(reach > 2 * bin)) throw new InputError('--centre: the profile reaches the micrograph\'s edge on one side within two bins; give a point on the ribbon farther from the edge');
+  const keep = (k: number) => Math.abs(full.x_nm[k]) <= reach;
+  const idx = [...full.x_nm.keys()].filter(keep);
+  const prof = {
+    x_nm: Float64Array.from(idx, (k) => full.x_nm[k]),
+    mean: Float64Array.from(idx, (k) => full.mean[k]),
+    sem: Float64Array.from(idx, (k) => full.sem[k]),
+    count: Int32Array.from(idx, (k) => full.count[k]),
+  };
   const filled = prof.count.filter((c) => c > 0).length;
-  if (filled < prof.count.length * 0.8) throw new InputError(`--bin-nm: only ${filled} of ${prof.count.length} bins of the profile hold pixels (the line is nearly along a pixel axis); give a bin of at least one pixel`);
+  if (filled < prof.count.length) throw new InputError(`--bin-nm: only ${filled} of ${prof.count.length} bins of the profile hold pixels (the line runs nearly along a pixel axis); give a bin of at least one pixel`);
+  const stripHalfWidth = reach + bin / 2;
   const sign = field === 'df' ? 1 : -1;
   const background = opts.backgroundNm === undefined ? 3 : numberOption('--background-nm', 0, 1e4, 'the width (standard deviation, nm) of the smooth background to remove, or 0')(opts.backgroundNm);
   const y = removeBackground(prof.x_nm, prof.mean.map((v) => sign * v), background);
@@ -115,8 +133,9 @@ export function ribbonCommand(scenarioPath: string, opts: RibbonOptions): void {
   if (peaks === null) throw new InputError('the profile across the line has fewer than two peaks: the partials are not resolved (check --line-angle and --centre, or widen --half-width / --window)');
   // a peak read off a sampled profile: add a uniform sampling error of one bin per peak (bin / sqrt 12)
   const sepError = Math.hypot(peaks.sigma_nm, (Math.SQRT2 * bin) / Math.sqrt(12));
-  const w = widthFromSeparation(target, peaks.separation_nm, sepError, { binWidth_nm: bin, blur_nm: blur, field, halfWidth_nm: halfWidth, background_nm: background, ...(window === undefined ? {} : { window_nm: window }) });
+  const w = widthFromSeparation(target, peaks.separation_nm, sepError, { binWidth_nm: bin, blur_nm: blur, field, halfWidth_nm: stripHalfWidth, background_nm: background, ...(window === undefined ? {} : { window_nm: window }) });
 
+  const agreement = profileAgreement(target, w.width_nm, { binWidth_nm: bin, blur_nm: blur, field, halfWidth_nm: stripHalfWidth, background_nm: background }, prof.x_nm, y);
   const m = sc.material;
   const pairP = dissociationPair(m, d);
   const gIso = isotropicSfeFromWidth_mJ_per_m2(pairP.b1_nm, pairP.b2_nm, pairP.line, m.elastic.shearModulus_GPa, m.elastic.poissonRatio, w.width_nm);
@@ -139,6 +158,8 @@ export function ribbonCommand(scenarioPath: string, opts: RibbonOptions): void {
     width_nm: w.width_nm,
     widthError_nm: w.widthError_nm,
     slope: w.slope,
+    shapeAgreement_R2: Number.isFinite(agreement) ? agreement : 'none',
+    shapeAgrees: agreement >= AGREEMENT,
     simulated: w.simulated,
     sfe: {
       isotropic_mJ_per_m2: gIso,
@@ -163,11 +184,19 @@ export function ribbonCommand(scenarioPath: string, opts: RibbonOptions): void {
   o.push(
     table(
       ['width (nm)', 'peak separation (nm)'],
-      [...w.simulated].sort((a, b) => a.width_nm - b.width_nm).map((s) => [sig(s.width_nm, 4), s.separation_nm === null ? 'not resolved' : sig(s.separation_nm, 4)]),
+      [...w.simulated]
+        .sort((a, b) => a.width_nm - b.width_nm)
+        .map((s) => [sig(s.width_nm, 4), s.separation_nm === null ? 'not resolved' : sig(s.separation_nm, 4)])
+        .filter((r, i, all) => i === 0 || r[0] !== all[i - 1][0]),
     ).trimEnd(),
   );
   o.push('');
   o.push(`true partial separation ${sig(w.width_nm, 4)} +- ${sig(w.widthError_nm, 2)} nm in the glide plane (projected across the line: x ${sig(w.projection, 3)})`);
+  o.push(
+    agreement >= AGREEMENT
+      ? `the simulated profile at this width explains the measured one: R^2 = ${sig(agreement, 3)} (background removed)`
+      : `WARNING: the simulated profile at this width does not look like the measured one (R^2 = ${sig(agreement, 3)}, below ${AGREEMENT}): the two peaks are probably not the two partials (ribbon not resolved, another defect, or another condition); do not trust the numbers below`,
+  );
   o.push(`stacking-fault energy: isotropic ${sig(gIso, 3)} +- ${sig(gIso * rel, 2)} mJ/m^2, anisotropic ${sig(gAni, 3)} +- ${sig(gAni * rel, 2)} mJ/m^2 (Hirth & Lothe 1982)${tabulated === undefined ? '' : `; the material library has ${tabulated} mJ/m^2`}`);
   process.stdout.write(o.join('\n') + '\n');
 }

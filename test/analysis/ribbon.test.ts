@@ -19,7 +19,8 @@ import { shockleySplit, ribbonWidth_nm, anisotropicRibbonWidth_nm } from '../../
 import { materialStiffness } from '../../src/elasticity/stiffness.js';
 import { anisotropicSfeFromWidth_mJ_per_m2, isotropicSfeFromWidth_mJ_per_m2 } from '../../src/elasticity/ribbonEnergy.js';
 import { lineProfile, prominence, refinePeak, removeBackground, twoPeaks } from '../../src/analysis/ribbonProfile.js';
-import { ribbonStripGeometry, widthFromSeparation } from '../../src/analysis/ribbonWidth.js';
+import { profileAgreement, ribbonStripGeometry, widthFromSeparation } from '../../src/analysis/ribbonWidth.js';
+import { InputError } from '../../src/errors.js';
 
 const Cu = getMaterial('Cu');
 const a = Cu.lattice.a_nm;
@@ -139,12 +140,40 @@ describe('weak-beam ribbon: width and SFE back from a simulated micrograph (plum
     const pk = twoPeaks(prof.x_nm, y, prof.sem, 2 * pix)!;
     expect(pk).not.toBeNull();
     const sepErr = Math.hypot(pk.sigma_nm, (Math.SQRT2 * pix) / Math.sqrt(12));
-    const res = widthFromSeparation(t, pk.separation_nm, sepErr, { binWidth_nm: pix, halfWidth_nm: 7.5, background_nm: 3 });
+    const opts = { binWidth_nm: pix, halfWidth_nm: 7.5, background_nm: 3 };
+    const res = widthFromSeparation(t, pk.separation_nm, sepErr, opts);
     expect(Math.abs(res.width_nm - W)).toBeLessThan(pix);
     const p = shockleySplit({ lattice: Cu.lattice, b: [0.5, -0.5, 0], planeNormal: [1, 1, 1], lineCartesian: directionToCartesian(Cu.lattice, [1, -1, 0]) });
     const gTrue = isotropicSfeFromWidth_mJ_per_m2(p.b1_nm, p.b2_nm, p.line, Cu.elastic.shearModulus_GPa, Cu.elastic.poissonRatio, W);
     const gEst = isotropicSfeFromWidth_mJ_per_m2(p.b1_nm, p.b2_nm, p.line, Cu.elastic.shearModulus_GPa, Cu.elastic.poissonRatio, res.width_nm);
     const gErr = (gEst * res.widthError_nm) / res.width_nm;
     expect(Math.abs(gEst - gTrue)).toBeLessThan(2 * gErr);
+    // the simulated strip at the found width has the measured profile's shape
+    expect(profileAgreement(t, res.width_nm, opts, prof.x_nm, y)).toBeGreaterThan(0.9);
+  }, 120_000);
+
+  it('a ribbon too narrow to resolve (the equilibrium 1 nm of Cu) is flagged: its two strongest maxima are not reproduced in shape', async () => {
+    const r = raw(6);
+    delete (r.defects[0] as { separation_nm?: number }).separation_nm;
+    const sc = parseScenario({ ...r, image: { width_px: 128, height_px: 8, pixel_nm: 0.1 } });
+    const pool = createRenderPool(1);
+    const [img] = await renderScenario(sc, pool);
+    await pool.close();
+    const t = { sc, conditionIndex: 0, defectIndex: 0 };
+    const g = ribbonStripGeometry(t);
+    const prof = lineProfile({ width: img.width, height: img.height, data: img.df }, { lineAngle_deg: g.lineAngle_deg, pixel_nm: 0.1, halfWidth_nm: 6.3 });
+    const y = removeBackground(prof.x_nm, prof.mean, 3);
+    const pk = twoPeaks(prof.x_nm, y, prof.sem, 0.2);
+    const opts = { binWidth_nm: 0.1, halfWidth_nm: 6.4, background_nm: 3 };
+    let flagged = pk === null;
+    if (pk !== null) {
+      try {
+        const res = widthFromSeparation(t, pk.separation_nm, 0.05, opts);
+        flagged = profileAgreement(t, res.width_nm, opts, prof.x_nm, y) < 0.5;
+      } catch (e) {
+        flagged = e instanceof InputError;
+      }
+    }
+    expect(flagged).toBe(true);
   }, 120_000);
 });
