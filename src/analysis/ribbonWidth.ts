@@ -236,7 +236,10 @@ export function widthFromSeparation(t: RibbonTarget, separation_nm: number, sepa
   const near = sims
     .filter((x) => x.separation_nm !== null)
     .sort((p, q) => Math.abs(p.width_nm - width) - Math.abs(q.width_nm - width));
-  const far = near.find((x) => Math.abs(x.width_nm - near[0].width_nm) > 0.05 * o.binWidth_nm) ?? near[near.length - 1];
+  // a baseline of at least a tenth of the width (or two bins): the simulated separations jitter on the scale of
+  // the strip's sampling, so nearby points give a noisy slope
+  const base = Math.max(0.1 * width, 2 * o.binWidth_nm);
+  const far = near.find((x) => Math.abs(x.width_nm - near[0].width_nm) >= base) ?? near[near.length - 1];
   const slope = ((far.separation_nm as number) - (near[0].separation_nm as number)) / (far.width_nm - near[0].width_nm || 1e-30);
   if (!(Math.abs(slope) > 1e-6)) throw new InputError('the simulated peak separation does not change with the ribbon width here, so the width cannot be read from it; use another weak-beam condition');
   // the measured separation's error through the slope; plus half the final bracket when the search stopped on the bracket

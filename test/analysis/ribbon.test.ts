@@ -16,7 +16,7 @@ import { directionToCartesian, planeNormalToCartesian } from '../../src/crystal/
 import { renderScenario } from '../../src/imaging/renderScenario.js';
 import { createRenderPool } from '../../src/imaging/workerPool.js';
 import { shockleySplit, ribbonWidth_nm, anisotropicRibbonWidth_nm } from '../../src/elasticity/dissociation.js';
-import { materialStiffness } from '../../src/elasticity/stiffness.js';
+import { isotropicVoigt, materialStiffness } from '../../src/elasticity/stiffness.js';
 import { anisotropicSfeFromWidth_mJ_per_m2, isotropicSfeFromWidth_mJ_per_m2 } from '../../src/elasticity/ribbonEnergy.js';
 import { lineProfile, prominence, refinePeak, removeBackground, twoPeaks } from '../../src/analysis/ribbonProfile.js';
 import { profileAgreement, ribbonStripGeometry, widthFromSeparation } from '../../src/analysis/ribbonWidth.js';
@@ -50,6 +50,16 @@ describe('stacking-fault energy from a ribbon width', () => {
       const wa = anisotropicRibbonWidth_nm(p.b1_nm, p.b2_nm, p.line, C, gamma);
       expect(anisotropicSfeFromWidth_mJ_per_m2(p.b1_nm, p.b2_nm, p.line, C, wa)).toBeCloseTo(gamma, 9);
     }
+  });
+});
+
+describe('anisotropic read-out in the isotropic limit', () => {
+  it('with isotropic stiffness (C11 - C12 = 2 C44) the anisotropic SFE equals the isotropic one (Hirth & Lothe 1982 ch. 13: the Stroh energy factors reduce to G and G/(1 - nu))', () => {
+    const G = 40, nu = 0.3;
+    const p = shockleySplit({ lattice: Cu.lattice, b: [0.5, -0.5, 0], planeNormal: [1, 1, 1], lineCartesian: directionToCartesian(Cu.lattice, [1, 1, -2]) });
+    const iso = isotropicSfeFromWidth_mJ_per_m2(p.b1_nm, p.b2_nm, p.line, G, nu, 2.5);
+    const ani = anisotropicSfeFromWidth_mJ_per_m2(p.b1_nm, p.b2_nm, p.line, isotropicVoigt(G, nu), 2.5);
+    expect(Math.abs(ani - iso) / iso).toBeLessThan(1e-6);
   });
 });
 
@@ -149,6 +159,27 @@ describe('weak-beam ribbon: width and SFE back from a simulated micrograph (plum
     const gErr = (gEst * res.widthError_nm) / res.width_nm;
     expect(Math.abs(gEst - gTrue)).toBeLessThan(2 * gErr);
     // the simulated strip at the found width has the measured profile's shape
+    expect(profileAgreement(t, res.width_nm, opts, prof.x_nm, y)).toBeGreaterThan(0.9);
+  }, 120_000);
+
+  it('an oblique line (120 degrees on the screen) with half-pixel bins: 6 nm back within the pixel size', async () => {
+    const c = Math.cos(Math.PI / 6), s30 = Math.sin(Math.PI / 6);
+    // imageX turned 30 degrees from [1 1 0] about the beam [001]: the line [1 -1 0] then runs at 120 degrees
+    const sc = parseScenario({ ...raw(6), imageX: [c - s30, c + s30, 0], image: { width_px: 60, height_px: 60, pixel_nm: 0.25 } });
+    const pool = createRenderPool(1);
+    const [img] = await renderScenario(sc, pool);
+    await pool.close();
+    const t = { sc, conditionIndex: 0, defectIndex: 0 };
+    const g = ribbonStripGeometry(t);
+    expect(g.lineAngle_deg).toBeCloseTo(120, 9);
+    const bin = 0.125;
+    const prof = lineProfile({ width: img.width, height: img.height, data: img.df }, { lineAngle_deg: g.lineAngle_deg, pixel_nm: 0.25, halfWidth_nm: 6, binWidth_nm: bin });
+    expect(Array.from(prof.count).every((n) => n > 0)).toBe(true); // the oblique line fills half-pixel bins
+    const y = removeBackground(prof.x_nm, prof.mean, 3);
+    const pk = twoPeaks(prof.x_nm, y, prof.sem, 0.5)!;
+    const opts = { binWidth_nm: bin, halfWidth_nm: 6, background_nm: 3 };
+    const res = widthFromSeparation(t, pk.separation_nm, Math.hypot(pk.sigma_nm, (bin * Math.SQRT2) / Math.sqrt(12)), opts);
+    expect(Math.abs(res.width_nm - 6)).toBeLessThan(0.25);
     expect(profileAgreement(t, res.width_nm, opts, prof.x_nm, y)).toBeGreaterThan(0.9);
   }, 120_000);
 
