@@ -197,7 +197,7 @@ export function tracesCommand(subject: string, opts: TracesOptions): void {
       chi2: fit.chi2,
       dof: fit.dof,
       pValue: p ?? 'none',
-      views: views.map((v, i) => ({ ...v.view, beam: v.view.beam, g: v.view.g, ...fit.views[i] })),
+      views: views.map((v, i) => ({ ...v.view, ...fit.views[i], nearlyEndOn: fit.views[i].angleToBeam_deg < 10 })),
       planes: { tolerance_deg: planeTol, list: planes.map((q) => ({ plane: formatPlaneIn(l, q.hkl), hkl: q.hkl, angle_deg: q.angle_deg })) },
       slipFamilies: slipFamilies(m.structure),
       candidates: glides.map((gp) => ({
@@ -245,6 +245,9 @@ export function tracesCommand(subject: string, opts: TracesOptions): void {
       ]),
     ).trimEnd(),
   );
+  for (const r of fit.views) {
+    if (r.angleToBeam_deg < 10) out.push(`note: in ${r.name} the line runs ${f1(r.angleToBeam_deg)} degrees from the beam (nearly end-on): its trace is short and its angle hard to read; give that view a larger error= or leave it out`);
+  }
   out.push('');
   out.push(
     planes.length === 0

@@ -58,7 +58,7 @@ describe('candidate Burgers vectors as written by users', () => {
   });
 
   it('a malformed vector or family names the candidate', () => {
-    expect(() => parseScenario({ ...base, candidates: ['1/2[1 1]'] })).toThrow(/candidates\[0\]/);
+    expect(() => parseScenario({ ...base, candidates: ['1/2[1 1]'] })).toThrow(/^candidates\[0\]: /);
     expect(() => parseScenario({ ...base, candidates: ['1/2<110'] })).toThrow(/candidates\[0\]/);
     expect(() => parseScenario({ ...base, candidates: ['[0 0 0]'] })).toThrow(/candidates\[0\]/);
   });
