@@ -40,6 +40,8 @@ describe('candidate Burgers vectors as written by users', () => {
     expect(labels(['1/2<110>', '1/6[1 1 -2]']).length).toBe(14);
     expect(labels(['1/2<110>', '1/2[1 1 0]', '-1/2[0 1 1]']).length).toBe(12);
     expect(labels(['[1 0 0]', { b: '1/2[1 -1 0]' }, { family: '1/3<111>' }]).length).toBe(2 + 2 + 8);
+    // the README's list (Scenario files): 12 + 2 + 0 (a member of 1/2<110> again) + 2 + 8
+    expect(labels(['1/2<110>', '1/6[1 1 -2]', '-1/2[0 1 1]', { b: '[1 0 0]' }, { family: '1/3<111>' }]).length).toBe(24);
   });
 
   it('hexagonal crystals take four indices for both forms (1/3<11-20>: 3 up to sign, 6 signed)', () => {
