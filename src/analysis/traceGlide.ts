@@ -15,7 +15,7 @@ import { add, cross, dot, norm, scale, sub, unit } from '../math/vec3.js';
 import type { Material } from '../crystal/material.js';
 import { directionToCartesian, planeNormalToCartesian } from '../crystal/lattice.js';
 import { parseFamily } from '../crystal/symmetry.js';
-import { type PlaneMatch, type TraceFit, nearestPlane } from './traces.js';
+import { type PlaneMatch, type TraceFit, nearestPlane, planeIndicesOf } from './traces.js';
 
 const DEG = Math.PI / 180;
 
@@ -95,7 +95,7 @@ export function glidePlane(m: Material, fit: TraceFit, b: Vec3): GlidePlane {
   const tol = Math.max(2 * err, 1);
   // a common slip plane of the structure within the tolerance wins over any other low-index plane
   const slip = nearestSlipPlane(m, n);
-  const idx = planeIndices(m, n);
+  const idx = planeIndicesOf(l, n);
   if (slip !== null && slip.angle_deg <= tol) {
     return { b, angleToB_deg: a, screw: false, normal: idx, normalError_deg: err, nearest: { hkl: slip.hkl, angle_deg: slip.angle_deg }, matches: true, slipFamily: slip.family };
   }
@@ -125,14 +125,4 @@ function primitive(h: Vec3): Vec3 {
   const first = r.find((x) => x !== 0) ?? 1;
   const s = first < 0 ? -1 : 1;
   return [(s * r[0]) / g + 0, (s * r[1]) / g + 0, (s * r[2]) / g + 0];
-}
-
-function planeIndices(m: Material, n: Vec3): Vec3 {
-  // h_i = a_i . n with a_i the direct basis vectors
-  const a1 = directionToCartesian(m.lattice, [1, 0, 0]);
-  const a2 = directionToCartesian(m.lattice, [0, 1, 0]);
-  const a3 = directionToCartesian(m.lattice, [0, 0, 1]);
-  const h: Vec3 = [dot(a1, n), dot(a2, n), dot(a3, n)];
-  const mx = Math.max(...h.map(Math.abs));
-  return [h[0] / mx, h[1] / mx, h[2] / mx];
 }

@@ -96,13 +96,20 @@ describe('trace analysis, worked example by hand (the construction of Edington 1
     expect(gp2.slipFamily).toBeNull();
   });
 
-  it('slip families: fcc {111}; bcc {110}, {112}, {123} (Hull & Bacon 2011, table 3.1)', () => {
+  it('slip families: fcc {111}; bcc {110}, {112}, {123}; hcp (0001), {10-10}, {10-11}, {11-22} (Hull & Bacon 2011, table 3.1)', () => {
     expect(slipFamilyOf(Cu, [1, -1, 1])).toBe('{111}');
     expect(slipFamilyOf(Cu, [1, 1, 0])).toBeNull();
     expect(slipFamilyOf(Fe, [0, 1, -1])).toBe('{110}');
     expect(slipFamilyOf(Fe, [1, -1, 2])).toBe('{112}');
     expect(slipFamilyOf(Fe, [3, -2, 1])).toBe('{123}');
     expect(slipFamilyOf(Fe, [1, 1, 1])).toBeNull();
+    // hcp: basal, prismatic, pyramidal (Hull & Bacon 2011, table 3.1); (h k l) = (h k i l) without i
+    const Ti = getMaterial('Ti');
+    expect(slipFamilyOf(Ti, [0, 0, 1])).toBe('{0001}');
+    expect(slipFamilyOf(Ti, [1, 0, 0])).toBe('{10-10}');
+    expect(slipFamilyOf(Ti, [0, 1, 1])).toBe('{10-11}');
+    expect(slipFamilyOf(Ti, [1, 1, 2])).toBe('{11-22}');
+    expect(slipFamilyOf(Ti, [1, 1, 0])).toBeNull(); // (1 1 -2 0), a second-order prism plane: not listed
   });
 
   it('a screw candidate (b along u) has no single glide plane', () => {
