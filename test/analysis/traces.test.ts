@@ -73,6 +73,11 @@ describe('trace analysis, worked example by hand (the construction of Edington 1
     expect(fit.u.map((x) => Math.round(x * 1e9) / 1e9)).toEqual([0.5, -0.5, 1]);
     expect(fit.dof).toBe(0);
     expect(fit.chi2).toBeLessThan(1e-20);
+    // the angles between u and the beams are entries of the cubic angle tables (<112>-<001> 35.26 degrees,
+    // <112>-<110> 73.22 degrees; tables of angles between cubic directions in Edington 1975 and Williams &
+    // Carter 2009, recalled from memory to 0.01 degree, exact as acos(2/sqrt 6) and acos(1/sqrt 12))
+    expect(fit.views[0].angleToBeam_deg).toBeCloseTo(35.26, 2);
+    expect(fit.views[1].angleToBeam_deg).toBeCloseTo(73.22, 2);
   });
 
   it('lists (1 1 0) and (1 -1 -1) among the planes containing [1 -1 2] (u.n = 0 by hand), and no plane with u.n != 0', () => {
