@@ -156,6 +156,39 @@ program
   .action(run(() => import('./measureCommand.js'), 'measureCommand'));
 
 program
+  .command('traces')
+  .description('line direction u of a straight dislocation from its traces in two or more beam directions: u with its uncertainty, planes containing u, glide planes of candidate b, inclination from a projected length')
+  .argument('<material|scenario>', 'material name from `thinfoil materials`, or a scenario file (JSON) for its material, foil, conditions and candidates')
+  .option('--view <pairs>', 'one micrograph: "beam=U,V,W g=H,K,L gAngle=DEG lineAngle=DEG [error=DEG] [length=NM [lengthError=NM]]" or, with a scenario, "condition=ID lineAngle=DEG"; angles counter-clockwise from +x, +y down; repeat for each', collect, [])
+  .option('--angle-error <deg>', 'one-sigma error of each measured angle difference (line minus g), degrees (default 1)')
+  .option('--b <vector>', 'candidate Burgers vector for the glide planes, e.g. "1/2[1 1 0]" or a family "1/2<110>"; repeat for more (default: the scenario\'s candidates)', collect, [])
+  .option('--thickness <nm>', 'foil thickness for the projected-length check (default: the scenario\'s)')
+  .option('--thickness-error <nm>', 'one-sigma error of the thickness (default 0)')
+  .option('--normal <uvw>', 'foil normal as a crystal direction (default: the scenario\'s)')
+  .option('--json', 'one JSON object on stdout')
+  .action(run(() => import('./tracesCommand.js'), 'tracesCommand'));
+
+program
+  .command('ribbon')
+  .description('width of a dissociated dislocation from a weak-beam micrograph: peak separation across the line, corrected by simulating ribbons of several widths, and the stacking-fault energy it implies')
+  .argument('<scenario>', 'scenario file (JSON) with the "dissociated" defect (b, plane, line, depth) and the weak-beam condition')
+  .option('--micrograph <file>', 'the weak-beam micrograph (PNG or TIFF)')
+  .option('--condition <id>', 'the condition it was taken under (default: the scenario\'s only weak-beam condition)')
+  .option('--defect <index>', 'which defect (default: the first "dissociated" one)')
+  .option('--pixel-nm <nm>', 'pixel size (default: "micrographs".<id>.pixel_nm, else the TIFF/PNG resolution)')
+  .option('--line-angle <deg>', 'direction of the line on the micrograph, degrees counter-clockwise from +x, +y down')
+  .option('--g-angle <deg>', 'direction of g on the micrograph (instead of --line-angle: the line then follows from the scenario; default "micrographs".<id>.gAngle_deg)')
+  .option('--centre <x,y>', 'a point on the ribbon, pixels from the top-left corner (default: the image centre)')
+  .option('--half-width <nm>', 'the profile runs this far to either side of the line (default 15)')
+  .option('--window <nm>', 'only peaks within this distance of the centre count (default: the whole profile)')
+  .option('--bin-nm <nm>', 'bin width of the profile (default one pixel; less for an oblique line)')
+  .option('--blur-nm <nm>', 'Gaussian point spread (standard deviation) applied to the simulations (default 0)')
+  .option('--background-nm <nm>', 'a smooth background (Gaussian of this standard deviation) is removed from measured and simulated profiles before the peaks are picked (default 3; 0: none)')
+  .option('--field <df|bf>', 'df: bright peaks (weak-beam dark field, default); bf: dark peaks')
+  .option('--json', 'one JSON object on stdout')
+  .action(run(() => import('./ribbonCommand.js'), 'ribbonCommand'));
+
+program
   .command('explore')
   .description('a local page (127.0.0.1) where g, s or w, thickness, defect depth, Burgers vector and beams can be changed and the images follow')
   .argument('<scenario>', 'scenario file (JSON)')

@@ -319,7 +319,13 @@ function readPoint(v: unknown, path: string, thickness_nm: number): Vec3 {
 }
 
 function readCandidates(v: unknown, path: string, m: Material): CandidateSpec[] {
-  if (typeof v === 'string') return familyCandidates(v, path, m);
+  // a string is a family ("1/2<110>") or one explicit vector ("1/2[1 1 0]", "-1/6[1 1 -2]")
+  if (typeof v === 'string') {
+    if (/[<>{}]/.test(v)) return familyCandidates(v, path, m);
+    const b = readVector(v, path, m);
+    if (norm(b) === 0) fail(path, 'is zero; give a nonzero Burgers vector');
+    return [{ label: `b = ${candidateText(m, b)}`, b }];
+  }
   const o = object(v, path);
   onlyKeys(o, ['b', 'line', 'family', 'label'], path);
   if (o.family !== undefined) return familyCandidates(string(o.family, joinPath(path, 'family')), joinPath(path, 'family'), m);
