@@ -362,7 +362,8 @@ def make_case(rng, idx, out_dir, kind):
     else:  # a 1/2<110> vector left out of an explicit list
         j = int(rng.integers(6))
         b_true = B110[j] * (1 if rng.random() < 0.5 else -1)
-        candidates = [fmt_b(v) for i, v in enumerate(B110) if i != j]
+        # explicit vectors (thinfoil adds the opposite sign of each)
+        candidates = [{'b': fmt_b(v)} for i, v in enumerate(B110) if i != j]
     conds = choose_conditions(rng, b_true, kind == 'in')
     normal = np.array(NORMAL, dtype=float)
     while True:
@@ -428,7 +429,7 @@ def make_case(rng, idx, out_dir, kind):
         'image': {'width_px': size, 'height_px': size, 'pixel_nm': pixel},
         'absorption': ABSORPTION_RATIO, 'elasticity': 'isotropic',
         'conditions': scenario_conds,
-        'defects': [{'type': 'dislocation', 'b': '1/2[1 1 0]' if kind != 'out' else candidates[0], 'line': [int(c) for c in line], 'point_nm': [0, 0, depth_nom]}],
+        'defects': [{'type': 'dislocation', 'b': '1/2[1 1 0]' if kind != 'out' else candidates[0]['b'], 'line': [int(c) for c in line], 'point_nm': [0, 0, depth_nom]}],
         'candidates': candidates,
         'micrographs': micro,
     }
