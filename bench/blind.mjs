@@ -20,7 +20,7 @@
  */
 import { spawn } from 'node:child_process';
 import { mkdtempSync, readFileSync, rmSync } from 'node:fs';
-import { tmpdir, availableParallelism } from 'node:os';
+import { tmpdir, availableParallelism, loadavg } from 'node:os';
 import { join } from 'node:path';
 
 const ROOT = join(import.meta.dirname, '..');
@@ -39,6 +39,18 @@ export function labelVector(label) {
   if (m === null) return null;
   const f = m[1] === undefined ? 1 : Number(m[1]) / Number(m[2]);
   return [m[3], m[4], m[5]].map((x) => f * Number(x));
+}
+
+/** CPU seconds of this process's ended children (Linux /proc; clock ticks of 1/100 s), or undefined. */
+function childCpuSeconds() {
+  try {
+    const stat = readFileSync('/proc/self/stat', 'utf8');
+    const fields = stat.slice(stat.lastIndexOf(')') + 2).split(' ');
+    // fields from the state (3rd field of stat): cutime is the 16th field, cstime the 17th
+    return (Number(fields[13]) + Number(fields[14])) / 100;
+  } catch {
+    return undefined;
+  }
 }
 
 const same = (a, b) => a !== null && b !== null && a.every((x, i) => Math.abs(x - b[i]) < 1e-9);
@@ -64,6 +76,7 @@ export async function runBlind({ cases, jobs }) {
   if (cases && chosen.length !== cases.length) throw new Error(`unknown case in ${cases.join(',')}`);
   const tmp = mkdtempSync(join(tmpdir(), 'thinfoil-blind-'));
   const t0 = performance.now();
+  const cpu0 = childCpuSeconds();
   const results = new Array(chosen.length);
   let next = 0;
   const worker = async () => {
@@ -100,6 +113,8 @@ export async function runBlind({ cases, jobs }) {
     rmSync(tmp, { recursive: true, force: true });
   }
   const seconds = (performance.now() - t0) / 1000;
+  const cpu1 = childCpuSeconds();
+  const cpuSeconds = cpu0 === undefined || cpu1 === undefined ? undefined : cpu1 - cpu0;
   const inList = results.filter((r) => r.inList);
   const top1 = inList.filter((r) => r.topCorrect).length;
   const wrong = results.filter((r) => r.wrongIdentified || r.error).length;
@@ -116,6 +131,8 @@ export async function runBlind({ cases, jobs }) {
     outsideListNamed: outsideNamed,
     errors,
     seconds,
+    cpuSeconds,
+    loadAverage: loadavg()[0],
   };
   const pass = summary.top1Accuracy >= MIN_TOP1 && summary.wrongIdentified === 0 && outsideNamed === 0 && errors === 0;
   return { results, summary, pass };
@@ -146,7 +163,7 @@ async function main() {
         `"identified" verdicts: ${s.identified} (${s.identifiedCorrect} correct, ${s.wrongIdentified} wrong; required 0 wrong)\n` +
         `cases with the true b outside the list named as identified: ${s.outsideListNamed} of ${s.cases - s.inList} (required 0)\n` +
         (s.errors ? `cases that failed to run: ${s.errors}\n` : '') +
-        `${s.cases} cases in ${s.seconds.toFixed(1)} s wall (${jobs} at a time)\n` +
+        `${s.cases} cases in ${s.seconds.toFixed(1)} s wall (${jobs} at a time)${s.cpuSeconds === undefined ? '' : `, ${s.cpuSeconds.toFixed(1)} CPU s in the identify processes`}; load average at the end ${s.loadAverage.toFixed(1)}\n` +
         `requirement ${pass ? 'MET' : 'NOT MET'}\n`,
     );
   }

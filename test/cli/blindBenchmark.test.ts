@@ -57,7 +57,7 @@ function expectRequirement(run: BlindRun): void {
 describe('blind benchmark (test/fixtures/blind, scripts/blind_micrographs.py)', () => {
   it('subset case04, case08, case05: true b ranked first where it is a candidate, no wrong "identified", b outside the list not named', () => {
     const run = blind(['case04', 'case08', 'case05']);
-    expect(run.results.map((r) => r.case)).toEqual(['case04', 'case08', 'case05']);
+    expect(run.results.map((r) => r.case)).toEqual(['case04', 'case05', 'case08']);
     expect(run.results.filter((r) => !r.inList).length).toBe(1);
     expectRequirement(run);
   });
