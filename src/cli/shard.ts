@@ -7,9 +7,9 @@
  * run as one run would.
  *
  * The fingerprint is a SHA-256 over the kind of run, the program version,
- * the bytes of the scenario and micrograph files, the micrograph arguments
- * and the options that shape the result; shards of different inputs or
- * options cannot be merged.
+ * the bytes of the scenario and micrograph files, the micrographs' condition
+ * ids in order and the options that shape the result; shards of different
+ * inputs or options cannot be merged.
  */
 import { createHash } from 'node:crypto';
 import { join, resolve } from 'node:path';
@@ -92,8 +92,14 @@ export interface ShardManifest {
   readonly seconds: number;
 }
 
+/**
+ * The inputs' contents (not their paths: tasks may name the same files differently) and the options; merge
+ * reads the inputs by the paths of the first shard.
+ */
 export function fingerprint(kind: string, scenario: ShardInput, micrographs: ShardManifest['micrographs'], options: Record<string, unknown>): string {
-  return sha256(JSON.stringify({ kind, version: PROGRAM_VERSION, scenario, micrographs, options }));
+  return sha256(
+    JSON.stringify({ kind, version: PROGRAM_VERSION, scenario: scenario.sha256, micrographs: micrographs.map((m) => ({ conditionId: m.conditionId, sha256: m.sha256 })), options }),
+  );
 }
 
 /** Packs typed arrays into one byte buffer (8-byte aligned) with their ranges. */
