@@ -70,11 +70,12 @@ function identify(caseDir, outDir) {
   });
 }
 
-export async function runBlind({ cases, jobs }) {
+export async function runBlind({ cases, jobs, keep }) {
   const truth = JSON.parse(readFileSync(join(FIXTURES, 'truth.json'), 'utf8'));
   const chosen = cases ? truth.cases.filter((c) => cases.includes(c.case)) : truth.cases;
   if (cases && chosen.length !== cases.length) throw new Error(`unknown case in ${cases.join(',')}`);
-  const tmp = mkdtempSync(join(tmpdir(), 'thinfoil-blind-'));
+  // --keep DIR: the identify outputs (identify.json, figure, report) of every case stay in DIR/<case>
+  const tmp = keep ?? mkdtempSync(join(tmpdir(), 'thinfoil-blind-'));
   const t0 = performance.now();
   const cpu0 = childCpuSeconds();
   const results = new Array(chosen.length);
@@ -110,7 +111,7 @@ export async function runBlind({ cases, jobs }) {
   try {
     await Promise.all(Array.from({ length: Math.max(1, jobs) }, worker));
   } finally {
-    rmSync(tmp, { recursive: true, force: true });
+    if (keep === undefined) rmSync(tmp, { recursive: true, force: true });
   }
   const seconds = (performance.now() - t0) / 1000;
   const cpu1 = childCpuSeconds();
@@ -141,7 +142,7 @@ export async function runBlind({ cases, jobs }) {
 async function main() {
   const cases = argValue('--cases')?.split(',');
   const jobs = Number(argValue('--jobs') ?? Math.min(2, availableParallelism()));
-  const { results, summary, pass } = await runBlind({ cases, jobs });
+  const { results, summary, pass } = await runBlind({ cases, jobs, keep: argValue('--keep') });
   if (process.argv.includes('--json')) {
     process.stdout.write(`${JSON.stringify({ results, summary, pass })}\n`);
   } else {
