@@ -15,7 +15,7 @@
  *  4. bootstrap the leaders' scores for the verdict.
  */
 import type { Scenario } from '../scenario/types.js';
-import { InputError } from '../errors.js';
+import { InputError, InternalError } from '../errors.js';
 import type { ConditionImages } from '../imaging/renderScenario.js';
 import { identificationCandidates, variantScenario, visibilityNote, type Candidate, type VisibilityNote } from './candidates.js';
 import { conditionView } from './identifyView.js';
@@ -44,6 +44,11 @@ export interface IdentifyOptions {
   readonly amplitudeSpread?: number;
   readonly registration?: RegistrationOptions;
   readonly onProgress?: (message: string, fraction: number) => void;
+  /**
+   * Simulations made beforehand, [candidate][micrograph] in the order of identificationCandidates and of the
+   * micrographs (the shards of a cluster run, merged; see simulateCandidates): used instead of rendering.
+   */
+  readonly simulations?: readonly (readonly Float64Array[])[];
 }
 
 export interface ConditionScore {
@@ -108,20 +113,10 @@ export async function identify(sc: Scenario, micrographs: readonly PreparedMicro
   const nC = micrographs.length;
   const linear = micrographs.map((m) => m.settings.intensity === 'linear');
 
-  // 1. simulations in each micrograph's view
+  // 1. simulations in each micrograph's view (the only work per candidate: shards split it)
   const t0 = performance.now();
-  const sims: Float64Array[][] = [];
-  let done = 0;
-  for (const cand of candidates) {
-    const vsc = variantScenario(sc, cand);
-    const row: Float64Array[] = [];
-    for (const m of micrographs) {
-      progress(`simulating ${cand.label} under ${m.conditionId}`, done / (candidates.length * nC));
-      row.push(await simulateView(vsc, m, render));
-      done++;
-    }
-    sims.push(row);
-  }
+  const sims = opts.simulations ?? (await simulateCandidates(sc, micrographs, render, candidates.map((_, k) => k), defectIndex, progress));
+  if (sims.length !== candidates.length || sims.some((row) => row.length !== nC)) throw new InternalError('identify: simulations do not match the candidates and micrographs');
   const t1 = performance.now();
 
   // 2. shift-only registration of everything
@@ -221,6 +216,37 @@ export async function identify(sc: Scenario, micrographs: readonly PreparedMicro
     settings: { top, bootstrap: B, seed, sigmas, amplitudeSpread: spread },
     seconds: { render: (t1 - t0) / 1000, register: (t2 - t1) / 1000, bootstrap: (t3 - t2) / 1000 },
   };
+}
+
+/**
+ * Step 1 of identify for the candidates with the given indices (into
+ * identificationCandidates(sc, defectIndex)): their simulations in every
+ * micrograph's view, [candidate][micrograph]. A shard of a cluster run calls
+ * it for its share of the candidates; identify for all of them.
+ */
+export async function simulateCandidates(
+  sc: Scenario,
+  micrographs: readonly PreparedMicrograph[],
+  render: Renderer,
+  indices: readonly number[],
+  defectIndex = 0,
+  progress: (message: string, fraction: number) => void = () => undefined,
+): Promise<Float64Array[][]> {
+  const candidates = identificationCandidates(sc, defectIndex);
+  const sims: Float64Array[][] = [];
+  let done = 0;
+  for (const k of indices) {
+    const cand = candidates[k];
+    const vsc = variantScenario(sc, cand);
+    const row: Float64Array[] = [];
+    for (const m of micrographs) {
+      progress(`simulating ${cand.label} under ${m.conditionId}`, done / (indices.length * micrographs.length));
+      row.push(await simulateView(vsc, m, render));
+      done++;
+    }
+    sims.push(row);
+  }
+  return sims;
 }
 
 /**

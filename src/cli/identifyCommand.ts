@@ -25,7 +25,25 @@ import { OutputSet } from '../output/outputSet.js';
 import { progressBar } from './progress.js';
 import { printJson, sig, table } from './run.js';
 import { slug } from './slug.js';
-import { readScenarioJson } from './loadScenario.js';
+import { readScenarioBytes, scenarioJsonOf } from './loadScenario.js';
+import { identificationCandidates } from '../analysis/candidates.js';
+import { simulateCandidates } from '../analysis/identify.js';
+import { InternalError } from '../errors.js';
+import {
+  fingerprint,
+  parseShard,
+  readArray,
+  sha256,
+  shardItems,
+  ShardData,
+  SHARD_DATA,
+  SHARD_FORMAT,
+  SHARD_MANIFEST,
+  printShard,
+  type LoadedShard,
+  type ShardInput,
+  type ShardManifest,
+} from './shard.js';
 import { conditionGeometry } from '../geometry/conditionGeometry.js';
 import { formatPlaneIn } from '../crystal/formatIndices.js';
 import type { Lattice } from '../crystal/lattice.js';
@@ -43,6 +61,8 @@ export interface IdentifyCommandOptions {
   progressJson?: boolean;
   /** Render threads (default: all cores). */
   threads?: number;
+  /** "k/n": simulate only the k-th of n shares of the candidates and write them for `thinfoil merge` (src/cli/shard.ts). */
+  shard?: string;
 }
 
 /** Largest --bootstrap (1000 copies estimate a standard deviation to a few per cent: common practice). */
@@ -65,9 +85,10 @@ function intOption(name: string, v: string | number | undefined, lo: number, hi:
   return n;
 }
 
-function readMicrograph(arg: string): MicrographInput {
+/** A micrograph argument read and decoded; `base`: the folder relative paths are read from (merge: the shards' folder). */
+function readMicrograph(arg: string, base?: string): MicrographInput & { sha256: string } {
   const { conditionId, file } = parseMicrographArgument(arg);
-  const bytes = readInputFile(file, 'micrograph file', MAX_FILE_BYTES, ` for ${excerpt(conditionId, 40)}`);
+  const bytes = readInputFile(base === undefined ? file : resolve(base, file), 'micrograph file', MAX_FILE_BYTES, ` for ${excerpt(conditionId, 40)}`);
   const img = decodeImage(bytes, `micrograph file "${excerpt(file, 80)}"`);
   return {
     conditionId,
@@ -75,6 +96,7 @@ function readMicrograph(arg: string): MicrographInput {
     ...(img.pixel_nm === undefined ? {} : { filePixel_nm: img.pixel_nm }),
     source: file,
     synthetic: isSyntheticName(file),
+    sha256: sha256(bytes),
   };
 }
 
@@ -84,9 +106,20 @@ export interface IdentifyOutput {
   readonly files: { readonly figurePng: string; readonly figureSvg: string; readonly report: string; readonly json: string };
 }
 
-/** The whole command without printing; returns what it wrote. */
-export async function runIdentify(scenarioFile: string, opts: IdentifyCommandOptions, onProgress?: (message: string, fraction: number) => void): Promise<IdentifyOutput> {
-  const raw = readScenarioJson(scenarioFile);
+/** Everything identify needs before simulating: the scenario, the prepared micrographs, the options, and the inputs' hashes (for shards). */
+interface PreparedIdentify {
+  readonly sc: ReturnType<typeof parseScenario>;
+  readonly micrographs: ReturnType<typeof prepareMicrographs>;
+  readonly options: { readonly defectIndex: number; readonly top: number; readonly bootstrap: number; readonly seed: number };
+  readonly scenarioInput: ShardInput;
+  readonly micrographInputs: (ShardInput & { readonly conditionId: string })[];
+  /** The input files (refused inside the output folder). */
+  readonly files: string[];
+}
+
+function prepareIdentify(scenarioFile: string, opts: IdentifyCommandOptions, base?: string): PreparedIdentify {
+  const bytes = readScenarioBytes(base === undefined ? scenarioFile : resolve(base, scenarioFile));
+  const raw = scenarioJsonOf(bytes, scenarioFile);
   const { [MICROGRAPHS_KEY]: micrographsRaw, ...rest } = raw;
   const sc = parseScenario(rest);
   const settings = parseMicrographSettings(micrographsRaw, sc.conditions.map((c) => c.id));
@@ -95,7 +128,7 @@ export async function runIdentify(scenarioFile: string, opts: IdentifyCommandOpt
   const top = intOption('--top', opts.top, 1, 8, 4);
   const B = intOption('--bootstrap', opts.bootstrap, 0, MAX_BOOTSTRAP, 50);
   const seed = intOption('--seed', opts.seed, 0, 2 ** 31 - 1, 1);
-  const inputs = args.map(readMicrograph);
+  const inputs = args.map((a) => readMicrograph(a, base));
   // the direction of g on a micrograph cannot be guessed: a wrong angle ranks the wrong candidate first
   for (const m of inputs) {
     if (sc.conditions.some((c) => c.id === m.conditionId) && settings.get(m.conditionId)?.gAngle_deg === undefined) {
@@ -114,17 +147,127 @@ export async function runIdentify(scenarioFile: string, opts: IdentifyCommandOpt
       );
     }
   }
-  const dir = opts.out ?? join('out', `${slug(sc.name)}-identify`);
+  return {
+    sc,
+    micrographs,
+    options: { defectIndex, top, bootstrap: B, seed },
+    scenarioInput: { path: scenarioFile, sha256: sha256(bytes) },
+    micrographInputs: inputs.map((m) => ({ conditionId: m.conditionId, path: m.source, sha256: m.sha256 })),
+    files: [scenarioFile, ...inputs.map((m) => m.source)].map((f) => (base === undefined ? f : resolve(base, f))),
+  };
+}
+
+/** The whole command without printing; returns what it wrote. */
+export async function runIdentify(scenarioFile: string, opts: IdentifyCommandOptions, onProgress?: (message: string, fraction: number) => void): Promise<IdentifyOutput> {
+  const p = prepareIdentify(scenarioFile, opts);
+  const dir = opts.out ?? join('out', `${slug(p.sc.name)}-identify`);
+  return identifyPrepared(p, dir, opts.threads, onProgress);
+}
+
+async function identifyPrepared(
+  p: PreparedIdentify,
+  dir: string,
+  threads: number | undefined,
+  onProgress?: (message: string, fraction: number) => void,
+  merged?: { simulations: Float64Array[][]; renderSeconds: number },
+): Promise<IdentifyOutput> {
   // checked before the work: the inputs must not lie in the folder this run replaces
-  const set = OutputSet.begin(dir, { inputs: [scenarioFile, ...inputs.map((m) => m.source)] });
+  const set = OutputSet.begin(dir, { inputs: p.files });
   try {
-    const out = await identifyInto(set, scenarioFile, sc, micrographs, { defectIndex, top, bootstrap: B, seed }, opts.threads, onProgress);
+    const out = await identifyInto(set, p.scenarioInput.path, p.sc, p.micrographs, p.options, threads, onProgress, merged);
     set.commit();
     return out;
   } catch (e) {
     set.abort();
     throw e;
   }
+}
+
+/** Candidates of one shard: simulations only, written as shard.json and shard.bin for `thinfoil merge`. */
+export async function runIdentifyShard(
+  scenarioFile: string,
+  opts: IdentifyCommandOptions & { shard: string },
+  onProgress?: (message: string, fraction: number) => void,
+): Promise<{ dir: string; manifest: ShardManifest }> {
+  const shard = parseShard(opts.shard);
+  const p = prepareIdentify(scenarioFile, opts);
+  const candidates = identificationCandidates(p.sc, p.options.defectIndex);
+  const mine = shardItems(candidates.length, shard);
+  const dir = opts.out ?? join('out', `${slug(p.sc.name)}-identify-shard-${shard.index}-of-${shard.count}`);
+  const set = OutputSet.begin(dir, { inputs: p.files });
+  try {
+    const pool = createRenderPool(opts.threads);
+    const t0 = performance.now();
+    let sims: Float64Array[][];
+    try {
+      sims = await simulateCandidates(p.sc, p.micrographs, (s) => renderScenario(s, pool), mine, p.options.defectIndex, onProgress);
+    } finally {
+      await pool.close();
+    }
+    const seconds = (performance.now() - t0) / 1000;
+    const data = new ShardData();
+    const items = mine.map((k, j) => ({ index: k, label: candidates[k].label, arrays: sims[j].map((a) => data.add(a)) }));
+    const bytes = data.toBytes();
+    const manifest: ShardManifest = {
+      format: SHARD_FORMAT,
+      kind: 'identify',
+      shard,
+      fingerprint: fingerprint('identify', p.scenarioInput, p.micrographInputs, p.options),
+      cwd: process.cwd(),
+      scenario: p.scenarioInput,
+      micrographs: p.micrographInputs,
+      options: p.options,
+      total: candidates.length,
+      items,
+      dataBytes: bytes.length,
+      dataSha256: sha256(bytes),
+      seconds,
+    };
+    set.write(SHARD_DATA, bytes);
+    set.write(SHARD_MANIFEST, `${jsonText(manifest, 2)}\n`);
+    set.commit();
+    return { dir: set.dir, manifest };
+  } catch (e) {
+    set.abort();
+    throw e;
+  }
+}
+
+/**
+ * `thinfoil merge` of identify shards: the scenario and micrographs are read
+ * again (they must hold the bytes the shards were made from), the shards'
+ * simulations take the place of rendering, and registration, ranking,
+ * bootstrap and verdict run over all candidates as in one run.
+ */
+export async function mergeIdentify(shards: readonly LoadedShard[], out: string | undefined, threads: number | undefined, onProgress?: (message: string, fraction: number) => void): Promise<IdentifyOutput> {
+  const m0 = shards[0].manifest;
+  const o = m0.options as PreparedIdentify['options'];
+  const opts: IdentifyCommandOptions = { micrograph: m0.micrographs.map((m) => `${m.conditionId}=${m.path}`), defect: o.defectIndex, top: o.top, bootstrap: o.bootstrap, seed: o.seed };
+  const p = prepareIdentify(m0.scenario.path, opts, m0.cwd);
+  const changed = [p.scenarioInput, ...p.micrographInputs].find((x, i) => x.sha256 !== [m0.scenario, ...m0.micrographs][i].sha256);
+  if (changed !== undefined) throw new InputError(`input file "${excerpt(changed.path, 80)}" has changed since the shards were made; restore it or run the shards again`);
+  const candidates = identificationCandidates(p.sc, p.options.defectIndex);
+  if (m0.total !== candidates.length) throw new InternalError('merge: the shards list another number of candidates than the scenario gives');
+  const sims: (Float64Array[] | undefined)[] = candidates.map(() => undefined);
+  for (const s of shards) {
+    const expected = shardItems(candidates.length, s.manifest.shard);
+    if (s.manifest.items.length !== expected.length || s.manifest.items.some((it, j) => it.index !== expected[j] || it.label !== candidates[it.index].label)) {
+      throw new InputError(`shard "${excerpt(s.dir, 60)}" does not hold the candidates its number says; run shard ${s.manifest.shard.index}/${s.manifest.shard.count} again`);
+    }
+    for (const it of s.manifest.items) {
+      sims[it.index] = it.arrays.map((r, i) => {
+        const a = readArray(s.data, r, `shard "${excerpt(s.dir, 60)}"`);
+        const mg = p.micrographs[i];
+        if (!(a instanceof Float64Array) || mg === undefined || a.length !== (mg.width + 2 * mg.margin) * (mg.height + 2 * mg.margin)) {
+          throw new InputError(`shard "${excerpt(s.dir, 60)}": a simulation does not have the size of its micrograph; run shard ${s.manifest.shard.index}/${s.manifest.shard.count} again`);
+        }
+        return a;
+      });
+    }
+  }
+  const renderSeconds = shards.reduce((t, s) => t + s.manifest.seconds, 0);
+  const dir = out ?? join('out', `${slug(p.sc.name)}-identify`);
+  return identifyPrepared(p, dir, threads, onProgress, { simulations: sims as Float64Array[][], renderSeconds });
 }
 
 async function identifyInto(
@@ -135,22 +278,35 @@ async function identifyInto(
   o: { defectIndex: number; top: number; bootstrap: number; seed: number },
   threads: number | undefined,
   onProgress?: (message: string, fraction: number) => void,
+  merged?: { simulations: Float64Array[][]; renderSeconds: number },
 ): Promise<IdentifyOutput> {
   const { defectIndex, top, bootstrap: B, seed } = o;
 
-  const pool = createRenderPool(threads);
+  // merging shards renders nothing: no worker pool
+  const pool = merged === undefined ? createRenderPool(threads) : undefined;
   let result: IdentifyResult;
   try {
-    result = await identify(sc, micrographs, (s) => renderScenario(s, pool), {
-      defectIndex,
-      top,
-      bootstrap: B,
-      seed,
-      ...(onProgress ? { onProgress } : {}),
-    });
+    result = await identify(
+      sc,
+      micrographs,
+      (s) => {
+        if (pool === undefined) throw new InternalError('identify: a merge of shards asked for a new simulation');
+        return renderScenario(s, pool);
+      },
+      {
+        defectIndex,
+        top,
+        bootstrap: B,
+        seed,
+        ...(onProgress ? { onProgress } : {}),
+        ...(merged ? { simulations: merged.simulations } : {}),
+      },
+    );
   } finally {
-    await pool.close();
+    await pool?.close();
   }
+  // the render time of a merged run is the shards' (summed)
+  if (merged) result = { ...result, seconds: { ...result.seconds, render: merged.renderSeconds } };
 
   const fig = comparisonFigure(comparisonFigureData(result));
   const files = {
@@ -240,14 +396,30 @@ function identifyGeometry(lattice: Lattice, m: IdentifyResult['micrographs'][num
 
 export async function identifyCommand(scenarioFile: string, opts: IdentifyCommandOptions): Promise<void> {
   const bar = progressBar({ jsonLines: opts.progressJson === true });
+  const update = (msg: string, f: number) => bar.update(msg.length > 48 ? `${msg.slice(0, 45)}...` : msg, f);
+  if (opts.shard !== undefined) {
+    let shard: Awaited<ReturnType<typeof runIdentifyShard>>;
+    try {
+      shard = await runIdentifyShard(scenarioFile, { ...opts, shard: opts.shard }, update);
+    } finally {
+      bar.done();
+    }
+    printShard(shard.dir, shard.manifest, opts.json === true);
+    return;
+  }
   let out: IdentifyOutput;
   try {
-    out = await runIdentify(scenarioFile, opts, (msg, f) => bar.update(msg.length > 48 ? `${msg.slice(0, 45)}...` : msg, f));
+    out = await runIdentify(scenarioFile, opts, update);
   } finally {
     bar.done();
   }
+  printIdentify(out, opts.json === true);
+}
+
+/** What identify (and merge of identify shards) prints. */
+export function printIdentify(out: IdentifyOutput, json: boolean): void {
   const { result: res, files, dir } = out;
-  if (opts.json) {
+  if (json) {
     const j = resultJson(res, files);
     printJson({ ranking: j.ranking.map(({ candidate, score, perCondition }) => ({ candidate, score, perCondition })), verdict: j.verdict, synthetic: j.synthetic, files });
     return;

@@ -67,6 +67,7 @@ program
   .option('--json', 'one JSON object on stdout listing the images')
   .option('--progress-json', 'progress as JSON lines {"progress", "stage"} on stderr (a bar is drawn on a terminal otherwise)')
   .option('--each-column', 'integrate every column on its own, also where straight defects let columns share one long column (slower; for checking)')
+  .option('--shard <k/n>', 'render only conditions k, k+n, k+2n, ... (the k-th of n shares, k from 1) into shard files for `thinfoil merge`')
   .action(run(() => import('./renderCommand.js'), 'renderCommand'));
 
 program
@@ -111,8 +112,18 @@ program
   .option('--top <n>', 'leading candidates fully registered, resampled and shown (default 4)')
   .option('--bootstrap <n>', 'bootstrap copies for the noise of the scores (default 50)')
   .option('--seed <n>', 'seed of the bootstrap (default 1)')
+  .option('--shard <k/n>', 'simulate only candidates k, k+n, k+2n, ... (the k-th of n shares, k from 1) into shard files for `thinfoil merge`')
   .option('--progress-json', 'progress as JSON lines {"progress", "stage"} on stderr (a bar is drawn on a terminal otherwise)')
   .action(run(() => import('./identifyCommand.js'), 'identifyCommand'));
+
+program
+  .command('merge')
+  .description('combine the output folders of the n shards of one `identify --shard k/n` or `render --shard k/n` run into the output of one run')
+  .argument('<dirs...>', 'the output folders of all n shards (any order)')
+  .option('--out <dir>', 'output folder (default: as the run without --shard)')
+  .option('--json', 'one JSON object on stdout, as the run without --shard prints it')
+  .option('--progress-json', 'progress as JSON lines {"progress", "stage"} on stderr (a bar is drawn on a terminal otherwise)')
+  .action(run(() => import('./mergeCommand.js'), 'mergeCommand'));
 
 program
   .command('plan')

@@ -1,6 +1,6 @@
 /** `thinfoil render <scenario>`: bright- and dark-field images of every condition. */
 import { jsonText } from '../output/json.js';
-import { join } from 'node:path';
+import { join, resolve } from 'node:path';
 import type { Scenario } from '../scenario/types.js';
 import { InputError } from '../errors.js';
 import { renderScenario, type ConditionImages } from '../imaging/renderScenario.js';
@@ -8,7 +8,12 @@ import { createRenderPool } from '../imaging/workerPool.js';
 import { writeConditionImages, type ImageEntry } from '../output/imageFiles.js';
 import { OutputSet } from '../output/outputSet.js';
 import { encodeGreyPng } from '../output/png.js';
-import { loadScenario, warnAbout } from './loadScenario.js';
+import { loadScenario, readScenarioBytes, scenarioJsonOf, warnAbout } from './loadScenario.js';
+import { parseScenario } from '../scenario/parse.js';
+import { resolveCondition } from '../imaging/resolveCondition.js';
+import { excerpt, InternalError } from '../errors.js';
+import { MAX_SCENARIO_BYTES } from './readInput.js';
+import { fingerprint, parseShard, printShard, readArray, readRecordedInput, sha256, shardItems, ShardData, SHARD_DATA, SHARD_FORMAT, SHARD_MANIFEST, type LoadedShard, type ShardManifest } from './shard.js';
 import { slug } from './slug.js';
 import { printJson, sig, table } from './run.js';
 import { progressBar } from './progress.js';
@@ -27,6 +32,8 @@ export interface RenderOptions {
   blurNm?: number;
   /** Integrate every column on its own (no translation method). */
   eachColumn?: boolean;
+  /** "k/n": render only the k-th of n shares of the conditions and write them for `thinfoil merge` (src/cli/shard.ts). */
+  shard?: string;
 }
 
 /** How the images are shown and blurred (render and demo). */
@@ -53,18 +60,39 @@ export async function renderAndWrite(
   warnings: readonly string[] = [],
   opts: ImageOptions = DEFAULT_IMAGE_OPTIONS,
 ): Promise<{ images: ConditionImages[]; entries: ImageEntry[]; figures: string[]; seconds: number }> {
+  const t0 = performance.now();
+  const raw = await renderImages(sc, showProgress, opts);
+  return writeRenderSet(sc, set, raw, warnings, opts, (performance.now() - t0) / 1000);
+}
+
+/** The unblurred images of every condition of `sc` (a shard passes a scenario holding only its conditions). */
+async function renderImages(sc: Scenario, showProgress: boolean | Parameters<typeof progressBar>[0], opts: ImageOptions): Promise<ConditionImages[]> {
   const bar = progressBar(showProgress);
   const pool = createRenderPool();
-  const t0 = performance.now();
-  let images: ConditionImages[];
   try {
-    images = await renderScenario(sc, pool, (i, d, t) => bar.update(`rendering ${sc.conditions[i].id} (${i + 1}/${sc.conditions.length})`, d / t), undefined, opts.shareColumns !== false);
+    return await renderScenario(sc, pool, (i, d, t) => bar.update(`rendering ${sc.conditions[i].id} (${i + 1}/${sc.conditions.length})`, d / t), undefined, opts.shareColumns !== false);
   } finally {
     bar.done();
     await pool.close();
   }
-  if (opts.blur_nm > 0) images = blurImages(images, opts.blur_nm);
-  const seconds = (performance.now() - t0) / 1000;
+}
+
+/**
+ * The output set of a render from its unblurred images (of all conditions):
+ * point spread, PNG/TIFF, figures, contact sheet, core masks, render.json.
+ * `seconds` is the render time reported back (merge: the shards' sum).
+ */
+function writeRenderSet(
+  sc: Scenario,
+  set: OutputSet,
+  raw: ConditionImages[],
+  warnings: readonly string[],
+  opts: ImageOptions,
+  renderSeconds: number,
+): { images: ConditionImages[]; entries: ImageEntry[]; figures: string[]; seconds: number } {
+  const t0 = performance.now();
+  const images = opts.blur_nm > 0 ? blurImages(raw, opts.blur_nm) : raw;
+  const seconds = renderSeconds + (performance.now() - t0) / 1000;
   const entries = writeConditionImages((name, data) => set.write(name, data), images, sc.name);
   const geometries = images.map((ci) => conditionGeometry(sc.material.lattice, ci.condition.frame, ci.condition.g_cart));
   const { windows, scales } = displayWindows(images, opts.contrast);
@@ -175,7 +203,16 @@ export function costWarning(sc: Scenario): string | undefined {
   return undefined;
 }
 
+function imageOptionsOf(opts: RenderOptions): ImageOptions {
+  return { contrast: opts.contrast ?? 'shared', blur_nm: opts.blurNm ?? 0, shareColumns: opts.eachColumn !== true };
+}
+
 export async function renderCommand(file: string, opts: RenderOptions): Promise<void> {
+  if (opts.shard !== undefined) {
+    const { dir, manifest } = await renderShard(file, { ...opts, shard: opts.shard });
+    printShard(dir, manifest, opts.json === true);
+    return;
+  }
   const sc = loadScenario(file);
   const cost = costWarning(sc);
   const warnings = warnAbout(sc, cost === undefined ? [] : [cost]);
@@ -183,14 +220,125 @@ export async function renderCommand(file: string, opts: RenderOptions): Promise<
   const set = OutputSet.begin(dir, { inputs: [file] });
   let result: Awaited<ReturnType<typeof renderAndWrite>>;
   try {
-    result = await renderAndWrite(sc, set, { jsonLines: opts.progressJson === true }, warnings, { contrast: opts.contrast ?? 'shared', blur_nm: opts.blurNm ?? 0, shareColumns: opts.eachColumn !== true });
+    result = await renderAndWrite(sc, set, { jsonLines: opts.progressJson === true }, warnings, imageOptionsOf(opts));
     set.commit();
   } catch (e) {
     set.abort();
     throw e;
   }
+  printRender(sc, dir, result, warnings, opts.json === true);
+}
+
+/** The options of a render that shape its output (the fingerprint of its shards). */
+function renderShardOptions(opts: RenderOptions): Record<string, unknown> {
+  return { contrast: opts.contrast ?? 'shared', blurNm: opts.blurNm ?? 0, eachColumn: opts.eachColumn === true };
+}
+
+/** One shard of a render: the unblurred images of its conditions, written as shard.json and shard.bin for `thinfoil merge`. */
+export async function renderShard(file: string, opts: RenderOptions & { shard: string }): Promise<{ dir: string; manifest: ShardManifest }> {
+  const shard = parseShard(opts.shard);
+  const bytes = readScenarioBytes(file);
+  const sc = parseScenario(scenarioJsonOf(bytes, file));
+  const cost = costWarning(sc);
+  warnAbout(sc, cost === undefined ? [] : [cost]);
+  const mine = shardItems(sc.conditions.length, shard);
+  const dir = opts.out ?? join('out', `${slug(sc.name)}-shard-${shard.index}-of-${shard.count}`);
+  const set = OutputSet.begin(dir, { inputs: [file] });
+  try {
+    const t0 = performance.now();
+    const images = await renderImages({ ...sc, conditions: mine.map((i) => sc.conditions[i]) }, { jsonLines: opts.progressJson === true }, imageOptionsOf(opts));
+    const seconds = (performance.now() - t0) / 1000;
+    const data = new ShardData();
+    const items = images.map((ci, j) => ({
+      index: mine[j],
+      label: ci.condition.id,
+      arrays: [data.add(ci.bf), data.add(ci.df), data.add(ci.coreMask)],
+      extra: { width: ci.width, height: ci.height, pixel_nm: ci.pixel_nm, background: ci.background, slices: ci.slices },
+    }));
+    const out = data.toBytes();
+    const scenario = { path: file, sha256: sha256(bytes) };
+    const options = renderShardOptions(opts);
+    const manifest: ShardManifest = {
+      format: SHARD_FORMAT,
+      kind: 'render',
+      shard,
+      fingerprint: fingerprint('render', scenario, [], options),
+      cwd: process.cwd(),
+      scenario,
+      micrographs: [],
+      options,
+      total: sc.conditions.length,
+      items,
+      dataBytes: out.length,
+      dataSha256: sha256(out),
+      seconds,
+    };
+    set.write(SHARD_DATA, out);
+    set.write(SHARD_MANIFEST, `${jsonText(manifest, 2)}\n`);
+    set.commit();
+    return { dir: set.dir, manifest };
+  } catch (e) {
+    set.abort();
+    throw e;
+  }
+}
+
+/** `thinfoil merge` of render shards: the output set one render of the scenario would write. */
+export async function mergeRender(shards: readonly LoadedShard[], out: string | undefined, json: boolean): Promise<void> {
+  const m0 = shards[0].manifest;
+  const bytes = readRecordedInput(m0.cwd, m0.scenario, 'scenario file', MAX_SCENARIO_BYTES);
+  const sc = parseScenario(scenarioJsonOf(bytes, m0.scenario.path));
+  if (m0.total !== sc.conditions.length) throw new InternalError('merge: the shards list another number of conditions than the scenario gives');
+  const o = m0.options as { contrast: ContrastMode; blurNm: number; eachColumn: boolean };
+  const opts = { contrast: o.contrast, blur_nm: o.blurNm, shareColumns: !o.eachColumn };
+  const images: (ConditionImages | undefined)[] = sc.conditions.map(() => undefined);
+  const n = sc.image.width_px * sc.image.height_px;
+  for (const s of shards) {
+    const expected = shardItems(sc.conditions.length, s.manifest.shard);
+    const where = `shard "${excerpt(s.dir, 60)}"`;
+    const again = `run shard ${s.manifest.shard.index}/${s.manifest.shard.count} again`;
+    if (s.manifest.items.length !== expected.length || s.manifest.items.some((it, j) => it.index !== expected[j] || it.label !== sc.conditions[it.index].id)) {
+      throw new InputError(`${where} does not hold the conditions its number says; ${again}`);
+    }
+    for (const it of s.manifest.items) {
+      const [bf, df, mask] = it.arrays.map((r) => readArray(s.data, r, where));
+      const x = it.extra as { background: { bf: number; df: number }; slices: number };
+      if (!(bf instanceof Float32Array) || !(df instanceof Float32Array) || !(mask instanceof Uint8Array) || bf.length !== n || df.length !== n || mask.length !== n) {
+        throw new InputError(`${where}: the images of ${it.label} do not have the scenario's size; ${again}`);
+      }
+      images[it.index] = {
+        condition: resolveCondition(sc, sc.conditions[it.index]),
+        width: sc.image.width_px,
+        height: sc.image.height_px,
+        pixel_nm: sc.image.pixel_nm,
+        bf,
+        df,
+        background: x.background,
+        slices: x.slices,
+        coreMask: mask,
+      };
+    }
+  }
+  const cost = costWarning(sc);
+  const warnings = warnAbout(sc, cost === undefined ? [] : [cost]);
+  const dir = out ?? join('out', slug(sc.name));
+  const set = OutputSet.begin(dir, { inputs: [resolve(m0.cwd, m0.scenario.path)] });
+  let result: ReturnType<typeof writeRenderSet>;
+  try {
+    const seconds = shards.reduce((t, s) => t + s.manifest.seconds, 0);
+    result = writeRenderSet(sc, set, images as ConditionImages[], warnings, opts, seconds);
+    set.commit();
+  } catch (e) {
+    set.abort();
+    throw e;
+  }
+  printRender(sc, dir, result, warnings, json);
+}
+
+/** What render (and merge of render shards) prints. */
+function printRender(sc: Scenario, dir: string, result: Awaited<ReturnType<typeof renderAndWrite>>, warnings: readonly string[], json: boolean): void {
   const { images, entries, figures, seconds } = result;
-  if (opts.json) {
+  if (json) {
     printJson({ images: entries.map(({ stretch, ...e }) => ({ ...e, stretch })), figures, warnings });
     return;
   }
