@@ -132,7 +132,7 @@ interface Work {
   dRdz: ((z: number, out3: Float64Array) => void) | null;
   /** statistics of the last integration */
   readonly stats: { accepted: number; rejected: number; evaluations: number };
-  /** ladder level the last march would have used next (propagateBlochN can start from it) */
+  /** ladder level the last march would have used next (stretchMatrixN can start from it) */
   lastLevel: number;
   /** step length whose phase table `custom` holds (NaN: none) */
   customH: number;
@@ -600,33 +600,6 @@ function integrate(
   return accepted;
 }
 
-/**
- * Propagates Bloch-wave amplitudes psi (interleaved [re, im] per wave, 2N,
- * in place) of a systematic row from depth a to depth b > a through
- * beta'(z), with the same stepping and tolerance as integrateColumnN (a fresh
- * first step at a, or the ladder level startLevel, e.g. the lastLevel of the
- * previous stretch). No faults. Returns the number of accepted steps. Used by
- * the translation method, which keeps the transfer matrices of stretches.
- */
-export function propagateBlochN(psi: Float64Array, sys: ColumnSystem, a: number, b: number, betaPrime: (z_nm: number) => number, tol: number, startLevel = -1): number {
-  if (sys.strainDim !== 1) throw new InternalError('this column system was prepared for a general beam set: propagateBlochN takes a systematic row.');
-  const n = sys.n;
-  const wk = sys.work;
-  for (let j = 0; j < n; j++) {
-    wk.ur[j] = psi[2 * j];
-    wk.ui[j] = psi[2 * j + 1];
-  }
-  wk.betaPrime = betaPrime;
-  wk.dRdz = null;
-  const accepted = march(sys, a, b, NO_JUMPS, 0, 2, tol, startLevel);
-  wk.betaPrime = null;
-  for (let j = 0; j < n; j++) {
-    psi[2 * j] = wk.ur[j];
-    psi[2 * j + 1] = wk.ui[j];
-  }
-  return accepted;
-}
-
 /** Steps the Bloch amplitudes in work.ur/ui from depth zStart to zStop, applying the jumps on the way. */
 function march(sys: ColumnSystem, zStart: number, zStop: number, jumps: Float64Array, nJumps: number, stride: 2 | 4, tol: number, startLevel = -1): number {
   const n = sys.n;
@@ -810,7 +783,7 @@ export function lastIntegrationStats(system: ColumnSystem): { accepted: number; 
   return { ...system.work.stats };
 }
 
-/** Work arrays of propagateBlochMatrixN (N x N, re and im apart): state, trial, 7 stages. */
+/** Work arrays of stretchMatrixN (N x N, re and im apart): state, trial, 7 stages. */
 interface MatrixWork {
   readonly ur: Float64Array;
   readonly ui: Float64Array;
@@ -818,6 +791,14 @@ interface MatrixWork {
   readonly yi: Float64Array;
   readonly kr: Float64Array[];
   readonly ki: Float64Array[];
+  /**
+   * Phase tables and rotated matrices of the last two step lengths off the ladder: the stretches of the
+   * translation method alternate between two lengths (window starts and ends D apart).
+   */
+  readonly slotH: Float64Array;
+  readonly slotTab: Float64Array[];
+  readonly slotRot: Float64Array[];
+  nextSlot: number;
 }
 const matrixWorks = new WeakMap<ColumnSystem, MatrixWork>();
 
@@ -825,7 +806,19 @@ function matrixWork(sys: ColumnSystem): MatrixWork {
   let w = matrixWorks.get(sys);
   if (w === undefined) {
     const f = (): Float64Array => new Float64Array(sys.n * sys.n);
-    w = { ur: f(), ui: f(), yr: f(), yi: f(), kr: Array.from({ length: 7 }, f), ki: Array.from({ length: 7 }, f) };
+    const n = sys.n;
+    w = {
+      ur: f(),
+      ui: f(),
+      yr: f(),
+      yi: f(),
+      kr: Array.from({ length: 7 }, f),
+      ki: Array.from({ length: 7 }, f),
+      slotH: Float64Array.of(NaN, NaN),
+      slotTab: [new Float64Array(20 * n), new Float64Array(20 * n)],
+      slotRot: [new Float64Array(10 * n * n), new Float64Array(10 * n * n)],
+      nextSlot: 0,
+    };
     matrixWorks.set(sys, w);
   }
   return w;
@@ -884,25 +877,28 @@ function rhsMatrix(sys: ColumnSystem, b: number, rot: Float64Array, s: number, y
 }
 
 /**
- * Propagates an N x N matrix of Bloch-wave amplitude columns (interleaved [re, im], row-major, in place:
- * U <- T(b, a) U) of a systematic row from depth a to depth b > a through beta'(z): every column with the
- * stepper of integrateColumnN, all columns on one step sequence (each step's error is the largest over the
- * columns, so each column meets tol). beta' is evaluated once per stage for all columns. startLevel as in
- * propagateBlochN; U's matrix starts at offset uo; the level the march would take next is left in sys.work.lastLevel. Returns the number of
- * accepted steps. Used by the translation method to build the transfer matrix of a stretch.
+ * The transfer matrix T(b, a) of a systematic row from depth a to depth b > a through beta'(z), in the
+ * Bloch-wave basis, into T at offset to (N x N, interleaved [re, im], row-major): column j is the unit
+ * Bloch amplitude vector e_j propagated by the stepper of integrateColumnN, all columns on one step
+ * sequence (each step's error is the largest over the columns, so each column meets tol). beta' is
+ * evaluated once per stage for all columns. startLevel: the ladder level of the first step (-1: a fresh
+ * first step, as the column path takes after a fault or breakpoint); the level the march would take next
+ * is left in sys.work.lastLevel. Returns the number of accepted steps. Used by the translation method for
+ * the matrix of a stretch.
  */
-export function propagateBlochMatrixN(U: Float64Array, sys: ColumnSystem, a: number, b: number, betaPrime: (z_nm: number) => number, tol: number, startLevel = -1, uo = 0): number {
-  if (sys.strainDim !== 1) throw new InternalError('this column system was prepared for a general beam set: propagateBlochMatrixN takes a systematic row.');
+export function stretchMatrixN(T: Float64Array, to: number, sys: ColumnSystem, a: number, b: number, betaPrime: (z_nm: number) => number, tol: number, startLevel = -1): number {
+  if (sys.strainDim !== 1) throw new InternalError('this column system was prepared for a general beam set: stretchMatrixN takes a systematic row.');
   const n = sys.n;
   const nn = n * n;
-  if (U.length < uo + 2 * nn) throw new InternalError(`U has ${U.length} numbers: give 2 N^2 = ${2 * nn} from offset ${uo}.`);
+  if (T.length < to + 2 * nn) throw new InternalError(`T has ${T.length} numbers: give 2 N^2 = ${2 * nn} from offset ${to}.`);
   const mw = matrixWork(sys);
   const wk = sys.work;
   const { ur, ui, yr, yi, kr, ki } = mw;
-  for (let q = 0; q < nn; q++) {
-    ur[q] = U[uo + 2 * q];
-    ui[q] = U[uo + 2 * q + 1];
-  }
+  // the state starts as the identity
+  ur.fill(0);
+  ui.fill(0);
+  for (let i = 0; i < n; i++) ur[i * n + i] = 1;
+  let identity = true;
   const hmax = sys.maxStep_nm;
   const k1r = kr[0], k1i = ki[0], k2r = kr[1], k2i = ki[1], k3r = kr[2], k3i = ki[2];
   const k4r = kr[3], k4i = ki[3], k5r = kr[4], k5i = ki[4], k6r = kr[5], k6i = ki[5], k7r = kr[6], k7i = ki[6];
@@ -915,7 +911,14 @@ export function propagateBlochMatrixN(U: Float64Array, sys: ColumnSystem, a: num
     if (!fsalValid) {
       const b0 = betaPrime(z);
       if (!Number.isFinite(b0)) throw strainError(z);
-      rhsMatrix(sys, b0, wk.custom, -1, ur, ui, k1r, k1i);
+      if (identity) {
+        // K1 = i 2 pi beta' M I: no product
+        const scale = TWO_PI * b0;
+        for (let q = 0; q < nn; q++) {
+          k1r[q] = -scale * sys.mIm[q];
+          k1i[q] = scale * sys.mRe[q];
+        }
+      } else rhsMatrix(sys, b0, mw.slotRot[0], -1, ur, ui, k1r, k1i);
       if (level < 0) {
         let dmax = 0;
         for (let j = 0; j < n; j++) dmax = Math.max(dmax, Math.abs(sys.factors[j] * b0));
@@ -930,17 +933,16 @@ export function propagateBlochMatrixN(U: Float64Array, sys: ColumnSystem, a: num
     if (z + h >= b || b - (z + h) < 1e-12 * Math.max(1, b)) {
       h = b - z;
       lastStep = true;
-      if (h !== wk.customH) {
-        tabulateE(sys, h, wk.custom);
-        wk.customH = h;
-        wk.customRotValid = false;
+      let slot = h === mw.slotH[0] ? 0 : h === mw.slotH[1] ? 1 : -1;
+      if (slot < 0) {
+        slot = mw.nextSlot;
+        mw.nextSlot = 1 - slot;
+        mw.slotH[slot] = h;
+        tabulateE(sys, h, mw.slotTab[slot]);
+        rotate(sys, mw.slotTab[slot], mw.slotRot[slot]);
       }
-      if (!wk.customRotValid) {
-        rotate(sys, wk.custom, wk.customRot);
-        wk.customRotValid = true;
-      }
-      tab = wk.custom;
-      rot = wk.customRot;
+      tab = mw.slotTab[slot];
+      rot = mw.slotRot[slot];
     } else {
       tab = levelTable(sys, level);
       rot = levelRotated(sys, level, tab);
@@ -1007,6 +1009,7 @@ export function propagateBlochMatrixN(U: Float64Array, sys: ColumnSystem, a: num
         }
       }
       accepted++;
+      identity = false;
       z = zNext;
       const fac = err < 3e-4 ? 5 : Math.min(5, 0.9 * Math.pow(err, -0.2));
       level = levelFor(hmax, h * fac);
@@ -1017,8 +1020,8 @@ export function propagateBlochMatrixN(U: Float64Array, sys: ColumnSystem, a: num
   }
   wk.lastLevel = level;
   for (let q = 0; q < nn; q++) {
-    U[uo + 2 * q] = ur[q];
-    U[uo + 2 * q + 1] = ui[q];
+    T[to + 2 * q] = ur[q];
+    T[to + 2 * q + 1] = ui[q];
   }
   return accepted;
 }

@@ -4,7 +4,7 @@
  * sliding windows, with N x N transfer matrices in the Bloch-wave basis of
  * the perfect crystal. A stretch's matrix is built in one march: the N
  * unit Bloch amplitude vectors are propagated through the stretch together
- * by the column integrator's stepper (propagateBlochMatrixN, same tolerance,
+ * by the column integrator's stepper (stretchMatrixN, same tolerance,
  * each step's error the largest over the N columns); a fault
  * is C^-1 diag(exp(i n_j alpha)) C; a dislocation's depth of closest approach
  * is a stretch boundary (the fresh first step the column path gets there).
@@ -12,7 +12,7 @@
  * window product.
  */
 import { columnEntryPoint } from '../geometry/frames.js';
-import { prepareColumnSystem, propagateBlochMatrixN } from '../dynamics/manyBeam.js';
+import { prepareColumnSystem, stretchMatrixN } from '../dynamics/manyBeam.js';
 import { activeSurfaces, MANY_BEAM_TOL_FACTOR, type RenderJob } from './renderRows.js';
 import { buildField } from './fieldSpecs.js';
 import type { TranslationPlan, ClassWindows } from './translationColumns.js';
@@ -90,10 +90,8 @@ export function classWindowsN(job: RenderJob, plan: TranslationPlan): ClassWindo
    * the first column would take next, for the following stretch.
    */
   const stretch = (m: number, a: number, b: number, level: number): number => {
-    const o = nn * m;
-    identityN(E, o, n);
     // all N unit Bloch vectors on one step sequence: T(b, a) in one march
-    stats.slices += n * propagateBlochMatrixN(E, sys, a, b, betaPrime, stepTol, level, o);
+    stats.slices += n * stretchMatrixN(E, nn * m, sys, a, b, betaPrime, stepTol, level);
     return sys.work.lastLevel;
   };
   /** Fault matrix C^-1 diag(exp(i n_j alpha)) C into E at element m. */
