@@ -10,7 +10,7 @@ import { basename, join, resolve } from 'node:path';
 import { InputError } from '../errors.js';
 import { parseScenario } from '../scenario/parse.js';
 import { renderScenario } from '../imaging/renderScenario.js';
-import { createRenderPool } from '../imaging/workerPool.js';
+import { createRenderPool, type RenderPool } from '../imaging/workerPool.js';
 import { decodeImage } from '../imageio/readImage.js';
 import { MAX_FILE_BYTES } from '../imageio/types.js';
 import { readInputFile } from './readInput.js';
@@ -43,6 +43,8 @@ export interface IdentifyCommandOptions {
   progressJson?: boolean;
   /** Render threads (default: all cores). */
   threads?: number;
+  /** A render pool to use (and leave open) instead of starting one (the demo shares its pool). */
+  pool?: RenderPool;
 }
 
 /** Largest --bootstrap (1000 copies estimate a standard deviation to a few per cent: common practice). */
@@ -118,7 +120,7 @@ export async function runIdentify(scenarioFile: string, opts: IdentifyCommandOpt
   // checked before the work: the inputs must not lie in the folder this run replaces
   const set = OutputSet.begin(dir, { inputs: [scenarioFile, ...inputs.map((m) => m.source)] });
   try {
-    const out = await identifyInto(set, scenarioFile, sc, micrographs, { defectIndex, top, bootstrap: B, seed }, opts.threads, onProgress);
+    const out = await identifyInto(set, scenarioFile, sc, micrographs, { defectIndex, top, bootstrap: B, seed }, opts.pool ?? opts.threads, onProgress);
     set.commit();
     return out;
   } catch (e) {
@@ -133,12 +135,14 @@ async function identifyInto(
   sc: ReturnType<typeof parseScenario>,
   micrographs: ReturnType<typeof prepareMicrographs>,
   o: { defectIndex: number; top: number; bootstrap: number; seed: number },
-  threads: number | undefined,
+  /** a pool to use and leave open, or the number of threads of a pool started (and closed) here */
+  poolOrThreads: RenderPool | number | undefined,
   onProgress?: (message: string, fraction: number) => void,
 ): Promise<IdentifyOutput> {
   const { defectIndex, top, bootstrap: B, seed } = o;
 
-  const pool = createRenderPool(threads);
+  const own = typeof poolOrThreads !== 'object';
+  const pool = typeof poolOrThreads === 'object' ? poolOrThreads : createRenderPool(poolOrThreads);
   let result: IdentifyResult;
   try {
     result = await identify(sc, micrographs, (s) => renderScenario(s, pool), {
@@ -149,7 +153,7 @@ async function identifyInto(
       ...(onProgress ? { onProgress } : {}),
     });
   } finally {
-    await pool.close();
+    if (own) await pool.close();
   }
 
   const fig = comparisonFigure(comparisonFigureData(result));

@@ -4,7 +4,7 @@ import { join } from 'node:path';
 import type { Scenario } from '../scenario/types.js';
 import { InputError } from '../errors.js';
 import { renderScenario, type ConditionImages } from '../imaging/renderScenario.js';
-import { createRenderPool } from '../imaging/workerPool.js';
+import { createRenderPool, type RenderPool } from '../imaging/workerPool.js';
 import { writeConditionImages, type ImageEntry } from '../output/imageFiles.js';
 import { OutputSet } from '../output/outputSet.js';
 import { encodeGreyPng } from '../output/png.js';
@@ -52,16 +52,18 @@ export async function renderAndWrite(
   showProgress: boolean | Parameters<typeof progressBar>[0],
   warnings: readonly string[] = [],
   opts: ImageOptions = DEFAULT_IMAGE_OPTIONS,
+  /** a pool to use and leave open (the demo shares one); otherwise one is started and closed here */
+  shared?: RenderPool,
 ): Promise<{ images: ConditionImages[]; entries: ImageEntry[]; figures: string[]; seconds: number }> {
   const bar = progressBar(showProgress);
-  const pool = createRenderPool();
+  const pool = shared ?? createRenderPool();
   const t0 = performance.now();
   let images: ConditionImages[];
   try {
     images = await renderScenario(sc, pool, (i, d, t) => bar.update(`rendering ${sc.conditions[i].id} (${i + 1}/${sc.conditions.length})`, d / t), undefined, opts.shareColumns !== false);
   } finally {
     bar.done();
-    await pool.close();
+    if (shared === undefined) await pool.close();
   }
   if (opts.blur_nm > 0) images = blurImages(images, opts.blur_nm);
   const seconds = (performance.now() - t0) / 1000;
