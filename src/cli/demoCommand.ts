@@ -5,7 +5,7 @@ import { DEMO_SCENARIO } from '../scenario/demo.js';
 import { parseScenario } from '../scenario/parse.js';
 import { visibilityTable } from '../analysis/visibilityTable.js';
 import { OutputSet } from '../output/outputSet.js';
-import { renderAndWrite } from './renderCommand.js';
+import { DEFAULT_IMAGE_OPTIONS, renderAndWrite } from './renderCommand.js';
 import { formatVisibility } from './visibilityCommand.js';
 import { sig, table } from './run.js';
 import { faultReport, formatFaults, formatInclusions } from './faultCommand.js';
@@ -14,7 +14,7 @@ import { DEMO_HIDDEN_CANDIDATE, DEMO_IDENTIFY_SCENARIO, DEMO_MICROGRAPHS, DEMO_S
 import { identificationCandidates } from '../analysis/candidates.js';
 import { syntheticFileName, syntheticMicrographs } from '../analysis/synthetic.js';
 import { renderScenario } from '../imaging/renderScenario.js';
-import { createRenderPool } from '../imaging/workerPool.js';
+import { createRenderPool, type RenderPool } from '../imaging/workerPool.js';
 import { encodeFloatTiff } from '../output/tiff.js';
 import { formatIdentify, runIdentify } from './identifyCommand.js';
 
@@ -26,21 +26,27 @@ export async function demoCommand(opts: { out?: string; size?: number }): Promis
   const sc = parseScenario(demo);
   process.stdout.write(`thinfoil demo: ${sc.name}\n`);
   process.stdout.write('All data in this demo are invented; the images are simulations (a model), not measurements.\n\n');
-  const set = OutputSet.begin(dir);
+  // one pool for the whole demo: its workers start (and warm up) once
+  const pool = createRenderPool();
   try {
-    await demoMain(sc, demo, set);
-    set.commit();
-  } catch (e) {
-    set.abort();
-    throw e;
+    const set = OutputSet.begin(dir);
+    try {
+      await demoMain(sc, demo, set, pool);
+      set.commit();
+    } catch (e) {
+      set.abort();
+      throw e;
+    }
+    process.stdout.write(`\nwritten to ${dir}: <condition>-bf.png / -df.png (viewing), .tif (float intensities), <condition>-figure.png and contact-sheet.png (annotated), render.json, visibility.txt\n`);
+    await demoIdentification(dir, pool);
+  } finally {
+    await pool.close();
   }
-  process.stdout.write(`\nwritten to ${dir}: <condition>-bf.png / -df.png (viewing), .tif (float intensities), <condition>-figure.png and contact-sheet.png (annotated), render.json, visibility.txt\n`);
-  await demoIdentification(dir);
 }
 
-async function demoMain(sc: ReturnType<typeof parseScenario>, demo: object, set: OutputSet): Promise<void> {
+async function demoMain(sc: ReturnType<typeof parseScenario>, demo: object, set: OutputSet, pool: RenderPool): Promise<void> {
   set.write('scenario.json', `${jsonText(demo, 2)}\n`);
-  const { images, entries, seconds } = await renderAndWrite(sc, set, true);
+  const { images, entries, seconds } = await renderAndWrite(sc, set, true, [], DEFAULT_IMAGE_OPTIONS, pool);
   process.stdout.write(
     `material ${sc.material.name}, ${sc.kV} kV, foil ${sc.thickness_nm} nm, ${sc.image.width_px} x ${sc.image.height_px} px at ${sc.image.pixel_nm} nm; ` +
       `${images.length} conditions rendered in ${sig(seconds, 3)} s\n\n`,
@@ -76,18 +82,12 @@ async function demoMain(sc: ReturnType<typeof parseScenario>, demo: object, set:
  * The demo's last act: SYNTHETIC micrographs of a hidden candidate, then the
  * identification that a user would run on real ones.
  */
-async function demoIdentification(demoDir: string): Promise<void> {
+async function demoIdentification(demoDir: string, pool: RenderPool): Promise<void> {
   process.stdout.write(`\n--- identification from SYNTHETIC micrographs (made here from a hidden Burgers vector; not measured) ---\n`);
   const sc = parseScenario(DEMO_IDENTIFY_SCENARIO);
   const hidden = identificationCandidates(sc).find((c) => c.label === DEMO_HIDDEN_CANDIDATE);
   if (!hidden) throw new Error(`demo: hidden candidate ${DEMO_HIDDEN_CANDIDATE} is not among the candidates`);
-  const pool = createRenderPool();
-  let syn;
-  try {
-    syn = await syntheticMicrographs(sc, hidden, DEMO_MICROGRAPHS, DEMO_SYNTHESIS, (s) => renderScenario(s, pool));
-  } finally {
-    await pool.close();
-  }
+  const syn = await syntheticMicrographs(sc, hidden, DEMO_MICROGRAPHS, DEMO_SYNTHESIS, (s) => renderScenario(s, pool));
   const args: string[] = [];
   const settings: Record<string, unknown> = {};
   // the synthetic micrographs are the identification's inputs: their own folder, beside its output
@@ -101,7 +101,7 @@ async function demoIdentification(demoDir: string): Promise<void> {
   const scenarioFile = inputs.write('identify-scenario.json', `${jsonText({ ...DEMO_IDENTIFY_SCENARIO, micrographs: settings }, 2)}\n`);
   inputs.commit();
   process.stdout.write(`${syn.length} synthetic micrographs (signal-to-noise ${DEMO_SYNTHESIS.snr}, blur ${DEMO_SYNTHESIS.blur_nm} nm, 10 % background gradient, random shift and rotation) written to ${dir}\n\n`);
-  const out = await runIdentify(scenarioFile, { micrograph: args, out: join(demoDir, 'identify') });
+  const out = await runIdentify(scenarioFile, { micrograph: args, out: join(demoDir, 'identify'), pool });
   process.stdout.write(formatIdentify(out));
   const best = out.result.ranking[0]?.candidate;
   process.stdout.write(`\nhidden truth: ${hidden.label} -> ${best === hidden.label ? 'recovered as the best candidate' : `NOT recovered (best: ${best})`}\n`);

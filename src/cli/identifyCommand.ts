@@ -10,7 +10,7 @@ import { basename, join, resolve } from 'node:path';
 import { InputError } from '../errors.js';
 import { parseScenario } from '../scenario/parse.js';
 import { renderScenario } from '../imaging/renderScenario.js';
-import { createRenderPool } from '../imaging/workerPool.js';
+import { createRenderPool, type RenderPool } from '../imaging/workerPool.js';
 import { decodeImage } from '../imageio/readImage.js';
 import { MAX_FILE_BYTES } from '../imageio/types.js';
 import { readInputFile } from './readInput.js';
@@ -63,6 +63,8 @@ export interface IdentifyCommandOptions {
   threads?: number;
   /** "k/n": simulate only the k-th of n shares of the candidates and write them for `thinfoil merge` (src/cli/shard.ts). */
   shard?: string;
+  /** A render pool to use (and leave open) instead of starting one (the demo shares its pool). */
+  pool?: RenderPool;
 }
 
 /** Largest --bootstrap (1000 copies estimate a standard deviation to a few per cent: common practice). */
@@ -161,20 +163,20 @@ function prepareIdentify(scenarioFile: string, opts: IdentifyCommandOptions, bas
 export async function runIdentify(scenarioFile: string, opts: IdentifyCommandOptions, onProgress?: (message: string, fraction: number) => void): Promise<IdentifyOutput> {
   const p = prepareIdentify(scenarioFile, opts);
   const dir = opts.out ?? join('out', `${slug(p.sc.name)}-identify`);
-  return identifyPrepared(p, dir, opts.threads, onProgress);
+  return identifyPrepared(p, dir, opts.pool ?? opts.threads, onProgress);
 }
 
 async function identifyPrepared(
   p: PreparedIdentify,
   dir: string,
-  threads: number | undefined,
+  poolOrThreads: RenderPool | number | undefined,
   onProgress?: (message: string, fraction: number) => void,
   merged?: { simulations: Float64Array[][]; renderSeconds: number },
 ): Promise<IdentifyOutput> {
   // checked before the work: the inputs must not lie in the folder this run replaces
   const set = OutputSet.begin(dir, { inputs: p.files });
   try {
-    const out = await identifyInto(set, p.scenarioInput.path, p.sc, p.micrographs, p.options, threads, onProgress, merged);
+    const out = await identifyInto(set, p.scenarioInput.path, p.sc, p.micrographs, p.options, poolOrThreads, onProgress, merged);
     set.commit();
     return out;
   } catch (e) {
@@ -276,14 +278,16 @@ async function identifyInto(
   sc: ReturnType<typeof parseScenario>,
   micrographs: ReturnType<typeof prepareMicrographs>,
   o: { defectIndex: number; top: number; bootstrap: number; seed: number },
-  threads: number | undefined,
+  /** a pool to use and leave open, or the number of threads of a pool started (and closed) here */
+  poolOrThreads: RenderPool | number | undefined,
   onProgress?: (message: string, fraction: number) => void,
   merged?: { simulations: Float64Array[][]; renderSeconds: number },
 ): Promise<IdentifyOutput> {
   const { defectIndex, top, bootstrap: B, seed } = o;
 
   // merging shards renders nothing: no worker pool
-  const pool = merged === undefined ? createRenderPool(threads) : undefined;
+  const own = merged === undefined && typeof poolOrThreads !== 'object';
+  const pool = merged !== undefined ? undefined : typeof poolOrThreads === 'object' ? poolOrThreads : createRenderPool(poolOrThreads);
   let result: IdentifyResult;
   try {
     result = await identify(
@@ -303,7 +307,7 @@ async function identifyInto(
       },
     );
   } finally {
-    await pool?.close();
+    if (own) await pool?.close();
   }
   // the render time of a merged run is the shards' (summed)
   if (merged) result = { ...result, seconds: { ...result.seconds, render: merged.renderSeconds } };

@@ -210,7 +210,7 @@ program
   .command('demo')
   .description('render the built-in invented demo scenario into out/demo')
   .option('--out <dir>', 'output folder', 'out/demo')
-  .option('--size <px>', 'side of the rendered images in pixels, same field of view (default 256)', userOption(parseDemoSize))
+  .option('--size <px>', 'side of the rendered images in pixels, same field of view (default 128)', userOption(parseDemoSize))
   .action(run(() => import('./demoCommand.js'), 'demoCommand'));
 
 /** Options that take a value (from the declarations above): the token after them is never a positional argument. */

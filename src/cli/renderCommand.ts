@@ -4,7 +4,7 @@ import { join, resolve } from 'node:path';
 import type { Scenario } from '../scenario/types.js';
 import { InputError } from '../errors.js';
 import { renderScenario, type ConditionImages } from '../imaging/renderScenario.js';
-import { createRenderPool } from '../imaging/workerPool.js';
+import { createRenderPool, type RenderPool } from '../imaging/workerPool.js';
 import { writeConditionImages, type ImageEntry } from '../output/imageFiles.js';
 import { OutputSet } from '../output/outputSet.js';
 import { encodeGreyPng } from '../output/png.js';
@@ -59,21 +59,29 @@ export async function renderAndWrite(
   showProgress: boolean | Parameters<typeof progressBar>[0],
   warnings: readonly string[] = [],
   opts: ImageOptions = DEFAULT_IMAGE_OPTIONS,
+  /** a pool to use and leave open (the demo shares one); otherwise one is started and closed here */
+  shared?: RenderPool,
 ): Promise<{ images: ConditionImages[]; entries: ImageEntry[]; figures: string[]; seconds: number }> {
   const t0 = performance.now();
-  const raw = await renderImages(sc, showProgress, opts);
+  const raw = await renderImages(sc, showProgress, opts, shared);
   return writeRenderSet(sc, set, raw, warnings, opts, (performance.now() - t0) / 1000);
 }
 
 /** The unblurred images of every condition of `sc` (a shard passes a scenario holding only its conditions). */
-async function renderImages(sc: Scenario, showProgress: boolean | Parameters<typeof progressBar>[0], opts: ImageOptions): Promise<ConditionImages[]> {
+async function renderImages(
+  sc: Scenario,
+  showProgress: boolean | Parameters<typeof progressBar>[0],
+  opts: ImageOptions,
+  /** a pool to use and leave open; otherwise one is started and closed here */
+  shared?: RenderPool,
+): Promise<ConditionImages[]> {
   const bar = progressBar(showProgress);
-  const pool = createRenderPool();
+  const pool = shared ?? createRenderPool();
   try {
     return await renderScenario(sc, pool, (i, d, t) => bar.update(`rendering ${sc.conditions[i].id} (${i + 1}/${sc.conditions.length})`, d / t), undefined, opts.shareColumns !== false);
   } finally {
     bar.done();
-    await pool.close();
+    if (shared === undefined) await pool.close();
   }
 }
 

@@ -115,6 +115,16 @@ interface Work {
   readonly custom: Float64Array;
   /** the table of the step being taken */
   tab: Float64Array;
+  /**
+   * Systematic row only: for ladder level k, the matrices E(c h_k)^-1 M E(c h_k) of the 5 stage offsets
+   * (layout [stage][re (n^2), im (n^2)]), so that a stage costs one N x N product (filled on first use).
+   */
+  readonly levelsM: Array<Float64Array | null>;
+  /** the rotated matrices of the step being taken, or null (the first step off the ladder of a new length uses tab) */
+  rot: Float64Array | null;
+  /** the rotated matrices of the step length customH, once that length is taken a second time */
+  readonly customRot: Float64Array;
+  customRotValid: boolean;
   readonly fr: Float64Array; // phase factors of a fault
   readonly fi: Float64Array;
   /** the strain callback of the running integration */
@@ -122,7 +132,7 @@ interface Work {
   dRdz: ((z: number, out3: Float64Array) => void) | null;
   /** statistics of the last integration */
   readonly stats: { accepted: number; rejected: number; evaluations: number };
-  /** ladder level the last march would have used next (propagateBlochN can start from it) */
+  /** ladder level the last march would have used next (stretchMatrixN can start from it) */
   lastLevel: number;
   /** step length whose phase table `custom` holds (NaN: none) */
   customH: number;
@@ -203,6 +213,10 @@ function prepare(input: ManyBeamInput, factors: Float64Array, strainDim: 1 | 3, 
     levels: new Array<Float64Array | null>(LEVELS + 1).fill(null),
     custom: new Float64Array(20 * n),
     tab: new Float64Array(20 * n),
+    levelsM: new Array<Float64Array | null>(LEVELS + 1).fill(null),
+    rot: null,
+    customRot: new Float64Array(strainDim === 1 ? 10 * n * n : 0),
+    customRotValid: false,
     fr: f(),
     fi: f(),
     betaPrime: null,
@@ -340,6 +354,46 @@ function levelTable(sys: ColumnSystem, k: number): Float64Array {
   return t;
 }
 
+/**
+ * Systematic row: the rotated matrices E(c h_k)^-1 M E(c h_k) of ladder level k for the 5 stage offsets c
+ * (computed on first use from the level's phase table).
+ */
+function levelRotated(sys: ColumnSystem, k: number, tab: Float64Array): Float64Array {
+  const levelsM = sys.work.levelsM;
+  let r = levelsM[k];
+  if (r === null) {
+    r = new Float64Array(10 * sys.n * sys.n);
+    rotate(sys, tab, r);
+    levelsM[k] = r;
+  }
+  return r;
+}
+
+/** r = E(c h)^-1 M E(c h) for the 5 stage offsets c of the phase table tab (layout of Work.levelsM). */
+function rotate(sys: ColumnSystem, tab: Float64Array, r: Float64Array): void {
+  {
+    const n = sys.n;
+    const nn = n * n;
+    const { mRe, mIm } = sys;
+    for (let s = 0; s < 5; s++) {
+      const o = 2 * nn * s;
+      for (let i = 0; i < n; i++) {
+        // E^-1_i M_ij E_j
+        const ar = tab[10 * n + s * n + i];
+        const ai = tab[15 * n + s * n + i];
+        for (let j = 0; j < n; j++) {
+          const er = tab[s * n + j];
+          const ei = tab[5 * n + s * n + j];
+          const xr = mRe[i * n + j] * er - mIm[i * n + j] * ei;
+          const xi = mRe[i * n + j] * ei + mIm[i * n + j] * er;
+          r[o + i * n + j] = ar * xr - ai * xi;
+          r[o + nn + i * n + j] = ar * xi + ai * xr;
+        }
+      }
+    }
+  }
+}
+
 /** General beam set: the strain term g_j . dR/dz of every beam at depth z into work.d. */
 function fillStrain(sys: ColumnSystem, z: number): void {
   const wk = sys.work;
@@ -374,6 +428,26 @@ function rhs(sys: ColumnSystem, z: number, s: number, ur: Float64Array, ui: Floa
       return;
     }
     scale *= b;
+    const rot = wk.rot;
+    if (s >= 0 && rot !== null) {
+      // f = i scale (E^-1 M E)_s u with the rotated matrix of this stage: one N x N product
+      const nn = n * n;
+      const o = 2 * nn * s;
+      for (let i = 0; i < n; i++) {
+        let a = 0;
+        let c = 0;
+        const row = o + i * n;
+        for (let j = 0; j < n; j++) {
+          const cr = rot[row + j];
+          const ci = rot[row + nn + j];
+          a += cr * ur[j] - ci * ui[j];
+          c += cr * ui[j] + ci * ur[j];
+        }
+        fr[i] = -scale * c;
+        fi[i] = scale * a;
+      }
+      return;
+    }
     mRe = sys.mRe;
     mIm = sys.mIm;
   } else {
@@ -526,33 +600,6 @@ function integrate(
   return accepted;
 }
 
-/**
- * Propagates Bloch-wave amplitudes psi (interleaved [re, im] per wave, 2N,
- * in place) of a systematic row from depth a to depth b > a through
- * beta'(z), with the same stepping and tolerance as integrateColumnN (a fresh
- * first step at a, or the ladder level startLevel, e.g. the lastLevel of the
- * previous stretch). No faults. Returns the number of accepted steps. Used by
- * the translation method, which keeps the transfer matrices of stretches.
- */
-export function propagateBlochN(psi: Float64Array, sys: ColumnSystem, a: number, b: number, betaPrime: (z_nm: number) => number, tol: number, startLevel = -1): number {
-  if (sys.strainDim !== 1) throw new InternalError('this column system was prepared for a general beam set: propagateBlochN takes a systematic row.');
-  const n = sys.n;
-  const wk = sys.work;
-  for (let j = 0; j < n; j++) {
-    wk.ur[j] = psi[2 * j];
-    wk.ui[j] = psi[2 * j + 1];
-  }
-  wk.betaPrime = betaPrime;
-  wk.dRdz = null;
-  const accepted = march(sys, a, b, NO_JUMPS, 0, 2, tol, startLevel);
-  wk.betaPrime = null;
-  for (let j = 0; j < n; j++) {
-    psi[2 * j] = wk.ur[j];
-    psi[2 * j + 1] = wk.ui[j];
-  }
-  return accepted;
-}
-
 /** Steps the Bloch amplitudes in work.ur/ui from depth zStart to zStop, applying the jumps on the way. */
 function march(sys: ColumnSystem, zStart: number, zStop: number, jumps: Float64Array, nJumps: number, stride: 2 | 4, tol: number, startLevel = -1): number {
   const n = sys.n;
@@ -604,10 +651,20 @@ function march(sys: ColumnSystem, zStart: number, zStop: number, jumps: Float64A
       if (h !== wk.customH) {
         tabulateE(sys, h, wk.custom);
         wk.customH = h; // the columns of one stretch matrix end with the same step: tabulated once
-      }
+        wk.customRotValid = false;
+        wk.rot = null;
+      } else if (sys.strainDim === 1) {
+        // the same length again (stretches of the translation method): worth the rotated matrices
+        if (!wk.customRotValid) {
+          rotate(sys, wk.custom, wk.customRot);
+          wk.customRotValid = true;
+        }
+        wk.rot = wk.customRot;
+      } else wk.rot = null;
       wk.tab = wk.custom;
     } else {
       wk.tab = levelTable(sys, level);
+      wk.rot = sys.strainDim === 1 ? levelRotated(sys, level, wk.tab) : null;
     }
     const tab = wk.tab;
     for (let j = 0; j < n; j++) {
@@ -724,4 +781,247 @@ function applyJump(sys: ColumnSystem, jumps: Float64Array, at: number): void {
 /** Statistics of the last integration with this system (accepted, rejected steps, right-hand-side evaluations). */
 export function lastIntegrationStats(system: ColumnSystem): { accepted: number; rejected: number; evaluations: number } {
   return { ...system.work.stats };
+}
+
+/** Work arrays of stretchMatrixN (N x N, re and im apart): state, trial, 7 stages. */
+interface MatrixWork {
+  readonly ur: Float64Array;
+  readonly ui: Float64Array;
+  readonly yr: Float64Array;
+  readonly yi: Float64Array;
+  readonly kr: Float64Array[];
+  readonly ki: Float64Array[];
+  /**
+   * Phase tables and rotated matrices of the last two step lengths off the ladder: the stretches of the
+   * translation method alternate between two lengths (window starts and ends D apart).
+   */
+  readonly slotH: Float64Array;
+  readonly slotTab: Float64Array[];
+  readonly slotRot: Float64Array[];
+  nextSlot: number;
+}
+const matrixWorks = new WeakMap<ColumnSystem, MatrixWork>();
+
+function matrixWork(sys: ColumnSystem): MatrixWork {
+  let w = matrixWorks.get(sys);
+  if (w === undefined) {
+    const f = (): Float64Array => new Float64Array(sys.n * sys.n);
+    const n = sys.n;
+    w = {
+      ur: f(),
+      ui: f(),
+      yr: f(),
+      yi: f(),
+      kr: Array.from({ length: 7 }, f),
+      ki: Array.from({ length: 7 }, f),
+      slotH: Float64Array.of(NaN, NaN),
+      slotTab: [new Float64Array(20 * n), new Float64Array(20 * n)],
+      slotRot: [new Float64Array(10 * n * n), new Float64Array(10 * n * n)],
+      nextSlot: 0,
+    };
+    matrixWorks.set(sys, w);
+  }
+  return w;
+}
+
+/**
+ * K = i 2 pi beta' R Y for an N x N matrix Y (re/im apart), R = M (s = -1) or the rotated matrix of
+ * stage s in rot. beta' = 0 gives K = 0.
+ */
+function rhsMatrix(sys: ColumnSystem, b: number, rot: Float64Array, s: number, yr: Float64Array, yi: Float64Array, kr: Float64Array, ki: Float64Array): void {
+  const n = sys.n;
+  const nn = n * n;
+  if (b === 0) {
+    kr.fill(0);
+    ki.fill(0);
+    return;
+  }
+  const scale = TWO_PI * b;
+  let rr: Float64Array, ri: Float64Array, o: number, oi: number;
+  if (s < 0) {
+    rr = sys.mRe;
+    ri = sys.mIm;
+    o = 0;
+    oi = 0;
+  } else {
+    rr = rot;
+    ri = rot;
+    o = 2 * nn * s;
+    oi = o + nn;
+  }
+  for (let i = 0; i < n; i++) {
+    const row = i * n;
+    {
+      // k = 0 sets the row; i scale R_ik = (-scale Im R, scale Re R)
+      const cr = -scale * ri[oi + row];
+      const ci = scale * rr[o + row];
+      for (let j = 0; j < n; j++) {
+        const a = yr[j];
+        const c = yi[j];
+        kr[row + j] = cr * a - ci * c;
+        ki[row + j] = cr * c + ci * a;
+      }
+    }
+    for (let k = 1; k < n; k++) {
+      const cr = -scale * ri[oi + row + k];
+      const ci = scale * rr[o + row + k];
+      const yrow = k * n;
+      for (let j = 0; j < n; j++) {
+        const a = yr[yrow + j];
+        const c = yi[yrow + j];
+        kr[row + j] += cr * a - ci * c;
+        ki[row + j] += cr * c + ci * a;
+      }
+    }
+  }
+}
+
+/**
+ * The transfer matrix T(b, a) of a systematic row from depth a to depth b > a through beta'(z), in the
+ * Bloch-wave basis, into T at offset to (N x N, interleaved [re, im], row-major): column j is the unit
+ * Bloch amplitude vector e_j propagated by the stepper of integrateColumnN, all columns on one step
+ * sequence (each step's error is the largest over the columns, so each column meets tol). beta' is
+ * evaluated once per stage for all columns. startLevel: the ladder level of the first step (-1: a fresh
+ * first step, as the column path takes after a fault or breakpoint); the level the march would take next
+ * is left in sys.work.lastLevel. Returns the number of accepted steps. Used by the translation method for
+ * the matrix of a stretch.
+ */
+export function stretchMatrixN(T: Float64Array, to: number, sys: ColumnSystem, a: number, b: number, betaPrime: (z_nm: number) => number, tol: number, startLevel = -1): number {
+  if (sys.strainDim !== 1) throw new InternalError('this column system was prepared for a general beam set: stretchMatrixN takes a systematic row.');
+  const n = sys.n;
+  const nn = n * n;
+  if (T.length < to + 2 * nn) throw new InternalError(`T has ${T.length} numbers: give 2 N^2 = ${2 * nn} from offset ${to}.`);
+  const mw = matrixWork(sys);
+  const wk = sys.work;
+  const { ur, ui, yr, yi, kr, ki } = mw;
+  // the state starts as the identity
+  ur.fill(0);
+  ui.fill(0);
+  for (let i = 0; i < n; i++) ur[i * n + i] = 1;
+  let identity = true;
+  const hmax = sys.maxStep_nm;
+  const k1r = kr[0], k1i = ki[0], k2r = kr[1], k2i = ki[1], k3r = kr[2], k3i = ki[2];
+  const k4r = kr[3], k4i = ki[3], k5r = kr[4], k5i = ki[4], k6r = kr[5], k6i = ki[5], k7r = kr[6], k7i = ki[6];
+  const tol2 = tol * tol;
+  let z = a;
+  let level = startLevel;
+  let accepted = 0;
+  let fsalValid = false;
+  while (z < b) {
+    if (!fsalValid) {
+      const b0 = betaPrime(z);
+      if (!Number.isFinite(b0)) throw strainError(z);
+      if (identity) {
+        // K1 = i 2 pi beta' M I: no product
+        const scale = TWO_PI * b0;
+        for (let q = 0; q < nn; q++) {
+          k1r[q] = -scale * sys.mIm[q];
+          k1i[q] = scale * sys.mRe[q];
+        }
+      } else rhsMatrix(sys, b0, mw.slotRot[0], -1, ur, ui, k1r, k1i);
+      if (level < 0) {
+        let dmax = 0;
+        for (let j = 0; j < n; j++) dmax = Math.max(dmax, Math.abs(sys.factors[j] * b0));
+        level = levelFor(hmax, 0.05 / (TWO_PI * dmax + 1e-300));
+      }
+      fsalValid = true;
+    }
+    let h = ladderStep(hmax, level);
+    let lastStep = false;
+    let tab: Float64Array;
+    let rot: Float64Array;
+    if (z + h >= b || b - (z + h) < 1e-12 * Math.max(1, b)) {
+      h = b - z;
+      lastStep = true;
+      let slot = h === mw.slotH[0] ? 0 : h === mw.slotH[1] ? 1 : -1;
+      if (slot < 0) {
+        slot = mw.nextSlot;
+        mw.nextSlot = 1 - slot;
+        mw.slotH[slot] = h;
+        tabulateE(sys, h, mw.slotTab[slot]);
+        rotate(sys, mw.slotTab[slot], mw.slotRot[slot]);
+      }
+      tab = mw.slotTab[slot];
+      rot = mw.slotRot[slot];
+    } else {
+      tab = levelTable(sys, level);
+      rot = levelRotated(sys, level, tab);
+    }
+    for (let q = 0; q < nn; q++) {
+      yr[q] = ur[q] + h * A21 * k1r[q];
+      yi[q] = ui[q] + h * A21 * k1i[q];
+    }
+    rhsMatrix(sys, betaPrime(z + C2 * h), rot, 0, yr, yi, k2r, k2i);
+    for (let q = 0; q < nn; q++) {
+      yr[q] = ur[q] + h * (A31 * k1r[q] + A32 * k2r[q]);
+      yi[q] = ui[q] + h * (A31 * k1i[q] + A32 * k2i[q]);
+    }
+    rhsMatrix(sys, betaPrime(z + C3 * h), rot, 1, yr, yi, k3r, k3i);
+    for (let q = 0; q < nn; q++) {
+      yr[q] = ur[q] + h * (A41 * k1r[q] + A42 * k2r[q] + A43 * k3r[q]);
+      yi[q] = ui[q] + h * (A41 * k1i[q] + A42 * k2i[q] + A43 * k3i[q]);
+    }
+    rhsMatrix(sys, betaPrime(z + C4 * h), rot, 2, yr, yi, k4r, k4i);
+    for (let q = 0; q < nn; q++) {
+      yr[q] = ur[q] + h * (A51 * k1r[q] + A52 * k2r[q] + A53 * k3r[q] + A54 * k4r[q]);
+      yi[q] = ui[q] + h * (A51 * k1i[q] + A52 * k2i[q] + A53 * k3i[q] + A54 * k4i[q]);
+    }
+    rhsMatrix(sys, betaPrime(z + C5 * h), rot, 3, yr, yi, k5r, k5i);
+    for (let q = 0; q < nn; q++) {
+      yr[q] = ur[q] + h * (A61 * k1r[q] + A62 * k2r[q] + A63 * k3r[q] + A64 * k4r[q] + A65 * k5r[q]);
+      yi[q] = ui[q] + h * (A61 * k1i[q] + A62 * k2i[q] + A63 * k3i[q] + A64 * k4i[q] + A65 * k5i[q]);
+    }
+    const zNext = lastStep ? b : z + h;
+    const b6 = betaPrime(zNext);
+    rhsMatrix(sys, b6, rot, 4, yr, yi, k6r, k6i);
+    for (let q = 0; q < nn; q++) {
+      yr[q] = ur[q] + h * (A71 * k1r[q] + A73 * k3r[q] + A74 * k4r[q] + A75 * k5r[q] + A76 * k6r[q]);
+      yi[q] = ui[q] + h * (A71 * k1i[q] + A73 * k3i[q] + A74 * k4i[q] + A75 * k5i[q] + A76 * k6i[q]);
+    }
+    rhsMatrix(sys, b6, rot, 4, yr, yi, k7r, k7i);
+    // local error of every column, weighted by |E(h)| of its row (the Bloch amplitudes at z + h)
+    let err2 = 0;
+    const off = 4 * n;
+    const offIm = 9 * n;
+    for (let i = 0; i < n; i++) {
+      const w2 = tab[off + i] * tab[off + i] + tab[offIm + i] * tab[offIm + i];
+      for (let j = 0; j < n; j++) {
+        const q = i * n + j;
+        const xr = h * (E1 * k1r[q] + E3 * k3r[q] + E4 * k4r[q] + E5 * k5r[q] + E6 * k6r[q] + E7 * k7r[q]);
+        const xi = h * (E1 * k1i[q] + E3 * k3i[q] + E4 * k4i[q] + E5 * k5i[q] + E6 * k6i[q] + E7 * k7i[q]);
+        err2 = Math.max(err2, (xr * xr + xi * xi) * w2); // propagates NaN
+      }
+    }
+    const err = Math.sqrt(err2 / tol2);
+    if (!Number.isFinite(err)) throw strainError(z);
+    if (err <= 1 || level >= LEVELS) {
+      for (let i = 0; i < n; i++) {
+        const er = tab[off + i];
+        const ei = tab[offIm + i];
+        for (let j = 0; j < n; j++) {
+          const q = i * n + j;
+          const p = yr[q], r = yi[q];
+          ur[q] = er * p - ei * r;
+          ui[q] = er * r + ei * p;
+          const c = k7r[q], e = k7i[q];
+          k1r[q] = er * c - ei * e;
+          k1i[q] = er * e + ei * c;
+        }
+      }
+      accepted++;
+      identity = false;
+      z = zNext;
+      const fac = err < 3e-4 ? 5 : Math.min(5, 0.9 * Math.pow(err, -0.2));
+      level = levelFor(hmax, h * fac);
+    } else {
+      level = Math.max(level + 1, levelFor(hmax, h * Math.max(0.2, 0.9 * Math.pow(err, -0.2))));
+      if (level > LEVELS) level = LEVELS;
+    }
+  }
+  wk.lastLevel = level;
+  for (let q = 0; q < nn; q++) {
+    T[to + 2 * q] = ur[q];
+    T[to + 2 * q + 1] = ui[q];
+  }
+  return accepted;
 }

@@ -2,16 +2,17 @@
  * The translation method (translationColumns.ts) for the many-beam engine
  * with a systematic row: the same classes of pixels, long columns and
  * sliding windows, with N x N transfer matrices in the Bloch-wave basis of
- * the perfect crystal. A stretch's matrix is built column by column: each
- * unit Bloch amplitude vector is propagated through the stretch by the
- * column integrator's own stepper (propagateBlochN, same tolerance); a fault
+ * the perfect crystal. A stretch's matrix is built in one march: the N
+ * unit Bloch amplitude vectors are propagated through the stretch together
+ * by the column integrator's stepper (stretchMatrixN, same tolerance,
+ * each step's error the largest over the N columns); a fault
  * is C^-1 diag(exp(i n_j alpha)) C; a dislocation's depth of closest approach
  * is a stretch boundary (the fresh first step the column path gets there).
  * A pixel's amplitudes are the rows (transmitted, g) of C W psi0, W its
  * window product.
  */
 import { columnEntryPoint } from '../geometry/frames.js';
-import { prepareColumnSystem, propagateBlochN } from '../dynamics/manyBeam.js';
+import { prepareColumnSystem, stretchMatrixN } from '../dynamics/manyBeam.js';
 import { activeSurfaces, MANY_BEAM_TOL_FACTOR, type RenderJob } from './renderRows.js';
 import { buildField } from './fieldSpecs.js';
 import type { TranslationPlan, ClassWindows } from './translationColumns.js';
@@ -71,7 +72,6 @@ export function classWindowsN(job: RenderJob, plan: TranslationPlan): ClassWindo
   const F = new Float64Array(nn * nMaxElements);
   const B = new Float64Array(nn);
   const T = new Float64Array(nn);
-  const psi = new Float64Array(2 * n);
   const v = new Float64Array(2 * n);
   const w = new Float64Array(2 * n);
   // psi0 and the rows of C for the transmitted and the g beam
@@ -90,19 +90,9 @@ export function classWindowsN(job: RenderJob, plan: TranslationPlan): ClassWindo
    * the first column would take next, for the following stretch.
    */
   const stretch = (m: number, a: number, b: number, level: number): number => {
-    const o = nn * m;
-    let next = -1;
-    for (let j = 0; j < n; j++) {
-      psi.fill(0);
-      psi[2 * j] = 1;
-      stats.slices += propagateBlochN(psi, sys, a, b, betaPrime, stepTol, level);
-      if (j === 0) next = sys.work.lastLevel;
-      for (let i = 0; i < n; i++) {
-        E[o + 2 * (i * n + j)] = psi[2 * i];
-        E[o + 2 * (i * n + j) + 1] = psi[2 * i + 1];
-      }
-    }
-    return next;
+    // all N unit Bloch vectors on one step sequence: T(b, a) in one march
+    stats.slices += n * stretchMatrixN(E, nn * m, sys, a, b, betaPrime, stepTol, level);
+    return sys.work.lastLevel;
   };
   /** Fault matrix C^-1 diag(exp(i n_j alpha)) C into E at element m. */
   const fault = (m: number, alpha: number): void => {

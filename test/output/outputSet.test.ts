@@ -114,11 +114,14 @@ describe.skipIf(!fs.existsSync(CLI))('render killed with SIGKILL at different mo
     const outcomes: string[] = [];
     // kill plans: after a delay (ms), or as soon as the run's staging folder holds k files (mid-write)
     const plans: Array<{ delay?: number; files?: number }> = [{ delay: 300 }, { files: 1 }, { files: 4 }, { files: 8 }, { files: 9 }, { files: 10 }, {}];
+    // the old set is rendered once (a complete committed set) and copied into place before every kill
+    const pristine = path.join(work, 'pristine-old');
+    const first = spawnSync(process.execPath, [CLI, 'render', oldFile, '--out', pristine, '--json'], { encoding: 'utf8', timeout: 60_000 });
+    expect(first.status, first.stderr).toBe(0);
     for (const plan of plans) {
       const delay = plan.delay ?? (plan.files === undefined ? 'none' : `${plan.files} staged files`);
       fs.rmSync(out, { recursive: true, force: true });
-      const first = spawnSync(process.execPath, [CLI, 'render', oldFile, '--out', out, '--json'], { encoding: 'utf8', timeout: 60_000 });
-      expect(first.status, first.stderr).toBe(0);
+      fs.cpSync(pristine, out, { recursive: true });
       const child = spawn(process.execPath, [CLI, 'render', newFile, '--out', out, '--json'], { stdio: 'ignore' });
       const exited = new Promise<number | null>((resolve) => child.on('exit', (code) => resolve(code)));
       const staged = (): number => {

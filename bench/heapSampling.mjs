@@ -1,0 +1,51 @@
+// Allocation of the many-beam engine, measured with V8's heap sampling (inspector HeapProfiler,
+// sampling interval 128 bytes) around renders on the calling thread, after a warm-up render:
+// bytes allocated per integrator step and per column (set-up included), and the functions that
+// allocate most. One Float64 heap number per step would be >= 16 bytes/step.
+// Run: node bench/heapSampling.mjs (after npm run build). Prints figures; never a timed test.
+import { Session } from 'node:inspector/promises';
+import { parseScenario } from '../dist/scenario/parse.js';
+import { renderJob } from '../dist/imaging/renderScenario.js';
+import { resolveCondition } from '../dist/imaging/resolveCondition.js';
+import { renderRows } from '../dist/imaging/renderRows.js';
+import { renderTranslated, translationPlan } from '../dist/imaging/translationColumns.js';
+import { DEMO_SCENARIO } from '../dist/scenario/demo.js';
+const wb = {
+  name: 'wb', material: 'Cu', kV: 200, foil: { thickness_nm: 100, normal: [0, 0, 1] }, beam: [0, 0, 1], imageX: [1, 0, 0],
+  image: { width_px: 128, height_px: 128, pixel_nm: 0.5 },
+  conditions: [{ id: 'wb', g: [2, 2, 0], weakBeam: 3, beams: { row: [-2, 4] } }],
+  defects: [{ type: 'dislocation', b: '1/2[1 1 0]', line: [1, -1, 2], point_nm: [0, 0, 50] }],
+};
+const session = new Session();
+session.connect();
+async function measure(label, f) {
+  f(); // warm-up (JIT)
+  await session.post('HeapProfiler.startSampling', { samplingInterval: 128 });
+  const st = f();
+  const { profile } = await session.post('HeapProfiler.stopSampling');
+  // every sample is an allocation (size scaled to the interval), whether or not it is still alive
+  const bySample = new Map();
+  let allBytes = 0;
+  const idToNode = new Map();
+  const index = (n) => { idToNode.set(n.id, n); for (const c of n.children) index(c); };
+  index(profile.head);
+  for (const s of profile.samples) {
+    const n = idToNode.get(s.nodeId) ?? { callFrame: { functionName: "(unknown node)", url: "", lineNumber: 0 } };
+    const k = `${n.callFrame.functionName || '(anon)'} ${n.callFrame.url.split('/').slice(-2).join('/')}:${n.callFrame.lineNumber}`;
+    bySample.set(k, (bySample.get(k) ?? 0) + s.size);
+    allBytes += s.size;
+  }
+  console.log(`${label}: ${st.columns} columns, ${st.slices} steps; sampled allocation ${(allBytes / 1024).toFixed(1)} KiB = ${(allBytes / st.slices).toFixed(3)} bytes/step, ${(allBytes / st.columns).toFixed(2)} bytes/column`);
+  for (const [k, v] of [...bySample].sort((a, b) => b[1] - a[1]).slice(0, 6)) console.log(`   ${(v / 1024).toFixed(1)} KiB  ${k}`);
+}
+const sc = parseScenario(wb);
+const job = renderJob(sc, resolveCondition(sc, sc.conditions[0]));
+const n = job.width * job.height;
+const bf = new Float32Array(n), df = new Float32Array(n);
+await measure('7-beam weak beam 128x128, column by column', () => renderRows({ ...job, shareColumns: false }, 0, job.height, bf, df));
+const plan = translationPlan(job, { ignoreGain: true });
+await measure('7-beam weak beam 128x128, shared columns', () => renderTranslated(job, plan, 0, 1, bf, df));
+const dsc = parseScenario(DEMO_SCENARIO);
+const djob = renderJob(dsc, resolveCondition(dsc, dsc.conditions[4]));
+await measure('demo g220-wb3 (9 beams), rows 100-108, column by column', () => renderRows(djob, 100, 108, new Float32Array(8 * 256), new Float32Array(8 * 256)));
+session.disconnect();
