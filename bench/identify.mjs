@@ -49,3 +49,10 @@ console.log(`demo identification (${res.candidates.length} candidates x ${preps.
 console.log(`phases (s): ${Object.entries(res.seconds).map(([k, v]) => `${k} ${v.toFixed(2)}`).join(', ')}`);
 console.log(`total ${total.toFixed(2)} s; bare loop (${pixels} px x 200 slices) ${base.toFixed(3)} s; ratio ${(total / base).toFixed(1)}`);
 console.log(`best ${res.ranking[0].candidate} (hidden ${DEMO_HIDDEN_CANDIDATE}); verdict ${res.verdict.decision}`);
+if (process.argv.includes('--details')) {
+  for (const r of res.ranking.slice(0, 5)) console.log(r.candidate, r.score.toFixed(4), r.fit ? `fit ${r.fit.nominalScore.toFixed(4)} -> ${r.fit.fittedScore.toFixed(4)} renders ${r.fit.renders} ` + r.fit.parameters.map((p) => `${p.name}=${p.value.toFixed(3)}`).join(' ') : '');
+  console.log(res.verdict.comparisons.slice(0, 5).map((c) => `${c.candidate} gap ${c.gap.toFixed(4)} sd ${c.gapSigma?.toFixed(4)} spread ${c.modelSpread.toFixed(4)} need ${c.threshold.toFixed(4)} ${c.excluded}`).join('\n'));
+  console.log(res.absolute.perMicrograph.map((p) => `${p.condition} sigma ${p.sigma.toFixed(4)} resid ${p.residualRms.toFixed(4)} structure ${p.structure.toFixed(2)}`).join('\n'));
+  console.log(res.flags.map((f) => f.message).join('\n'));
+  console.log(res.verdict.statement);
+}

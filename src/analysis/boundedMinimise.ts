@@ -14,7 +14,8 @@
  *    projected onto it (clamped) before evaluation, so every evaluated point
  *    is feasible.
  *
- * Both are pure: f is called only with in-range arguments.
+ * Both are pure: f is called only with in-range arguments. f may return a
+ * promise (a render); the search awaits each evaluation in turn.
  */
 
 export interface Minimum {
@@ -26,13 +27,13 @@ export interface Minimum {
 const GOLD = (Math.sqrt(5) - 1) / 2;
 
 /** Golden-section search of f on [lo, hi] until the bracket is below tol or maxEvaluations are spent. */
-export function goldenSection(f: (x: number) => number, lo: number, hi: number, tol: number, maxEvaluations = 40): Minimum {
+export async function goldenSection(f: (x: number) => number | Promise<number>, lo: number, hi: number, tol: number, maxEvaluations = 40): Promise<Minimum> {
   if (!(hi >= lo)) throw new RangeError(`goldenSection: need lo <= hi, got ${lo}, ${hi}`);
   let evaluations = 0;
   let bestX = lo;
   let bestV = Infinity;
-  const ev = (x: number) => {
-    const v = f(x);
+  const ev = async (x: number) => {
+    const v = await f(x);
     evaluations++;
     if (v < bestV) {
       bestV = v;
@@ -41,28 +42,28 @@ export function goldenSection(f: (x: number) => number, lo: number, hi: number, 
     return v;
   };
   if (hi - lo <= tol) {
-    ev(0.5 * (lo + hi));
+    await ev(0.5 * (lo + hi));
     return { x: [bestX], value: bestV, evaluations };
   }
   let a = lo;
   let b = hi;
   let c = b - GOLD * (b - a);
   let d = a + GOLD * (b - a);
-  let fc = ev(c);
-  let fd = ev(d);
+  let fc = await ev(c);
+  let fd = await ev(d);
   while (b - a > tol && evaluations < maxEvaluations) {
     if (fc <= fd) {
       b = d;
       d = c;
       fd = fc;
       c = b - GOLD * (b - a);
-      fc = ev(c);
+      fc = await ev(c);
     } else {
       a = c;
       c = d;
       fc = fd;
       d = a + GOLD * (b - a);
-      fd = ev(d);
+      fd = await ev(d);
     }
   }
   return { x: [bestX], value: bestV, evaluations };
@@ -79,7 +80,7 @@ export interface NelderMeadOptions {
 }
 
 /** Nelder-Mead minimisation of f from x0 inside the box [lo, hi] (per coordinate). */
-export function nelderMead(f: (x: readonly number[]) => number, x0: readonly number[], lo: readonly number[], hi: readonly number[], opts: NelderMeadOptions = {}): Minimum {
+export async function nelderMead(f: (x: readonly number[]) => number | Promise<number>, x0: readonly number[], lo: readonly number[], hi: readonly number[], opts: NelderMeadOptions = {}): Promise<Minimum> {
   const n = x0.length;
   if (lo.length !== n || hi.length !== n) throw new RangeError('nelderMead: x0, lo and hi must have the same length');
   for (let i = 0; i < n; i++) if (!(hi[i] >= lo[i])) throw new RangeError(`nelderMead: need lo <= hi in coordinate ${i}`);
@@ -88,7 +89,7 @@ export function nelderMead(f: (x: readonly number[]) => number, x0: readonly num
   const xTol = opts.xTol ?? 1e-6;
   const clamp = (x: number[]) => x.map((v, i) => Math.min(hi[i], Math.max(lo[i], v)));
   let evaluations = 0;
-  const ev = (x: number[]) => {
+  const ev = async (x: number[]) => {
     evaluations++;
     return f(x);
   };
@@ -103,7 +104,8 @@ export function nelderMead(f: (x: readonly number[]) => number, x0: readonly num
     p[i] = p0[i] + h <= hi[i] ? p0[i] + h : p0[i] - h;
     pts.push(clamp(p));
   }
-  const vals = pts.map(ev);
+  const vals: number[] = [];
+  for (const p of pts) vals.push(await ev(p));
   const order = () => {
     const idx = pts.map((_, i) => i).sort((a, b) => vals[a] - vals[b]);
     const P = idx.map((i) => pts[i]);
@@ -124,10 +126,10 @@ export function nelderMead(f: (x: readonly number[]) => number, x0: readonly num
     for (let i = 0; i < n; i++) for (let j = 0; j < n; j++) c[j] += pts[i][j] / n;
     const along = (t: number) => clamp(c.map((v, j) => v + t * (pts[n][j] - v)));
     const xr = along(-1);
-    const fr = ev(xr);
+    const fr = await ev(xr);
     if (fr < vals[0]) {
       const xe = along(-2);
-      const fe = ev(xe);
+      const fe = await ev(xe);
       if (fe < fr) {
         pts[n] = xe;
         vals[n] = fe;
@@ -141,14 +143,14 @@ export function nelderMead(f: (x: readonly number[]) => number, x0: readonly num
     } else {
       const outside = fr < vals[n];
       const xc = along(outside ? -0.5 : 0.5);
-      const fc = ev(xc);
+      const fc = await ev(xc);
       if (fc < (outside ? fr : vals[n])) {
         pts[n] = xc;
         vals[n] = fc;
       } else {
         for (let i = 1; i <= n; i++) {
           pts[i] = clamp(pts[i].map((v, j) => pts[0][j] + 0.5 * (v - pts[0][j])));
-          vals[i] = ev(pts[i]);
+          vals[i] = await ev(pts[i]);
         }
       }
     }
