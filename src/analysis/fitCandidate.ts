@@ -10,7 +10,10 @@
  * belong to the micrograph) and re-optimises only the shift (one FFT
  * correlation), and caches each micrograph's statistics by the parameters
  * that affect it, so that changing the w of one micrograph re-renders only
- * that micrograph. Order of the search:
+ * that micrograph. Order of the search (the score oscillates with thickness
+ * and depth, thickness fringes, so a local search from the stated values
+ * alone can stop in the wrong fringe):
+ *   0. a coarse grid over thickness and depth (GRID x GRID points, stated w);
  *   1. w of each micrograph alone, golden-section search over its range
  *      (one render per evaluation);
  *   2. the shared parameters (thickness, depth, line tilt) together by
@@ -29,7 +32,9 @@ import type { NuisanceModel } from './nuisance.js';
 import { simulateView, type Renderer } from './simulateView.js';
 
 /** Largest side of the views the fit works on (pixels). */
-export const FIT_SIDE = 40;
+export const FIT_SIDE = 32;
+/** Points per axis of the coarse thickness x depth grid. */
+export const GRID = 4;
 
 export interface FitView {
   readonly micrograph: PreparedMicrograph;
@@ -40,7 +45,7 @@ export interface FitView {
 /** Micrographs binned for the fit (shared by all candidates). */
 export function fitViews(micrographs: readonly PreparedMicrograph[]): FitView[] {
   return micrographs.map((m) => {
-    const b = Math.max(1, Math.floor(Math.min(m.width, m.height) / FIT_SIDE));
+    const b = Math.max(1, Math.ceil(Math.min(m.width, m.height) / FIT_SIDE - 1e-9));
     let v: PreparedMicrograph = m;
     if (b > 1) {
       const g = binImage({ width: m.width, height: m.height, data: m.contrast }, b);
@@ -116,7 +121,7 @@ export async function fitCandidate(inp: FitInputs): Promise<CandidateFit> {
         const half = (0.5 * (p.hi - p.lo)) / narrow;
         const lo = Math.max(p.lo, x[i] - half);
         const hi = Math.min(p.hi, x[i] + half);
-        const r = await goldenSection(async (t) => -(await score(x.map((v, j) => (j === i ? t : v)))), lo, hi, (p.hi - p.lo) / 40, narrow === 1 ? 9 : 6);
+        const r = await goldenSection(async (t) => -(await score(x.map((v, j) => (j === i ? t : v)))), lo, hi, (p.hi - p.lo) / 30, narrow === 1 ? 7 : 4);
         if (-r.value > best) {
           best = -r.value;
           x[i] = r.x[0];
@@ -125,6 +130,21 @@ export async function fitCandidate(inp: FitInputs): Promise<CandidateFit> {
       tick();
     }
   };
+  // 0. coarse grid over the first two shared parameters (thickness, depth)
+  const gridParams = shared.filter((i) => P[i].name === 'thickness' || P[i].name === 'depth');
+  if (gridParams.length > 0) {
+    const axes = gridParams.map((i) => Array.from({ length: GRID }, (_, k) => P[i].lo + ((k + 0.5) / GRID) * (P[i].hi - P[i].lo)));
+    const points: number[][] = gridParams.length === 1 ? axes[0].map((a) => [a]) : axes[0].flatMap((a) => axes[1].map((b) => [a, b]));
+    for (const pt of points) {
+      const y = [...x];
+      gridParams.forEach((i, k) => (y[i] = pt[k]));
+      const v = await score(y);
+      if (v > best) {
+        best = v;
+        gridParams.forEach((i, k) => (x[i] = pt[k]));
+      }
+    }
+  }
   await oneByOne(1);
   if (shared.length > 0) {
     const lo = shared.map(() => 0);
@@ -135,7 +155,7 @@ export async function fitCandidate(inp: FitInputs): Promise<CandidateFit> {
       return y;
     };
     const u0 = shared.map((i) => (P[i].hi > P[i].lo ? (x[i] - P[i].lo) / (P[i].hi - P[i].lo) : 0.5));
-    const r = await nelderMead(async (u) => -(await score(toX(u))), u0, lo, hi, { step: shared.map(() => 0.25), maxEvaluations: 6 * shared.length + 4, xTol: 0.01, fTol: 1e-5 });
+    const r = await nelderMead(async (u) => -(await score(toX(u))), u0, lo, hi, { step: shared.map(() => 0.25), maxEvaluations: 4 * shared.length + 4, xTol: 0.01, fTol: 1e-5 });
     if (-r.value > best) {
       best = -r.value;
       const y = toX(r.x);
