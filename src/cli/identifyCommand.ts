@@ -18,6 +18,7 @@ import { excerpt } from '../errors.js';
 import { identify, type IdentifyResult } from '../analysis/identify.js';
 import { prepareMicrographs, type MicrographInput } from '../analysis/identifyMicrographs.js';
 import { parseMicrographArgument, parseMicrographSettings } from '../analysis/identifySettings.js';
+import { parseFitSettings, type FitSettings } from '../analysis/fitSettings.js';
 import { isSyntheticName } from '../analysis/synthetic.js';
 import { comparisonFigure, comparisonFigureData } from '../output/comparisonFigure.js';
 import { identifyReportHtml } from '../output/report.js';
@@ -26,6 +27,7 @@ import { progressBar } from './progress.js';
 import { printJson, sig, table } from './run.js';
 import { slug } from './slug.js';
 import { readScenarioJson } from './loadScenario.js';
+import { decisionWord, fitText, gapText, noiseText } from '../analysis/identifyText.js';
 import { conditionGeometry } from '../geometry/conditionGeometry.js';
 import { formatPlaneIn } from '../crystal/formatIndices.js';
 import type { Lattice } from '../crystal/lattice.js';
@@ -56,6 +58,8 @@ export const MAX_SIMULATED_PIXELS = 768 * 768;
 
 /** The scenario key this command reads besides the ones parseScenario knows. */
 export const MICROGRAPHS_KEY = 'micrographs';
+/** The scenario key with the ranges of the fitted parameters (src/analysis/fitSettings.ts). */
+export const FIT_KEY = 'fit';
 
 function intOption(name: string, v: string | number | undefined, lo: number, hi: number, fallback: number): number {
   if (v === undefined) return fallback;
@@ -87,8 +91,9 @@ export interface IdentifyOutput {
 /** The whole command without printing; returns what it wrote. */
 export async function runIdentify(scenarioFile: string, opts: IdentifyCommandOptions, onProgress?: (message: string, fraction: number) => void): Promise<IdentifyOutput> {
   const raw = readScenarioJson(scenarioFile);
-  const { [MICROGRAPHS_KEY]: micrographsRaw, ...rest } = raw;
+  const { [MICROGRAPHS_KEY]: micrographsRaw, [FIT_KEY]: fitRaw, ...rest } = raw;
   const sc = parseScenario(rest);
+  const fit = parseFitSettings(fitRaw);
   const settings = parseMicrographSettings(micrographsRaw, sc.conditions.map((c) => c.id));
   const args = opts.micrograph === undefined ? [] : Array.isArray(opts.micrograph) ? opts.micrograph : [opts.micrograph];
   const defectIndex = intOption('--defect', opts.defect, 0, Math.max(0, sc.defects.length - 1), 0);
@@ -118,7 +123,7 @@ export async function runIdentify(scenarioFile: string, opts: IdentifyCommandOpt
   // checked before the work: the inputs must not lie in the folder this run replaces
   const set = OutputSet.begin(dir, { inputs: [scenarioFile, ...inputs.map((m) => m.source)] });
   try {
-    const out = await identifyInto(set, scenarioFile, sc, micrographs, { defectIndex, top, bootstrap: B, seed }, opts.threads, onProgress);
+    const out = await identifyInto(set, scenarioFile, sc, micrographs, { defectIndex, top, bootstrap: B, seed, fit }, opts.threads, onProgress);
     set.commit();
     return out;
   } catch (e) {
@@ -132,7 +137,7 @@ async function identifyInto(
   scenarioFile: string,
   sc: ReturnType<typeof parseScenario>,
   micrographs: ReturnType<typeof prepareMicrographs>,
-  o: { defectIndex: number; top: number; bootstrap: number; seed: number },
+  o: { defectIndex: number; top: number; bootstrap: number; seed: number; fit: FitSettings },
   threads: number | undefined,
   onProgress?: (message: string, fraction: number) => void,
 ): Promise<IdentifyOutput> {
@@ -146,6 +151,7 @@ async function identifyInto(
       top,
       bootstrap: B,
       seed,
+      fit: o.fit,
       ...(onProgress ? { onProgress } : {}),
     });
   } finally {
@@ -180,6 +186,7 @@ export function resultJson(res: IdentifyResult, files?: IdentifyOutput['files'],
       kind: r.kind,
       score: r.score,
       amplitude: r.amplitude,
+      ...(r.fit ? { fit: r.fit } : {}),
       perCondition: r.perCondition.map((p) => ({
         condition: p.condition,
         r2: p.r2,
@@ -198,10 +205,14 @@ export function resultJson(res: IdentifyResult, files?: IdentifyOutput['files'],
       gap: res.verdict.gap,
       gapSigma: res.verdict.gapSigma,
       threshold: res.verdict.threshold,
+      modelSpread: res.verdict.modelSpread,
       indistinguishable: res.verdict.indistinguishable,
+      comparisons: res.verdict.comparisons,
       statement: res.verdict.statement,
       rule: res.verdict.rule,
     },
+    absolute: res.absolute,
+    flags: res.flags,
     conditions: res.micrographs.map((m) => ({
       id: m.conditionId,
       g: m.condition.g,
@@ -249,7 +260,15 @@ export async function identifyCommand(scenarioFile: string, opts: IdentifyComman
   const { result: res, files, dir } = out;
   if (opts.json) {
     const j = resultJson(res, files);
-    printJson({ ranking: j.ranking.map(({ candidate, score, perCondition }) => ({ candidate, score, perCondition })), verdict: j.verdict, synthetic: j.synthetic, files });
+    printJson({
+      ranking: j.ranking.map(({ candidate, score, perCondition }) => ({ candidate, score, perCondition })),
+      verdict: j.verdict,
+      synthetic: j.synthetic,
+      fits: res.ranking.filter((r) => r.fit).map((r) => ({ candidate: r.candidate, ...r.fit })),
+      absolute: j.absolute,
+      flags: j.flags,
+      files,
+    });
     return;
   }
   process.stdout.write(formatIdentify(out));
@@ -264,18 +283,38 @@ export function formatIdentify(out: IdentifyOutput): string {
   if (synth.length > 0) parts.push(`NOTE: ${synth.map((m) => m.source).join(', ')} ${synth.length === 1 ? 'is a SYNTHETIC micrograph' : 'are SYNTHETIC micrographs'} (not measured).\n`);
   parts.push(`${res.scenario}: ${res.defectLabel}, ${res.candidates.length} candidates, ${res.micrographs.length} micrograph(s)\n\n`);
   const ids = res.micrographs.map((m) => m.conditionId);
+  const cmp = new Map(res.verdict.comparisons.map((c) => [c.candidate, c]));
   parts.push(table(
-    ['#', 'candidate', 'score', ...ids.map((id) => `R2 ${id}`), ...ids.map((id) => `g.b ${id}`)],
-    res.ranking.map((r, i) => [
-      String(i + 1),
-      r.candidate,
-      sig(r.score, 3),
-      ...r.perCondition.map((p) => sig(p.r2, 3)),
-      ...r.perCondition.map((p) => (p.visibility.value === undefined ? '-' : sig(p.visibility.value, 3))),
-    ]),
+    ['#', 'candidate', 'score', 'gap', 'needed', 'status', ...ids.map((id) => `R2 ${id}`), ...ids.map((id) => `g.b ${id}`)],
+    res.ranking.map((r, i) => {
+      const c = cmp.get(r.candidate);
+      const status = i === 0 ? (res.verdict.decision === 'identified' ? 'identified' : 'best') : c?.excluded ? 'excluded' : 'not excluded';
+      return [
+        String(i + 1),
+        r.candidate,
+        sig(r.score, 3),
+        gapText(c?.gap),
+        gapText(c?.threshold),
+        status,
+        ...r.perCondition.map((p) => sig(p.r2, 3)),
+        ...r.perCondition.map((p) => (p.visibility.value === undefined ? '-' : sig(p.visibility.value, 3))),
+      ];
+    }),
   ));
-  parts.push('R2: fraction of a micrograph\'s contrast variance explained by the registered simulation (negative: worse than a flat image, e.g. contrast predicted where there is none).\n');
-  parts.push(`\n${res.verdict.decision === 'identified' ? 'IDENTIFIED' : 'CANNOT TELL'}: ${res.verdict.statement}\n`);
+  parts.push('R2: fraction of a micrograph\'s contrast variance explained by the registered simulation (negative: worse than a flat image, e.g. contrast predicted where there is none). gap: score below the best; needed: the gap that excludes it (rule below).\n');
+  const fitted = res.ranking.filter((r) => r.fit);
+  if (fitted.length > 0) {
+    parts.push('\nfitted parameters (each within the range stated; see "fit" in the scenario):\n');
+    for (const r of fitted) parts.push(`  ${r.candidate}: ${fitText(r.fit!)}\n`);
+  } else parts.push('\nnuisance parameters: not fitted (as stated in the scenario).\n');
+  parts.push(`\nnoise and residual of the best candidate (${res.ranking[0].candidate}):\n`);
+  for (const p of res.absolute.perMicrograph) parts.push(`  ${p.condition}: ${noiseText(p)}\n`);
+  parts.push(`  ${res.absolute.method}\n`);
+  if (res.flags.length > 0) {
+    parts.push('\nflagged micrographs:\n');
+    for (const f of res.flags) parts.push(`  ${f.message}\n`);
+  }
+  parts.push(`\n${decisionWord(res.verdict.decision)}: ${res.verdict.statement}\n`);
   parts.push(`rule: ${res.verdict.rule}\n`);
   return parts.join('');
 }
