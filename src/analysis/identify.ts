@@ -21,7 +21,7 @@ import { simulateView, type Renderer } from './simulateView.js';
 import { DEFAULT_FIT, type FitSettings } from './fitSettings.js';
 import { nuisanceModel } from './nuisance.js';
 import { fitCandidate, fitViews } from './fitCandidate.js';
-import { absoluteFit, edgeFlag, finalVerdict, flipFlag, freeR2, type AbsoluteFit, type ConsistencyFlag } from './identifyChecks.js';
+import { absoluteFit, edgeFlag, finalVerdict, flipFlag, FLIP_MARGIN, freeR2, type AbsoluteFit, type ConsistencyFlag } from './identifyChecks.js';
 import type { Condition } from '../scenario/types.js';
 import type { PreparedMicrograph } from './identifyMicrographs.js';
 import { seededRandom } from './identifyRandom.js';
@@ -118,6 +118,8 @@ export interface IdentifyResult {
   readonly absolute: AbsoluteFit;
   /** Micrographs flagged as inconsistent with the best candidate as stated. */
   readonly flags: readonly ConsistencyFlag[];
+  /** Per micrograph: the best score as stated, and the best score of any leading candidate with that micrograph's g reversed or its image mirrored. */
+  readonly consistency: readonly { readonly condition: string; readonly scoreStated: number; readonly scoreReversed: number; readonly scoreMirrored: number }[];
   readonly seconds: { readonly render: number; readonly register: number; readonly fit: number; readonly bootstrap: number; readonly checks: number };
 }
 
@@ -329,20 +331,45 @@ export async function identify(sc: Scenario, micrographs: readonly PreparedMicro
   const bestFit = fitsOfOrder[0];
   const absolute = absoluteFit(micrographs, pairs[bestK].map((p) => p.window), bestFit.perCondition.map((p) => p.amplitude));
   const flags: ConsistencyFlag[] = [];
+  const consistency: { condition: string; scoreStated: number; scoreReversed: number; scoreMirrored: number }[] = [];
   const fb = fits.get(bestK);
   const bestState = fb ? fb.apply(fb.values) : { scenario: variantScenario(sc, candidates[bestK]), conditions: micrographs.map((m) => m.condition) };
   const maxR = regOpts.maxRotation_deg ?? DEFAULT_MAX_ROTATION_DEG;
   const maxS = regOpts.maxScale ?? DEFAULT_MAX_SCALE;
+  // g reversed or the image mirrored on one micrograph: every leading candidate at its own parameters, that
+  // micrograph replaced by the variant; flagged when the best such score beats the best score as stated
+  const stateOf = (k: number) => {
+    const f = fits.get(k);
+    return f ? f.apply(f.values) : { scenario: variantScenario(sc, candidates[k]), conditions: micrographs.map((m) => m.condition) };
+  };
+  const flipMargin = Math.max(3 * verdict0.gapSigma, FLIP_MARGIN / nC);
+  const alt = micrographs.map(() => ({ reversed: { score: -Infinity, k: bestK, r2: 0 }, mirrored: { score: -Infinity, k: bestK, r2: 0 } }));
+  for (const k of leaders) {
+    const st = stateOf(k);
+    const base = pairs[k].map((p) => p.stats);
+    for (let i = 0; i < nC; i++) {
+      const m = micrographs[i];
+      const c = st.conditions[i];
+      const reversed: Condition = { ...c, g: [-c.g[0], -c.g[1], -c.g[2]] };
+      const rev = registerSim(i, await simulateWith(st.scenario, st.conditions.map((x, j) => (j === i ? reversed : x)), i), viewOf(k, i), true);
+      const mir = registerSim(i, await simulateWith(st.scenario, st.conditions, i, { settings: { ...m.settings, mirrored: !m.settings.mirrored } }), viewOf(k, i), true);
+      for (const [kind, pr] of [['reversed', rev], ['mirrored', mir]] as const) {
+        const score = fitAmplitudes(base.map((x, j) => (j === i ? pr.stats : x)), linear, spread).score;
+        if (score > alt[i][kind].score) alt[i][kind] = { score, k, r2: freeR2(m.contrast, pr.window) };
+      }
+    }
+  }
+  const bestScore = fitsOfOrder[0].score;
   for (let i = 0; i < nC; i++) {
     const m = micrographs[i];
-    const stated = freeR2(m.contrast, pairs[bestK][i].window);
-    const reversed: Condition = { ...bestState.conditions[i], g: [-bestState.conditions[i].g[0], -bestState.conditions[i].g[1], -bestState.conditions[i].g[2]] };
-    const rev = registerSim(i, await simulateWith(bestState.scenario, bestState.conditions.map((c, j) => (j === i ? reversed : c)), i), viewOf(bestK, i), true);
-    const fr = flipFlag(m, 'g reversed', stated, freeR2(m.contrast, rev.window));
+    const fr = flipFlag(m, 'g reversed', bestScore, alt[i].reversed.score, candidates[alt[i].reversed.k].label, flipMargin);
     if (fr) flags.push(fr);
-    const mir = registerSim(i, await simulateWith(bestState.scenario, bestState.conditions, i, { settings: { ...m.settings, mirrored: !m.settings.mirrored } }), viewOf(bestK, i), true);
-    const fm = flipFlag(m, 'mirrored', stated, freeR2(m.contrast, mir.window));
+    const fm = flipFlag(m, 'mirrored', bestScore, alt[i].mirrored.score, candidates[alt[i].mirrored.k].label, flipMargin);
     if (fm) flags.push(fm);
+    consistency.push({ condition: m.conditionId, scoreStated: bestScore, scoreReversed: alt[i].reversed.score, scoreMirrored: alt[i].mirrored.score });
+  }
+  for (let i = 0; i < nC; i++) {
+    const m = micrographs[i];
     // registration at a limit: compare with the best registration inside 80 % of the ranges
     const reg = pairs[bestK][i].reg;
     const rotAt = Math.abs(reg.rotation_deg) >= maxR - 1e-6;
@@ -374,6 +401,7 @@ export async function identify(sc: Scenario, micrographs: readonly PreparedMicro
     settings: { top, bootstrap: B, seed, sigmas, amplitudeSpread: spread, fit: fitOn ? fitSettings : false },
     absolute,
     flags,
+    consistency,
     seconds: { render: (t1 - t0) / 1000, register: (t2 - t1) / 1000, fit: (t3 - t2) / 1000, bootstrap: (t4 - t3) / 1000, checks: (t5 - t4) / 1000 },
   };
 }

@@ -6,14 +6,17 @@
  *    candidate's residual keeps structure well above that noise in some
  *    micrograph (structure ratio above STRUCTURE_LIMIT), no candidate
  *    explains the micrographs;
- *  - consistency: a micrograph that the best candidate fits far better with g
- *    reversed (the other spot of the pair indexed as g) or with the image
- *    mirrored is flagged by name; a registration that ended at the limit of
+ *  - consistency: a micrograph is flagged by name when some leading candidate,
+ *    with that micrograph's g reversed (the other spot of the pair indexed as
+ *    g) or its image mirrored, scores higher than the best candidate as stated
+ *    by more than max(3 standard deviations of the runner-up gap,
+ *    FLIP_MARGIN / number of micrographs); comparing whole scores (not the one
+ *    micrograph) keeps -b from flagging every micrograph, since -b with g
+ *    reversed on one micrograph is b on that one only; a registration that ended at the limit of
  *    its rotation or scale range is flagged only when the fit there is
  *    significantly better than the best fit inside 80 % of the range.
  *
- * "Far better": the best free-scale R2 (cs^2 / (ss cc)) rises by more than
- * FLIP_MARGIN. "Significantly better": the rise of R2 exceeds 3 standard
+ * "Significantly better" (registration): the rise of R2 exceeds 3 standard
  * deviations of its pixel-noise error, 2 sigma |a (s_limit - s_inside)| / |c|^2
  * (first-order propagation of white noise of standard deviation sigma
  * through R2 = 1 - |c - a s|^2 / |c|^2), and EDGE_MIN_GAIN: gains below that
@@ -28,7 +31,7 @@ import type { Verdict } from './ranking.js';
 
 /** Above this structure ratio a residual is "well above the noise" (pure white noise gives about 1). */
 export const STRUCTURE_LIMIT = 4;
-/** Rise of R2 that makes a reversed or mirrored micrograph "far better". */
+/** Rise of one micrograph's R2 (so FLIP_MARGIN / n of the mean score) that makes a reversed or mirrored micrograph "far better". */
 export const FLIP_MARGIN = 0.1;
 /** Smallest rise of R2 at a registration limit that can flag a micrograph. */
 export const EDGE_MIN_GAIN = 0.03;
@@ -79,7 +82,7 @@ export type FlagKind = 'g reversed' | 'mirrored' | 'registration at limit';
 export interface ConsistencyFlag {
   readonly condition: string;
   readonly kind: FlagKind;
-  /** Free-scale R2 as stated and with the alternative. */
+  /** Score (or, for a registration limit, free-scale R2) as stated and with the alternative. */
   readonly r2Stated: number;
   readonly r2Alternative: number;
   readonly message: string;
@@ -98,13 +101,19 @@ export function freeR2(c: Float64Array, s: Float64Array): number {
   return cs > 0 && ss > 0 && cc > 0 ? (cs * cs) / (ss * cc) : 0;
 }
 
-export function flipFlag(m: PreparedMicrograph, kind: 'g reversed' | 'mirrored', stated: number, alternative: number): ConsistencyFlag | null {
-  if (!(alternative > stated + FLIP_MARGIN)) return null;
+export function flipFlag(m: PreparedMicrograph, kind: 'g reversed' | 'mirrored', stated: number, alternative: number, candidate: string, margin: number): ConsistencyFlag | null {
+  if (!(alternative > stated + margin)) return null;
   const what =
     kind === 'g reversed'
-      ? `with g reversed (-g of ${m.conditionId} at the same screen angle): check which spot of the pair was indexed as g and the direction given in micrographs.${m.conditionId}.gAngle_deg`
-      : `mirrored: check micrographs.${m.conditionId}.mirrored (an odd number of mirror operations between the beam's view and the file)`;
-  return { condition: m.conditionId, kind, r2Stated: stated, r2Alternative: alternative, message: `${m.conditionId} fits far better ${what} (R2 ${sig(alternative, 3)} against ${sig(stated, 3)})` };
+      ? `with g reversed (-g at the same screen angle): check which spot of the pair was indexed as g and the direction given in micrographs.${m.conditionId}.gAngle_deg`
+      : `mirrored: check micrographs.${m.conditionId}.mirrored (an odd number of mirror operations between the view along the beam and the file)`;
+  return {
+    condition: m.conditionId,
+    kind,
+    r2Stated: stated,
+    r2Alternative: alternative,
+    message: `${m.conditionId} fits far better ${what} (score ${sig(alternative, 3)} for ${candidate} with it, against ${sig(stated, 3)} as stated)`,
+  };
 }
 
 /**
