@@ -351,8 +351,11 @@ export async function identify(sc: Scenario, micrographs: readonly PreparedMicro
       const m = micrographs[i];
       const c = st.conditions[i];
       const reversed: Condition = { ...c, g: [-c.g[0], -c.g[1], -c.g[2]] };
-      const rev = registerSim(i, await simulateWith(st.scenario, st.conditions.map((x, j) => (j === i ? reversed : x)), i), viewOf(k, i), true);
-      const mir = registerSim(i, await simulateWith(st.scenario, st.conditions, i, { settings: { ...m.settings, mirrored: !m.settings.mirrored } }), viewOf(k, i), true);
+      // rendered along the line where possible (three times faster; slightly blurrier, which only makes the check
+      // more cautious) and registered by shift only, at the micrograph's rotation (mirrored: its negative) and scale
+      const v = viewOf(k, i);
+      const rev = registerSim(i, await simulateView(st.scenario, { ...m, condition: reversed }, render, { defectIndex }), v, false);
+      const mir = registerSim(i, await simulateView(st.scenario, { ...m, condition: c, settings: { ...m.settings, mirrored: !m.settings.mirrored } }, render, { defectIndex }), { rotation_deg: -v.rotation_deg, scale: v.scale }, false);
       for (const [kind, pr] of [['reversed', rev], ['mirrored', mir]] as const) {
         const score = fitAmplitudes(base.map((x, j) => (j === i ? pr.stats : x)), linear, spread).score;
         if (score > alt[i][kind].score) alt[i][kind] = { score, k, r2: freeR2(m.contrast, pr.window) };
