@@ -23,11 +23,11 @@ import { nuisanceModel } from './nuisance.js';
 import { fitCandidate, fitViews } from './fitCandidate.js';
 import { absoluteFit, edgeFlag, finalVerdict, flipFlag, FLIP_MARGIN, freeR2, type AbsoluteFit, type ConsistencyFlag } from './identifyChecks.js';
 import type { Condition } from '../scenario/types.js';
-import type { PreparedMicrograph } from './identifyMicrographs.js';
+import { viewGroups, type PreparedMicrograph } from './identifyMicrographs.js';
 import { seededRandom } from './identifyRandom.js';
 import { removePlane } from './preprocess.js';
 import { blockResample, correlationLength, decide, DEFAULT_SIGMAS, DEFAULT_SPREAD, fitAmplitudes, pairStats, type PairStats, type Verdict } from './ranking.js';
-import { DEFAULT_MAX_ROTATION_DEG, DEFAULT_MAX_SCALE, createCorrelator, extractWindow, findPeak, register, type Correlator, type PreparedTemplate, type RegistrationOptions, type RegistrationResult } from './registration.js';
+import { DEFAULT_MAX_ROTATION_DEG, DEFAULT_MAX_SCALE, createCorrelator, extractWindow, findPeak, register, registerGroup, type Correlator, type PreparedTemplate, type RegistrationOptions, type RegistrationResult } from './registration.js';
 import { describeElasticity } from '../elasticity/elasticityNote.js';
 
 export type { Renderer } from './simulateView.js';
@@ -163,15 +163,25 @@ export async function identify(sc: Scenario, micrographs: readonly PreparedMicro
   // 2. shift-only registration of everything
   const cors: Correlator[] = micrographs.map((m) => createCorrelator(m.width, m.height, m.width + 2 * m.margin, m.height + 2 * m.margin, 1e-5));
   const tpls: PreparedTemplate[] = micrographs.map((m, i) => cors[i].prepareTemplate(m.contrast));
-  const pairFor = (k: number, i: number, full: boolean, start?: { rotation_deg: number; scale: number }, close = false): Pair => {
-    const m = micrographs[i];
+  // micrographs of one field of view share one registration (identifyMicrographs.ts: viewGroups)
+  const groups = viewGroups(micrographs);
+  const pairsFor = (k: number, full: boolean, start?: (i: number) => { rotation_deg: number; scale: number }, close = false): Pair[] => {
+    const out: Pair[] = new Array(nC);
     const fine = close ? { initialRotationStep_deg: 1, initialScaleStep: 0.01 } : {};
-    const reg = register(cors[i], tpls[i], sims[k][i], { ...regOpts, ...fine, search: full, ...(start ? { start } : {}) });
-    const window = removePlane(new Float64Array(reg.window.length), reg.window, m.width, m.height);
-    return { reg, window, stats: pairStats(m.contrast, window), full };
+    for (const g of groups) {
+      const st = start?.(g[0]);
+      const regs = registerGroup(g.map((i) => cors[i]), g.map((i) => tpls[i]), g.map((i) => sims[k][i]), { ...regOpts, ...fine, search: full, ...(st ? { start: st } : {}) });
+      g.forEach((i, j) => {
+        const m = micrographs[i];
+        const reg = regs[j];
+        const window = removePlane(new Float64Array(reg.window.length), reg.window, m.width, m.height);
+        out[i] = { reg, window, stats: pairStats(m.contrast, window), full };
+      });
+    }
+    return out;
   };
   progress('registering', 0);
-  const pairs: Pair[][] = candidates.map((_, k) => micrographs.map((_, i) => pairFor(k, i, false)));
+  const pairs: Pair[][] = candidates.map((_, k) => pairsFor(k, false));
   const viewOf = (k: number, i: number) => ({ rotation_deg: pairs[k][i].reg.rotation_deg, scale: pairs[k][i].reg.scale });
   const scoreOf = (k: number) => fitAmplitudes(pairs[k].map((p) => p.stats), linear, spread);
   const rank = () => candidates.map((_, k) => ({ k, score: scoreOf(k).score })).sort((a, b) => b.score - a.score || a.k - b.k).map((e) => e.k);
@@ -186,20 +196,20 @@ export async function identify(sc: Scenario, micrographs: readonly PreparedMicro
       if (pairs[k][0].full) continue;
       // the first full search starts from no rotation; later ones start near the best view found so far
       const near = order.find((j) => pairs[j][0].full);
-      pairs[k] = micrographs.map((_, i) => (near === undefined ? pairFor(k, i, true) : pairFor(k, i, true, viewOf(near, i), true)));
+      pairs[k] = near === undefined ? pairsFor(k, true) : pairsFor(k, true, (i) => viewOf(near, i), true);
     }
     const bestFull = order.find((k) => pairs[k][0].full)!;
     const view = pairs[bestFull].map((p) => ({ rotation_deg: p.reg.rotation_deg, scale: p.reg.scale }));
     const same = applied !== null && view.every((v, i) => v.rotation_deg === applied![i].rotation_deg && v.scale === applied![i].scale);
     if (!same) {
-      for (let k = 0; k < candidates.length; k++) if (!pairs[k][0].full) pairs[k] = micrographs.map((_, i) => pairFor(k, i, false, view[i]));
+      for (let k = 0; k < candidates.length; k++) if (!pairs[k][0].full) pairs[k] = pairsFor(k, false, (i) => view[i]);
       applied = view;
     }
     order = rank();
     progress('registering', (round + 1) / 4);
   }
   const anchor = order.find((j) => pairs[j][0].full)!;
-  for (const k of order.slice(0, top)) if (!pairs[k][0].full) pairs[k] = micrographs.map((_, i) => pairFor(k, i, true, viewOf(anchor, i), true));
+  for (const k of order.slice(0, top)) if (!pairs[k][0].full) pairs[k] = pairsFor(k, true, (i) => viewOf(anchor, i), true);
   order = rank();
   const t2 = performance.now();
 

@@ -130,3 +130,56 @@ describe('absolute goodness of fit and consistency', () => {
     expect(res.absolute.explained).toBe(true);
   }, 120_000);
 });
+
+describe('micrographs of one field of view share one registration', () => {
+  const rawView = {
+    name: 'view test',
+    material: 'Cu',
+    kV: 200,
+    foil: { thickness_nm: 60, normal: [0, 0, 1] },
+    beam: [0, 0, 1],
+    absorption: 0.1,
+    elasticity: 'isotropic',
+    conditions: [
+      { id: 'g200', g: [2, 0, 0], w: 0.3 },
+      { id: 'gm200', g: [-2, 0, 0], w: 0.3 },
+      { id: 'g11m1', g: [1, 1, -1], w: 0.5, beam: [0, 1, 1] },
+    ],
+    defects: [{ type: 'dislocation', b: '1/2[1 0 1]', line: [1, 2, 4], point_nm: [0, 0, 30] }],
+    candidates: [{ b: '1/2[1 0 1]' }],
+  };
+  it('g and -g of the same area: one shift for both, and the gap between b and -b is at least as large as with separate registrations', async () => {
+    const sc = parseScenario(rawView);
+    const truth = identificationCandidates(sc).find((c) => c.label === 'b = 1/2[1 0 1]')!;
+    // one synthetic field of view: the same random shift and rotation for g200 and gm200 (the same seed, one condition each)
+    const angles: Record<string, number> = { g200: 10, gm200: 190, g11m1: -30 };
+    const one = async (id: string, seed: number) =>
+      (await syntheticMicrographs(sc, truth, [{ conditionId: id, field: 'bf', gAngle_deg: angles[id] }], { width: 48, height: 48, pixel_nm: 1, snr: 6, blur_nm: 0.6, maxShift_nm: 3, maxRotation_deg: 1, oversample: 1, seed }, render))[0];
+    const syn = [await one('g200', 31), await one('gm200', 31), await one('g11m1', 32)];
+    expect(syn[0].truth.shift_nm).toEqual(syn[1].truth.shift_nm);
+    const run = async (shared: boolean) => {
+      const settings = new Map<string, MicrographSettings>(
+        sc.conditions.map((c) => [c.id, { ...DEFAULT_SETTINGS, pixel_nm: 1, gAngle_deg: angles[c.id], blur_nm: 0.6, maxShift_nm: 8, ...(shared && c.id !== 'g11m1' ? { view: 'A' } : {}) }]),
+      );
+      const preps = prepareMicrographs(sc, syn.map((m) => ({ conditionId: m.conditionId, image: m, source: 'synthetic' })), settings);
+      return identify(sc, preps, render, { bootstrap: 10, fit: false });
+    };
+    const sep = await run(false);
+    const shared = await run(true);
+    const gapOf = (r: typeof sep) => r.ranking[0].score - r.ranking[1].score;
+    console.log(`shared view: ${shared.ranking.map((r) => `${r.candidate} ${r.score.toFixed(3)}`).join(', ')}; separate: ${sep.ranking.map((r) => `${r.candidate} ${r.score.toFixed(3)}`).join(', ')}`);
+    const best = shared.ranking[0];
+    expect(best.candidate).toBe(truth.label);
+    expect(best.perCondition[0].shift_nm).toEqual(best.perCondition[1].shift_nm);
+    expect(best.perCondition[0].rotation_deg).toBe(best.perCondition[1].rotation_deg);
+    expect(gapOf(shared)).toBeGreaterThanOrEqual(gapOf(sep) - 0.01);
+  }, 120_000);
+
+  it('a view shared across beam directions is refused with the field named', async () => {
+    const sc = parseScenario(rawView);
+    const img = { width: 40, height: 40, data: Float32Array.from({ length: 1600 }, (_, i) => 100 + (i % 7)) };
+    const settings = new Map<string, MicrographSettings>(sc.conditions.map((c) => [c.id, { ...DEFAULT_SETTINGS, pixel_nm: 1, gAngle_deg: 0, view: 'A' }]));
+    const preps = prepareMicrographs(sc, sc.conditions.map((c) => ({ conditionId: c.id, image: img, source: `${c.id}.tif` })), settings);
+    await expect(identify(sc, preps, render, { bootstrap: 0, fit: false })).rejects.toThrow(/micrographs\.g11m1\.view "A" is shared with g200, taken in another beam direction/);
+  });
+});
