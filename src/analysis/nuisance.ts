@@ -74,7 +74,7 @@ export function nuisanceModel(sc: Scenario, cand: Candidate, micrographs: readon
   const wIndex: number[] = [];
   micrographs.forEach((m, i) => {
     const measured = m.settings.w !== undefined;
-    const w0 = m.settings.w ?? m.resolved.w;
+    const w0 = m.settings.w ?? (m.condition.deviation.kind === 'w' ? m.condition.deviation.w : m.resolved.w);
     const half = m.settings.wError !== undefined ? MEASURED_SIGMAS * m.settings.wError : fit.wRange;
     wIndex.push(params.length);
     params.push({ name: `w ${m.conditionId}`, unit: '', nominal: w0, lo: w0 - half, hi: w0 + half, scope: i, from: measured && m.settings.wError !== undefined ? 'measured' : fit.wRange === 0.3 ? 'default range' : 'scenario range' });
