@@ -155,7 +155,7 @@ export async function fitCandidate(inp: FitInputs): Promise<CandidateFit> {
       return y;
     };
     const u0 = shared.map((i) => (P[i].hi > P[i].lo ? (x[i] - P[i].lo) / (P[i].hi - P[i].lo) : 0.5));
-    const r = await nelderMead(async (u) => -(await score(toX(u))), u0, lo, hi, { step: shared.map(() => 0.25), maxEvaluations: 4 * shared.length + 4, xTol: 0.01, fTol: 1e-5 });
+    const r = await nelderMead(async (u) => -(await score(toX(u))), u0, lo, hi, { step: shared.map(() => 0.25), maxEvaluations: 3 * shared.length + 4, xTol: 0.01, fTol: 1e-5 });
     if (-r.value > best) {
       best = -r.value;
       const y = toX(r.x);
