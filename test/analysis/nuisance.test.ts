@@ -76,7 +76,8 @@ describe('nuisance parameters and their ranges', () => {
     const a = (3 * 4) / 5;
     const b = (4 * 4) / 5;
     const expected = (Math.atan(Math.hypot(Math.tan((a * Math.PI) / 180), Math.tan((b * Math.PI) / 180))) * 180) / Math.PI;
-    expect(directionAngle_deg(sc, (d as { line: [number, number, number] }).line, [3, 1, 1])).toBeCloseTo(expected, 9);
+    if (d.type !== 'dislocation') throw new Error('expected a dislocation');
+    expect(directionAngle_deg(sc, d.line, [3, 1, 1])).toBeCloseTo(expected, 9);
   });
   it('bad fit settings are one InputError naming the field', () => {
     expect(() => parseFitSettings({ wRange: -1 })).toThrow(InputError);
