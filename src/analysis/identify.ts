@@ -29,6 +29,7 @@ import { removePlane } from './preprocess.js';
 import { blockResample, correlationLength, decide, DEFAULT_SIGMAS, DEFAULT_SPREAD, fitAmplitudes, pairStats, type PairStats, type Verdict } from './ranking.js';
 import { DEFAULT_MAX_ROTATION_DEG, DEFAULT_MAX_SCALE, createCorrelator, extractWindow, findPeak, register, registerGroup, type Correlator, type PreparedTemplate, type RegistrationOptions, type RegistrationResult } from './registration.js';
 import { describeElasticity } from '../elasticity/elasticityNote.js';
+import { resolveCondition } from '../imaging/resolveCondition.js';
 
 export type { Renderer } from './simulateView.js';
 
@@ -131,7 +132,11 @@ interface Pair {
   full: boolean;
 }
 
-export async function identify(sc: Scenario, micrographs: readonly PreparedMicrograph[], render: Renderer, opts: IdentifyOptions = {}): Promise<IdentifyResult> {
+export async function identify(scStated: Scenario, micrographsStated: readonly PreparedMicrograph[], render: Renderer, opts: IdentifyOptions = {}): Promise<IdentifyResult> {
+  const fitSettings = opts.fit === undefined ? DEFAULT_FIT : opts.fit;
+  const fitOn = fitSettings !== false && fitSettings.enabled;
+  // measured values (a micrograph's w, the thickness under "fit") replace the stated ones everywhere, fitted or not
+  const { sc, micrographs } = withMeasured(scStated, micrographsStated, fitSettings === false ? undefined : fitSettings.thickness_nm);
   const defectIndex = opts.defectIndex ?? 0;
   const candidates = identificationCandidates(sc, defectIndex);
   const top = Math.max(1, Math.min(candidates.length, opts.top ?? 4));
@@ -214,8 +219,6 @@ export async function identify(sc: Scenario, micrographs: readonly PreparedMicro
   const t2 = performance.now();
 
   // 3b. nuisance parameters of the leaders, fitted on small views, checked at full size
-  const fitSettings = opts.fit === undefined ? DEFAULT_FIT : opts.fit;
-  const fitOn = fitSettings !== false && fitSettings.enabled;
   const fits = new Map<number, { report: CandidateFitReport; values: readonly number[]; apply: (v: readonly number[]) => { scenario: Scenario; conditions: readonly Condition[] } }>();
   const simulateWith = (scenario: Scenario, conditions: readonly Condition[], i: number, over: Partial<PreparedMicrograph> = {}) =>
     simulateView(scenario, { ...micrographs[i], condition: conditions[i], ...over }, render, { alongLine: false });
@@ -245,9 +248,7 @@ export async function identify(sc: Scenario, micrographs: readonly PreparedMicro
         }
         return { ps, sims: [] as Float64Array[], score: fitAmplitudes(ps.map((p) => p.stats), linear, spread).score };
       };
-      const measuredStart = model.parameters.some((p) => p.from === 'measured');
-      let base = { ps: pairs[k], score: nominalScore };
-      if (measuredStart) base = await tryValues(nominal);
+      const base = { ps: pairs[k], score: nominalScore };
       const full = await tryValues(f.values);
       const improved = full.score > base.score;
       const values = improved ? f.values : nominal;
@@ -417,6 +418,22 @@ export async function identify(sc: Scenario, micrographs: readonly PreparedMicro
     consistency,
     seconds: { render: (t1 - t0) / 1000, register: (t2 - t1) / 1000, fit: (t3 - t2) / 1000, bootstrap: (t4 - t3) / 1000, checks: (t5 - t4) / 1000 },
   };
+}
+
+/**
+ * The scenario and micrographs with measured values in place of the stated
+ * ones: the foil thickness, and each micrograph's w (its condition then gives
+ * the deviation as w; the resolved parameters are recomputed).
+ */
+function withMeasured(sc: Scenario, micrographs: readonly PreparedMicrograph[], thickness_nm: number | undefined): { sc: Scenario; micrographs: PreparedMicrograph[] } {
+  const sc1 = thickness_nm === undefined ? sc : { ...sc, thickness_nm };
+  const ms = micrographs.map((m) => {
+    const w = m.settings.w;
+    if (w === undefined && sc1 === sc) return m;
+    const condition: Condition = w === undefined ? m.condition : { ...m.condition, deviation: { kind: 'w', w } };
+    return { ...m, condition, resolved: resolveCondition(sc1, condition) };
+  });
+  return { sc: sc1, micrographs: ms };
 }
 
 /**

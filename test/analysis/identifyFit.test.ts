@@ -183,3 +183,16 @@ describe('micrographs of one field of view share one registration', () => {
     await expect(identify(sc, preps, render, { bootstrap: 0, fit: false })).rejects.toThrow(/micrographs\.g11m1\.view "A" is shared with g200, taken in another beam direction/);
   });
 });
+
+describe('measured values in the identification scenario', () => {
+  it('a measured w (micrographs.<id>.w) and thickness (fit.thickness_nm) replace the stated ones even when nothing is fitted', async () => {
+    const sc = parseScenario({ ...raw(70, 35, 0.5, '1/2[0 1 -1]', [{ b: '1/2[0 1 -1]' }]), conditions: [{ id: 'g200', g: [2, 0, 0], w: 0.5 }] });
+    const img = { width: 24, height: 24, data: Float32Array.from({ length: 576 }, (_, i) => 100 + ((i * 7) % 5)) };
+    const settings = new Map<string, MicrographSettings>([['g200', { ...DEFAULT_SETTINGS, pixel_nm: 1, gAngle_deg: 0, w: 0.62, wError: 0.05, maxShift_nm: 2 }]]);
+    const preps = prepareMicrographs(sc, [{ conditionId: 'g200', image: img, source: 'g200.tif' }], settings);
+    const res = await identify(sc, preps, render, { bootstrap: 0, fit: { ...DEFAULT_FIT, enabled: false, thickness_nm: 84, thicknessError_nm: 3 } });
+    expect(res.micrographs[0].resolved.w).toBeCloseTo(0.62, 9);
+    expect(res.micrographs[0].resolved.frame.thickness_nm).toBe(84);
+    expect(res.ranking.every((r) => r.fit === undefined)).toBe(true);
+  }, 60_000);
+});
