@@ -238,7 +238,7 @@ export async function identify(scStated: Scenario, micrographsStated: readonly P
       const nominalScore = scoreOf(k).score;
       const f = await fitCandidate({ model, views, view: micrographs.map((_, i) => viewOf(k, i)), linear, spread, render, defectIndex });
       let renders = f.renders;
-      // the fit's values at full size; a measured value that differs from the scenario's counts as the stated one
+      // the fit's values at full size, kept only when they score better there than the stated ones
       const tryValues = async (v: readonly number[]) => {
         const { scenario, conditions } = model.apply(v);
         const ps: Pair[] = [];
@@ -246,7 +246,7 @@ export async function identify(scStated: Scenario, micrographsStated: readonly P
           ps.push(registerSim(i, await simulateWith(scenario, conditions, i), viewOf(k, i), true));
           renders++;
         }
-        return { ps, sims: [] as Float64Array[], score: fitAmplitudes(ps.map((p) => p.stats), linear, spread).score };
+        return { ps, score: fitAmplitudes(ps.map((p) => p.stats), linear, spread).score };
       };
       const base = { ps: pairs[k], score: nominalScore };
       const full = await tryValues(f.values);
