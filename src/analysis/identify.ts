@@ -16,19 +16,22 @@
  */
 import type { Scenario } from '../scenario/types.js';
 import { InputError, InternalError } from '../errors.js';
-import type { ConditionImages } from '../imaging/renderScenario.js';
 import { identificationCandidates, variantScenario, visibilityNote, type Candidate, type VisibilityNote } from './candidates.js';
-import { conditionView } from './identifyView.js';
-import type { PreparedMicrograph } from './identifyMicrographs.js';
+import { simulateView, type Renderer } from './simulateView.js';
+import { DEFAULT_FIT, type FitSettings } from './fitSettings.js';
+import { nuisanceModel } from './nuisance.js';
+import { fitCandidate, fitViews } from './fitCandidate.js';
+import { absoluteFit, edgeFlag, finalVerdict, flipFlag, FLIP_MARGIN, freeR2, type AbsoluteFit, type ConsistencyFlag } from './identifyChecks.js';
+import type { Condition } from '../scenario/types.js';
+import { viewGroups, type PreparedMicrograph } from './identifyMicrographs.js';
 import { seededRandom } from './identifyRandom.js';
-import { gaussianBlur, removePlane } from './preprocess.js';
+import { removePlane } from './preprocess.js';
 import { blockResample, correlationLength, decide, DEFAULT_SIGMAS, DEFAULT_SPREAD, fitAmplitudes, pairStats, type PairStats, type Verdict } from './ranking.js';
-import { DEFAULT_MAX_ROTATION_DEG, DEFAULT_MAX_SCALE, createCorrelator, extractWindow, findPeak, register, type Correlator, type PreparedTemplate, type RegistrationOptions, type RegistrationResult } from './registration.js';
-import { flipRowsView, imageView, toFloat64 } from '../imaging/imageView.js';
+import { DEFAULT_MAX_ROTATION_DEG, DEFAULT_MAX_SCALE, createCorrelator, extractWindow, findPeak, register, registerGroup, type Correlator, type PreparedTemplate, type RegistrationOptions, type RegistrationResult } from './registration.js';
 import { describeElasticity } from '../elasticity/elasticityNote.js';
+import { resolveCondition } from '../imaging/resolveCondition.js';
 
-/** Renders a scenario (one condition) into its images; the CLI passes renderScenario with one shared pool. */
-export type Renderer = (sc: Scenario) => Promise<readonly ConditionImages[]>;
+export type { Renderer } from './simulateView.js';
 
 export interface IdentifyOptions {
   /** Index of the defect to identify (default 0). */
@@ -43,6 +46,8 @@ export interface IdentifyOptions {
   /** Largest factor by which the contrast scale of one micrograph may differ from the common one (default 1.5). */
   readonly amplitudeSpread?: number;
   readonly registration?: RegistrationOptions;
+  /** Ranges of the fitted nuisance parameters (fitSettings.ts; default DEFAULT_FIT); false: nothing is fitted. */
+  readonly fit?: FitSettings | false;
   readonly onProgress?: (message: string, fraction: number) => void;
   /**
    * Simulations made beforehand, [candidate][micrograph] in the order of identificationCandidates and of the
@@ -74,6 +79,32 @@ export interface RankedCandidate {
   readonly perCondition: readonly ConditionScore[];
   /** Rotation and scale searched for this candidate itself (the leaders) or taken from the best. */
   readonly fullySearched: boolean;
+  /** The nuisance fit of this candidate (leaders only, when fitting is on). */
+  readonly fit?: CandidateFitReport;
+}
+
+export interface FittedParameter {
+  readonly name: string;
+  readonly unit: string;
+  readonly nominal: number;
+  readonly value: number;
+  readonly lo: number;
+  readonly hi: number;
+  readonly from: string;
+  /** The value sits within 2 % of the range at one of its ends. */
+  readonly atLimit: boolean;
+}
+
+export interface CandidateFitReport {
+  readonly parameters: readonly FittedParameter[];
+  /** Tilt of the line from the stated direction (degrees), when the line was fitted. */
+  readonly lineTilt_deg?: number;
+  /** Score with the stated parameters and with the fitted ones (full-size views). */
+  readonly nominalScore: number;
+  readonly fittedScore: number;
+  /** false: the fit did not improve the full-size score, the stated values were kept. */
+  readonly improved: boolean;
+  readonly renders: number;
 }
 
 export interface IdentifyResult {
@@ -88,8 +119,14 @@ export interface IdentifyResult {
   readonly verdict: Verdict;
   /** Registered simulation windows (relative contrast) of the leading candidates, [rank][micrograph]. */
   readonly leaderImages: readonly (readonly Float64Array[])[];
-  readonly settings: { readonly top: number; readonly bootstrap: number; readonly seed: number; readonly sigmas: number; readonly amplitudeSpread: number };
-  readonly seconds: { readonly render: number; readonly register: number; readonly bootstrap: number };
+  readonly settings: { readonly top: number; readonly bootstrap: number; readonly seed: number; readonly sigmas: number; readonly amplitudeSpread: number; readonly fit: FitSettings | false };
+  /** Pixel noise per micrograph and the structure the best candidate leaves (identifyChecks.ts). */
+  readonly absolute: AbsoluteFit;
+  /** Micrographs flagged as inconsistent with the best candidate as stated. */
+  readonly flags: readonly ConsistencyFlag[];
+  /** Per micrograph: the best score as stated, and the best score of any leading candidate with that micrograph's g reversed or its image mirrored. */
+  readonly consistency: readonly { readonly condition: string; readonly scoreStated: number; readonly scoreReversed: number; readonly scoreMirrored: number }[];
+  readonly seconds: { readonly render: number; readonly register: number; readonly fit: number; readonly bootstrap: number; readonly checks: number };
 }
 
 interface Pair {
@@ -100,7 +137,11 @@ interface Pair {
   full: boolean;
 }
 
-export async function identify(sc: Scenario, micrographs: readonly PreparedMicrograph[], render: Renderer, opts: IdentifyOptions = {}): Promise<IdentifyResult> {
+export async function identify(scStated: Scenario, micrographsStated: readonly PreparedMicrograph[], render: Renderer, opts: IdentifyOptions = {}): Promise<IdentifyResult> {
+  const fitSettings = opts.fit === undefined ? DEFAULT_FIT : opts.fit;
+  const fitOn = fitSettings !== false && fitSettings.enabled;
+  // measured values (a micrograph's w, the thickness under "fit") replace the stated ones everywhere, fitted or not
+  const { sc, micrographs } = measuredInputs(scStated, micrographsStated, fitSettings);
   const defectIndex = opts.defectIndex ?? 0;
   const candidates = identificationCandidates(sc, defectIndex);
   const top = Math.max(1, Math.min(candidates.length, opts.top ?? 4));
@@ -122,15 +163,25 @@ export async function identify(sc: Scenario, micrographs: readonly PreparedMicro
   // 2. shift-only registration of everything
   const cors: Correlator[] = micrographs.map((m) => createCorrelator(m.width, m.height, m.width + 2 * m.margin, m.height + 2 * m.margin, 1e-5));
   const tpls: PreparedTemplate[] = micrographs.map((m, i) => cors[i].prepareTemplate(m.contrast));
-  const pairFor = (k: number, i: number, full: boolean, start?: { rotation_deg: number; scale: number }, close = false): Pair => {
-    const m = micrographs[i];
+  // micrographs of one field of view share one registration (identifyMicrographs.ts: viewGroups)
+  const groups = viewGroups(micrographs);
+  const pairsFor = (k: number, full: boolean, start?: (i: number) => { rotation_deg: number; scale: number }, close = false): Pair[] => {
+    const out: Pair[] = new Array(nC);
     const fine = close ? { initialRotationStep_deg: 1, initialScaleStep: 0.01 } : {};
-    const reg = register(cors[i], tpls[i], sims[k][i], { ...regOpts, ...fine, search: full, ...(start ? { start } : {}) });
-    const window = removePlane(new Float64Array(reg.window.length), reg.window, m.width, m.height);
-    return { reg, window, stats: pairStats(m.contrast, window), full };
+    for (const g of groups) {
+      const st = start?.(g[0]);
+      const regs = registerGroup(g.map((i) => cors[i]), g.map((i) => tpls[i]), g.map((i) => sims[k][i]), { ...regOpts, ...fine, search: full, ...(st ? { start: st } : {}) });
+      g.forEach((i, j) => {
+        const m = micrographs[i];
+        const reg = regs[j];
+        const window = removePlane(new Float64Array(reg.window.length), reg.window, m.width, m.height);
+        out[i] = { reg, window, stats: pairStats(m.contrast, window), full };
+      });
+    }
+    return out;
   };
   progress('registering', 0);
-  const pairs: Pair[][] = candidates.map((_, k) => micrographs.map((_, i) => pairFor(k, i, false)));
+  const pairs: Pair[][] = candidates.map((_, k) => pairsFor(k, false));
   const viewOf = (k: number, i: number) => ({ rotation_deg: pairs[k][i].reg.rotation_deg, scale: pairs[k][i].reg.scale });
   const scoreOf = (k: number) => fitAmplitudes(pairs[k].map((p) => p.stats), linear, spread);
   const rank = () => candidates.map((_, k) => ({ k, score: scoreOf(k).score })).sort((a, b) => b.score - a.score || a.k - b.k).map((e) => e.k);
@@ -145,46 +196,134 @@ export async function identify(sc: Scenario, micrographs: readonly PreparedMicro
       if (pairs[k][0].full) continue;
       // the first full search starts from no rotation; later ones start near the best view found so far
       const near = order.find((j) => pairs[j][0].full);
-      pairs[k] = micrographs.map((_, i) => (near === undefined ? pairFor(k, i, true) : pairFor(k, i, true, viewOf(near, i), true)));
+      pairs[k] = near === undefined ? pairsFor(k, true) : pairsFor(k, true, (i) => viewOf(near, i), true);
     }
     const bestFull = order.find((k) => pairs[k][0].full)!;
     const view = pairs[bestFull].map((p) => ({ rotation_deg: p.reg.rotation_deg, scale: p.reg.scale }));
     const same = applied !== null && view.every((v, i) => v.rotation_deg === applied![i].rotation_deg && v.scale === applied![i].scale);
     if (!same) {
-      for (let k = 0; k < candidates.length; k++) if (!pairs[k][0].full) pairs[k] = micrographs.map((_, i) => pairFor(k, i, false, view[i]));
+      for (let k = 0; k < candidates.length; k++) if (!pairs[k][0].full) pairs[k] = pairsFor(k, false, (i) => view[i]);
       applied = view;
     }
     order = rank();
     progress('registering', (round + 1) / 4);
   }
   const anchor = order.find((j) => pairs[j][0].full)!;
-  for (const k of order.slice(0, top)) if (!pairs[k][0].full) pairs[k] = micrographs.map((_, i) => pairFor(k, i, true, viewOf(anchor, i), true));
+  for (const k of order.slice(0, top)) if (!pairs[k][0].full) pairs[k] = pairsFor(k, true, (i) => viewOf(anchor, i), true);
   order = rank();
   const t2 = performance.now();
+
+  // 3b. nuisance parameters of the leaders, fitted on small views, checked at full size
+  const fits = new Map<number, { report: CandidateFitReport; values: readonly number[]; apply: (v: readonly number[]) => { scenario: Scenario; conditions: readonly Condition[] } }>();
+  const simulateWith = (scenario: Scenario, conditions: readonly Condition[], i: number, over: Partial<PreparedMicrograph> = {}) =>
+    simulateView(scenario, { ...micrographs[i], condition: conditions[i], ...over }, render, { alongLine: false });
+  const registerSim = (i: number, sim: Float64Array, start: { rotation_deg: number; scale: number }, full: boolean): Pair => {
+    const m = micrographs[i];
+    const reg = register(cors[i], tpls[i], sim, { ...regOpts, ...(full ? { initialRotationStep_deg: 1, initialScaleStep: 0.01 } : {}), search: full, start });
+    const window = removePlane(new Float64Array(reg.window.length), reg.window, m.width, m.height);
+    return { reg, window, stats: pairStats(m.contrast, window), full: true };
+  };
+  if (fitOn) {
+    const views = fitViews(micrographs);
+    const fitted = order.slice(0, top);
+    for (const [n, k] of fitted.entries()) {
+      progress(`fitting thickness, depth, line and w for ${candidates[k].label}`, n / fitted.length);
+      const model = nuisanceModel(sc, candidates[k], micrographs, fitSettings);
+      const nominal = model.parameters.map((p) => p.nominal);
+      const nominalScore = scoreOf(k).score;
+      const f = await fitCandidate({ model, views, view: micrographs.map((_, i) => viewOf(k, i)), linear, spread, render, defectIndex });
+      let renders = f.renders;
+      // the fit's values at full size, kept only when they score better there than the stated ones
+      const tryValues = async (v: readonly number[]) => {
+        const { scenario, conditions } = model.apply(v);
+        const ps: Pair[] = [];
+        for (let i = 0; i < nC; i++) {
+          ps.push(registerSim(i, await simulateWith(scenario, conditions, i), viewOf(k, i), true));
+          renders++;
+        }
+        return { ps, score: fitAmplitudes(ps.map((p) => p.stats), linear, spread).score };
+      };
+      const base = { ps: pairs[k], score: nominalScore };
+      const full = await tryValues(f.values);
+      const improved = full.score > base.score;
+      const values = improved ? f.values : nominal;
+      pairs[k] = improved ? full.ps : base.ps;
+      const tilt = model.tilt_deg(values);
+      fits.set(k, {
+        values,
+        apply: model.apply,
+        report: {
+          parameters: model.parameters.map((p, j) => {
+            const span = p.hi - p.lo;
+            return { name: p.name, unit: p.unit, nominal: p.nominal, value: values[j], lo: p.lo, hi: p.hi, from: p.from, atLimit: span > 0 && (values[j] - p.lo < 0.02 * span || p.hi - values[j] < 0.02 * span) };
+          }),
+          ...(tilt === undefined ? {} : { lineTilt_deg: tilt }),
+          nominalScore: base.score,
+          fittedScore: Math.max(full.score, base.score),
+          improved,
+          renders,
+        },
+      });
+    }
+    order = rank();
+  }
+  const t3 = performance.now();
 
   // 4. bootstrap of the leaders (the fully registered prefix of the ranking)
   const firstPartial = order.findIndex((k) => !pairs[k][0].full);
   const leaders = order.slice(0, Math.min(top, firstPartial < 0 ? order.length : firstPartial));
   const replicates = bootstrap(micrographs, cors, pairs, leaders, linear, spread, B, seed, (f) => progress('estimating the noise of the scores', f));
-  const t3 = performance.now();
+  const t4 = performance.now();
+
+  // 5. spread of the gaps across the parameter ranges (fitted leaders), and the gain unfitted candidates might get
+  const scoreWith = async (k: number, v: readonly number[], fk: { apply: (v: readonly number[]) => { scenario: Scenario; conditions: readonly Condition[] } }) => {
+    const { scenario, conditions } = fk.apply(v);
+    const ps: Pair[] = [];
+    for (let i = 0; i < nC; i++) ps.push(registerSim(i, await simulateWith(scenario, conditions, i), viewOf(k, i), false));
+    return fitAmplitudes(ps.map((p) => p.stats), linear, spread).score;
+  };
+  const spreads = order.map(() => 0);
+  const bestK = order[0];
+  if (fitOn && fits.has(bestK)) {
+    progress('spread of the scores across the parameter ranges', 0);
+    const fb = fits.get(bestK)!;
+    const sB = scoreOf(bestK).score;
+    let maxSpread = 0;
+    let maxGain = 0;
+    for (const f of fits.values()) maxGain = Math.max(maxGain, f.report.fittedScore - f.report.nominalScore);
+    for (let r = 1; r < order.length; r++) {
+      const k = order[r];
+      const fk = fits.get(k);
+      if (fk === undefined) continue;
+      const sK = scoreOf(k).score;
+      // the other candidate at the best one's values and the best at the other's (the same parameter names in the same order)
+      const kAtB = fb.values.length === fk.values.length ? await scoreWith(k, fb.values, fk) : sK;
+      const bAtK = fb.values.length === fk.values.length ? await scoreWith(bestK, fk.values, fb) : sB;
+      const gaps = [sB - sK, sB - kAtB, bAtK - sK];
+      spreads[r] = 0.5 * (Math.max(...gaps) - Math.min(...gaps));
+      maxSpread = Math.max(maxSpread, spreads[r]);
+    }
+    for (let r = 1; r < order.length; r++) if (!fits.has(order[r])) spreads[r] = maxSpread + maxGain;
+  }
 
   const labels = order.map((k) => candidates[k].label);
-  const fits = order.map((k) => scoreOf(k));
-  const verdict = decide(labels, fits.map((f) => f.score), replicates, sigmas);
+  const fitsOfOrder = order.map((k) => scoreOf(k));
+  const verdict0 = decide(labels, fitsOfOrder.map((f) => f.score), replicates, sigmas, undefined, fitOn ? { spreads, fitted: true } : undefined);
   const lattice = sc.material.lattice;
   const ranking: RankedCandidate[] = order.map((k, r) => ({
     candidate: candidates[k].label,
     kind: candidates[k].kind,
-    score: fits[r].score,
-    amplitude: fits[r].amplitude,
+    score: fitsOfOrder[r].score,
+    amplitude: fitsOfOrder[r].amplitude,
     fullySearched: pairs[k][0].full,
+    ...(fits.has(k) ? { fit: fits.get(k)!.report } : {}),
     perCondition: micrographs.map((m, i) => {
       const p = pairs[k][i];
       return {
         condition: m.conditionId,
-        r2: fits[r].perCondition[i].r2,
+        r2: fitsOfOrder[r].perCondition[i].r2,
         ncc: p.reg.ncc,
-        amplitude: fits[r].perCondition[i].amplitude,
+        amplitude: fitsOfOrder[r].perCondition[i].amplitude,
         shift_nm: [p.reg.shiftX_px * m.pixel_nm, p.reg.shiftY_px * m.pixel_nm] as const,
         rotation_deg: p.reg.rotation_deg,
         scale: p.reg.scale,
@@ -192,17 +331,72 @@ export async function identify(sc: Scenario, micrographs: readonly PreparedMicro
       };
     }),
   }));
-  // registrations of the best candidate that ended at a search limit: a sign of a wrong pixel size or g angle,
-  // or of a candidate that does not fit
-  const best = ranking[0];
+
+  // 6. absolute fit and consistency checks of the best candidate
+  progress('checking the best candidate', 0);
+  const bestFit = fitsOfOrder[0];
+  const absolute = absoluteFit(micrographs, pairs[bestK].map((p) => p.window), bestFit.perCondition.map((p) => p.amplitude));
+  const flags: ConsistencyFlag[] = [];
+  const consistency: { condition: string; scoreStated: number; scoreReversed: number; scoreMirrored: number }[] = [];
+  const fb = fits.get(bestK);
+  const bestState = fb ? fb.apply(fb.values) : { scenario: variantScenario(sc, candidates[bestK]), conditions: micrographs.map((m) => m.condition) };
   const maxR = regOpts.maxRotation_deg ?? DEFAULT_MAX_ROTATION_DEG;
   const maxS = regOpts.maxScale ?? DEFAULT_MAX_SCALE;
-  const atLimit = best
-    ? best.perCondition.filter((p) => Math.abs(p.rotation_deg) >= maxR - 1e-6 || Math.abs(p.scale - 1) >= maxS - 1e-6).map((p) => p.condition)
-    : [];
-  const limitNote = atLimit.length
-    ? ` Registration of the best candidate ended at the edge of its search range (rotation ${maxR} degrees or scale ${100 * maxS} %) for ${atLimit.join(', ')}; the scale of images of straight lines is only weakly constrained, but if the pixel size or the direction of g there may be wrong, check them.`
-    : '';
+  // g reversed or the image mirrored on one micrograph: every leading candidate at its own parameters, that
+  // micrograph replaced by the variant; flagged when the best such score beats the best score as stated
+  const stateOf = (k: number) => {
+    const f = fits.get(k);
+    return f ? f.apply(f.values) : { scenario: variantScenario(sc, candidates[k]), conditions: micrographs.map((m) => m.condition) };
+  };
+  const flipMargin = Math.max(3 * verdict0.gapSigma, FLIP_MARGIN / nC);
+  const alt = micrographs.map(() => ({ reversed: { score: -Infinity, k: bestK, r2: 0 }, mirrored: { score: -Infinity, k: bestK, r2: 0 } }));
+  for (const k of leaders) {
+    const st = stateOf(k);
+    const base = pairs[k].map((p) => p.stats);
+    for (let i = 0; i < nC; i++) {
+      const m = micrographs[i];
+      const c = st.conditions[i];
+      const reversed: Condition = { ...c, g: [-c.g[0], -c.g[1], -c.g[2]] };
+      // rendered along the line where possible (three times faster; slightly blurrier, which only makes the check
+      // more cautious) and registered by shift only, at the micrograph's rotation (mirrored: its negative) and scale
+      const v = viewOf(k, i);
+      const rev = registerSim(i, await simulateView(st.scenario, { ...m, condition: reversed }, render, { defectIndex }), v, false);
+      const mir = registerSim(i, await simulateView(st.scenario, { ...m, condition: c, settings: { ...m.settings, mirrored: !m.settings.mirrored } }, render, { defectIndex }), { rotation_deg: -v.rotation_deg, scale: v.scale }, false);
+      for (const [kind, pr] of [['reversed', rev], ['mirrored', mir]] as const) {
+        const score = fitAmplitudes(base.map((x, j) => (j === i ? pr.stats : x)), linear, spread).score;
+        if (score > alt[i][kind].score) alt[i][kind] = { score, k, r2: freeR2(m.contrast, pr.window) };
+      }
+    }
+  }
+  const bestScore = fitsOfOrder[0].score;
+  for (let i = 0; i < nC; i++) {
+    const m = micrographs[i];
+    const fr = flipFlag(m, 'g reversed', bestScore, alt[i].reversed.score, candidates[alt[i].reversed.k].label, flipMargin);
+    if (fr) flags.push(fr);
+    const fm = flipFlag(m, 'mirrored', bestScore, alt[i].mirrored.score, candidates[alt[i].mirrored.k].label, flipMargin);
+    if (fm) flags.push(fm);
+    consistency.push({ condition: m.conditionId, scoreStated: bestScore, scoreReversed: alt[i].reversed.score, scoreMirrored: alt[i].mirrored.score });
+  }
+  for (let i = 0; i < nC; i++) {
+    const m = micrographs[i];
+    // registration at a limit: compare with the best registration inside 80 % of the ranges
+    const reg = pairs[bestK][i].reg;
+    const rotAt = Math.abs(reg.rotation_deg) >= maxR - 1e-6;
+    const scaleAt = Math.abs(reg.scale - 1) >= maxS - 1e-6;
+    if (rotAt || scaleAt) {
+      const inner = { maxRotation_deg: 0.8 * maxR, maxScale: 0.8 * maxS };
+      const start = { rotation_deg: Math.max(-inner.maxRotation_deg, Math.min(inner.maxRotation_deg, reg.rotation_deg)), scale: Math.max(1 - inner.maxScale, Math.min(1 + inner.maxScale, reg.scale)) };
+      const sim = fb ? await simulateWith(bestState.scenario, bestState.conditions, i) : sims[bestK][i];
+      const r2 = register(cors[i], tpls[i], sim, { ...regOpts, ...inner, start, initialRotationStep_deg: 1, initialScaleStep: 0.01 });
+      const w = removePlane(new Float64Array(r2.window.length), r2.window, m.width, m.height);
+      const what = rotAt && scaleAt ? `rotation (${maxR} degrees) and scale (${100 * maxS} %)` : rotAt ? `rotation (${maxR} degrees)` : `scale (${100 * maxS} %)`;
+      const fe = edgeFlag(m, m.contrast, pairs[bestK][i].window, w, bestFit.perCondition[i].amplitude, absolute.perMicrograph[i].sigma, what);
+      if (fe) flags.push(fe);
+    }
+  }
+  const atRangeLimit = fb ? fb.report.parameters.filter((p) => p.atLimit).map((p) => p.name) : [];
+  const verdict = finalVerdict(verdict0, absolute, flags, atRangeLimit);
+  const t5 = performance.now();
   return {
     scenario: sc.name,
     elasticity: describeElasticity(sc).text,
@@ -211,10 +405,13 @@ export async function identify(sc: Scenario, micrographs: readonly PreparedMicro
     micrographs,
     ranking,
     candidates: order.map((k) => candidates[k]),
-    verdict: limitNote ? { ...verdict, statement: verdict.statement + limitNote } : verdict,
+    verdict,
     leaderImages: order.slice(0, top).map((k) => pairs[k].map((p) => p.reg.window)),
-    settings: { top, bootstrap: B, seed, sigmas, amplitudeSpread: spread },
-    seconds: { render: (t1 - t0) / 1000, register: (t2 - t1) / 1000, bootstrap: (t3 - t2) / 1000 },
+    settings: { top, bootstrap: B, seed, sigmas, amplitudeSpread: spread, fit: fitOn ? fitSettings : false },
+    absolute,
+    flags,
+    consistency,
+    seconds: { render: (t1 - t0) / 1000, register: (t2 - t1) / 1000, fit: (t3 - t2) / 1000, bootstrap: (t4 - t3) / 1000, checks: (t5 - t4) / 1000 },
   };
 }
 
@@ -241,7 +438,7 @@ export async function simulateCandidates(
     const row: Float64Array[] = [];
     for (const m of micrographs) {
       progress(`simulating ${cand.label} under ${m.conditionId}`, done / (indices.length * micrographs.length));
-      row.push(await simulateView(vsc, m, render));
+      row.push(await simulateView(vsc, m, render, { alongLine: false }));
       done++;
     }
     sims.push(row);
@@ -250,33 +447,20 @@ export async function simulateCandidates(
 }
 
 /**
- * One candidate's simulation in a micrograph's view: relative contrast
- * I / I_background - 1 of the chosen field, mirrored and blurred as the
- * micrograph settings say, on the crop plus margin.
+ * The scenario and micrographs with measured values in place of the stated
+ * ones: the foil thickness, and each micrograph's w (its condition then gives
+ * the deviation as w; the resolved parameters are recomputed).
  */
-export async function simulateView(vsc: Scenario, m: PreparedMicrograph, render: Renderer): Promise<Float64Array> {
-  const W = m.width + 2 * m.margin;
-  const H = m.height + 2 * m.margin;
-  // a mirrored micrograph: render with g at the mirrored angle, then flip top to bottom
-  const angle = m.settings.mirrored ? -m.gAngle_deg : m.gAngle_deg;
-  const imgs = await render(conditionView(vsc, m.condition, angle, W, H, m.pixel_nm));
-  const ci = imgs[0];
-  const field = m.settings.field;
-  const src = field === 'bf' ? ci.bf : ci.df;
-  const bg = ci.background[field];
-  if (!(bg > 1e-9)) {
-    throw new InputError(
-      `micrographs.${m.conditionId}.field: the perfect crystal gives no ${field === 'df' ? 'dark' : 'bright'}-field intensity under ${m.conditionId} at this thickness, so relative contrast is undefined; compare the ${field === 'df' ? 'bright' : 'dark'}-field micrograph instead`,
-    );
-  }
-  const view = imageView(src, W, H);
-  const rel = toFloat64(m.settings.mirrored ? flipRowsView(view) : view);
-  for (let k = 0; k < rel.length; k++) rel[k] = rel[k] / bg - 1;
-  // A detector pixel integrates over its area: a box of width p has the variance p^2/12, added here as a
-  // Gaussian to the point spread of the microscope (without it, point-sampled simulations are too sharp
-  // and the scale search drifts to magnify them).
-  const sigma_px = Math.sqrt((m.settings.blur_nm / m.pixel_nm) ** 2 + 1 / 12);
-  return gaussianBlur(new Float64Array(W * H), rel, W, H, sigma_px);
+export function measuredInputs(sc: Scenario, micrographs: readonly PreparedMicrograph[], fit: FitSettings | false): { sc: Scenario; micrographs: PreparedMicrograph[] } {
+  const thickness_nm = fit === false ? undefined : fit.thickness_nm;
+  const sc1 = thickness_nm === undefined ? sc : { ...sc, thickness_nm };
+  const ms = micrographs.map((m) => {
+    const w = m.settings.w;
+    if (w === undefined && sc1 === sc) return m;
+    const condition: Condition = w === undefined ? m.condition : { ...m.condition, deviation: { kind: 'w', w } };
+    return { ...m, condition, resolved: resolveCondition(sc1, condition) };
+  });
+  return { sc: sc1, micrographs: ms };
 }
 
 /**

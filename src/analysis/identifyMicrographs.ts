@@ -146,3 +146,45 @@ function prepareOne(sc: Scenario, m: MicrographInput, s: MicrographSettings): Pr
     gAngle_deg: s.gAngle_deg ?? simulatedGAngle_deg(sc, condition),
   };
 }
+
+/**
+ * Groups of micrographs that share one registration: those with the same
+ * "view" name (the same field of view, so the relative position of their
+ * images carries information, e.g. the image side of a dislocation under g
+ * and -g). They must share the beam direction, the working size and pixel
+ * size and the shift margin. Micrographs without a view name are groups of
+ * one. Indices into `micrographs`, in order.
+ */
+export function viewGroups(micrographs: readonly PreparedMicrograph[]): number[][] {
+  const byName = new Map<string, number[]>();
+  const out: number[][] = [];
+  micrographs.forEach((m, i) => {
+    const v = m.settings.view;
+    if (v === undefined) {
+      out.push([i]);
+      return;
+    }
+    const g = byName.get(v);
+    if (g === undefined) {
+      const ng = [i];
+      byName.set(v, ng);
+      out.push(ng);
+      return;
+    }
+    const first = micrographs[g[0]];
+    const key = `micrographs.${m.conditionId}.view`;
+    const b1 = first.condition.beam;
+    const b2 = m.condition.beam;
+    const cross = Math.hypot(b1[1] * b2[2] - b1[2] * b2[1], b1[2] * b2[0] - b1[0] * b2[2], b1[0] * b2[1] - b1[1] * b2[0]);
+    if (cross > 1e-9 * Math.hypot(...b1) * Math.hypot(...b2)) {
+      throw new InputError(`${key} "${v}" is shared with ${first.conditionId}, taken in another beam direction ([${b2.join(' ')}] against [${b1.join(' ')}]); only micrographs of one beam direction can share a view, so give this one its own view name`);
+    }
+    if (m.width !== first.width || m.height !== first.height || Math.abs(m.pixel_nm - first.pixel_nm) > 1e-9 * first.pixel_nm || m.margin !== first.margin) {
+      throw new InputError(
+        `${key} "${v}" is shared with ${first.conditionId}, but the compared images differ (${m.width} x ${m.height} at ${m.pixel_nm} nm against ${first.width} x ${first.height} at ${first.pixel_nm} nm, or another maxShift_nm); give both the same crop, bin, pixel size and maxShift_nm`,
+      );
+    }
+    g.push(i);
+  });
+  return out;
+}

@@ -15,7 +15,11 @@
  *       "offset": 0,              // dark level subtracted from linear pixel values
  *       "blur_nm": 0,             // Gaussian blur (standard deviation) applied to the simulations
  *       "bin": 2,                 // average bin x bin pixels before comparing; default: crop side <= 256 px
- *       "maxShift_nm": 10         // largest shift searched; default 20 % of the crop side
+ *       "maxShift_nm": 10,        // largest shift searched; default 20 % of the crop side
+ *       "w": 0.62, "wError": 0.05, // measured w = s xi_g and its uncertainty (as `thinfoil measure --json` reports them):
+ *                                 //   the fit of w is centred on it and ranges over +- 2 wError
+ *       "view": "A"               // micrographs with the same view name show the same field of view in the same
+ *                                 //   beam direction and share one registration (rotation, scale and shift)
  *     }
  *   }
  *
@@ -35,9 +39,14 @@ export interface MicrographSettings {
   readonly blur_nm: number;
   readonly bin?: number;
   readonly maxShift_nm?: number;
+  /** Measured w of this micrograph and its uncertainty (centre and half-range / 2 of the fitted w). */
+  readonly w?: number;
+  readonly wError?: number;
+  /** Name of the shared field of view (micrographs with the same name share one registration). */
+  readonly view?: string;
 }
 
-export const MICROGRAPH_KEYS = ['field', 'pixel_nm', 'gAngle_deg', 'crop', 'mirrored', 'intensity', 'offset', 'blur_nm', 'bin', 'maxShift_nm'] as const;
+export const MICROGRAPH_KEYS = ['field', 'pixel_nm', 'gAngle_deg', 'crop', 'mirrored', 'intensity', 'offset', 'blur_nm', 'bin', 'maxShift_nm', 'w', 'wError', 'view'] as const;
 
 export const DEFAULT_SETTINGS: MicrographSettings = { field: 'bf', mirrored: false, intensity: 'linear', offset: 0, blur_nm: 0 };
 
@@ -86,6 +95,12 @@ function readSettings(v: unknown, path: string): MicrographSettings {
   if (o.gAngle_deg !== undefined) s.gAngle_deg = number(o.gAngle_deg, at('gAngle_deg'), { min: -360, max: 360, unit: 'degrees' });
   if (o.bin !== undefined) s.bin = number(o.bin, at('bin'), { integer: true, min: 1, max: 64 });
   if (o.maxShift_nm !== undefined) s.maxShift_nm = number(o.maxShift_nm, at('maxShift_nm'), { min: 0, max: 1e5, unit: 'nm' });
+  if (o.w !== undefined) s.w = number(o.w, at('w'), { min: -1000, max: 1000 });
+  if (o.wError !== undefined) {
+    if (o.w === undefined) fail(at('wError'), 'needs the measured "w" beside it');
+    s.wError = number(o.wError, at('wError'), { above: 0, max: 100 });
+  }
+  if (o.view !== undefined) s.view = string(o.view, at('view'));
   if (o.crop !== undefined) {
     const a = array(o.crop, at('crop'));
     if (a.length !== 4) fail(at('crop'), 'must be [x, y, width, height] in pixels from the top-left corner');

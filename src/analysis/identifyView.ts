@@ -40,11 +40,20 @@ export function moveDefect(d: DefectSpec, f: (p: Vec3) => Vec3): DefectSpec {
  * the screen (counter-clockwise from +x).
  */
 export function conditionView(sc: Scenario, cond: Condition, angle_deg: number, width: number, height: number, pixel_nm: number): Scenario {
+  return conditionViewAlong(sc, cond, viewAxis(sc, cond, angle_deg), width, height, pixel_nm);
+}
+
+/** The Cartesian image axis (+x) that puts g at angle_deg on the screen (counter-clockwise from +x). */
+export function viewAxis(sc: Scenario, cond: Condition, angle_deg: number): Vec3 {
   const f = scenarioFrame(sc, cond.beam);
   const g = planeNormalToCartesian(sc.material.lattice, cond.g);
   const psi = Math.atan2(dot(g, f.ey), dot(g, f.ex));
   const phi = psi + angle_deg * DEG;
-  const imageX_cart = add(scale(f.ex, Math.cos(phi)), scale(f.ey, Math.sin(phi)));
+  return add(scale(f.ex, Math.cos(phi)), scale(f.ey, Math.sin(phi)));
+}
+
+/** As conditionView, with the image's +x axis given as a Cartesian vector (projected perpendicular to the beam). */
+export function conditionViewAlong(sc: Scenario, cond: Condition, imageX_cart: Vec3, width: number, height: number, pixel_nm: number): Scenario {
   const oldRef = scenarioFrame(sc, sc.beam);
   const newRef = scenarioFrame(sc, sc.beam, imageX_cart);
   const move = (p: Vec3): Vec3 => crystalToImagePoint(newRef, imagePointToCrystal(oldRef, p));

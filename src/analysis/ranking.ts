@@ -60,6 +60,8 @@ export interface AmplitudeFit {
 }
 
 export const DEFAULT_SPREAD = 1.5;
+/** A simulation window whose sum of squares is below this fraction of the micrograph's is flat. */
+export const FLAT_RATIO = 1e-12;
 
 function r2(a: number, p: PairStats): number {
   if (!(p.cc > 0)) return 0;
@@ -76,8 +78,10 @@ export function fitAmplitudes(stats: readonly PairStats[], linear: readonly bool
   const n = stats.length;
   if (n === 0) return { score: 0, amplitude: 0, perCondition: [] };
   if (!(spread >= 1)) throw new RangeError(`fitAmplitudes: spread must be >= 1, got ${spread}`);
-  const free = stats.map((p) => (p.ss > 0 ? p.cs / p.ss : 0));
-  const tied = stats.map((p, i) => linear[i] && p.ss > 0 && p.cc > 0);
+  // a simulation flat to rounding (ss below 1e-12 of the micrograph's cc) explains nothing: scale 0, not cs/ss ~ 1e20
+  const flat = stats.map((p) => !(p.ss > FLAT_RATIO * p.cc));
+  const free = stats.map((p, i) => (flat[i] ? 0 : p.cs / p.ss));
+  const tied = stats.map((p, i) => linear[i] && !flat[i] && p.cc > 0);
   const scaleAt = (i: number, a: number) => (tied[i] ? Math.min(a * spread, Math.max(a / spread, free[i])) : Math.max(0, free[i]));
   const objective = (a: number) => {
     let s = 0;
@@ -145,18 +149,24 @@ export interface Comparison {
   readonly gap: number;
   /** Bootstrap standard deviation of the gap (undefined when not resampled). */
   readonly gapSigma?: number;
+  /** Spread of the gap across the fitted parameter ranges (0 when nothing was fitted). */
+  readonly modelSpread: number;
+  /** The gap needed to exclude this candidate: max(sigmas x gapSigma + modelSpread, floor). */
+  readonly threshold: number;
   readonly excluded: boolean;
 }
 
 export interface Verdict {
-  readonly decision: 'identified' | 'cannot tell';
+  readonly decision: 'identified' | 'cannot tell' | 'no candidate explains';
   readonly best: string;
   readonly runnerUp?: string;
   /** score(best) - score(runner-up). */
   readonly gap: number;
   readonly gapSigma: number;
-  /** The gap needed to exclude the runner-up: max(sigmas x gapSigma, floor). */
+  /** The gap needed to exclude the runner-up: max(sigmas x gapSigma + modelSpread, floor). */
   readonly threshold: number;
+  /** The runner-up's spread of the gap across the fitted parameter ranges. */
+  readonly modelSpread: number;
   /** The best candidate and every candidate it does not exclude. */
   readonly indistinguishable: readonly string[];
   readonly comparisons: readonly Comparison[];
@@ -170,7 +180,14 @@ export interface Verdict {
  * Verdict from the observed scores (sorted, best first) and the bootstrap
  * scores replicates[b][k] of the first K candidates (same order).
  */
-export function decide(labels: readonly string[], scores: readonly number[], replicates: readonly (readonly number[])[], sigmas = DEFAULT_SIGMAS, floor = SCORE_FLOOR): Verdict {
+export function decide(
+  labels: readonly string[],
+  scores: readonly number[],
+  replicates: readonly (readonly number[])[],
+  sigmas = DEFAULT_SIGMAS,
+  floor = SCORE_FLOOR,
+  model?: { readonly spreads: readonly number[]; readonly fitted: boolean },
+): Verdict {
   if (labels.length === 0) throw new RangeError('decide: no candidates');
   const B = replicates.length;
   const K = B > 0 ? replicates[0].length : 0;
@@ -188,24 +205,34 @@ export function decide(labels: readonly string[], scores: readonly number[], rep
     }
     // a candidate beyond the resampled ones is judged with the largest sigma seen (conservative)
     const sigma = gapSigma ?? Math.max(0, ...comparisons.map((c) => c.gapSigma ?? 0));
-    const excluded = gap > Math.max(sigmas * sigma, floor);
-    comparisons.push(gapSigma === undefined ? { candidate: labels[k], gap, excluded } : { candidate: labels[k], gap, gapSigma, excluded });
+    const modelSpread = model?.spreads[k] ?? 0;
+    const threshold = Math.max(sigmas * sigma + modelSpread, floor);
+    const excluded = gap > threshold;
+    comparisons.push(gapSigma === undefined ? { candidate: labels[k], gap, modelSpread, threshold, excluded } : { candidate: labels[k], gap, gapSigma, modelSpread, threshold, excluded });
   }
   const indistinguishable = [labels[0], ...comparisons.filter((c) => !c.excluded).map((c) => c.candidate)];
   const runner = comparisons[0];
   const gap = runner?.gap ?? Infinity;
   const gapSigma = runner?.gapSigma ?? 0;
-  const threshold = Math.max(sigmas * gapSigma, floor);
+  const threshold = runner?.threshold ?? floor;
+  const modelSpread = runner?.modelSpread ?? 0;
   const decision = indistinguishable.length === 1 ? 'identified' : 'cannot tell';
+  const fitted = model?.fitted === true;
   const rule =
     `A candidate is excluded when its score is below the best by more than ${sigmas} standard deviations of the gap ` +
-    `(estimated from ${B} bootstrap copies of the micrographs: the best candidate's fitted image plus its residual resampled in blocks, registration shift re-optimised) ` +
-    `and by more than ${floor} (the registration's own precision). The best candidate is identified only when it excludes every other candidate.`;
+    `(estimated from ${B} bootstrap copies of the micrographs: the best candidate's fitted image plus its residual resampled in blocks, registration shift re-optimised)` +
+    (fitted
+      ? ' plus the spread of the gap across the fitted parameter ranges (half the range of the gap evaluated with both candidates at the best candidate\'s fitted parameters, at the other\'s, and each at its own; for a candidate that was not fitted, its score is first raised by the largest gain any fitted candidate got from fitting)'
+      : '') +
+    ` and by more than ${floor} (the registration's own precision). Each candidate has its own needed gap. The best candidate is identified only when it excludes every other candidate, no micrograph is flagged as inconsistent, and the best candidate leaves no structured residual well above the micrographs' noise.`;
   const fmt = (x: number) => sig(x, 3);
   const statement =
     decision === 'identified'
-      ? `${labels[0]} explains the micrographs best; the runner-up ${runner ? `(${runner.candidate}) scores ${fmt(gap)} lower, ${gapSigma > 0 ? `${fmt(gap / gapSigma)} standard deviations of the pixel noise` : 'beyond the pixel noise'}` : 'does not exist'}. The noise estimate covers the micrographs' pixel noise only, not errors of the model or of the stated thickness, deviation, depth and angles.`
-      : `${indistinguishable.join(', ')} explain the micrographs equally well within the noise (gap to the runner-up ${fmt(gap)}, needed ${fmt(threshold)}); a defect that is not among the candidates may also fit better than any of them.`;
+      ? `${labels[0]} explains the micrographs best; the runner-up ${runner ? `(${runner.candidate}) scores ${fmt(gap)} lower, ${gapSigma > 0 ? `${fmt(gap / gapSigma)} standard deviations of the pixel noise` : 'beyond the pixel noise'}${fitted ? ` (needed ${fmt(threshold)}, of which ${fmt(modelSpread)} for the parameter ranges)` : ''}` : 'does not exist'}.` +
+        (fitted
+          ? ' Thickness, depth, line direction and w were fitted within the stated ranges for the leading candidates; errors outside those ranges are not covered.'
+          : ' The noise estimate covers the micrographs\' pixel noise only, not errors of the model or of the stated thickness, deviation, depth and angles.')
+      : `${indistinguishable.join(', ')} explain the micrographs equally well within the noise${fitted ? ' and the parameter ranges' : ''} (gap to the runner-up ${fmt(gap)}, needed ${fmt(threshold)}); a defect that is not among the candidates may also fit better than any of them.`;
   const weak =
     scores[0] < WEAK_SCORE
       ? ` The best candidate explains only ${fmt(100 * Math.max(0, scores[0]))} % of the micrographs' contrast variance: the micrographs may show no contrast from this defect, or no candidate fits.`
@@ -217,6 +244,7 @@ export function decide(labels: readonly string[], scores: readonly number[], rep
     gap,
     gapSigma,
     threshold,
+    modelSpread,
     indistinguishable,
     comparisons,
     replicates: B,

@@ -263,6 +263,24 @@ export interface RegistrationResult extends Registration {
  * 1 +- maxScale.
  */
 export function register(cor: Correlator, tpl: PreparedTemplate, sim: ArrayLike<number>, opts: RegistrationOptions = {}): RegistrationResult {
+  return registerGroup([cor], [tpl], [sim], opts)[0];
+}
+
+/**
+ * One registration shared by several micrographs of the same field of view
+ * (same beam direction, same crop size and pixel size): the shift, rotation
+ * and scale that maximise the mean of their NCC maps. Each result carries the
+ * joint peak value as its ncc.
+ */
+export function registerGroup(cors: readonly Correlator[], tpls: readonly PreparedTemplate[], sims: readonly ArrayLike<number>[], opts: RegistrationOptions = {}): RegistrationResult[] {
+  const n = cors.length;
+  if (n === 0 || tpls.length !== n || sims.length !== n) throw new RangeError('registerGroup: need one correlator, template and simulation per micrograph');
+  const cor = cors[0];
+  for (const c of cors) {
+    if (c.imageWidth !== cor.imageWidth || c.imageHeight !== cor.imageHeight || c.templateWidth !== cor.templateWidth || c.templateHeight !== cor.templateHeight) {
+      throw new RangeError('registerGroup: the micrographs of one view must have the same size');
+    }
+  }
   const maxR = opts.maxRotation_deg ?? DEFAULT_MAX_ROTATION_DEG;
   const maxS = opts.maxScale ?? DEFAULT_MAX_SCALE;
   const minStepR = opts.rotationStep_deg ?? 0.25;
@@ -270,6 +288,7 @@ export function register(cor: Correlator, tpl: PreparedTemplate, sim: ArrayLike<
   const W = cor.imageWidth;
   const H = cor.imageHeight;
   const map = new Float64Array(cor.mapWidth * cor.mapHeight);
+  const sum = new Float64Array(cor.mapWidth * cor.mapHeight);
   const buf = new Float64Array(W * H);
   const cache = new Map<string, { value: number; peak: Peak }>();
 
@@ -279,14 +298,22 @@ export function register(cor: Correlator, tpl: PreparedTemplate, sim: ArrayLike<
     const hit = cache.get(key);
     if (hit) return hit;
     evaluations++;
-    const img = r === 0 && s === 1 ? sim : transformImage(buf, sim, W, H, r, s);
-    cor.ncc(cor.prepareImage(img), tpl, map);
-    const peak = findPeak(map, cor.mapWidth, cor.mapHeight);
+    if (n === 1) {
+      const img = r === 0 && s === 1 ? sims[0] : transformImage(buf, sims[0], W, H, r, s);
+      cor.ncc(cor.prepareImage(img), tpls[0], sum);
+    } else {
+      sum.fill(0);
+      for (let j = 0; j < n; j++) {
+        const img = r === 0 && s === 1 ? sims[j] : transformImage(buf, sims[j], W, H, r, s);
+        cors[j].ncc(cors[j].prepareImage(img), tpls[j], map);
+        for (let k = 0; k < sum.length; k++) sum[k] += map[k] / n;
+      }
+    }
+    const peak = findPeak(sum, cor.mapWidth, cor.mapHeight);
     const res = { value: peak.value, peak };
     cache.set(key, res);
     return res;
   };
-
   const search = opts.search ?? true;
   let r0 = opts.start?.rotation_deg ?? 0;
   let s0 = opts.start?.scale ?? 1;
@@ -333,22 +360,24 @@ export function register(cor: Correlator, tpl: PreparedTemplate, sim: ArrayLike<
       s0 = sf;
     }
   }
-  const transformed = r0 === 0 && s0 === 1 ? Float64Array.from(sim) : transformImage(new Float64Array(W * H), sim, W, H, r0, s0);
   const w = cor.templateWidth;
   const h = cor.templateHeight;
-  const window = extractWindow(new Float64Array(w * h), transformed, W, H, best.peak.x, best.peak.y, w, h);
-  return {
-    ncc: best.value,
-    shiftX_px: (W - w) / 2 - best.peak.x,
-    shiftY_px: (H - h) / 2 - best.peak.y,
-    rotation_deg: r0,
-    scale: s0,
-    offsetX: best.peak.x,
-    offsetY: best.peak.y,
-    window,
-    transformed,
-    evaluations,
-  };
+  return sims.map((sim) => {
+    const transformed = r0 === 0 && s0 === 1 ? Float64Array.from(sim) : transformImage(new Float64Array(W * H), sim, W, H, r0, s0);
+    const window = extractWindow(new Float64Array(w * h), transformed, W, H, best.peak.x, best.peak.y, w, h);
+    return {
+      ncc: best.value,
+      shiftX_px: (W - w) / 2 - best.peak.x,
+      shiftY_px: (H - h) / 2 - best.peak.y,
+      rotation_deg: r0,
+      scale: s0,
+      offsetX: best.peak.x,
+      offsetY: best.peak.y,
+      window,
+      transformed,
+      evaluations,
+    };
+  });
 }
 
 function clamp(x: number, lo: number, hi: number): number {

@@ -18,6 +18,7 @@ import { excerpt } from '../errors.js';
 import { identify, type IdentifyResult } from '../analysis/identify.js';
 import { prepareMicrographs, type MicrographInput } from '../analysis/identifyMicrographs.js';
 import { parseMicrographArgument, parseMicrographSettings } from '../analysis/identifySettings.js';
+import { parseFitSettings, type FitSettings } from '../analysis/fitSettings.js';
 import { isSyntheticName } from '../analysis/synthetic.js';
 import { comparisonFigure, comparisonFigureData } from '../output/comparisonFigure.js';
 import { identifyReportHtml } from '../output/report.js';
@@ -27,7 +28,7 @@ import { printJson, sig, table } from './run.js';
 import { slug } from './slug.js';
 import { readScenarioBytes, scenarioJsonOf } from './loadScenario.js';
 import { identificationCandidates } from '../analysis/candidates.js';
-import { simulateCandidates } from '../analysis/identify.js';
+import { measuredInputs, simulateCandidates } from '../analysis/identify.js';
 import { InternalError } from '../errors.js';
 import {
   fingerprint,
@@ -44,6 +45,7 @@ import {
   type ShardInput,
   type ShardManifest,
 } from './shard.js';
+import { decisionWord, fitText, gapText, noiseText } from '../analysis/identifyText.js';
 import { conditionGeometry } from '../geometry/conditionGeometry.js';
 import { formatPlaneIn } from '../crystal/formatIndices.js';
 import type { Lattice } from '../crystal/lattice.js';
@@ -78,6 +80,8 @@ export const MAX_SIMULATED_PIXELS = 768 * 768;
 
 /** The scenario key this command reads besides the ones parseScenario knows. */
 export const MICROGRAPHS_KEY = 'micrographs';
+/** The scenario key with the ranges of the fitted parameters (src/analysis/fitSettings.ts). */
+export const FIT_KEY = 'fit';
 
 function intOption(name: string, v: string | number | undefined, lo: number, hi: number, fallback: number): number {
   if (v === undefined) return fallback;
@@ -112,7 +116,7 @@ export interface IdentifyOutput {
 interface PreparedIdentify {
   readonly sc: ReturnType<typeof parseScenario>;
   readonly micrographs: ReturnType<typeof prepareMicrographs>;
-  readonly options: { readonly defectIndex: number; readonly top: number; readonly bootstrap: number; readonly seed: number };
+  readonly options: { readonly defectIndex: number; readonly top: number; readonly bootstrap: number; readonly seed: number; readonly fit: FitSettings };
   readonly scenarioInput: ShardInput;
   readonly micrographInputs: (ShardInput & { readonly conditionId: string })[];
   /** The input files (refused inside the output folder). */
@@ -122,8 +126,9 @@ interface PreparedIdentify {
 function prepareIdentify(scenarioFile: string, opts: IdentifyCommandOptions, base?: string): PreparedIdentify {
   const bytes = readScenarioBytes(base === undefined ? scenarioFile : resolve(base, scenarioFile));
   const raw = scenarioJsonOf(bytes, scenarioFile);
-  const { [MICROGRAPHS_KEY]: micrographsRaw, ...rest } = raw;
+  const { [MICROGRAPHS_KEY]: micrographsRaw, [FIT_KEY]: fitRaw, ...rest } = raw;
   const sc = parseScenario(rest);
+  const fit = parseFitSettings(fitRaw);
   const settings = parseMicrographSettings(micrographsRaw, sc.conditions.map((c) => c.id));
   const args = opts.micrograph === undefined ? [] : Array.isArray(opts.micrograph) ? opts.micrograph : [opts.micrograph];
   const defectIndex = intOption('--defect', opts.defect, 0, Math.max(0, sc.defects.length - 1), 0);
@@ -152,7 +157,7 @@ function prepareIdentify(scenarioFile: string, opts: IdentifyCommandOptions, bas
   return {
     sc,
     micrographs,
-    options: { defectIndex, top, bootstrap: B, seed },
+    options: { defectIndex, top, bootstrap: B, seed, fit },
     scenarioInput: { path: scenarioFile, sha256: sha256(bytes) },
     micrographInputs: inputs.map((m) => ({ conditionId: m.conditionId, path: m.source, sha256: m.sha256 })),
     files: [scenarioFile, ...inputs.map((m) => m.source)].map((f) => (base === undefined ? f : resolve(base, f))),
@@ -193,7 +198,9 @@ export async function runIdentifyShard(
 ): Promise<{ dir: string; manifest: ShardManifest }> {
   const shard = parseShard(opts.shard);
   const p = prepareIdentify(scenarioFile, opts);
-  const candidates = identificationCandidates(p.sc, p.options.defectIndex);
+  // the simulations identify makes: measured values (w, thickness) in place of the stated ones
+  const measured = measuredInputs(p.sc, p.micrographs, p.options.fit);
+  const candidates = identificationCandidates(measured.sc, p.options.defectIndex);
   const mine = shardItems(candidates.length, shard);
   const dir = opts.out ?? join('out', `${slug(p.sc.name)}-identify-shard-${shard.index}-of-${shard.count}`);
   const set = OutputSet.begin(dir, { inputs: p.files });
@@ -202,7 +209,7 @@ export async function runIdentifyShard(
     const t0 = performance.now();
     let sims: Float64Array[][];
     try {
-      sims = await simulateCandidates(p.sc, p.micrographs, (s) => renderScenario(s, pool), mine, p.options.defectIndex, onProgress);
+      sims = await simulateCandidates(measured.sc, measured.micrographs, (s) => renderScenario(s, pool), mine, p.options.defectIndex, onProgress);
     } finally {
       await pool.close();
     }
@@ -277,7 +284,7 @@ async function identifyInto(
   scenarioFile: string,
   sc: ReturnType<typeof parseScenario>,
   micrographs: ReturnType<typeof prepareMicrographs>,
-  o: { defectIndex: number; top: number; bootstrap: number; seed: number },
+  o: { defectIndex: number; top: number; bootstrap: number; seed: number; fit: FitSettings },
   /** a pool to use and leave open, or the number of threads of a pool started (and closed) here */
   poolOrThreads: RenderPool | number | undefined,
   onProgress?: (message: string, fraction: number) => void,
@@ -285,29 +292,27 @@ async function identifyInto(
 ): Promise<IdentifyOutput> {
   const { defectIndex, top, bootstrap: B, seed } = o;
 
-  // merging shards renders nothing: no worker pool
-  const own = merged === undefined && typeof poolOrThreads !== 'object';
-  const pool = merged !== undefined ? undefined : typeof poolOrThreads === 'object' ? poolOrThreads : createRenderPool(poolOrThreads);
+  // a merge of shards renders only the fits of the leading candidates (the pool starts its workers when first used)
+  const own = typeof poolOrThreads !== 'object';
+  const pool = typeof poolOrThreads === 'object' ? poolOrThreads : createRenderPool(poolOrThreads);
   let result: IdentifyResult;
   try {
     result = await identify(
       sc,
       micrographs,
-      (s) => {
-        if (pool === undefined) throw new InternalError('identify: a merge of shards asked for a new simulation');
-        return renderScenario(s, pool);
-      },
+      (s) => renderScenario(s, pool),
       {
         defectIndex,
         top,
         bootstrap: B,
         seed,
+        fit: o.fit,
         ...(onProgress ? { onProgress } : {}),
         ...(merged ? { simulations: merged.simulations } : {}),
       },
     );
   } finally {
-    if (own) await pool?.close();
+    if (own) await pool.close();
   }
   // the render time of a merged run is the shards' (summed)
   if (merged) result = { ...result, seconds: { ...result.seconds, render: merged.renderSeconds } };
@@ -340,6 +345,7 @@ export function resultJson(res: IdentifyResult, files?: IdentifyOutput['files'],
       kind: r.kind,
       score: r.score,
       amplitude: r.amplitude,
+      ...(r.fit ? { fit: r.fit } : {}),
       perCondition: r.perCondition.map((p) => ({
         condition: p.condition,
         r2: p.r2,
@@ -358,10 +364,14 @@ export function resultJson(res: IdentifyResult, files?: IdentifyOutput['files'],
       gap: res.verdict.gap,
       gapSigma: res.verdict.gapSigma,
       threshold: res.verdict.threshold,
+      modelSpread: res.verdict.modelSpread,
       indistinguishable: res.verdict.indistinguishable,
+      comparisons: res.verdict.comparisons,
       statement: res.verdict.statement,
       rule: res.verdict.rule,
     },
+    absolute: res.absolute,
+    flags: res.flags,
     conditions: res.micrographs.map((m) => ({
       id: m.conditionId,
       g: m.condition.g,
@@ -425,7 +435,15 @@ export function printIdentify(out: IdentifyOutput, json: boolean): void {
   const { result: res, files, dir } = out;
   if (json) {
     const j = resultJson(res, files);
-    printJson({ ranking: j.ranking.map(({ candidate, score, perCondition }) => ({ candidate, score, perCondition })), verdict: j.verdict, synthetic: j.synthetic, files });
+    printJson({
+      ranking: j.ranking.map(({ candidate, score, perCondition }) => ({ candidate, score, perCondition })),
+      verdict: j.verdict,
+      synthetic: j.synthetic,
+      fits: res.ranking.filter((r) => r.fit).map((r) => ({ candidate: r.candidate, ...r.fit })),
+      absolute: j.absolute,
+      flags: j.flags,
+      files,
+    });
     return;
   }
   process.stdout.write(formatIdentify(out));
@@ -440,18 +458,38 @@ export function formatIdentify(out: IdentifyOutput): string {
   if (synth.length > 0) parts.push(`NOTE: ${synth.map((m) => m.source).join(', ')} ${synth.length === 1 ? 'is a SYNTHETIC micrograph' : 'are SYNTHETIC micrographs'} (not measured).\n`);
   parts.push(`${res.scenario}: ${res.defectLabel}, ${res.candidates.length} candidates, ${res.micrographs.length} micrograph(s)\n\n`);
   const ids = res.micrographs.map((m) => m.conditionId);
+  const cmp = new Map(res.verdict.comparisons.map((c) => [c.candidate, c]));
   parts.push(table(
-    ['#', 'candidate', 'score', ...ids.map((id) => `R2 ${id}`), ...ids.map((id) => `g.b ${id}`)],
-    res.ranking.map((r, i) => [
-      String(i + 1),
-      r.candidate,
-      sig(r.score, 3),
-      ...r.perCondition.map((p) => sig(p.r2, 3)),
-      ...r.perCondition.map((p) => (p.visibility.value === undefined ? '-' : sig(p.visibility.value, 3))),
-    ]),
+    ['#', 'candidate', 'score', 'gap', 'needed', 'status', ...ids.map((id) => `R2 ${id}`), ...ids.map((id) => `g.b ${id}`)],
+    res.ranking.map((r, i) => {
+      const c = cmp.get(r.candidate);
+      const status = i === 0 ? (res.verdict.decision === 'identified' ? 'identified' : 'best') : c?.excluded ? 'excluded' : 'not excluded';
+      return [
+        String(i + 1),
+        r.candidate,
+        sig(r.score, 3),
+        gapText(c?.gap),
+        gapText(c?.threshold),
+        status,
+        ...r.perCondition.map((p) => sig(p.r2, 3)),
+        ...r.perCondition.map((p) => (p.visibility.value === undefined ? '-' : sig(p.visibility.value, 3))),
+      ];
+    }),
   ));
-  parts.push('R2: fraction of a micrograph\'s contrast variance explained by the registered simulation (negative: worse than a flat image, e.g. contrast predicted where there is none).\n');
-  parts.push(`\n${res.verdict.decision === 'identified' ? 'IDENTIFIED' : 'CANNOT TELL'}: ${res.verdict.statement}\n`);
+  parts.push('R2: fraction of a micrograph\'s contrast variance explained by the registered simulation (negative: worse than a flat image, e.g. contrast predicted where there is none). gap: score below the best; needed: the gap that excludes it (rule below).\n');
+  const fitted = res.ranking.filter((r) => r.fit);
+  if (fitted.length > 0) {
+    parts.push('\nfitted parameters (each within the range stated; see "fit" in the scenario):\n');
+    for (const r of fitted) parts.push(`  ${r.candidate}: ${fitText(r.fit!)}\n`);
+  } else parts.push('\nnuisance parameters: not fitted (as stated in the scenario).\n');
+  parts.push(`\nnoise and residual of the best candidate (${res.ranking[0].candidate}):\n`);
+  for (const p of res.absolute.perMicrograph) parts.push(`  ${p.condition}: ${noiseText(p)}\n`);
+  parts.push(`  ${res.absolute.method}\n`);
+  if (res.flags.length > 0) {
+    parts.push('\nflagged micrographs:\n');
+    for (const f of res.flags) parts.push(`  ${f.message}\n`);
+  }
+  parts.push(`\n${decisionWord(res.verdict.decision)}: ${res.verdict.statement}\n`);
   parts.push(`rule: ${res.verdict.rule}\n`);
   return parts.join('');
 }

@@ -13,6 +13,7 @@ import { sig } from '../format.js';
 import { DEFAULT_MAX_ROTATION_DEG, DEFAULT_MAX_SCALE } from '../analysis/registration.js';
 import type { Vec3 } from '../math/vec3.js';
 import type { IdentifyResult } from '../analysis/identify.js';
+import { fitText } from '../analysis/identifyText.js';
 import { drawFigure, type Figure } from './graphics/figure.js';
 import { textAdvance } from './graphics/font.js';
 import type { RGB, Surface } from './graphics/types.js';
@@ -272,11 +273,12 @@ export function comparisonFigureData(res: IdentifyResult): ComparisonFigureData 
     `Rows below: simulated images of the ${rows.length} leading candidates (two-beam Howie-Whelan equations, column approximation, ${res.elasticity.startsWith('anisotropic') ? 'anisotropic' : 'isotropic'} elasticity: a model, not a measurement), each registered to its micrograph (shift, rotation up to ${DEFAULT_MAX_ROTATION_DEG} degrees, scale up to ${100 * DEFAULT_MAX_SCALE} %). ` +
       'Every image is contrast-stretched on its own (0.5 % of the pixels clipped at each end). Arrow: direction of g in the micrograph. ' +
       "R²: fraction of the micrograph's contrast variance explained by the simulation; score: its mean over the micrographs, with one contrast scale shared by the micrographs.",
+    ...(res.ranking[0]?.fit ? [`Fitted for ${res.ranking[0].candidate}: ${fitText(res.ranking[0].fit)}.`] : []),
     `Verdict: ${v.statement}`,
   ].join('\n');
   return {
     title: `${res.scenario}: which candidate explains the micrographs?`,
-    subtitle: `defect ${res.defectLabel}: ${res.candidates.length} candidates compared over ${res.micrographs.length} micrograph${res.micrographs.length === 1 ? '' : 's'}; verdict: ${v.decision === 'identified' ? `identified ${v.best}` : 'cannot tell'}`,
+    subtitle: `defect ${res.defectLabel}: ${res.candidates.length} candidates compared over ${res.micrographs.length} micrograph${res.micrographs.length === 1 ? '' : 's'}; verdict: ${v.decision === 'identified' ? `identified ${v.best}` : v.decision}`,
     columns,
     rows,
     caption,

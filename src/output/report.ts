@@ -10,6 +10,7 @@ import { sig } from '../format.js';
 import { DEFAULT_MAX_ROTATION_DEG, DEFAULT_MAX_SCALE } from '../analysis/registration.js';
 import type { IdentifyResult } from '../analysis/identify.js';
 import { fmtFraction } from './comparisonFigure.js';
+import { decisionWord, fitText, gapText, noiseText } from '../analysis/identifyText.js';
 
 export interface ReportInputs {
   readonly scenarioFile: string;
@@ -82,14 +83,16 @@ export function identifyReportHtml(res: IdentifyResult, inp: ReportInputs): stri
       String(i + 1),
       e(r.candidate),
       sig(r.score, 4),
-      i === 0 ? '' : sig(cmp?.gap ?? NaN, 3),
+      i === 0 ? '' : gapText(cmp?.gap),
       i === 0 || cmp?.gapSigma === undefined ? '' : sig(cmp.gapSigma, 2),
+      i === 0 ? '' : gapText(cmp?.threshold),
       status,
       ...r.perCondition.map((p) => `${sig(p.r2, 3)} <span class="dim">/ ${sig(p.ncc, 3)}</span>`),
       r.fullySearched ? 'own' : 'from best',
     ];
   });
 
+  const fitRows = res.ranking.filter((r) => r.fit).map((r) => `<li><strong>${e(r.candidate)}</strong>: ${e(fitText(r.fit!))}</li>`);
   const quantity = res.ranking[0]?.perCondition[0]?.visibility.quantity ?? '';
   const gbRows = res.ranking.map((r) => [
     e(r.candidate),
@@ -130,7 +133,7 @@ th { background: #eef3f2; }
 .dim { color: #66666f; }
 .model { border-left: 5px solid #007a70; background: #f2f8f7; padding: 0.6em 1em; }
 .warn { border-left: 5px solid #cd7d00; background: #fdf6ea; padding: 0.6em 1em; }
-.verdict { font-size: 1.15em; padding: 0.7em 1em; border: 2px solid ${v.decision === 'identified' ? '#007a70' : '#cd7d00'}; }
+.verdict { font-size: 1.15em; padding: 0.7em 1em; border: 2px solid ${v.decision === 'identified' ? '#007a70' : v.decision === 'cannot tell' ? '#cd7d00' : '#b02020'}; }
 img { max-width: 100%; border: 1px solid #ddd; }
 </style>
 </head>
@@ -142,8 +145,9 @@ img { max-width: 100%; border: 1px solid #ddd; }
 ${syntheticNote}
 
 <h2>Verdict</h2>
-<p class="verdict">${v.decision === 'identified' ? '<strong>Identified:</strong> ' : '<strong>Cannot tell:</strong> '}${e(v.statement)}</p>
-<p><strong>Rule.</strong> ${e(v.rule)} Gap to the runner-up: ${sig(v.gap, 3)}; bootstrap standard deviation of that gap: ${sig(v.gapSigma, 2)}; gap needed: ${sig(v.threshold, 3)}.</p>
+<p class="verdict"><strong>${e(decisionWord(v.decision))}:</strong> ${e(v.statement)}</p>
+<p><strong>Rule.</strong> ${e(v.rule)} Gap to the runner-up: ${gapText(v.gap)}; bootstrap standard deviation of that gap: ${sig(v.gapSigma, 2)}; spread across the parameter ranges: ${gapText(v.modelSpread)}; gap needed: ${gapText(v.threshold)}. Every other candidate's gap and needed gap are in the ranking below.</p>
+${res.flags.length > 0 ? `<p class="warn"><strong>Flagged micrographs.</strong> ${res.flags.map((f) => e(f.message)).join('<br>')}</p>` : ''}
 ${v.decision === 'cannot tell' ? `<p>Not excluded by the best candidate: ${v.indistinguishable.map(e).join(', ')}. More micrographs under conditions where these candidates differ (a g with different g.b for them, or the opposite sign of g or s) would separate them.</p>` : ''}
 
 <h2>Comparison figure</h2>
@@ -152,7 +156,15 @@ ${svgNote}
 
 <h2>Ranking</h2>
 <p>Score: the mean over the micrographs of R², the fraction of the micrograph's contrast variance (relative contrast I/I<sub>background</sub> - 1, background plane removed) explained by the registered simulation times its contrast scale. One contrast scale is shared by all micrographs with linear intensities (each may differ from it by at most a factor ${sig(res.settings.amplitudeSpread)}), so a candidate that predicts contrast where a micrograph shows none is penalised; R² can then be negative. Per micrograph the table shows R² / normalised cross-correlation. The ${res.settings.top} leading candidates had their own rotation and scale searched; the others use the rotation and scale found for the best of them (these belong to the micrograph), with their own shift.</p>
-${table(['#', 'candidate', 'score', 'gap to best', 'sigma of gap', 'status', ...condHead.map((h) => `${h}: R² / NCC`), 'rotation, scale'], rankingRows)}
+${table(['#', 'candidate', 'score', 'gap to best', 'sigma of gap', 'gap needed', 'status', ...condHead.map((h) => `${h}: R² / NCC`), 'rotation, scale'], rankingRows)}
+
+<h2>Fitted parameters</h2>
+${fitRows.length > 0 ? `<p>Each leading candidate's nuisance parameters, fitted within the ranges stated in the scenario ("fit"; defaults: w +- ${res.settings.fit === false ? 0.3 : sig(res.settings.fit.wRange)}, thickness +- ${res.settings.fit === false ? 15 : sig(100 * res.settings.fit.thicknessRange)} %, depth +- a quarter of the thickness, line within ${res.settings.fit === false ? 5 : sig(res.settings.fit.lineCone_deg)} degrees; measured values +- 2 uncertainties). The pixel size is not fitted.</p>
+<ul>${fitRows.join('\n')}</ul>` : '<p>Not fitted: every parameter as stated in the scenario.</p>'}
+
+<h2>Noise and residual</h2>
+<p>${e(res.absolute.method)}</p>
+<ul>${res.absolute.perMicrograph.map((p) => `<li>${e(p.condition)}: ${e(noiseText(p))}</li>`).join('\n')}</ul>
 
 <h2>${quantity === 'g.R' ? 'g.R' : 'g.b'} table</h2>
 <p>The rule of thumb beside the simulations (Hirsch et al. 1965; Howie &amp; Whelan 1962): g.b = 0 (and g.(b x u) = 0) predicts invisibility; a residual contrast remains for edge and mixed dislocations when |g.(b x u)| is large.</p>
@@ -170,8 +182,8 @@ ${table(['condition', 'shift (nm)', 'rotation (deg)', 'scale', 'contrast scale',
 <li>Each candidate is simulated under each micrograph's condition, with g turned to the micrograph's direction and at its pixel size, on the crop plus a margin for the shift search.</li>
 <li>Registration: normalised cross-correlation over all shifts by FFT (Lewis 1995), sub-pixel peak by parabola; rotation (up to ${DEFAULT_MAX_ROTATION_DEG} degrees) and scale (up to ${100 * DEFAULT_MAX_SCALE} %) by a coarse-to-fine search on the correlation peak.</li>
 <li>Noise of the scores: ${res.settings.bootstrap} bootstrap copies of the micrographs (the best candidate's fitted image plus its residual resampled in blocks, seed ${res.settings.seed}); each leading candidate re-registered (shift) and re-scored on every copy.</li>
-<li>Exclusion rule: gap &gt; ${sig(res.settings.sigmas)} standard deviations of the bootstrap gap and &gt; 0.002.</li>
-<li>Time: simulation ${sig(res.seconds.render, 3)} s, registration ${sig(res.seconds.register, 3)} s, bootstrap ${sig(res.seconds.bootstrap, 3)} s.</li>
+<li>Exclusion rule: gap &gt; ${sig(res.settings.sigmas)} standard deviations of the bootstrap gap plus the spread of the gap across the fitted parameter ranges, and &gt; 0.002.</li>
+<li>Time: simulation ${sig(res.seconds.render, 3)} s, registration ${sig(res.seconds.register, 3)} s, fit ${sig(res.seconds.fit, 3)} s, bootstrap ${sig(res.seconds.bootstrap, 3)} s, checks ${sig(res.seconds.checks, 3)} s.</li>
 </ul>
 </body>
 </html>

@@ -48,6 +48,8 @@ const TOP_KEYS = [
   'name', 'material', 'kV', 'foil', 'beam', 'imageX', 'image', 'absorption', 'elasticity', 'conditions', 'defects', 'candidates', 'description',
   // settings of micrographs, read by `thinfoil identify` (src/analysis/identifySettings.ts)
   'micrographs',
+  // ranges of the parameters identification fits (src/analysis/fitSettings.ts)
+  'fit',
 ] as const;
 
 export function parseScenario(raw: unknown): Scenario {

@@ -154,3 +154,33 @@ describe('seeded random numbers', () => {
     expect(Math.abs(s2 / n - 1)).toBeLessThan(5 * Math.sqrt(2 / n));
   });
 });
+
+describe('flat simulations and per-candidate needed gaps', () => {
+  it('a simulation flat to rounding (after plane removal) gets contrast scale 0 and R2 0, not a scale of 1e20', () => {
+    // the reported case: a flat simulation gave a fitted amplitude of 4.45e21; worked by hand: nothing correlates, a = 0
+    const c = Float64Array.from({ length: 100 }, (_, k) => Math.sin(k));
+    const s = Float64Array.from({ length: 100 }, (_, k) => 1e-17 * Math.cos(3 * k));
+    const f = fitAmplitudes([pairStats(c, s)], [true]);
+    expect(f.amplitude).toBe(0);
+    expect(f.perCondition[0].amplitude).toBe(0);
+    expect(f.perCondition[0].r2).toBe(0);
+  });
+  it('each comparison is excluded exactly when its gap exceeds its own needed gap, and the verdict names the runner-up\'s needed gap', () => {
+    // the reported inconsistency: "needed 0.0932" printed for the runner-up while another candidate with a gap of 0.072
+    // and a smaller sigma was excluded; now every candidate carries its own needed gap
+    const reps = [
+      [0.5, 0.45, 0.43],
+      [0.52, 0.4, 0.45],
+      [0.49, 0.46, 0.44],
+      [0.51, 0.41, 0.44],
+    ];
+    const v = decide(['a', 'b', 'c'], [0.5, 0.43, 0.428], reps, 3, 0.002, { spreads: [0, 0.01, 0.02], fitted: true });
+    for (const cmp of v.comparisons) {
+      expect(cmp.excluded).toBe(cmp.gap > cmp.threshold);
+      expect(cmp.threshold).toBeCloseTo(Math.max(3 * (cmp.gapSigma ?? 0) + cmp.modelSpread, 0.002), 12);
+    }
+    expect(v.threshold).toBe(v.comparisons[0].threshold);
+    expect(v.modelSpread).toBe(0.01);
+    expect(v.rule).toMatch(/Each candidate has its own needed gap/);
+  });
+});

@@ -126,7 +126,14 @@ describe('thinfoil identify', () => {
       expect(r.perCondition.map((p: { condition: string }) => p.condition)).toEqual(['g200', 'g020', 'g11m1']);
     }
     expect(j.ranking[0].candidate).toBe('b = 1/2[1 0 1]');
-    expect(['identified', 'cannot tell']).toContain(j.verdict.decision);
+    expect(['identified', 'cannot tell', 'no candidate explains']).toContain(j.verdict.decision);
+    // fitted parameters of the leaders, each inside the range it was allowed (defaults: the scenario has no "fit")
+    expect(j.fits.length).toBe(4);
+    for (const f of j.fits) for (const p of f.parameters) expect(p.value >= p.lo - 1e-9 && p.value <= p.hi + 1e-9).toBe(true);
+    expect(j.fits[0].parameters.map((p: { name: string }) => p.name)).toEqual(['thickness', 'depth', 'line tilt a', 'line tilt b', 'w g200', 'w g020', 'w g11m1']);
+    expect(j.absolute.perMicrograph.map((p: { condition: string }) => p.condition)).toEqual(['g200', 'g020', 'g11m1']);
+    expect(Array.isArray(j.flags)).toBe(true);
+    for (const c of j.verdict.comparisons) expect(c.excluded).toBe(c.gap > c.threshold);
     expect(j.synthetic).toEqual(['g200', 'g020', 'g11m1']);
     // g.b beside the scores (g = 200, b = 1/2[1 0 1]: 1)
     expect(j.ranking[0].perCondition[0].visibility).toMatchObject({ quantity: 'g.b', value: 1 });
@@ -146,6 +153,9 @@ describe('thinfoil identify', () => {
     expect(html).not.toMatch(/<script|<link |src="http/); // self-contained
     const full = JSON.parse(readFileSync(j.files.json, 'utf8'));
     expect(full.conditions[0]).toMatchObject({ id: 'g200', pixel_nm: 1, synthetic: true });
+    // identify.json carries the same fitted values as --json (one source)
+    expect(full.ranking.filter((r: { fit?: unknown }) => r.fit).map((r: { fit: unknown }) => r.fit)).toEqual(j.fits.map(({ candidate: _c, ...f }: { candidate: string }) => f));
+    expect(html).toMatch(/Fitted parameters/);
     // geometry of each condition in crystal terms (plumbing): reflection, beam, nearest zone
     expect(full.conditions[0].geometry).toMatchObject({ reflection: '(2 0 0)' });
     expect(full.conditions[0].geometry.nearestZone.axis).toMatch(/^\[/);
@@ -164,6 +174,8 @@ describe('thinfoil identify', () => {
       f,
       JSON.stringify({
         ...RAW,
+        // this test is about reading the files; the fit is exercised by the --json test
+        fit: { enabled: false },
         micrographs: {
           g200: { field: 'bf', gAngle_deg: 20, blur_nm: 0.6, maxShift_nm: 8 },
           g020: { field: 'bf', gAngle_deg: 110, pixel_nm: 1, blur_nm: 0.6, maxShift_nm: 8 },
@@ -195,7 +207,11 @@ describe('thinfoil identify', () => {
     const text = cap.out.join('');
     expect(text).toMatch(/SYNTHETIC/);
     expect(text).toMatch(/b = 1\/2\[1 0 1\]/);
-    expect(text).toMatch(/IDENTIFIED|CANNOT TELL/);
+    expect(text).toMatch(/IDENTIFIED|CANNOT TELL|NO CANDIDATE EXPLAINS/);
+    expect(text).toMatch(/fitted parameters/);
+    expect(text).toMatch(/thickness [0-9.]+ nm \(stated 60, range 51 to 69\)/);
+    expect(text).toMatch(/noise and residual of the best candidate/);
+    expect(text).toMatch(/needed/);
   });
 });
 

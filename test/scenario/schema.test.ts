@@ -16,6 +16,7 @@ import Ajv2020Module from 'ajv/dist/2020.js';
 // ajv is CommonJS: its class is the default export's default under NodeNext
 const Ajv2020 = (Ajv2020Module as unknown as { default: typeof Ajv2020Module.default }).default ?? Ajv2020Module;
 import { parseScenario } from '../../src/scenario/parse.js';
+import { parseFitSettings } from '../../src/analysis/fitSettings.js';
 import { parseMicrographSettings } from '../../src/analysis/identifySettings.js';
 import { DEMO_SCENARIO } from '../../src/scenario/demo.js';
 import { DEMO_IDENTIFY_SCENARIO } from '../../src/scenario/demoIdentify.js';
@@ -40,6 +41,7 @@ function parserRefuses(raw: unknown): boolean {
   try {
     const sc = parseScenario(raw);
     parseMicrographSettings((raw as Record<string, unknown>).micrographs, sc.conditions.map((c) => c.id));
+    parseFitSettings((raw as Record<string, unknown>).fit);
     return false;
   } catch {
     return true;
@@ -77,6 +79,10 @@ const BAD: [string, unknown][] = [
   ['a point with two coordinates', defect({ type: 'dislocation', b: '1/2[1 1 0]', line: [1, -1, 2], point_nm: [0, 0] })],
   ['a micrograph field "bright"', with_({ micrographs: { g200: { field: 'bright' } } })],
   ['a micrograph crop of 3 numbers', with_({ micrographs: { g200: { crop: [0, 0, 10] } } })],
+  ['a micrograph wError without w', with_({ micrographs: { g200: { wError: 0.05 } } })],
+  ['a fit with an unknown key', with_({ fit: { wRang: 0.3 } })],
+  ['a fit cone of 40 degrees', with_({ fit: { lineCone_deg: 40 } })],
+  ['a fit thickness error without the thickness', with_({ fit: { thicknessError_nm: 3 } })],
   ['an inline material without elastic constants', with_({ material: { name: 'X', structure: 'fcc', elements: ['Cu'], lattice: { a_nm: 0.36 }, debyeWaller_A2: 0.5 } })],
   ['an inline material with an unknown structure', with_({ material: { name: 'X', structure: 'fcx', elements: ['Cu'], lattice: { a_nm: 0.36 }, debyeWaller_A2: 0.5, elastic: { cij_GPa: { C11: 170, C12: 120, C44: 75 } } } })],
   ['a candidate object with neither b nor family', with_({ candidates: [{ label: 'x' }] })],
@@ -107,6 +113,15 @@ describe('scenario JSON Schema (ajv, draft 2020-12)', () => {
     for (const sc of [DEMO_SCENARIO, DEMO_IDENTIFY_SCENARIO, BASE]) {
       expect(validate(JSON.parse(JSON.stringify(sc))), ajv.errorsText(validate.errors)).toBe(true);
     }
+  });
+
+  it('identification settings with measured w, a shared view and fit ranges (measured thickness) are valid for both', () => {
+    const sc = with_({
+      micrographs: { g200: { field: 'bf', gAngle_deg: 10, w: 0.62, wError: 0.05, view: 'A' } },
+      fit: { enabled: true, wRange: 0.2, thickness_nm: 81, thicknessError_nm: 3, depthRange_nm: 20, lineCone_deg: 4 },
+    });
+    expect(validate(sc), ajv.errorsText(validate.errors)).toBe(true);
+    expect(parserRefuses(sc)).toBe(false);
   });
 
   it.each(BAD)('refuses %s, as the parser does', (_name, raw) => {
