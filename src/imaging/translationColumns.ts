@@ -66,6 +66,8 @@ function invariantDirection(job: RenderJob): Vec3 | null {
   let u: Vec3 | null = null;
   for (const f of job.model.fields) {
     if (f.kind !== 'dislocation') return null;
+    // the surface twist of a line normal to the foil changes along the line (the image correction of a parallel line does not)
+    if (f.surfaceCorrection !== undefined && f.surfaceCorrection.kind !== 'parallel-screw-images') return null;
     const l = f.line;
     if (u === null) u = l;
     else {
