@@ -26,6 +26,7 @@ import { blockResample, correlationLength, decide, DEFAULT_SIGMAS, DEFAULT_SPREA
 import { DEFAULT_MAX_ROTATION_DEG, DEFAULT_MAX_SCALE, createCorrelator, extractWindow, findPeak, register, type Correlator, type PreparedTemplate, type RegistrationOptions, type RegistrationResult } from './registration.js';
 import { flipRowsView, imageView, toFloat64 } from '../imaging/imageView.js';
 import { describeElasticity } from '../elasticity/elasticityNote.js';
+import { describeSurfaces } from '../imaging/surfaceNote.js';
 
 /** Renders a scenario (one condition) into its images; the CLI passes renderScenario with one shared pool. */
 export type Renderer = (sc: Scenario) => Promise<readonly ConditionImages[]>;
@@ -75,6 +76,8 @@ export interface IdentifyResult {
   readonly scenario: string;
   /** The elasticity the simulations used, in one sentence (src/elasticity/elasticityNote.ts). */
   readonly elasticity: string;
+  /** The foil surfaces (relaxed or infinite medium), in one sentence (src/imaging/surfaceNote.ts). */
+  readonly surfaces: string;
   readonly defectIndex: number;
   readonly defectLabel: string;
   readonly micrographs: readonly PreparedMicrograph[];
@@ -211,6 +214,7 @@ export async function identify(sc: Scenario, micrographs: readonly PreparedMicro
   return {
     scenario: sc.name,
     elasticity: describeElasticity(sc).text,
+    surfaces: describeSurfaces(sc).text,
     defectIndex,
     defectLabel: sc.defects[defectIndex].label,
     micrographs,

@@ -63,6 +63,8 @@ describe('translation method equals column-by-column integration (exact identity
       'Shockley partial with its fault running to the exit surface',
       { conditions: [{ id: 'g', g: [2, 2, 0], w: 0.3 }], defects: [{ type: 'partial', b: '1/6[1 1 -2]', line: [1, -1, 0], faultPlane: [1, 1, 1], faultSide: [-1, -1, 2], point_nm: [0, 0, 50] }] },
     ],
+    // relaxed surfaces (the default): the image screws of a parallel line keep the field invariant along the line
+    ['screw parallel to the surfaces 10 nm deep, with its image screws', { defects: [{ type: 'dislocation', b: '1/2[1 1 0]', line: [1, 1, 0], point_nm: [0, 0, 10] }] }],
     ['inclined stacking fault alone (plane (1 1 1))', { defects: [{ type: 'fault', plane: [1, 1, 1], point_nm: [0, 0, 50], vector: '1/3[1 1 1]' }] }],
     [
       'two parallel dislocations, tilted beam [0 1 8]',
