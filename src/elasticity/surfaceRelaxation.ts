@@ -48,15 +48,22 @@ export interface SurfaceCorrectionSpec {
 export const GEOMETRY_TOLERANCE = 1e-9;
 
 /**
- * The correction that applies to a line (unit `line`) with Burgers vector b in
- * the foil, or null: inclined lines (no correction implemented) and lines
- * without a screw component.
+ * The correction that applies to a line (unit `line`, through `point_nm`) with
+ * Burgers vector b in the foil, or null: inclined lines (no correction
+ * implemented), lines without a screw component, and a line parallel to the
+ * surfaces that does not lie strictly inside the foil (one lying in a surface,
+ * or a partial of a ribbon placed outside the foil: its images would not be
+ * outside the foil).
  */
-export function surfaceCorrectionFor(b_nm: Vec3, line: Vec3, normal: Vec3, thickness_nm: number): SurfaceCorrectionSpec | null {
+export function surfaceCorrectionFor(b_nm: Vec3, line: Vec3, point_nm: Vec3, normal: Vec3, thickness_nm: number): SurfaceCorrectionSpec | null {
   const u = unit(line);
   const n = unit(normal);
   if (Math.abs(dot(b_nm, u)) < 1e-12 * norm(b_nm)) return null;
-  if (Math.abs(dot(u, n)) < GEOMETRY_TOLERANCE) return { kind: 'parallel-screw-images', normal: n, thickness_nm };
+  if (Math.abs(dot(u, n)) < GEOMETRY_TOLERANCE) {
+    const z0 = dot(point_nm, n);
+    if (!(z0 > 1e-9 * thickness_nm && z0 < (1 - 1e-9) * thickness_nm)) return null;
+    return { kind: 'parallel-screw-images', normal: n, thickness_nm };
+  }
   if (norm(cross(u, n)) < GEOMETRY_TOLERANCE) return { kind: 'normal-screw-twist', normal: n, thickness_nm };
   return null;
 }
@@ -100,14 +107,17 @@ function parallelScrewImages(o: SurfaceCorrectionOptions): DisplacementField {
   const P = o.point_nm;
   const xi0 = dot(P, e1);
   const z0 = dot(P, n);
+  const tiny = 1e-7 * t;
   const e10 = e1[0], e11 = e1[1], e12 = e1[2];
   const n0 = n[0], n1 = n[1], n2 = n[2];
   const u0 = u[0], u1 = u[1], u2 = u[2];
   // the two derivatives of the correction w_c (along u) into d[0] = dw/dxi, d[1] = dw/dz
   const d = new Float64Array(2);
   const derivs = (x: number, y: number, z: number): void => {
-    const xi = x * e10 + y * e11 + z * e12 - xi0;
+    let xi = x * e10 + y * e11 + z * e12 - xi0;
     const zz = x * n0 + y * n1 + z * n2;
+    // on the line itself both the image sum and the real line are 0/0; the correction is smooth there: step aside
+    if (Math.abs(xi) < tiny && Math.abs(zz - z0) < tiny) xi = tiny;
     const E = Math.exp(-2 * A * Math.abs(xi));
     const sg = xi < 0 ? -1 : 1;
     const a1 = 2 * A * (zz - z0);
@@ -177,9 +187,11 @@ function normalScrewTwist(o: SurfaceCorrectionOptions): DisplacementField {
   const s = new Float64Array(3);
   // the last K partial sums of each series (Euler's transformation of an alternating series: repeated averaging)
   const K = 8;
+  const tiny2 = (1e-7 * t) ** 2;
   const ps = new Float64Array(3 * K);
   const twist = (X: number, Y: number, Z: number): void => {
-    const r2 = X * X + Y * Y;
+    // the twist is singular only where the line meets a surface (r = 0, z = 0 or t): keep it finite there
+    const r2 = Math.max(X * X + Y * Y, tiny2);
     const r = Math.sqrt(r2);
     // terms fall off like 1/m^2 once m t exceeds r; enough of them for the averaging to converge
     const M = K + 8 + Math.ceil((2 * r) / t);

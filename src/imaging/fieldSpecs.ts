@@ -92,7 +92,7 @@ export function defectModel(sc: Scenario): DefectModel {
 /** A dislocation's spec with its surface correction, when one applies (the foil is 0 <= r.n <= t). */
 function withSurfaceCorrection(f: FieldSpec, normal: Vec3, thickness_nm: number): FieldSpec {
   if (f.kind !== 'dislocation') return f;
-  const c = surfaceCorrectionFor(f.b_nm, f.line, normal, thickness_nm);
+  const c = surfaceCorrectionFor(f.b_nm, f.line, f.point_nm, normal, thickness_nm);
   return c === null ? f : { ...f, surfaceCorrection: c };
 }
 

@@ -52,7 +52,7 @@ const lineCases: LineCase[] = [
 ];
 
 function spec(c: LineCase, relaxed: boolean): DislocationFieldSpec {
-  const corr = relaxed ? surfaceCorrectionFor(c.b, c.u, N, T) : null;
+  const corr = relaxed ? surfaceCorrectionFor(c.b, c.u, c.P, N, T) : null;
   if (relaxed && corr === null) throw new Error('no correction');
   const cut = unit(cross(c.u, cross([0.3, 0.1, 0.9], c.u)));
   return {
@@ -94,12 +94,16 @@ function surfacePoints(c: LineCase): Vec3[] {
 
 describe('surface relaxation: which lines get a correction', () => {
   it('parallel and normal lines with a screw component; not inclined lines nor pure edges', () => {
-    expect(surfaceCorrectionFor(scale(U_PAR, BL), U_PAR, N, T)?.kind).toBe('parallel-screw-images');
-    expect(surfaceCorrectionFor(scale(N, BL), N, N, T)?.kind).toBe('normal-screw-twist');
-    expect(surfaceCorrectionFor(scale(N, BL), scale(N, -1), N, T)?.kind).toBe('normal-screw-twist');
-    expect(surfaceCorrectionFor(scale(E2, BL), U_PAR, N, T)).toBeNull(); // pure edge parallel to the surfaces
+    expect(surfaceCorrectionFor(scale(U_PAR, BL), U_PAR, at(10, 0, 0), N, T)?.kind).toBe('parallel-screw-images');
+    expect(surfaceCorrectionFor(scale(N, BL), N, at(0, 0, 0), N, T)?.kind).toBe('normal-screw-twist');
+    expect(surfaceCorrectionFor(scale(N, BL), scale(N, -1), at(70, 1, 1), N, T)?.kind).toBe('normal-screw-twist');
+    expect(surfaceCorrectionFor(scale(E2, BL), U_PAR, at(10, 0, 0), N, T)).toBeNull(); // pure edge parallel to the surfaces
+    // a parallel line in a surface or outside the foil (a ribbon's partial placed there): no images
+    expect(surfaceCorrectionFor(scale(U_PAR, BL), U_PAR, at(0, 0, 0), N, T)).toBeNull();
+    expect(surfaceCorrectionFor(scale(U_PAR, BL), U_PAR, at(T, 0, 0), N, T)).toBeNull();
+    expect(surfaceCorrectionFor(scale(U_PAR, BL), U_PAR, at(-3, 0, 0), N, T)).toBeNull();
     const inclined = unit([N[0] + E1[0], N[1] + E1[1], N[2] + E1[2]]);
-    expect(surfaceCorrectionFor(scale(inclined, BL), inclined, N, T)).toBeNull();
+    expect(surfaceCorrectionFor(scale(inclined, BL), inclined, at(10, 0, 0), N, T)).toBeNull();
     expect(correctableGeometry(inclined, N)).toBe('inclined');
   });
 });
@@ -151,7 +155,7 @@ describe('surface relaxation: free surfaces (isotropic Hooke law, Hirth & Lothe 
 
 describe('surface relaxation: the correction is an elastic field', () => {
   for (const c of lineCases) {
-    const corr = surfaceCorrection({ b_nm: c.b, line: c.u, point_nm: c.P, correction: surfaceCorrectionFor(c.b, c.u, N, T) as SurfaceCorrectionSpec });
+    const corr = surfaceCorrection({ b_nm: c.b, line: c.u, point_nm: c.P, correction: surfaceCorrectionFor(c.b, c.u, c.P, N, T) as SurfaceCorrectionSpec });
     const inside: Vec3[] = [at(3, 4, 1), at(15, -6, 2), at(30, 1, -9), at(52, 3, 3), at(58, -1, 0.5), at(20, 40, -30)];
     it(`${c.name}: gradient equals finite differences of the displacement (central, h = 1e-4 nm) to 1e-8`, () => {
       const g = new Float64Array(9);
@@ -202,6 +206,26 @@ describe('surface relaxation: the correction is an elastic field', () => {
       expect(maxAbsDiff(loop, c.b)).toBeLessThan(1e-9);
     });
   }
+});
+
+describe('surface relaxation: finite everywhere in the foil', () => {
+  it('on the line itself and where a normal line meets the surfaces the correction is finite (no NaN)', () => {
+    const g = new Float64Array(9);
+    const d = new Float64Array(3);
+    for (const c of lineCases) {
+      const corr = surfaceCorrection({ b_nm: c.b, line: c.u, point_nm: c.P, correction: surfaceCorrectionFor(c.b, c.u, c.P, N, T) as SurfaceCorrectionSpec });
+      const normalLine = correctableGeometry(c.u, N) === 'normal';
+      const pts: Vec3[] = normalLine
+        ? [0, 1e-12, T / 2, T].map((z) => { const s = (z - dot(c.P, N)) / dot(c.u, N); return [c.P[0] + s * c.u[0], c.P[1] + s * c.u[1], c.P[2] + s * c.u[2]] as Vec3; })
+        : [c.P, [c.P[0] + 1e-12, c.P[1], c.P[2]]];
+      for (const p of pts) {
+        corr.gradient(g, p[0], p[1], p[2]);
+        corr.displacement(d, p[0], p[1], p[2]);
+        expect([...g, ...d].every(Number.isFinite)).toBe(true);
+        expect(Number.isFinite(corr.directional([1, 2, 3], [0.1, 0.2, 0.97])(p[0], p[1], p[2]))).toBe(true);
+      }
+    }
+  });
 });
 
 describe('surface relaxation: screw normal to the surfaces against Eshelby & Stroh (1951)', () => {
