@@ -25,16 +25,21 @@
  *    each term the half-space twist (sqrt(r^2+a^2) - a)/r of Eshelby & Stroh.
  *    The correction depends on depth along the line (not invariant).
  *
+ * With anisotropic elasticity a line parallel to the surfaces gets the
+ * anisotropic half-space images of surfaceImagesStroh.ts instead (all of b, each
+ * surface freed on its own), when its Stroh eigenvalues are well separated.
  * Lines inclined to the surfaces get no correction (see `surfaceCorrectionFor`).
- * Added to the anisotropic (Stroh) infinite field the correction is the
- * isotropic one: there it is an approximation (tractions do not vanish exactly).
+ * Added to the anisotropic (Stroh) infinite field the screw corrections above
+ * are the isotropic ones: there they are an approximation (tractions do not
+ * vanish exactly).
  * Coordinates: crystal Cartesian nm, depth z = r.n with n the unit foil normal
  * (the entrance surface passes through the origin, geometry/frames.ts).
  */
 import { type Vec3, cross, dot, norm, unit } from '../math/vec3.js';
 import type { DisplacementField } from './field.js';
+import { strohHalfSpaceImages, strohImagesApply } from './surfaceImagesStroh.js';
 
-export type SurfaceCorrectionKind = 'parallel-screw-images' | 'normal-screw-twist';
+export type SurfaceCorrectionKind = 'parallel-screw-images' | 'parallel-stroh-images' | 'normal-screw-twist';
 
 /** Plain data (worker threads rebuild the field from it). */
 export interface SurfaceCorrectionSpec {
@@ -50,21 +55,32 @@ export const GEOMETRY_TOLERANCE = 1e-9;
 /**
  * The correction that applies to a line (unit `line`, through `point_nm`) with
  * Burgers vector b in the foil, or null: inclined lines (no correction
- * implemented), lines without a screw component, and a line parallel to the
- * surfaces that does not lie strictly inside the foil (one lying in a surface,
- * or a partial of a ribbon placed outside the foil: its images would not be
- * outside the foil).
+ * implemented), lines without a screw component (isotropic), and a line parallel
+ * to the surfaces that does not lie strictly inside the foil (one lying in a
+ * surface, or a partial of a ribbon placed outside the foil: its images would
+ * not be outside the foil). With `stiffness_GPa` (anisotropic elasticity) a
+ * parallel line gets the anisotropic half-space images of both surfaces
+ * (surfaceImagesStroh.ts, every Burgers vector) when its Stroh eigenvalues are
+ * well separated, else the isotropic screw images.
  */
-export function surfaceCorrectionFor(b_nm: Vec3, line: Vec3, point_nm: Vec3, normal: Vec3, thickness_nm: number): SurfaceCorrectionSpec | null {
+export function surfaceCorrectionFor(
+  b_nm: Vec3,
+  line: Vec3,
+  point_nm: Vec3,
+  normal: Vec3,
+  thickness_nm: number,
+  stiffness_GPa?: readonly number[],
+): SurfaceCorrectionSpec | null {
   const u = unit(line);
   const n = unit(normal);
-  if (Math.abs(dot(b_nm, u)) < 1e-12 * norm(b_nm)) return null;
+  const screw = Math.abs(dot(b_nm, u)) >= 1e-12 * norm(b_nm);
   if (Math.abs(dot(u, n)) < GEOMETRY_TOLERANCE) {
     const z0 = dot(point_nm, n);
     if (!(z0 > 1e-9 * thickness_nm && z0 < (1 - 1e-9) * thickness_nm)) return null;
-    return { kind: 'parallel-screw-images', normal: n, thickness_nm };
+    if (stiffness_GPa !== undefined && strohImagesApply(stiffness_GPa, u, n)) return { kind: 'parallel-stroh-images', normal: n, thickness_nm };
+    return screw ? { kind: 'parallel-screw-images', normal: n, thickness_nm } : null;
   }
-  if (norm(cross(u, n)) < GEOMETRY_TOLERANCE) return { kind: 'normal-screw-twist', normal: n, thickness_nm };
+  if (screw && norm(cross(u, n)) < GEOMETRY_TOLERANCE) return { kind: 'normal-screw-twist', normal: n, thickness_nm };
   return null;
 }
 
@@ -82,11 +98,18 @@ export interface SurfaceCorrectionOptions {
   readonly line: Vec3;
   readonly point_nm: Vec3;
   readonly correction: SurfaceCorrectionSpec;
+  /** Needed for 'parallel-stroh-images': the Voigt stiffness of the line's own (anisotropic) field. */
+  readonly stiffness_GPa?: readonly number[];
 }
 
 /** The correction field (to be added to the infinite-medium field of the same line). */
 export function surfaceCorrection(o: SurfaceCorrectionOptions): DisplacementField {
-  return o.correction.kind === 'parallel-screw-images' ? parallelScrewImages(o) : normalScrewTwist(o);
+  const c = o.correction;
+  if (c.kind === 'parallel-stroh-images') {
+    if (o.stiffness_GPa === undefined) throw new Error('internal: anisotropic surface images need the stiffness');
+    return strohHalfSpaceImages({ b_nm: o.b_nm, line: o.line, point_nm: o.point_nm, normal: c.normal, thickness_nm: c.thickness_nm, stiffness_GPa: o.stiffness_GPa });
+  }
+  return c.kind === 'parallel-screw-images' ? parallelScrewImages(o) : normalScrewTwist(o);
 }
 
 /** arg(z) wrapped into (-pi, pi]. */

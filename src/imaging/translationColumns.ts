@@ -67,7 +67,7 @@ function invariantDirection(job: RenderJob): Vec3 | null {
   for (const f of job.model.fields) {
     if (f.kind !== 'dislocation') return null;
     // the surface twist of a line normal to the foil changes along the line (the image correction of a parallel line does not)
-    if (f.surfaceCorrection !== undefined && f.surfaceCorrection.kind !== 'parallel-screw-images') return null;
+    if (f.surfaceCorrection !== undefined && f.surfaceCorrection.kind === 'normal-screw-twist') return null;
     const l = f.line;
     if (u === null) u = l;
     else {
