@@ -4,7 +4,7 @@
  * elasticity note, src/elasticity/elasticityNote.ts).
  */
 import type { Scenario } from '../scenario/types.js';
-import { correctableGeometry } from '../elasticity/surfaceRelaxation.js';
+import { correctableGeometry, type SurfaceCorrectionKind } from '../elasticity/surfaceRelaxation.js';
 import { directionToCartesian } from '../crystal/lattice.js';
 import { defectModel } from './fieldSpecs.js';
 
@@ -21,19 +21,29 @@ export interface SurfacesDescription {
   readonly approximations: readonly string[];
 }
 
-const METHOD =
-  'the screw component of a line parallel to the surfaces gets its infinite series of image screws (closed form; exact for a screw in an isotropic plate), ' +
-  'that of a line normal to the surfaces the Eshelby & Stroh (1951) plate twist (image series of half-space twists; exact for a screw in an isotropic plate)';
+/** What each correction does, in words. */
+const KIND_TEXT: Readonly<Record<SurfaceCorrectionKind, string>> = {
+  'parallel-screw-images':
+    'lines parallel to the surfaces: the screw component gets its infinite series of image screws (closed form; exact for a screw in an isotropic plate), the edge component is not corrected',
+  'parallel-stroh-images':
+    'lines parallel to the surfaces: the anisotropic half-space image of each surface (Stroh formalism, every Burgers vector; each surface is freed exactly on its own, but the image of one surface leaves a traction on the other, no repeated reflections: about 9-15 % of the unrelaxed traction for a line 10 nm deep in a 60 nm foil)',
+  'normal-screw-twist':
+    'lines normal to the surfaces: the screw component gets the Eshelby & Stroh (1951) plate twist (exact for a screw in an isotropic plate), the edge component is not corrected',
+};
 
 export function describeSurfaces(sc: Scenario): SurfacesDescription {
   const fields = defectModel(sc).fields.flatMap((f) => (f.kind === 'dislocation' ? [f] : []));
   const n = fields.length;
   const geometry = { parallel: 0, normal: 0, inclined: 0 };
   const normal = directionToCartesian(sc.material.lattice, sc.foilNormal);
+  const kinds = new Set<SurfaceCorrectionKind>();
   let corrected = 0;
   for (const f of fields) {
     geometry[correctableGeometry(f.line, normal)]++;
-    if (f.surfaceCorrection !== undefined) corrected++;
+    if (f.surfaceCorrection !== undefined) {
+      corrected++;
+      kinds.add(f.surfaceCorrection.kind);
+    }
   }
   if (sc.surfaces === 'infinite') {
     return {
@@ -45,18 +55,19 @@ export function describeSurfaces(sc: Scenario): SurfacesDescription {
       approximations: ['the foil surfaces are not traction-free: the infinite-medium field is used throughout'],
     };
   }
-  const approximations = [
-    'edge components of lines parallel or normal to the surfaces are not corrected (their in-plane or normal tractions on the surfaces remain)',
+  const approximations: string[] = [...kinds].map((k) => KIND_TEXT[k]);
+  if (sc.elasticity === 'anisotropic' && (kinds.has('parallel-screw-images') || kinds.has('normal-screw-twist'))) {
+    approximations.push('the screw corrections (image screws, plate twist) are isotropic, added to the anisotropic (Stroh) infinite field: the surface tractions are reduced, not exactly cancelled');
+  }
+  approximations.push(
     'lines inclined to the surfaces keep the infinite-medium field (the Yoffe 1961 / Shaibani & Hazzledine 1981 correction is not implemented)',
     'inclusions are not relaxed at the surfaces',
-  ];
-  if (sc.elasticity === 'anisotropic') {
-    approximations.unshift('the correction is the isotropic one, added to the anisotropic (Stroh) infinite field: in an anisotropic crystal the surface tractions are reduced, not exactly cancelled');
-  }
+  );
   const count = n === 0 ? 'no straight lines in this scenario' : `${corrected} of ${n} straight line${n === 1 ? '' : 's'} corrected`;
+  const used = [...kinds].map((k) => KIND_TEXT[k].split(':')[0] + (k === 'parallel-stroh-images' ? ' (anisotropic half-space images of each surface)' : k === 'parallel-screw-images' ? ' (screw image series)' : ' (screw plate twist)'));
   return {
     setting: 'relaxed',
-    text: `relaxed foil surfaces (${count}): ${METHOD}; edge components and lines inclined to the surfaces keep the infinite-medium field${sc.elasticity === 'anisotropic' ? '; the correction is isotropic, added to the anisotropic field' : ''}`,
+    text: `relaxed foil surfaces (${count}${used.length ? `: ${used.join('; ')}` : ''}); lines inclined to the surfaces keep the infinite-medium field`,
     lines: n,
     correctedLines: corrected,
     geometry,

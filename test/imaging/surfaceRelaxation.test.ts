@@ -29,8 +29,11 @@ describe('"surfaces" scenario key', () => {
     expect(d.correctedLines).toBe(1);
     expect(d.lines).toBe(2);
     expect(d.geometry).toEqual({ parallel: 1, normal: 0, inclined: 1 });
-    expect(d.text).toMatch(/^relaxed foil surfaces \(1 of 2 straight lines corrected\)/);
-    expect(d.approximations.join(' ')).toMatch(/isotropic one, added to the anisotropic/);
+    expect(d.text).toMatch(/^relaxed foil surfaces \(1 of 2 straight lines corrected: lines parallel to the surfaces \(anisotropic half-space images of each surface\)\)/);
+    expect(d.approximations.join(' ')).toMatch(/each surface is freed exactly on its own/);
+    expect(d.approximations.join(' ')).toMatch(/inclined to the surfaces keep the infinite-medium field/);
+    const iso = describeSurfaces({ ...sc, elasticity: 'isotropic' });
+    expect(iso.text).toMatch(/screw image series/);
     expect(describeSurfaces({ ...sc, surfaces: 'infinite' }).correctedLines).toBe(0);
   });
 });
