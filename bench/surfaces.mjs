@@ -1,8 +1,8 @@
 // Benchmark: cost of relaxed foil surfaces ("surfaces": "relaxed") against the infinite medium, same run.
 // 1. Renders (one thread, the path the renderer would take: shared columns when translationPlan accepts
 //    the job, else column by column), "relaxed" vs "infinite", interleaved, median of 3 each:
-//    a. mixed dislocation parallel to the surfaces (image screws: invariant along the line, shared columns
-//       in both);
+//    a. mixed dislocation parallel to the surfaces, isotropic (screw image series) and anisotropic (Stroh
+//       half-space images of both surfaces): invariant along the line, shared columns in both;
 //    b. screw normal to the foil seen with a tilted beam (the Eshelby-Stroh twist changes along the line:
 //       translationPlan declines it, so the relaxed render goes column by column).
 // 2. Per-point cost of beta' = g.(grad R).k for a line alone and for each correction.
@@ -14,6 +14,8 @@ import { renderRows } from '../dist/imaging/renderRows.js';
 import { renderTranslated, translationPlan } from '../dist/imaging/translationColumns.js';
 import { straightDislocation } from '../dist/elasticity/straightDislocation.js';
 import { surfaceCorrection } from '../dist/elasticity/surfaceRelaxation.js';
+import { anisotropicDislocation } from '../dist/elasticity/anisotropicDislocation.js';
+import { voigtStiffness } from '../dist/elasticity/stiffness.js';
 
 const parallel = {
   name: 'bench-parallel',
@@ -41,8 +43,10 @@ const normal = {
 };
 
 function renderOnce(spec, surfaces) {
-  const sc = parseScenario({ ...spec, surfaces });
-  const job = renderJob(sc, resolveCondition(sc, sc.conditions[0]));
+  const { eachColumn, ...rest } = spec;
+  const sc = parseScenario({ ...rest, surfaces });
+  const job0 = renderJob(sc, resolveCondition(sc, sc.conditions[0]));
+  const job = eachColumn ? { ...job0, shareColumns: false } : job0;
   const W = sc.image.width_px, H = sc.image.height_px;
   const bf = new Float32Array(W * H), df = new Float32Array(W * H);
   const plan = translationPlan(job);
@@ -56,7 +60,9 @@ function renderOnce(spec, surfaces) {
 const median = (a) => a.slice().sort((x, y) => x - y)[Math.floor(a.length / 2)];
 const fmt = (x) => x.toPrecision(3);
 for (const [label, spec] of [
-  ['mixed 1/2[101] along [110], parallel to the surfaces 20 nm deep, 256 x 256, g = 200, w = 0.5, t = 100 nm', parallel],
+  ['isotropic, mixed 1/2[101] along [110], parallel to the surfaces 20 nm deep, 256 x 256, g = 200, w = 0.5, t = 100 nm', parallel],
+  ['anisotropic, the same line', { ...parallel, elasticity: 'anisotropic' }],
+  ['anisotropic, the same line, 128 x 128, column by column (render --each-column; general beam sets)', { ...parallel, elasticity: 'anisotropic', image: { width_px: 128, height_px: 128, pixel_nm: 1 }, eachColumn: true }],
   ['screw 1/2[110] normal to a (110) foil, beam tilted to [551], 128 x 128, g = 1-11, w = 0.5, t = 60 nm', normal],
 ]) {
   renderOnce(spec, 'infinite'); // warm-up
@@ -89,9 +95,12 @@ for (let i = 0; i < pts.length; i += 3) {
 }
 const g = [4.5, 1.2, -0.7], k = [0.1, 0.2, 0.97];
 const t = 60;
+const cu = voigtStiffness({ C11: 168.4, C12: 121.4, C44: 75.4 }, 'cubic');
 const fields = {
   'isotropic line (reference)': straightDislocation({ b_nm: [0.18, 0.18, 0], line: [1, 1, 0], point_nm: [0, 0, 20], poissonRatio: 0.34, coreRadius_nm: 0.01 }),
   'parallel: image screws': surfaceCorrection({ b_nm: [0.18, 0.18, 0], line: [1, 1, 0], point_nm: [0, 0, 20], correction: { kind: 'parallel-screw-images', normal: [0, 0, 1], thickness_nm: t } }),
+  'anisotropic line (Cu)': anisotropicDislocation({ b_nm: [0.18, 0.18, 0], line: [1, 1, 0], point_nm: [0, 0, 20], stiffness_GPa: cu, coreRadius_nm: 0.01 }),
+  'parallel: Stroh images (Cu)': surfaceCorrection({ b_nm: [0.18, 0, 0.18], line: [1, 1, 0], point_nm: [0, 0, 20], correction: { kind: 'parallel-stroh-images', normal: [0, 0, 1], thickness_nm: t }, stiffness_GPa: cu }),
   'normal: plate twist': surfaceCorrection({ b_nm: [0, 0, 0.25], line: [0, 0, 1], point_nm: [0, 0, 0], correction: { kind: 'normal-screw-twist', normal: [0, 0, 1], thickness_nm: t } }),
 };
 function perPoint(f) {
