@@ -28,7 +28,8 @@
  * With anisotropic elasticity a line parallel to the surfaces gets the
  * anisotropic half-space images of surfaceImagesStroh.ts instead (all of b, each
  * surface freed on its own), when its Stroh eigenvalues are well separated.
- * Lines inclined to the surfaces get no correction (see `surfaceCorrectionFor`).
+ * Lines inclined to the surfaces get the half-space corrections of
+ * surfaceHalfSpaceInclined.ts (each surface freed on its own, isotropic response).
  * Added to the anisotropic (Stroh) infinite field the screw corrections above
  * are the isotropic ones: there they are an approximation (tractions do not
  * vanish exactly).
@@ -38,8 +39,14 @@
 import { type Vec3, cross, dot, norm, unit } from '../math/vec3.js';
 import type { DisplacementField } from './field.js';
 import { strohHalfSpaceImages, strohImagesApply } from './surfaceImagesStroh.js';
+import { inclinedHalfSpaceCorrection } from './surfaceHalfSpaceInclined.js';
 
-export type SurfaceCorrectionKind = 'parallel-screw-images' | 'parallel-stroh-images' | 'normal-screw-twist';
+export type SurfaceCorrectionKind = 'parallel-screw-images' | 'parallel-stroh-images' | 'normal-screw-twist' | 'inclined-half-space';
+
+/** Whether a correction keeps the field invariant along the line (the shared-column method needs that). */
+export function invariantAlongLine(kind: SurfaceCorrectionKind): boolean {
+  return kind === 'parallel-screw-images' || kind === 'parallel-stroh-images';
+}
 
 /** Plain data (worker threads rebuild the field from it). */
 export interface SurfaceCorrectionSpec {
@@ -54,14 +61,15 @@ export const GEOMETRY_TOLERANCE = 1e-9;
 
 /**
  * The correction that applies to a line (unit `line`, through `point_nm`) with
- * Burgers vector b in the foil, or null: inclined lines (no correction
- * implemented), lines without a screw component (isotropic), and a line parallel
+ * Burgers vector b in the foil, or null: lines parallel to the surfaces without a
+ * screw component (isotropic elasticity), lines normal to them without one, and a line parallel
  * to the surfaces that does not lie strictly inside the foil (one lying in a
  * surface, or a partial of a ribbon placed outside the foil: its images would
  * not be outside the foil). With `stiffness_GPa` (anisotropic elasticity) a
  * parallel line gets the anisotropic half-space images of both surfaces
  * (surfaceImagesStroh.ts, every Burgers vector) when its Stroh eigenvalues are
- * well separated, else the isotropic screw images.
+ * well separated, else the isotropic screw images. A line inclined to the
+ * surfaces gets the half-space corrections of both surfaces (surfaceHalfSpaceInclined.ts).
  */
 export function surfaceCorrectionFor(
   b_nm: Vec3,
@@ -80,8 +88,8 @@ export function surfaceCorrectionFor(
     if (stiffness_GPa !== undefined && strohImagesApply(stiffness_GPa, u, n)) return { kind: 'parallel-stroh-images', normal: n, thickness_nm };
     return screw ? { kind: 'parallel-screw-images', normal: n, thickness_nm } : null;
   }
-  if (screw && norm(cross(u, n)) < GEOMETRY_TOLERANCE) return { kind: 'normal-screw-twist', normal: n, thickness_nm };
-  return null;
+  if (norm(cross(u, n)) < GEOMETRY_TOLERANCE) return screw ? { kind: 'normal-screw-twist', normal: n, thickness_nm } : null;
+  return { kind: 'inclined-half-space', normal: n, thickness_nm };
 }
 
 /** Whether a line is parallel or normal to the surfaces (the geometries with a correction). */
@@ -98,8 +106,10 @@ export interface SurfaceCorrectionOptions {
   readonly line: Vec3;
   readonly point_nm: Vec3;
   readonly correction: SurfaceCorrectionSpec;
-  /** Needed for 'parallel-stroh-images': the Voigt stiffness of the line's own (anisotropic) field. */
+  /** The Voigt stiffness of the line's own field when it is anisotropic (needed for 'parallel-stroh-images'). */
   readonly stiffness_GPa?: readonly number[];
+  /** Poisson ratio of the isotropic response (needed for 'inclined-half-space'). */
+  readonly poissonRatio?: number;
 }
 
 /** The correction field (to be added to the infinite-medium field of the same line). */
@@ -108,6 +118,18 @@ export function surfaceCorrection(o: SurfaceCorrectionOptions): DisplacementFiel
   if (c.kind === 'parallel-stroh-images') {
     if (o.stiffness_GPa === undefined) throw new Error('internal: anisotropic surface images need the stiffness');
     return strohHalfSpaceImages({ b_nm: o.b_nm, line: o.line, point_nm: o.point_nm, normal: c.normal, thickness_nm: c.thickness_nm, stiffness_GPa: o.stiffness_GPa });
+  }
+  if (c.kind === 'inclined-half-space') {
+    if (o.poissonRatio === undefined) throw new Error('internal: the half-space correction needs the Poisson ratio');
+    return inclinedHalfSpaceCorrection({
+      b_nm: o.b_nm,
+      line: o.line,
+      point_nm: o.point_nm,
+      normal: c.normal,
+      thickness_nm: c.thickness_nm,
+      poissonRatio: o.poissonRatio,
+      ...(o.stiffness_GPa === undefined ? {} : { stiffness_GPa: o.stiffness_GPa }),
+    });
   }
   return c.kind === 'parallel-screw-images' ? parallelScrewImages(o) : normalScrewTwist(o);
 }

@@ -107,7 +107,7 @@ export function buildField(specs: readonly FieldSpec[]): DisplacementField | nul
   const fields = specs.flatMap((s) => {
     if (s.kind !== 'dislocation') return [sphericalInclusion({ centre_nm: s.centre_nm, radius_nm: s.radius_nm, strain: s.strain, poissonRatio: s.poissonRatio })];
     const line = s.stiffness_GPa === undefined ? straightDislocation(s) : anisotropicDislocation({ ...s, stiffness_GPa: s.stiffness_GPa });
-    return s.surfaceCorrection === undefined ? [line] : [line, surfaceCorrection({ b_nm: s.b_nm, line: s.line, point_nm: s.point_nm, correction: s.surfaceCorrection, stiffness_GPa: s.stiffness_GPa })];
+    return s.surfaceCorrection === undefined ? [line] : [line, surfaceCorrection({ b_nm: s.b_nm, line: s.line, point_nm: s.point_nm, correction: s.surfaceCorrection, stiffness_GPa: s.stiffness_GPa, poissonRatio: s.poissonRatio })];
   });
   return fields.length === 1 ? fields[0] : superpose(fields);
 }

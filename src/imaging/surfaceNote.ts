@@ -29,6 +29,8 @@ const KIND_TEXT: Readonly<Record<SurfaceCorrectionKind, string>> = {
     'lines parallel to the surfaces: the anisotropic half-space image of each surface (Stroh formalism, every Burgers vector; each surface is freed exactly on its own, but the image of one surface leaves a traction on the other, no repeated reflections: about 9-15 % of the unrelaxed traction for a line 10 nm deep in a 60 nm foil)',
   'normal-screw-twist':
     'lines normal to the surfaces: the screw component gets the Eshelby & Stroh (1951) plate twist (exact for a screw in an isotropic plate), the edge component is not corrected',
+  'inclined-half-space':
+    'lines inclined to the surfaces: the isotropic half-space correction of each surface where the line meets it (2D Fourier solution of the surface tractions, every Burgers vector; each surface is freed on its own, the correction of one leaves a traction on the other; tabulated over directions from the emergence point and interpolated)',
 };
 
 export function describeSurfaces(sc: Scenario): SurfacesDescription {
@@ -56,18 +58,21 @@ export function describeSurfaces(sc: Scenario): SurfacesDescription {
     };
   }
   const approximations: string[] = [...kinds].map((k) => KIND_TEXT[k]);
-  if (sc.elasticity === 'anisotropic' && (kinds.has('parallel-screw-images') || kinds.has('normal-screw-twist'))) {
-    approximations.push('the screw corrections (image screws, plate twist) are isotropic, added to the anisotropic (Stroh) infinite field: the surface tractions are reduced, not exactly cancelled');
+  if (sc.elasticity === 'anisotropic' && (kinds.has('parallel-screw-images') || kinds.has('normal-screw-twist') || kinds.has('inclined-half-space'))) {
+    approximations.push('the screw image series, the plate twist and the half-space correction of inclined lines are isotropic (for inclined lines: the anisotropic field\'s own surface tractions, an isotropic response with the Voigt-average shear modulus), added to the anisotropic (Stroh) infinite field: the surface tractions are reduced, not exactly cancelled');
   }
-  approximations.push(
-    'lines inclined to the surfaces keep the infinite-medium field (the Yoffe 1961 / Shaibani & Hazzledine 1981 correction is not implemented)',
-    'inclusions are not relaxed at the surfaces',
-  );
+  approximations.push('inclusions are not relaxed at the surfaces');
   const count = n === 0 ? 'no straight lines in this scenario' : `${corrected} of ${n} straight line${n === 1 ? '' : 's'} corrected`;
-  const used = [...kinds].map((k) => KIND_TEXT[k].split(':')[0] + (k === 'parallel-stroh-images' ? ' (anisotropic half-space images of each surface)' : k === 'parallel-screw-images' ? ' (screw image series)' : ' (screw plate twist)'));
+  const SHORT: Readonly<Record<SurfaceCorrectionKind, string>> = {
+    'parallel-stroh-images': ' (anisotropic half-space images of each surface)',
+    'parallel-screw-images': ' (screw image series)',
+    'normal-screw-twist': ' (screw plate twist)',
+    'inclined-half-space': ' (isotropic half-space correction of each surface)',
+  };
+  const used = [...kinds].map((k) => KIND_TEXT[k].split(':')[0] + SHORT[k]);
   return {
     setting: 'relaxed',
-    text: `relaxed foil surfaces (${count}${used.length ? `: ${used.join('; ')}` : ''}); lines inclined to the surfaces keep the infinite-medium field`,
+    text: `relaxed foil surfaces (${count}${used.length ? `: ${used.join('; ')}` : ''})`,
     lines: n,
     correctedLines: corrected,
     geometry,
