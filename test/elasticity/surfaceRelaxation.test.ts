@@ -497,6 +497,30 @@ describe('surface relaxation of inclined lines: isotropic half-space correction 
       }
     });
   }
+  it('lines close to the surface plane are resolved less well by the tables (measured: residual traction 8e-5, 8e-4, 7e-3 of the unrelaxed at 73, 84, 88 degrees from the normal)', () => {
+    for (const [line, bound] of [[[1, 0.2, 0.3], 2e-4], [[1, 0.2, 0.1], 2e-3], [[1, 0.3, 0.03], 2e-2]] as [Vec3, number][]) {
+      const b: Vec3 = [0.2, 0.1, 0.12];
+      const Pl: Vec3 = [0, 0, 30];
+      const inf = straightDislocation({ b_nm: b, line, point_nm: Pl, poissonRatio: nu, coreRadius_nm: 1e-6 });
+      const corr = inclinedHalfSpaceCorrection({ b_nm: b, line, point_nm: Pl, normal: [0, 0, 1], thickness_nm: 60, poissonRatio: nu, only: 'entrance' });
+      const g = new Float64Array(9), h = new Float64Array(9);
+      const l = -30 / line[2];
+      const O = [l * line[0], l * line[1], 0];
+      let worst = 0, big = 0;
+      for (const r of [0.5, 2, 10]) {
+        for (let k = 0; k < 13; k++) {
+          const ph = 0.1 + (2 * Math.PI * k) / 13;
+          const x = O[0] + r * Math.cos(ph), y = O[1] + r * Math.sin(ph);
+          inf.gradient(g, x, y, 0);
+          corr.gradient(h, x, y, 0);
+          big = Math.max(big, r * norm(tractionOf(Ciso, g, [0, 0, 1])));
+          for (let q = 0; q < 9; q++) h[q] += g[q];
+          worst = Math.max(worst, r * norm(tractionOf(Ciso, h, [0, 0, 1])));
+        }
+      }
+      expect(worst / big).toBeLessThan(bound);
+    }
+  });
   it('a screw normal to the surface reproduces the Eshelby & Stroh (1951) half-space twist u_theta = (B/2pi)(sqrt(r^2+z^2) - z)/r (to 1e-5)', () => {
     const B = 0.25;
     const corr = inclinedHalfSpaceCorrection({ b_nm: [0, 0, B], line: [0, 0, 1], point_nm: [0, 0, 10], normal: [0, 0, 1], thickness_nm: t, poissonRatio: nu, only: 'entrance' });

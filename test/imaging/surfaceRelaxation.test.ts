@@ -22,16 +22,18 @@ describe('"surfaces" scenario key', () => {
     const sc = scenario({
       defects: [
         { type: 'dislocation', b: '1/2[1 1 0]', line: [1, 1, 0], point_nm: [0, 0, 30] }, // screw parallel: corrected
-        { type: 'dislocation', b: '1/2[1 1 0]', line: [1, 1, 2], point_nm: [0, 0, 30] }, // inclined: not corrected
+        { type: 'dislocation', b: '1/2[1 1 0]', line: [1, 1, 2], point_nm: [0, 0, 30] }, // inclined: half-space corrections
+        { type: 'dislocation', b: '1/2[1 -1 0]', line: [0, 0, 1], point_nm: [0, 0, 30] }, // pure edge normal to the foil: not corrected
       ],
     });
     const d = describeSurfaces(sc);
-    expect(d.correctedLines).toBe(1);
-    expect(d.lines).toBe(2);
-    expect(d.geometry).toEqual({ parallel: 1, normal: 0, inclined: 1 });
-    expect(d.text).toMatch(/^relaxed foil surfaces \(1 of 2 straight lines corrected: lines parallel to the surfaces \(anisotropic half-space images of each surface\)\)/);
+    expect(d.correctedLines).toBe(2);
+    expect(d.lines).toBe(3);
+    expect(d.geometry).toEqual({ parallel: 1, normal: 1, inclined: 1 });
+    expect(d.text).toMatch(/^relaxed foil surfaces \(2 of 3 straight lines corrected: lines parallel to the surfaces \(anisotropic half-space images of each surface\); lines inclined to the surfaces \(isotropic half-space correction of each surface\)\)/);
     expect(d.approximations.join(' ')).toMatch(/each surface is freed exactly on its own/);
-    expect(d.approximations.join(' ')).toMatch(/inclined to the surfaces keep the infinite-medium field/);
+    expect(d.approximations.join(' ')).toMatch(/lines inclined to the surfaces: the isotropic half-space correction of each surface/);
+    expect(d.approximations.join(' ')).toMatch(/are isotropic .* added to the anisotropic \(Stroh\) infinite field/);
     const iso = describeSurfaces({ ...sc, elasticity: 'isotropic' });
     expect(iso.text).toMatch(/screw image series/);
     expect(describeSurfaces({ ...sc, surfaces: 'infinite' }).correctedLines).toBe(0);
