@@ -3,7 +3,9 @@
 //    the job, else column by column), "relaxed" vs "infinite", interleaved, median of 3 each:
 //    a. mixed dislocation parallel to the surfaces, isotropic (screw image series) and anisotropic (Stroh
 //       half-space images of both surfaces): invariant along the line, shared columns in both;
-//    b. screw normal to the foil seen with a tilted beam (the Eshelby-Stroh twist changes along the line:
+//    b. inclined mixed dislocation (the half-space corrections change along the line: column by column when
+//       relaxed, shared columns when infinite; also against the infinite medium column by column);
+//    c. screw normal to the foil seen with a tilted beam (the Eshelby-Stroh twist changes along the line:
 //       translationPlan declines it, so the relaxed render goes column by column).
 // 2. Per-point cost of beta' = g.(grad R).k for a line alone and for each correction.
 // Run with `npm run bench` (builds dist/ first) or `node bench/surfaces.mjs` after a build. Never a timed test.
@@ -16,6 +18,7 @@ import { straightDislocation } from '../dist/elasticity/straightDislocation.js';
 import { surfaceCorrection } from '../dist/elasticity/surfaceRelaxation.js';
 import { anisotropicDislocation } from '../dist/elasticity/anisotropicDislocation.js';
 import { voigtStiffness } from '../dist/elasticity/stiffness.js';
+import { inclinedHalfSpaceCorrection } from '../dist/elasticity/surfaceHalfSpaceInclined.js';
 
 const parallel = {
   name: 'bench-parallel',
@@ -28,6 +31,17 @@ const parallel = {
   image: { width_px: 256, height_px: 256, pixel_nm: 0.5 },
   conditions: [{ id: 'g200', g: [2, 0, 0], w: 0.5 }],
   defects: [{ type: 'dislocation', b: '1/2[1 0 1]', line: [1, 1, 0], point_nm: [0, 0, 20] }],
+};
+const inclined = {
+  name: 'bench-inclined',
+  material: 'Cu',
+  kV: 200,
+  foil: { thickness_nm: 100, normal: [0, 0, 1] },
+  beam: [0, 0, 1],
+  imageX: [1, 0, 0],
+  image: { width_px: 128, height_px: 128, pixel_nm: 1 },
+  conditions: [{ id: 'g200', g: [2, 0, 0], w: 0.5 }],
+  defects: [{ type: 'dislocation', b: '1/2[1 0 1]', line: [1, 1, 2], point_nm: [0, 0, 50] }],
 };
 const normal = {
   name: 'bench-normal',
@@ -63,6 +77,8 @@ for (const [label, spec] of [
   ['isotropic, mixed 1/2[101] along [110], parallel to the surfaces 20 nm deep, 256 x 256, g = 200, w = 0.5, t = 100 nm', parallel],
   ['anisotropic, the same line', { ...parallel, elasticity: 'anisotropic' }],
   ['anisotropic, the same line, 128 x 128, column by column (render --each-column; general beam sets)', { ...parallel, elasticity: 'anisotropic', image: { width_px: 128, height_px: 128, pixel_nm: 1 }, eachColumn: true }],
+  ['anisotropic, inclined mixed 1/2[101] along [112], 128 x 128, g = 200, w = 0.5, t = 100 nm', inclined],
+  ['the same, infinite medium also column by column', { ...inclined, eachColumn: true }],
   ['screw 1/2[110] normal to a (110) foil, beam tilted to [551], 128 x 128, g = 1-11, w = 0.5, t = 60 nm', normal],
 ]) {
   renderOnce(spec, 'infinite'); // warm-up
@@ -101,6 +117,7 @@ const fields = {
   'parallel: image screws': surfaceCorrection({ b_nm: [0.18, 0.18, 0], line: [1, 1, 0], point_nm: [0, 0, 20], correction: { kind: 'parallel-screw-images', normal: [0, 0, 1], thickness_nm: t } }),
   'anisotropic line (Cu)': anisotropicDislocation({ b_nm: [0.18, 0.18, 0], line: [1, 1, 0], point_nm: [0, 0, 20], stiffness_GPa: cu, coreRadius_nm: 0.01 }),
   'parallel: Stroh images (Cu)': surfaceCorrection({ b_nm: [0.18, 0, 0.18], line: [1, 1, 0], point_nm: [0, 0, 20], correction: { kind: 'parallel-stroh-images', normal: [0, 0, 1], thickness_nm: t }, stiffness_GPa: cu }),
+  'inclined: half-space tables': inclinedHalfSpaceCorrection({ b_nm: [0.18, 0, 0.18], line: [1, 1, 2], point_nm: [0, 0, 30], normal: [0, 0, 1], thickness_nm: t, poissonRatio: 0.34 }),
   'normal: plate twist': surfaceCorrection({ b_nm: [0, 0, 0.25], line: [0, 0, 1], point_nm: [0, 0, 0], correction: { kind: 'normal-screw-twist', normal: [0, 0, 1], thickness_nm: t } }),
 };
 function perPoint(f) {

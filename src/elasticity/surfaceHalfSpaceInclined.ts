@@ -20,7 +20,7 @@
  * so that grad u = (1/(2 pi R)) Re sum_m e^{i m phi} (i s)^|m| [p0_m + p1_m (c^2 + |m| c)],
  * c = cos(polar angle), s = tan(polar angle / 2), p0_m, p1_m the Fourier
  * coefficients of P0(theta), P1(theta). The correction gradient is F(direction)/R:
- * F is tabulated per line on a grid of directions (polar angle x azimuth) and
+ * F is tabulated per line on a grid of directions (s = tan(polar angle/2) x azimuth) and
  * interpolated (bicubic) on the hot path.
  *
  * Approximations (stated in README and render.json): each surface is a
@@ -50,7 +50,7 @@ export interface InclinedHalfSpaceOptions {
 }
 
 const N_HARM_SAMPLES = 256; // samples of h(phi) and theta (a line within ~15 degrees of the surface plane is resolved less well: see the tests)
-const N_POLAR = 65; // polar-angle nodes on [0, pi/2]
+const N_POLAR = 65; // nodes in s = tan(polar angle / 2) on [0, 1] (polar angle 0 to pi/2)
 const N_AZ = 256; // azimuth nodes on [0, 2 pi)
 
 interface SurfaceTable {
@@ -260,9 +260,9 @@ function buildTable(o: InclinedHalfSpaceOptions, which: 'entrance' | 'exit'): Su
   const re = new Float64Array(N_AZ), im = new Float64Array(N_AZ);
   const coef = new Float64Array(ms.length * 18); // per harmonic: complex 9-vector at this polar angle, times (i s)^|m| / 2pi
   for (let ip = 0; ip < N_POLAR; ip++) {
-    const vt = ((Math.PI / 2) * ip) / (N_POLAR - 1);
-    const c = Math.cos(vt);
-    const s = Math.tan(vt / 2);
+    // nodes uniform in s = tan(polar/2) = rho/(R + z) (no trigonometry on the hot path), c = cos(polar)
+    const s = ip / (N_POLAR - 1);
+    const c = (1 - s * s) / (1 + s * s);
     for (let q = 0; q < ms.length; q++) {
       const am = Math.abs(ms[q]);
       const mag = (am === 0 ? 1 : Math.pow(s, am)) / (2 * Math.PI);
@@ -443,14 +443,15 @@ export function inclinedHalfSpaceCorrection(o: InclinedHalfSpaceOptions): Displa
   if (o.only !== 'exit') tables.push(tableFor(o, 'entrance'));
   if (o.only !== 'entrance') tables.push(tableFor(o, 'exit'));
   const wp = new Float64Array(4), wa = new Float64Array(4);
-  const dP = (Math.PI / 2) / (N_POLAR - 1);
+  const dP = 1 / (N_POLAR - 1);
   const dA = (2 * Math.PI) / N_AZ;
   /** interpolates table `tab` (stride `stride`, component offset `k`) at (polar, azimuth): sets wp, wa and returns the base indices. */
   const ip0 = new Int32Array(4), ia0 = new Int32Array(4), shift = new Int32Array(4);
   const locate = (X: number, Y: number, Z: number): number => {
-    const rho = Math.hypot(X, Y);
-    const R = Math.hypot(rho, Z);
-    const vt = Math.atan2(rho, Math.max(Z, 0));
+    const rho2 = X * X + Y * Y;
+    const rho = Math.sqrt(rho2);
+    const R = Math.sqrt(rho2 + Z * Z);
+    const vt = R > 0 ? rho / (R + Math.max(Z, 0)) : 0; // s = tan(polar / 2)
     let ph = Math.atan2(Y, X);
     if (ph < 0) ph += 2 * Math.PI;
     const fp = vt / dP;

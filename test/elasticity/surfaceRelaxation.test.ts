@@ -235,6 +235,18 @@ describe('surface relaxation: finite everywhere in the foil', () => {
   });
 });
 
+describe('surface relaxation: inclined line finite at its emergence points', () => {
+  it('the half-space corrections give finite numbers exactly where the line meets a surface', () => {
+    const f = inclinedHalfSpaceCorrection({ b_nm: [0.2, 0.1, 0.12], line: [0.5, 0.3, 1], point_nm: [0, 0, 30], normal: [0, 0, 1], thickness_nm: 60, poissonRatio: 0.3 });
+    const g = new Float64Array(9);
+    for (const p of [[-15, -9, 0], [15, 9, 60]] as Vec3[]) {
+      f.gradient(g, p[0], p[1], p[2]);
+      expect([...g].every(Number.isFinite)).toBe(true);
+      expect(Number.isFinite(f.directional([1, 2, 3], [0, 0, 1])(p[0], p[1], p[2]))).toBe(true);
+    }
+  });
+});
+
 describe('surface relaxation: screw normal to the surfaces against Eshelby & Stroh (1951)', () => {
   it('in a very thick plate the twist near the entrance surface is the half-space closed form u_theta = (B/2pi)(sqrt(r^2+z^2) - z)/r (to r/t)', () => {
     const t = 1e6;
