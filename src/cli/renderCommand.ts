@@ -81,7 +81,7 @@ export async function renderAndWrite(
   const surfaces = describeSurfaces(sc);
   const summary = {
     scenario: sc.name,
-    note: `Simulated images (column approximation, ${el.model} elasticity, ${surfaces.setting === 'relaxed' ? 'relaxed foil surfaces where implemented' : 'infinite medium'}); a model, not a measurement.`,
+    note: `Simulated images (column approximation, ${el.model} elasticity, ${surfaces.setting === 'relaxed' ? 'relaxed foil surfaces' : 'infinite medium'}); a model, not a measurement.`,
     material: sc.material.name,
     elasticity: el,
     surfaces,

@@ -386,10 +386,12 @@ function cr(f: number, w: Float64Array): void {
  */
 const byB = new Map<string, SurfaceTable>();
 const byGeometry = new Map<string, SurfaceTable[] | 'seen'>();
-const CACHE_SIZE = 32;
+// a table holds 65 x 256 x 9 numbers (1.2 MB): at most 16 per b and 8 geometries (x 3 unit b) per thread
+const BY_B_SIZE = 16;
+const BY_GEOMETRY_SIZE = 8;
 
-function remember<V>(m: Map<string, V>, key: string, v: V): void {
-  if (m.size >= CACHE_SIZE) m.delete(m.keys().next().value as string);
+function remember<V>(m: Map<string, V>, size: number, key: string, v: V): void {
+  if (m.size >= size) m.delete(m.keys().next().value as string);
   m.set(key, v);
 }
 
@@ -401,14 +403,14 @@ function tableFor(o: InclinedHalfSpaceOptions, which: 'entrance' | 'exit'): Surf
   const basis = byGeometry.get(gKey);
   if (basis === undefined) {
     const tb = buildTable(o, which);
-    remember(byGeometry, gKey, 'seen');
-    remember(byB, bKey, tb);
+    remember(byGeometry, BY_GEOMETRY_SIZE, gKey, 'seen');
+    remember(byB, BY_B_SIZE, bKey, tb);
     return tb;
   }
   let bs: SurfaceTable[];
   if (basis === 'seen') {
     bs = ([[1, 0, 0], [0, 1, 0], [0, 0, 1]] as Vec3[]).map((e) => buildTable({ ...o, b_nm: e }, which));
-    remember(byGeometry, gKey, bs);
+    remember(byGeometry, BY_GEOMETRY_SIZE, gKey, bs);
   } else bs = basis;
   const b = o.b_nm;
   const [t0, t1, t2] = bs;
@@ -429,7 +431,7 @@ function tableFor(o: InclinedHalfSpaceOptions, which: 'entrance' | 'exit'): Surf
     });
   });
   const tb: SurfaceTable = { O: t0.O, e1: t0.e1, e2: t0.e2, ez: t0.ez, F, ms, c0r, c0i, c1r, c1i };
-  remember(byB, bKey, tb);
+  remember(byB, BY_B_SIZE, bKey, tb);
   return tb;
 }
 

@@ -119,11 +119,11 @@ function readElasticity(v: unknown): Elasticity {
   return fail('elasticity', `must be "anisotropic" (Stroh solution from the material's Cij, the default) or "isotropic" (Hirth & Lothe closed form), got ${JSON.stringify(v)}`);
 }
 
-/** "surfaces": "relaxed" (default: surface correction where implemented) or "infinite". */
+/** "surfaces": "relaxed" (default: free-surface corrections, src/elasticity/surfaceRelaxation.ts) or "infinite". */
 function readSurfaces(v: unknown): Surfaces {
   if (v === undefined) return 'relaxed';
   if (v === 'relaxed' || v === 'infinite') return v;
-  return fail('surfaces', `must be "relaxed" (free-surface correction of straight lines parallel or normal to the foil, the default) or "infinite" (infinite-medium fields), got ${JSON.stringify(v)}`);
+  return fail('surfaces', `must be "relaxed" (free-surface corrections of straight dislocation fields, the default) or "infinite" (infinite-medium fields), got ${JSON.stringify(v)}`);
 }
 
 function readMaterial(v: unknown): Material {

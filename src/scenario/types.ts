@@ -60,7 +60,7 @@ export interface ImageSpec {
 
 export type Elasticity = 'anisotropic' | 'isotropic';
 
-/** Foil surfaces: "relaxed" (surface correction of straight lines where one is implemented, the default) or "infinite" (infinite-medium fields). */
+/** Foil surfaces: "relaxed" (free-surface corrections of straight lines, the default) or "infinite" (infinite-medium fields). */
 export type Surfaces = 'relaxed' | 'infinite';
 
 export interface Scenario {
@@ -85,8 +85,8 @@ export interface Scenario {
   readonly elasticity: Elasticity;
   /**
    * Free-surface relaxation of straight dislocation fields (src/elasticity/surfaceRelaxation.ts):
-   * "relaxed" (the default) adds the surface correction to lines parallel or normal to the
-   * foil surfaces (screw component, isotropic); "infinite" uses the infinite-medium fields.
+   * "relaxed" (the default) adds a surface correction to every straight line (see README, Foil
+   * surfaces, for what is exact and what is approximated); "infinite" uses the infinite-medium fields.
    */
   readonly surfaces: Surfaces;
   readonly conditions: readonly Condition[];
