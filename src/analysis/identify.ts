@@ -30,6 +30,7 @@ import { blockResample, correlationLength, decide, DEFAULT_SIGMAS, DEFAULT_SPREA
 import { DEFAULT_MAX_ROTATION_DEG, DEFAULT_MAX_SCALE, createCorrelator, extractWindow, findPeak, register, registerGroup, type Correlator, type PreparedTemplate, type RegistrationOptions, type RegistrationResult } from './registration.js';
 import { describeElasticity } from '../elasticity/elasticityNote.js';
 import { resolveCondition } from '../imaging/resolveCondition.js';
+import { describeSurfaces } from '../imaging/surfaceNote.js';
 
 export type { Renderer } from './simulateView.js';
 
@@ -111,6 +112,8 @@ export interface IdentifyResult {
   readonly scenario: string;
   /** The elasticity the simulations used, in one sentence (src/elasticity/elasticityNote.ts). */
   readonly elasticity: string;
+  /** The foil surfaces (relaxed or infinite medium), in one sentence (src/imaging/surfaceNote.ts). */
+  readonly surfaces: string;
   readonly defectIndex: number;
   readonly defectLabel: string;
   readonly micrographs: readonly PreparedMicrograph[];
@@ -400,6 +403,7 @@ export async function identify(scStated: Scenario, micrographsStated: readonly P
   return {
     scenario: sc.name,
     elasticity: describeElasticity(sc).text,
+    surfaces: describeSurfaces(sc).text,
     defectIndex,
     defectLabel: sc.defects[defectIndex].label,
     micrographs,

@@ -23,6 +23,7 @@ import { formatPlaneIn } from '../crystal/formatIndices.js';
 import { blurImages } from '../analysis/pointSpread.js';
 import { describeAbsorption } from '../scattering/absorption.js';
 import { describeElasticity } from '../elasticity/elasticityNote.js';
+import { describeSurfaces } from '../imaging/surfaceNote.js';
 
 export interface RenderOptions {
   out?: string;
@@ -113,11 +114,13 @@ function writeRenderSet(
   writeFigure('contact-sheet', contactSheet(images, geometries, windows, note, sc.name));
   const masks = images.map((ci) => writeCoreMask(set, ci));
   const el = describeElasticity(sc);
+  const surfaces = describeSurfaces(sc);
   const summary = {
     scenario: sc.name,
-    note: `Simulated images (column approximation, ${el.model} elasticity); a model, not a measurement.`,
+    note: `Simulated images (column approximation, ${el.model} elasticity, ${surfaces.setting === 'relaxed' ? 'relaxed foil surfaces' : 'infinite medium'}); a model, not a measurement.`,
     material: sc.material.name,
     elasticity: el,
+    surfaces,
     kV: sc.kV,
     thickness_nm: sc.thickness_nm,
     absorption: { setting: sc.absorption, model: describeAbsorption(sc.absorption) },

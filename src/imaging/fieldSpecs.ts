@@ -15,6 +15,7 @@ import { straightDislocation } from '../elasticity/straightDislocation.js';
 import { sphericalInclusion } from '../elasticity/inclusion.js';
 import { anisotropicDislocation } from '../elasticity/anisotropicDislocation.js';
 import { materialStiffness } from '../elasticity/stiffness.js';
+import { surfaceCorrection, surfaceCorrectionFor, type SurfaceCorrectionSpec } from '../elasticity/surfaceRelaxation.js';
 import type { ModelContext, ModelParts } from '../defects/defectType.js';
 import { defectTypeOf } from '../defects/registry.js';
 
@@ -33,6 +34,12 @@ export interface DislocationFieldSpec {
    * `poissonRatio`.
    */
   readonly stiffness_GPa?: readonly number[];
+  /**
+   * Present when the foil surfaces are relaxed and a correction exists for this
+   * line (parallel or normal to the surfaces, with a screw component): the
+   * surface correction (elasticity/surfaceRelaxation.ts) is added to the field.
+   */
+  readonly surfaceCorrection?: SurfaceCorrectionSpec;
 }
 
 export interface InclusionFieldSpec {
@@ -78,7 +85,15 @@ export function defectModel(sc: Scenario): DefectModel {
   };
   const out: ModelParts = { fields: [], surfaces: [] };
   for (const d of sc.defects) defectTypeOf(d).model(d, ctx, out);
-  return { fields: out.fields, surfaces: out.surfaces };
+  const fields = sc.surfaces === 'relaxed' ? out.fields.map((f) => withSurfaceCorrection(f, ctx.ref.normal, sc.thickness_nm)) : out.fields;
+  return { fields, surfaces: out.surfaces };
+}
+
+/** A dislocation's spec with its surface correction, when one applies (the foil is 0 <= r.n <= t). */
+function withSurfaceCorrection(f: FieldSpec, normal: Vec3, thickness_nm: number): FieldSpec {
+  if (f.kind !== 'dislocation') return f;
+  const c = surfaceCorrectionFor(f.b_nm, f.line, f.point_nm, normal, thickness_nm, f.stiffness_GPa);
+  return c === null ? f : { ...f, surfaceCorrection: c };
 }
 
 /** The Voigt stiffness the dislocation fields of a scenario use, or undefined for isotropic elasticity. */
@@ -89,13 +104,11 @@ export function elasticStiffness(sc: Scenario): number[] | undefined {
 /** The combined displacement field, or null when no defect has a field. */
 export function buildField(specs: readonly FieldSpec[]): DisplacementField | null {
   if (specs.length === 0) return null;
-  const fields = specs.map((s) =>
-    s.kind === 'dislocation'
-      ? s.stiffness_GPa === undefined
-        ? straightDislocation(s)
-        : anisotropicDislocation({ ...s, stiffness_GPa: s.stiffness_GPa })
-      : sphericalInclusion({ centre_nm: s.centre_nm, radius_nm: s.radius_nm, strain: s.strain, poissonRatio: s.poissonRatio }),
-  );
+  const fields = specs.flatMap((s) => {
+    if (s.kind !== 'dislocation') return [sphericalInclusion({ centre_nm: s.centre_nm, radius_nm: s.radius_nm, strain: s.strain, poissonRatio: s.poissonRatio })];
+    const line = s.stiffness_GPa === undefined ? straightDislocation(s) : anisotropicDislocation({ ...s, stiffness_GPa: s.stiffness_GPa });
+    return s.surfaceCorrection === undefined ? [line] : [line, surfaceCorrection({ b_nm: s.b_nm, line: s.line, point_nm: s.point_nm, correction: s.surfaceCorrection, stiffness_GPa: s.stiffness_GPa, poissonRatio: s.poissonRatio })];
+  });
   return fields.length === 1 ? fields[0] : superpose(fields);
 }
 

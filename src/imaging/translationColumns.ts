@@ -35,6 +35,7 @@ import { activeSurfaces, columnEvaluator, type ColumnEvaluator, type RenderJob, 
 import { CORE_SUBSAMPLES, coreGeometry } from './cores.js';
 import { longColumnEvents, WINDOW_END, WINDOW_START } from './longColumnEvents.js';
 import { buildField } from './fieldSpecs.js';
+import { invariantAlongLine } from '../elasticity/surfaceRelaxation.js';
 import { classWindowsN } from './translationColumnsN.js';
 
 /**
@@ -66,6 +67,8 @@ function invariantDirection(job: RenderJob): Vec3 | null {
   let u: Vec3 | null = null;
   for (const f of job.model.fields) {
     if (f.kind !== 'dislocation') return null;
+    // the surface corrections of lines that meet the surfaces change along the line (the images of a parallel line do not)
+    if (f.surfaceCorrection !== undefined && !invariantAlongLine(f.surfaceCorrection.kind)) return null;
     const l = f.line;
     if (u === null) u = l;
     else {

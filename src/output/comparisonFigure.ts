@@ -270,7 +270,7 @@ export function comparisonFigureData(res: IdentifyResult): ComparisonFigureData 
         : `Top row: the micrographs as given; ${synth.join(', ')} ${synth.length === 1 ? 'is' : 'are'} SYNTHETIC (made by thinfoil, not measured).`;
   const caption = [
     micrographNote,
-    `Rows below: simulated images of the ${rows.length} leading candidates (two-beam Howie-Whelan equations, column approximation, ${res.elasticity.startsWith('anisotropic') ? 'anisotropic' : 'isotropic'} elasticity: a model, not a measurement), each registered to its micrograph (shift, rotation up to ${DEFAULT_MAX_ROTATION_DEG} degrees, scale up to ${100 * DEFAULT_MAX_SCALE} %). ` +
+    `Rows below: simulated images of the ${rows.length} leading candidates (two-beam Howie-Whelan equations, column approximation, ${res.elasticity.startsWith('anisotropic') ? 'anisotropic' : 'isotropic'} elasticity, ${res.surfaces.startsWith('relaxed') ? 'relaxed foil surfaces' : 'infinite medium'}: a model, not a measurement), each registered to its micrograph (shift, rotation up to ${DEFAULT_MAX_ROTATION_DEG} degrees, scale up to ${100 * DEFAULT_MAX_SCALE} %). ` +
       'Every image is contrast-stretched on its own (0.5 % of the pixels clipped at each end). Arrow: direction of g in the micrograph. ' +
       "R²: fraction of the micrograph's contrast variance explained by the simulation; score: its mean over the micrographs, with one contrast scale shared by the micrographs.",
     ...(res.ranking[0]?.fit ? [`Fitted for ${res.ranking[0].candidate}: ${fitText(res.ranking[0].fit)}.`] : []),

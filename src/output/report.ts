@@ -141,7 +141,7 @@ img { max-width: 100%; border: 1px solid #ddd; }
 <h1>${e(res.scenario)}: which candidate explains the micrographs?</h1>
 <p class="dim">Target: ${e(res.defectLabel)} (defect ${res.defectIndex} of the scenario file ${e(inp.scenarioFile)}); ${res.candidates.length} candidates; ${conds.length} micrograph${conds.length === 1 ? '' : 's'}.${inp.date ? ` Made ${e(inp.date)}.` : ''}${inp.version ? ` thinfoil ${e(inp.version)}.` : ''}</p>
 
-<div class="model"><strong>Simulations are a model, not a measurement.</strong> The simulated images come from the two-beam Howie-Whelan equations in the column approximation with ${e(res.elasticity)} in an infinite medium (no surface relaxation), ${inp.absorption ? `absorption: ${e(inp.absorption)}` : 'one absorption ratio'}, no beam convergence and no detector response beyond the blur given per micrograph. A good match supports a candidate under these assumptions; it does not prove it.</div>
+<div class="model"><strong>Simulations are a model, not a measurement.</strong> The simulated images come from the two-beam Howie-Whelan equations in the column approximation with ${e(res.elasticity)}, ${e(res.surfaces)}, ${inp.absorption ? `absorption: ${e(inp.absorption)}` : 'one absorption ratio'}, no beam convergence and no detector response beyond the blur given per micrograph. A good match supports a candidate under these assumptions; it does not prove it.</div>
 ${syntheticNote}
 
 <h2>Verdict</h2>

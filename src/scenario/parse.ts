@@ -16,7 +16,7 @@ import { InputError } from '../errors.js';
 import type { DefectEntry } from '../defects/defectType.js';
 import { defectTypeNamed, defectTypeNames, defectTypeOf } from '../defects/registry.js';
 import { array, fail, isObject, joinPath, number, object, onlyKeys, required, string } from './check.js';
-import type { BeamSet, CandidateSpec, Condition, DefectSpec, Deviation, Elasticity, ImageSpec, Scenario } from './types.js';
+import type { BeamSet, CandidateSpec, Condition, DefectSpec, Deviation, Elasticity, ImageSpec, Scenario, Surfaces } from './types.js';
 import { beamCount, MAX_PIXELS, MAX_SIDE_PX } from './types.js';
 import { formatDirectionIn } from '../crystal/formatIndices.js';
 
@@ -45,7 +45,7 @@ export const PERPENDICULAR_TOLERANCE_DEG = 5;
 const TOP_KEYS = [
   // where editors find the JSON Schema (schema/scenario.schema.json); not used by the program
   '$schema',
-  'name', 'material', 'kV', 'foil', 'beam', 'imageX', 'image', 'absorption', 'elasticity', 'conditions', 'defects', 'candidates', 'description',
+  'name', 'material', 'kV', 'foil', 'beam', 'imageX', 'image', 'absorption', 'elasticity', 'surfaces', 'conditions', 'defects', 'candidates', 'description',
   // settings of micrographs, read by `thinfoil identify` (src/analysis/identifySettings.ts)
   'micrographs',
   // ranges of the parameters identification fits (src/analysis/fitSettings.ts)
@@ -74,6 +74,7 @@ export function parseScenario(raw: unknown): Scenario {
   const absorption = readAbsorption(o.absorption);
 
   const elasticity = readElasticity(o.elasticity);
+  const surfaces = readSurfaces(o.surfaces);
 
   const condList = array(required(o, 'conditions', '', '[{ "id": "g200", "g": [2, 0, 0], "s_per_nm": 0 }]'), 'conditions', 1);
   if (condList.length > MAX_CONDITIONS) fail('conditions', `holds ${condList.length} conditions; give at most ${MAX_CONDITIONS} per scenario`);
@@ -110,7 +111,7 @@ export function parseScenario(raw: unknown): Scenario {
   defects.forEach((d, i) => refuseOutsideFoil(d, joinPath('defects', i), material, thickness_nm, foilNormal));
   const candidates = o.candidates === undefined ? [] : array(o.candidates, 'candidates').flatMap((c, i) => readCandidates(c, joinPath('candidates', i), material));
 
-  return { name, material, kV, thickness_nm, foilNormal, beam, imageX_cart, image, absorption, elasticity, conditions, defects, candidates };
+  return { name, material, kV, thickness_nm, foilNormal, beam, imageX_cart, image, absorption, elasticity, surfaces, conditions, defects, candidates };
 }
 
 /** "elasticity": "anisotropic" (default: every material carries its Cij) or "isotropic". */
@@ -118,6 +119,17 @@ function readElasticity(v: unknown): Elasticity {
   if (v === undefined) return 'anisotropic';
   if (v === 'anisotropic' || v === 'isotropic') return v;
   return fail('elasticity', `must be "anisotropic" (Stroh solution from the material's Cij, the default) or "isotropic" (Hirth & Lothe closed form), got ${JSON.stringify(v)}`);
+}
+
+/**
+ * "surfaces": "infinite" (default: infinite-medium fields) or "relaxed" (free-surface corrections,
+ * src/elasticity/surfaceRelaxation.ts). Not relaxed by default: the corrections of inclined lines break the
+ * shared-column method and make renders 25-40x slower (README, Foil surfaces).
+ */
+function readSurfaces(v: unknown): Surfaces {
+  if (v === undefined) return 'infinite';
+  if (v === 'relaxed' || v === 'infinite') return v;
+  return fail('surfaces', `must be "infinite" (infinite-medium fields, the default) or "relaxed" (free-surface corrections of straight dislocation fields), got ${JSON.stringify(v)}`);
 }
 
 function readMaterial(v: unknown): Material {

@@ -60,6 +60,9 @@ export interface ImageSpec {
 
 export type Elasticity = 'anisotropic' | 'isotropic';
 
+/** Foil surfaces: "relaxed" (free-surface corrections of straight lines, the default) or "infinite" (infinite-medium fields). */
+export type Surfaces = 'relaxed' | 'infinite';
+
 export interface Scenario {
   readonly name: string;
   readonly material: Material;
@@ -80,6 +83,12 @@ export interface Scenario {
    * "isotropic" (Hirth & Lothe closed form with the Voigt-Reuss-Hill G, nu).
    */
   readonly elasticity: Elasticity;
+  /**
+   * Free-surface relaxation of straight dislocation fields (src/elasticity/surfaceRelaxation.ts):
+   * "relaxed" (the default) adds a surface correction to every straight line (see README, Foil
+   * surfaces, for what is exact and what is approximated); "infinite" uses the infinite-medium fields.
+   */
+  readonly surfaces: Surfaces;
   readonly conditions: readonly Condition[];
   readonly defects: readonly DefectSpec[];
   readonly candidates: readonly CandidateSpec[];

@@ -69,8 +69,9 @@ const strips = JSON.parse(readFileSync(join(import.meta.dirname, '..', 'referenc
 describe('the verdict follows the simulated contrast of the actual condition', () => {
   const frac = (b: number[]) => `1/2[${b.map((x) => Math.round(2 * x)).join(' ')}]`;
   const sc = scenario({
-    // the reference integrates the isotropic Hirth & Lothe field
+    // the reference integrates the isotropic Hirth & Lothe field of the infinite medium
     elasticity: 'isotropic',
+    surfaces: 'infinite',
     foil: { thickness_nm: strips.thickness_nm, normal: [0, 0, 1] },
     conditions: [{ id: 'g020', g: [0, 2, 0], w: strips.w }],
     defects: strips.cases.map((c) => ({ type: 'dislocation', b: frac(c.b), line: [1, 1, 2], point_nm: [0, 0, strips.depth_nm] })),
@@ -100,8 +101,10 @@ describe('the verdict follows the simulated contrast of the actual condition', (
     expect(e.verdict).toBe('visible');
   });
 
-  it('a screw with g.b = 0 gives no contrast at all in the strip (isotropic elasticity: g.R = 0 everywhere)', () => {
-    const s2 = scenario({ conditions: [{ id: 'g200', g: [2, 0, 0], w: 0.3 }], defects: [{ type: 'dislocation', b: '1/2[0 1 1]', line: [0, 1, 1], point_nm: [0, 0, 50] }] });
+  it('a screw with g.b = 0 gives no contrast at all in the strip (infinite medium: g.R = 0 everywhere)', () => {
+    // with relaxed surfaces the surface correction of an inclined screw has components across b, so g.b = 0
+    // leaves some contrast near the surfaces (0.05 here): the statement holds for the infinite medium
+    const s2 = scenario({ surfaces: 'infinite', conditions: [{ id: 'g200', g: [2, 0, 0], w: 0.3 }], defects: [{ type: 'dislocation', b: '1/2[0 1 1]', line: [0, 1, 1], point_nm: [0, 0, 50] }] });
     const [row] = visibilityTable(s2);
     expect(row.entries[0].simulated!.bf).toBeLessThan(1e-6);
     expect(row.entries[0].verdict).toBe('invisible');

@@ -79,6 +79,8 @@ describe('absolute image side (Hirsch et al. 1965; sign fixed by s + beta\' = 0)
     // Strong diffraction where s + beta' = 0 near z0 (Hirsch et al. 1965; Cockayne et al. 1969): with s > 0
     // this needs beta' < 0, i.e. sign(x) = -sign(g.b) for this frame. g = (0 2 0) gives g.b = 2.
     const sc = scenario({
+      // the hand formula below is the infinite-medium field (no surface images)
+      surfaces: 'infinite',
       image: { width_px: 160, height_px: 1, pixel_nm: 0.1 },
       foil: { thickness_nm: 60, normal: [0, 0, 1] },
       conditions: [{ id: 'c', g: [0, 2, 0], s_per_nm: 0.05 }],

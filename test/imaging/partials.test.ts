@@ -38,8 +38,9 @@ describe('Shockley partials (Howie & Whelan 1962; from memory)', () => {
   // the full image minus the image of the fault alone (same cut surface, no strain field).
   const partial = (b: string, g: number[]) =>
     scenario({
-      // the alpha-form reference (scripts/ref_dislocation_profiles.py) uses the isotropic Hirth & Lothe field
+      // the alpha-form reference (scripts/ref_dislocation_profiles.py) uses the isotropic Hirth & Lothe field of the infinite medium
       elasticity: 'isotropic',
+      surfaces: 'infinite',
       beam: [0, 0, 1], foil: { thickness_nm: 100, normal: [0, 0, 1] }, imageX: [1, 0, 0],
       image: { width_px: 80, height_px: 1, pixel_nm: 0.5 },
       conditions: [{ id: 'c', g, w: 0.5 }],
@@ -90,8 +91,9 @@ describe('dissociated dislocation: fault ribbon between two Shockley partials', 
   // Cu, beam [001]; b = 1/2[1 -1 0] on (111), line [1 -1 0] (screw) parallel to the foil surfaces;
   // the ribbon runs along u x n, inclined through the foil.
   const base = {
-    // src/elasticity/ribbon.ts (the atom-checked ribbon) is the isotropic field
+    // src/elasticity/ribbon.ts (the atom-checked ribbon) is the isotropic field of the infinite medium
     elasticity: 'isotropic',
+    surfaces: 'infinite',
     beam: [0, 0, 1], foil: { thickness_nm: 100, normal: [0, 0, 1] }, imageX: [1, 0, 0],
     image: { width_px: 48, height_px: 48, pixel_nm: 2 },
     conditions: [{ id: 'c', g: [2, 0, 0], w: 0.4 }],

@@ -22,7 +22,8 @@ import { createRenderPool } from '../../src/imaging/workerPool.js';
 const TIGHT = 1e-7;
 
 function job(over: Record<string, unknown>, tol = TIGHT): RenderJob {
-  const sc = scenario({ image: { width_px: 24, height_px: 24, pixel_nm: 2.2 }, conditions: [{ id: 'g', g: [2, 0, 0], w: 0.5 }], ...over });
+  // infinite-medium fields unless a case asks otherwise: relaxed surfaces of inclined lines are not invariant along the line
+  const sc = scenario({ surfaces: 'infinite', image: { width_px: 24, height_px: 24, pixel_nm: 2.2 }, conditions: [{ id: 'g', g: [2, 0, 0], w: 0.5 }], ...over });
   return renderJob(sc, resolveCondition(sc, sc.conditions[0]), tol);
 }
 
@@ -62,6 +63,20 @@ describe('translation method equals column-by-column integration (exact identity
     [
       'Shockley partial with its fault running to the exit surface',
       { conditions: [{ id: 'g', g: [2, 2, 0], w: 0.3 }], defects: [{ type: 'partial', b: '1/6[1 1 -2]', line: [1, -1, 0], faultPlane: [1, 1, 1], faultSide: [-1, -1, 2], point_nm: [0, 0, 50] }] },
+    ],
+    // relaxed surfaces (the default): the image screws of a parallel line keep the field invariant along the line
+    ['screw parallel to the surfaces 10 nm deep, with its surface images (relaxed)', { surfaces: 'relaxed', defects: [{ type: 'dislocation', b: '1/2[1 1 0]', line: [1, 1, 0], point_nm: [0, 0, 10] }] }],
+    [
+      'two parallel mixed lines with their surface images (relaxed), tilted beam [0 1 8]',
+      {
+        surfaces: 'relaxed',
+        beam: [0, 1, 8],
+        foil: { thickness_nm: 90, normal: [0, 0, 1] },
+        defects: [
+          { type: 'dislocation', b: '1/2[1 0 1]', line: [1, 0, 0], point_nm: [0, -8, 30] },
+          { type: 'dislocation', b: '1/2[1 1 0]', line: [1, 0, 0], point_nm: [0, 8, 60] },
+        ],
+      },
     ],
     ['inclined stacking fault alone (plane (1 1 1))', { defects: [{ type: 'fault', plane: [1, 1, 1], point_nm: [0, 0, 50], vector: '1/3[1 1 1]' }] }],
     [
@@ -149,5 +164,8 @@ describe('when the translation method does not apply', () => {
     expect(translationPlan({ ...job(line), shareColumns: false })).toBeNull();
     // a projected direction that is no small pixel step ([1 3 0] projected on a [0 0 1] beam with x = [1 0 0] is (1, 3): 3 <= 8 applies; [1 9 0] does not)
     expect(translationPlan(job({ defects: [{ type: 'dislocation', b: '1/2[1 0 1]', line: [1, 9, 1], point_nm: [0, 0, 50] }] }))).toBeNull();
+    // relaxed surfaces: the correction of an inclined line depends on the distance to where it meets the surfaces
+    expect(translationPlan(job({ ...line, surfaces: 'infinite' }), { ignoreGain: true })).not.toBeNull();
+    expect(translationPlan(job({ ...line, surfaces: 'relaxed' }), { ignoreGain: true })).toBeNull();
   });
 });

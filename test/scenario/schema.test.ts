@@ -62,6 +62,7 @@ const BAD: [string, unknown][] = [
   ['image of 0 pixels', with_({ image: { width_px: 0, height_px: 32, pixel_nm: 1 } })],
   ['fractional pixel count', with_({ image: { width_px: 3.5, height_px: 32, pixel_nm: 1 } })],
   ['absorption above 1', with_({ absorption: 2 })],
+  ['surfaces neither relaxed nor infinite', with_({ surfaces: 'free' })],
   ['no conditions', with_({ conditions: [] })],
   ['a condition without deviation', cond({})],
   ['a condition with both w and s', cond({ w: 1, s_per_nm: 0 })],

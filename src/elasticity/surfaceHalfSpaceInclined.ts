@@ -1,0 +1,566 @@
+/**
+ * Free-surface correction of a straight dislocation that meets a surface at an
+ * angle (inclined line), each foil surface treated as an isotropic half-space.
+ *
+ * Method (the half-space solution by a 2D Fourier transform of the surface
+ * tractions; the isotropic layer solution of e.g. Hirth & Lothe 1982 ch. 3 /
+ * Timoshenko & Goodier for e^{i k x} loads, derived here). Local frame at the
+ * emergence point O: e1, e2 in the surface, z along the inward normal. The
+ * infinite-medium field loads the surface with T = sigma . z, homogeneous of
+ * degree -1 about O: T(r, phi) = h(phi)/r. Its transform is
+ * T^(k) = tau(theta)/kappa, tau = 2 pi sum_n (-i)^|n| h_n e^{i n theta}
+ * (int_0^inf J_n = 1). For each k the decaying solution that puts -T^ on the
+ * surface is, with a unit vector e_k along k, e_p = z x e_k:
+ *   u_k = i (a + b kappa z) e^{-kappa z}, u_z = (c - b kappa z) e^{-kappa z}, u_p = S e^{-kappa z},
+ *   b = (-T_z + i T_k)/(2 mu kappa), a = -i T_k/(2 mu kappa) - (1 - 2 nu) b,
+ *   c = -a - (3 - 4 nu) b, S = T_p/(mu kappa).
+ * The gradient then has the form (1/kappa)(P0 + P1 kappa z) e^{-kappa z}; the
+ * kappa integral is elementary and the theta integral follows from
+ *   int e^{i m psi} dpsi/(z - i rho cos psi) = (2 pi/R) q^|m|,  q = i (R - z)/rho,  R = |r - O|,
+ * so that grad u = (1/(2 pi R)) Re sum_m e^{i m phi} (i s)^|m| [p0_m + p1_m (c^2 + |m| c)],
+ * c = cos(polar angle), s = tan(polar angle / 2), p0_m, p1_m the Fourier
+ * coefficients of P0(theta), P1(theta). The correction gradient is F(direction)/R:
+ * F is tabulated per line on a grid of directions (s = tan(polar angle/2) x azimuth) and
+ * interpolated (bicubic) on the hot path.
+ *
+ * Approximations (stated in README and render.json): each surface is a
+ * half-space of its own (the correction for one surface leaves a traction on
+ * the other); the response is isotropic (mu, nu); with anisotropic elasticity
+ * the tractions come from the anisotropic field and its own Cij, the response
+ * stays isotropic (Voigt-average shear modulus of the Cij, the material's nu).
+ */
+import { type Vec3, cross, dot, norm, scale, unit } from '../math/vec3.js';
+import type { DisplacementField } from './field.js';
+import { straightDislocation } from './straightDislocation.js';
+import { anisotropicDislocation } from './anisotropicDislocation.js';
+import { isotropicVoigt, stiffnessTensor } from './stiffness.js';
+
+export interface InclinedHalfSpaceOptions {
+  readonly b_nm: Vec3;
+  readonly line: Vec3;
+  readonly point_nm: Vec3;
+  /** Unit foil normal; the foil is 0 <= r.n <= thickness_nm. */
+  readonly normal: Vec3;
+  readonly thickness_nm: number;
+  readonly poissonRatio: number;
+  /** Present for anisotropic elasticity: the tractions come from the Stroh field with these Cij. */
+  readonly stiffness_GPa?: readonly number[];
+  /** Tests only: one surface ('entrance': r.n = 0, 'exit': r.n = t). */
+  readonly only?: 'entrance' | 'exit';
+}
+
+const N_HARM_SAMPLES = 256; // samples of h(phi) and theta (a line within ~15 degrees of the surface plane is resolved less well: see the tests)
+const N_POLAR = 65; // nodes in s = tan(polar angle / 2) on [0, 1] (polar angle 0 to pi/2)
+const N_AZ = 256; // azimuth nodes on [0, 2 pi)
+
+interface SurfaceTable {
+  readonly O: Vec3;
+  readonly e1: Vec3;
+  readonly e2: Vec3;
+  readonly ez: Vec3;
+  /** F in the local frame, 9 components (i row: displacement, j column: derivative), [(ip * N_AZ + ia) * 9 + 3 i + j]. */
+  readonly F: Float64Array;
+  /** The harmonics m kept and their coefficients p0_m, p1_m (9 complex each), for the direct (untabulated) sum. */
+  readonly ms: readonly number[];
+  readonly c0r: readonly number[];
+  readonly c0i: readonly number[];
+  readonly c1r: readonly number[];
+  readonly c1i: readonly number[];
+}
+
+function sigmaOf(C: Float64Array, g: Float64Array, out: Float64Array): void {
+  for (let i = 0; i < 3; i++)
+    for (let j = 0; j < 3; j++) {
+      let s = 0;
+      for (let k = 0; k < 3; k++) for (let l = 0; l < 3; l++) s += C[((i * 3 + j) * 3 + k) * 3 + l] * g[3 * k + l];
+      out[3 * i + j] = s;
+    }
+}
+
+/** Voigt average shear modulus of a Voigt stiffness matrix (GPa). */
+function voigtShear(v: readonly number[]): number {
+  const d = v[0] + v[7] + v[14];
+  const o = v[1] + v[2] + v[8];
+  const s = v[21] + v[28] + v[35];
+  return (d - o + 3 * s) / 15;
+}
+
+function buildTable(o: InclinedHalfSpaceOptions, which: 'entrance' | 'exit'): SurfaceTable {
+  const N_HARM = N_HARM_SAMPLES;
+  const u = unit(o.line);
+  const n = unit(o.normal);
+  const t = o.thickness_nm;
+  const nu = o.poissonRatio;
+  const P = o.point_nm;
+  const un = dot(u, n);
+  const depth = which === 'entrance' ? 0 : t;
+  const lam = (depth - dot(P, n)) / un;
+  const O: Vec3 = [P[0] + lam * u[0], P[1] + lam * u[1], P[2] + lam * u[2]];
+  const ez = which === 'entrance' ? n : scale(n, -1);
+  const trial: Vec3 = Math.abs(ez[0]) < 0.9 ? [1, 0, 0] : [0, 1, 0];
+  const e1 = unit(cross(trial, ez));
+  const e2 = cross(ez, e1);
+  // the infinite field (singular core: tiny radius) and Hooke's law
+  const rc = 1e-7; // nm: the singular field (the traction is sampled 1 nm from the emergence point)
+  let field: DisplacementField;
+  let C: Float64Array;
+  let mu: number;
+  if (o.stiffness_GPa === undefined) {
+    field = straightDislocation({ b_nm: o.b_nm, line: u, point_nm: O, poissonRatio: nu, coreRadius_nm: rc });
+    mu = 1;
+    C = stiffnessTensor(isotropicVoigt(1, nu));
+  } else {
+    field = anisotropicDislocation({ b_nm: o.b_nm, line: u, point_nm: O, stiffness_GPa: o.stiffness_GPa, coreRadius_nm: rc });
+    mu = voigtShear(o.stiffness_GPa);
+    C = stiffnessTensor(o.stiffness_GPa);
+  }
+  // h(phi) = r T(r, phi), local components, at r = r0
+  const r0 = 1;
+  const hr: Float64Array[] = [new Float64Array(N_HARM), new Float64Array(N_HARM), new Float64Array(N_HARM)];
+  const g = new Float64Array(9);
+  const sg = new Float64Array(9);
+  for (let j = 0; j < N_HARM; j++) {
+    const ph = (2 * Math.PI * j) / N_HARM;
+    const cx = Math.cos(ph) * r0, cy = Math.sin(ph) * r0;
+    const x = O[0] + cx * e1[0] + cy * e2[0], y = O[1] + cx * e1[1] + cy * e2[1], z = O[2] + cx * e1[2] + cy * e2[2];
+    field.gradient(g, x, y, z);
+    sigmaOf(C, g, sg);
+    const T = [0, 1, 2].map((i) => sg[3 * i] * ez[0] + sg[3 * i + 1] * ez[1] + sg[3 * i + 2] * ez[2]);
+    hr[0][j] = r0 * (T[0] * e1[0] + T[1] * e1[1] + T[2] * e1[2]);
+    hr[1][j] = r0 * (T[0] * e2[0] + T[1] * e2[1] + T[2] * e2[2]);
+    hr[2][j] = r0 * (T[0] * ez[0] + T[1] * ez[1] + T[2] * ez[2]);
+  }
+  // Fourier coefficients h_n, n = -N/2 .. N/2 - 1 (index n + N/2); angles 2 pi k / N from one table
+  const H = N_HARM / 2;
+  const cosN = new Float64Array(N_HARM), sinN = new Float64Array(N_HARM);
+  for (let k = 0; k < N_HARM; k++) {
+    cosN[k] = Math.cos((2 * Math.PI * k) / N_HARM);
+    sinN[k] = Math.sin((2 * Math.PI * k) / N_HARM);
+  }
+  const idx = (k: number): number => ((k % N_HARM) + N_HARM) % N_HARM;
+  const hnR = [0, 1, 2].map(() => new Float64Array(N_HARM));
+  const hnI = [0, 1, 2].map(() => new Float64Array(N_HARM));
+  for (let q = 0; q < N_HARM; q++) {
+    const nn = q - H;
+    for (let j = 0; j < N_HARM; j++) {
+      const ka = idx(-nn * j);
+      const ca = cosN[ka], sa = sinN[ka];
+      for (let c = 0; c < 3; c++) {
+        hnR[c][q] += (hr[c][j] * ca) / N_HARM;
+        hnI[c][q] += (hr[c][j] * sa) / N_HARM;
+      }
+    }
+  }
+  // the Nyquist term is ambiguous: drop it (h is smooth, it is negligible)
+  for (let c = 0; c < 3; c++) {
+    hnR[c][0] = 0;
+    hnI[c][0] = 0;
+  }
+  // P0(theta), P1(theta) at theta_j (9 complex each, local frame)
+  const P0r = new Float64Array(N_HARM * 9), P0i = new Float64Array(N_HARM * 9);
+  const P1r = new Float64Array(N_HARM * 9), P1i = new Float64Array(N_HARM * 9);
+  for (let j = 0; j < N_HARM; j++) {
+    const th = (2 * Math.PI * j) / N_HARM;
+    // tau = 2 pi sum_n (-i)^|n| h_n e^{i n theta}
+    const tr = [0, 0, 0], ti = [0, 0, 0];
+    for (let q = 1; q < N_HARM; q++) {
+      const nn = q - H;
+      const an = Math.abs(nn) % 4; // (-i)^|n|: 1, -i, -1, i
+      const pr = an === 0 ? 1 : an === 2 ? -1 : 0;
+      const pi = an === 1 ? -1 : an === 3 ? 1 : 0;
+      const kk = idx(nn * j);
+      const ca = cosN[kk], sa = sinN[kk];
+      for (let c = 0; c < 3; c++) {
+        // h_n e^{i n th}
+        const xr = hnR[c][q] * ca - hnI[c][q] * sa;
+        const xi = hnR[c][q] * sa + hnI[c][q] * ca;
+        tr[c] += 2 * Math.PI * (pr * xr - pi * xi);
+        ti[c] += 2 * Math.PI * (pr * xi + pi * xr);
+      }
+    }
+    const ct = Math.cos(th), st = Math.sin(th);
+    const tkR = tr[0] * ct + tr[1] * st, tkI = ti[0] * ct + ti[1] * st;
+    const tpR = -tr[0] * st + tr[1] * ct, tpI = -ti[0] * st + ti[1] * ct;
+    const tzR = tr[2], tzI = ti[2];
+    // beta = (-tau_z + i tau_k)/(2 mu); alpha = -i tau_k/(2 mu) - (1 - 2nu) beta; gamma = -alpha - (3 - 4nu) beta; sigma = tau_p/mu
+    const bR = (-tzR - tkI) / (2 * mu), bI = (-tzI + tkR) / (2 * mu);
+    const aR = tkI / (2 * mu) - (1 - 2 * nu) * bR, aI = -tkR / (2 * mu) - (1 - 2 * nu) * bI;
+    const gR = -aR - (3 - 4 * nu) * bR, gI = -aI - (3 - 4 * nu) * bI;
+    const sR = tpR / mu, sI = tpI / mu;
+    // V0 = i alpha e_k + sigma e_p + gamma z; V1 = i beta e_k - beta z (local components)
+    const V0r = [-aI * ct - sR * st, -aI * st + sR * ct, gR];
+    const V0i = [aR * ct - sI * st, aR * st + sI * ct, gI];
+    const V1r = [-bI * ct, -bI * st, -bR];
+    const V1i = [bR * ct, bR * st, -bI];
+    const ek = [ct, st];
+    for (let i = 0; i < 3; i++) {
+      for (let jj = 0; jj < 2; jj++) {
+        // P0 = i e_kj V0_i, P1 = i e_kj V1_i
+        P0r[j * 9 + 3 * i + jj] = -ek[jj] * V0i[i];
+        P0i[j * 9 + 3 * i + jj] = ek[jj] * V0r[i];
+        P1r[j * 9 + 3 * i + jj] = -ek[jj] * V1i[i];
+        P1i[j * 9 + 3 * i + jj] = ek[jj] * V1r[i];
+      }
+      P0r[j * 9 + 3 * i + 2] = V1r[i] - V0r[i];
+      P0i[j * 9 + 3 * i + 2] = V1i[i] - V0i[i];
+      P1r[j * 9 + 3 * i + 2] = -V1r[i];
+      P1i[j * 9 + 3 * i + 2] = -V1i[i];
+    }
+  }
+  // Fourier coefficients p0_m, p1_m (m = -H .. H - 1), only those above a threshold are kept
+  const ms: number[] = [];
+  const c0r: number[] = [], c0i: number[] = [], c1r: number[] = [], c1i: number[] = [];
+  let pmax = 0;
+  const all: { m: number; a: Float64Array }[] = [];
+  // forward DFT (sign -) of the 18 complex series by the + sign FFT of the conjugates
+  const spec = new Float64Array(36 * N_HARM); // [component (0..35 as in a[]) * N_HARM + slot]
+  {
+    const fr = new Float64Array(N_HARM), fi = new Float64Array(N_HARM);
+    for (let k = 0; k < 9; k++) {
+      for (const [Pr, Pi, off] of [[P0r, P0i, 0], [P1r, P1i, 18]] as [Float64Array, Float64Array, number][]) {
+        for (let j = 0; j < N_HARM; j++) {
+          fr[j] = Pr[j * 9 + k];
+          fi[j] = -Pi[j * 9 + k];
+        }
+        fftInPlace(fr, fi);
+        for (let sl = 0; sl < N_HARM; sl++) {
+          spec[(off + k) * N_HARM + sl] = fr[sl] / N_HARM;
+          spec[(off + 9 + k) * N_HARM + sl] = -fi[sl] / N_HARM;
+        }
+      }
+    }
+  }
+  for (let q = 1; q < N_HARM; q++) {
+    const m = q - H;
+    const slot = ((m % N_HARM) + N_HARM) % N_HARM;
+    const a = new Float64Array(36);
+    for (let k = 0; k < 36; k++) a[k] = spec[k * N_HARM + slot];
+    let mx = 0;
+    for (let k = 0; k < 36; k++) mx = Math.max(mx, Math.abs(a[k]));
+    pmax = Math.max(pmax, mx);
+    all.push({ m, a });
+  }
+  const kept = all.filter((x) => Math.max(...x.a.map(Math.abs)) > 1e-12 * pmax);
+  for (const { m, a } of kept) {
+    ms.push(m);
+    for (let k = 0; k < 9; k++) {
+      c0r.push(a[k]);
+      c0i.push(a[9 + k]);
+      c1r.push(a[18 + k]);
+      c1i.push(a[27 + k]);
+    }
+  }
+  // table F(polar, azimuth): F = (1/2pi) Re sum_m e^{i m phi} (i s)^|m| [p0_m + p1_m (c^2 + |m| c)]
+  const F = new Float64Array(N_POLAR * N_AZ * 9);
+  const cosA = new Float64Array(N_AZ), sinA = new Float64Array(N_AZ);
+  for (let k = 0; k < N_AZ; k++) {
+    cosA[k] = Math.cos((2 * Math.PI * k) / N_AZ);
+    sinA[k] = Math.sin((2 * Math.PI * k) / N_AZ);
+  }
+  const re = new Float64Array(N_AZ), im = new Float64Array(N_AZ);
+  const coef = new Float64Array(ms.length * 18); // per harmonic: complex 9-vector at this polar angle, times (i s)^|m| / 2pi
+  for (let ip = 0; ip < N_POLAR; ip++) {
+    // nodes uniform in s = tan(polar/2) = rho/(R + z) (no trigonometry on the hot path), c = cos(polar)
+    const s = ip / (N_POLAR - 1);
+    const c = (1 - s * s) / (1 + s * s);
+    for (let q = 0; q < ms.length; q++) {
+      const am = Math.abs(ms[q]);
+      const mag = (am === 0 ? 1 : Math.pow(s, am)) / (2 * Math.PI);
+      // i^|m|
+      const r4 = am % 4;
+      const ir = r4 === 0 ? mag : r4 === 2 ? -mag : 0;
+      const ii = r4 === 1 ? mag : r4 === 3 ? -mag : 0;
+      const w = c * c + am * c;
+      for (let k = 0; k < 9; k++) {
+        const xr = c0r[q * 9 + k] + c1r[q * 9 + k] * w;
+        const xi = c0i[q * 9 + k] + c1i[q * 9 + k] * w;
+        coef[q * 18 + k] = ir * xr - ii * xi;
+        coef[q * 18 + 9 + k] = ir * xi + ii * xr;
+      }
+    }
+    // F(phi_ia) = Re sum_m coef_m e^{i m phi_ia}: an inverse DFT of N_AZ points per component (FFT)
+    for (let k = 0; k < 9; k++) {
+      re.fill(0);
+      im.fill(0);
+      for (let q = 0; q < ms.length; q++) {
+        const slot = ((ms[q] % N_AZ) + N_AZ) % N_AZ;
+        re[slot] += coef[q * 18 + k];
+        im[slot] += coef[q * 18 + 9 + k];
+      }
+      fftInPlace(re, im);
+      for (let ia = 0; ia < N_AZ; ia++) F[(ip * N_AZ + ia) * 9 + k] = re[ia];
+    }
+  }
+  return { O, e1, e2, ez, F, ms, c0r, c0i, c1r, c1i };
+}
+
+/**
+ * Tests only: the correction gradient (Cartesian, out[3 i + j]) of one surface by the direct
+ * harmonic sum, without the table (the tabulated field is this sum interpolated).
+ */
+export function halfSpaceGradientDirect(o: InclinedHalfSpaceOptions, which: 'entrance' | 'exit', out: Float64Array, x: number, y: number, z: number): void {
+  const tb = tableFor(o, which);
+  const rx = x - tb.O[0], ry = y - tb.O[1], rz = z - tb.O[2];
+  const X = rx * tb.e1[0] + ry * tb.e1[1] + rz * tb.e1[2];
+  const Y = rx * tb.e2[0] + ry * tb.e2[1] + rz * tb.e2[2];
+  const Z = rx * tb.ez[0] + ry * tb.ez[1] + rz * tb.ez[2];
+  const rho = Math.hypot(X, Y);
+  const R = Math.hypot(rho, Z);
+  const vt = Math.atan2(rho, Z);
+  const ph = Math.atan2(Y, X);
+  const c = Math.cos(vt);
+  const sv = Math.tan(vt / 2);
+  const local = new Float64Array(9);
+  for (let q = 0; q < tb.ms.length; q++) {
+    const m = tb.ms[q];
+    const am = Math.abs(m);
+    const mag = am === 0 ? 1 : Math.pow(sv, am);
+    const ang = m * ph + (am * Math.PI) / 2;
+    const er = mag * Math.cos(ang), ei = mag * Math.sin(ang);
+    const w = c * c + am * c;
+    for (let k = 0; k < 9; k++) {
+      const xr = tb.c0r[q * 9 + k] + tb.c1r[q * 9 + k] * w;
+      const xi = tb.c0i[q * 9 + k] + tb.c1i[q * 9 + k] * w;
+      local[k] += (er * xr - ei * xi) / (2 * Math.PI * R);
+    }
+  }
+  const E = [tb.e1, tb.e2, tb.ez];
+  for (let i = 0; i < 3; i++)
+    for (let j = 0; j < 3; j++) {
+      let s = 0;
+      for (let a = 0; a < 3; a++) for (let b = 0; b < 3; b++) s += E[a][i] * local[3 * a + b] * E[b][j];
+      out[3 * i + j] = s;
+    }
+}
+
+/**
+ * In-place radix-2 FFT with the + sign: (re, im)[j] <- sum_m (re, im)[m] e^{+2 pi i j m / n}
+ * (n a power of two; set-up only).
+ */
+function fftInPlace(re: Float64Array, im: Float64Array): void {
+  const n = re.length;
+  for (let i = 1, j = 0; i < n; i++) {
+    let bit = n >> 1;
+    for (; j & bit; bit >>= 1) j ^= bit;
+    j ^= bit;
+    if (i < j) {
+      [re[i], re[j]] = [re[j], re[i]];
+      [im[i], im[j]] = [im[j], im[i]];
+    }
+  }
+  for (let len = 2; len <= n; len <<= 1) {
+    const ang = (2 * Math.PI) / len;
+    const wr = Math.cos(ang), wi = Math.sin(ang);
+    for (let i = 0; i < n; i += len) {
+      let cr = 1, ci = 0;
+      for (let k = 0; k < len / 2; k++) {
+        const a = i + k, b = a + len / 2;
+        const xr = re[b] * cr - im[b] * ci;
+        const xi = re[b] * ci + im[b] * cr;
+        re[b] = re[a] - xr;
+        im[b] = im[a] - xi;
+        re[a] += xr;
+        im[a] += xi;
+        const t = cr * wr - ci * wi;
+        ci = cr * wi + ci * wr;
+        cr = t;
+      }
+    }
+  }
+}
+
+/** Catmull-Rom weights for fraction f. */
+function cr(f: number, w: Float64Array): void {
+  const f2 = f * f, f3 = f2 * f;
+  w[0] = 0.5 * (-f3 + 2 * f2 - f);
+  w[1] = 0.5 * (3 * f3 - 5 * f2 + 2);
+  w[2] = 0.5 * (-3 * f3 + 4 * f2 + f);
+  w[3] = 0.5 * (f3 - f2);
+}
+
+/**
+ * Tables already built in this thread. A render builds the same line once per condition: the table
+ * of each b is kept. The correction is linear in b: when a second Burgers vector comes for the same
+ * line geometry (identification renders many), the tables of the three Cartesian unit vectors are
+ * built once and combined for every further b.
+ */
+const byB = new Map<string, SurfaceTable>();
+const byGeometry = new Map<string, SurfaceTable[] | 'seen'>();
+// a table holds 65 x 256 x 9 numbers (1.2 MB): at most 16 per b and 8 geometries (x 3 unit b) per thread
+const BY_B_SIZE = 16;
+const BY_GEOMETRY_SIZE = 8;
+
+function remember<V>(m: Map<string, V>, size: number, key: string, v: V): void {
+  if (m.size >= size) m.delete(m.keys().next().value as string);
+  m.set(key, v);
+}
+
+function tableFor(o: InclinedHalfSpaceOptions, which: 'entrance' | 'exit'): SurfaceTable {
+  const gKey = JSON.stringify([o.line, o.point_nm, o.normal, o.thickness_nm, o.poissonRatio, o.stiffness_GPa ?? null, which]);
+  const bKey = JSON.stringify([o.b_nm, gKey]);
+  const hit = byB.get(bKey);
+  if (hit !== undefined) return hit;
+  const basis = byGeometry.get(gKey);
+  if (basis === undefined) {
+    const tb = buildTable(o, which);
+    remember(byGeometry, BY_GEOMETRY_SIZE, gKey, 'seen');
+    remember(byB, BY_B_SIZE, bKey, tb);
+    return tb;
+  }
+  let bs: SurfaceTable[];
+  if (basis === 'seen') {
+    bs = ([[1, 0, 0], [0, 1, 0], [0, 0, 1]] as Vec3[]).map((e) => buildTable({ ...o, b_nm: e }, which));
+    remember(byGeometry, BY_GEOMETRY_SIZE, gKey, bs);
+  } else bs = basis;
+  const b = o.b_nm;
+  const [t0, t1, t2] = bs;
+  const F = new Float64Array(t0.F.length);
+  for (let k = 0; k < F.length; k++) F[k] = b[0] * t0.F[k] + b[1] * t1.F[k] + b[2] * t2.F[k];
+  // the harmonic coefficients of the three, merged (the tests' direct sum)
+  const ms: number[] = [];
+  const c0r: number[] = [], c0i: number[] = [], c1r: number[] = [], c1i: number[] = [];
+  bs.forEach((tb, i) => {
+    tb.ms.forEach((m, q) => {
+      ms.push(m);
+      for (let k = 0; k < 9; k++) {
+        c0r.push(b[i] * tb.c0r[q * 9 + k]);
+        c0i.push(b[i] * tb.c0i[q * 9 + k]);
+        c1r.push(b[i] * tb.c1r[q * 9 + k]);
+        c1i.push(b[i] * tb.c1i[q * 9 + k]);
+      }
+    });
+  });
+  const tb: SurfaceTable = { O: t0.O, e1: t0.e1, e2: t0.e2, ez: t0.ez, F, ms, c0r, c0i, c1r, c1i };
+  remember(byB, BY_B_SIZE, bKey, tb);
+  return tb;
+}
+
+/**
+ * The correction field of an inclined line: the half-space corrections of the
+ * entrance and the exit surface, added (each computed as if the other surface
+ * were absent).
+ */
+export function inclinedHalfSpaceCorrection(o: InclinedHalfSpaceOptions): DisplacementField {
+  const tables: SurfaceTable[] = [];
+  if (o.only !== 'exit') tables.push(tableFor(o, 'entrance'));
+  if (o.only !== 'entrance') tables.push(tableFor(o, 'exit'));
+  const wp = new Float64Array(4), wa = new Float64Array(4);
+  const dP = 1 / (N_POLAR - 1);
+  const dA = (2 * Math.PI) / N_AZ;
+  /** interpolates table `tab` (stride `stride`, component offset `k`) at (polar, azimuth): sets wp, wa and returns the base indices. */
+  const ip0 = new Int32Array(4), ia0 = new Int32Array(4), shift = new Int32Array(4);
+  const locate = (X: number, Y: number, Z: number): number => {
+    const rho2 = X * X + Y * Y;
+    const rho = Math.sqrt(rho2);
+    const R = Math.sqrt(rho2 + Z * Z);
+    const vt = R > 0 ? rho / (R + Math.max(Z, 0)) : 0; // s = tan(polar / 2)
+    let ph = Math.atan2(Y, X);
+    if (ph < 0) ph += 2 * Math.PI;
+    const fp = vt / dP;
+    let i = Math.floor(fp);
+    if (i > N_POLAR - 2) i = N_POLAR - 2;
+    cr(fp - i, wp);
+    const fa = ph / dA;
+    const a = Math.floor(fa);
+    cr(fa - a, wa);
+    for (let k = 0; k < 4; k++) {
+      let pi = i - 1 + k;
+      shift[k] = 0;
+      if (pi < 0) {
+        // through the normal: polar -v at azimuth phi is polar v at phi + pi
+        pi = -pi;
+        shift[k] = N_AZ / 2;
+      }
+      if (pi > N_POLAR - 1) pi = 2 * (N_POLAR - 1) - pi; // beyond the surface plane: mirror (points there lie outside the foil)
+      ip0[k] = pi;
+      ia0[k] = (((a - 1 + k) % N_AZ) + N_AZ) % N_AZ;
+    }
+    return R;
+  };
+  const local = new Float64Array(9);
+  const addGradient = (out: Float64Array, x: number, y: number, z: number): void => {
+    for (const tb of tables) {
+      const rx = x - tb.O[0], ry = y - tb.O[1], rz = z - tb.O[2];
+      const X = rx * tb.e1[0] + ry * tb.e1[1] + rz * tb.e1[2];
+      const Y = rx * tb.e2[0] + ry * tb.e2[1] + rz * tb.e2[2];
+      const Z = rx * tb.ez[0] + ry * tb.ez[1] + rz * tb.ez[2];
+      const R = Math.max(locate(X, Y, Z), 1e-9);
+      local.fill(0);
+      for (let p = 0; p < 4; p++)
+        for (let q = 0; q < 4; q++) {
+          const w = (wp[p] * wa[q]) / R;
+          const base = (ip0[p] * N_AZ + ((ia0[q] + shift[p]) % N_AZ)) * 9;
+          for (let k = 0; k < 9; k++) local[k] += w * tb.F[base + k];
+        }
+      // Cartesian = E local E^T, E columns e1, e2, ez
+      const E = [tb.e1, tb.e2, tb.ez];
+      for (let i = 0; i < 3; i++)
+        for (let j = 0; j < 3; j++) {
+          let s = 0;
+          for (let a = 0; a < 3; a++) for (let b = 0; b < 3; b++) s += E[a][i] * local[3 * a + b] * E[b][j];
+          out[3 * i + j] += s;
+        }
+    }
+  };
+  return {
+    displacement(out, x, y, z) {
+      // not used by the renderer: the path integral of the gradient from the foil's mid-plane above the entrance point
+      out[0] = 0;
+      out[1] = 0;
+      out[2] = 0;
+      const t0 = tables[0];
+      const mid = scale(t0.ez, o.thickness_nm / 2);
+      const ref: Vec3 = [t0.O[0] + mid[0], t0.O[1] + mid[1], t0.O[2] + mid[2]];
+      const gl = [-0.9602898564975363, -0.7966664774136267, -0.5255324099163290, -0.1834346424956498, 0.1834346424956498, 0.5255324099163290, 0.7966664774136267, 0.9602898564975363];
+      const gw = [0.1012285362903763, 0.2223810344533745, 0.3137066458778873, 0.3626837833783620, 0.3626837833783620, 0.3137066458778873, 0.2223810344533745, 0.1012285362903763];
+      const g = new Float64Array(9);
+      const d: Vec3 = [x - ref[0], y - ref[1], z - ref[2]];
+      const panels = 16;
+      for (let p = 0; p < panels; p++)
+        for (let q = 0; q < 8; q++) {
+          const s = (p + (gl[q] + 1) / 2) / panels;
+          g.fill(0);
+          addGradient(g, ref[0] + s * d[0], ref[1] + s * d[1], ref[2] + s * d[2]);
+          const wt = gw[q] / (2 * panels);
+          for (let i = 0; i < 3; i++) out[i] += wt * (g[3 * i] * d[0] + g[3 * i + 1] * d[1] + g[3 * i + 2] * d[2]);
+        }
+    },
+    gradient(out, x, y, z) {
+      out.fill(0);
+      addGradient(out, x, y, z);
+    },
+    directional(gv, kv) {
+      // contract each table to the scalar g.F.k once
+      const scal = tables.map((tb) => {
+        const gl = [dot(gv as Vec3, tb.e1), dot(gv as Vec3, tb.e2), dot(gv as Vec3, tb.ez)];
+        const kl = [dot(kv as Vec3, tb.e1), dot(kv as Vec3, tb.e2), dot(kv as Vec3, tb.ez)];
+        const S = new Float64Array(N_POLAR * N_AZ);
+        for (let c = 0; c < S.length; c++) {
+          let s = 0;
+          for (let i = 0; i < 3; i++) for (let j = 0; j < 3; j++) s += gl[i] * tb.F[c * 9 + 3 * i + j] * kl[j];
+          S[c] = s;
+        }
+        return S;
+      });
+      const nT = tables.length;
+      const Os = tables.map((tb) => tb.O), E1 = tables.map((tb) => tb.e1), E2 = tables.map((tb) => tb.e2), EZ = tables.map((tb) => tb.ez);
+      return (x, y, z) => {
+        let total = 0;
+        for (let q = 0; q < nT; q++) {
+          const O = Os[q], e1 = E1[q], e2 = E2[q], ez = EZ[q];
+          const rx = x - O[0], ry = y - O[1], rz = z - O[2];
+          const R = Math.max(locate(rx * e1[0] + ry * e1[1] + rz * e1[2], rx * e2[0] + ry * e2[1] + rz * e2[2], rx * ez[0] + ry * ez[1] + rz * ez[2]), 1e-9);
+          const S = scal[q];
+          let s = 0;
+          for (let p = 0; p < 4; p++) {
+            const row = ip0[p] * N_AZ;
+            const h = shift[p];
+            s += wp[p] * (wa[0] * S[row + ((ia0[0] + h) % N_AZ)] + wa[1] * S[row + ((ia0[1] + h) % N_AZ)] + wa[2] * S[row + ((ia0[2] + h) % N_AZ)] + wa[3] * S[row + ((ia0[3] + h) % N_AZ)]);
+          }
+          total += s / R;
+        }
+        return total;
+      };
+    },
+  };
+}

@@ -1,0 +1,327 @@
+/**
+ * Free-surface relaxation of a straight dislocation in a foil: the correction
+ * field that, added to the infinite-medium field, makes the surfaces
+ * r.n = 0 and r.n = t of the foil free of traction. Isotropic elasticity,
+ * screw component B = b.u only; two geometries, both exact for a screw in an
+ * isotropic plate:
+ *
+ * 1. Line parallel to the surfaces (u.n = 0), at depth z0. The antiplane
+ *    field w (along u) of the screw and its images: +B at z0 + 2 m t and -B at
+ *    -z0 + 2 m t for every integer m (each reflection in a free surface
+ *    changes the sign of a screw; Hirth & Lothe 1982 ch. 3 for the half-space,
+ *    the repeated reflection for the plate), summed in closed form
+ *    (sum_m xi / (xi^2 + (z - m L)^2) = (pi/L) sinh(2 pi xi/L) / (cosh(2 pi xi/L) - cos(2 pi z/L)),
+ *    L = 2 t, and the like for the other derivative). The correction is that
+ *    sum less the real line, so it is smooth in the foil and invariant along
+ *    the line. It makes sigma_nz (the antiplane traction) vanish on both
+ *    surfaces; the edge component of b is not corrected (in-plane tractions
+ *    of an edge component remain).
+ * 2. Line normal to the surfaces (u x n = 0). The twist of Eshelby & Stroh
+ *    (1951, Phil. Mag. 42, 1401): azimuthal displacement
+ *      u_theta(r, z) = -(B/2pi) int_0^inf J1(k r) sinh(k (z - t/2)) / (k cosh(k t/2)) dk,
+ *    which cancels sigma_theta z = G B / (2 pi r) of the screw on z = 0 and
+ *    z = t; expanding 1/cosh gives the image series evaluated here,
+ *      u_theta / r = -(B/2pi) sum_m (-1)^m [h((m+1) t - z) - h(z + m t)],  h(a) = 1/(sqrt(r^2+a^2) + a),
+ *    each term the half-space twist (sqrt(r^2+a^2) - a)/r of Eshelby & Stroh.
+ *    The correction depends on depth along the line (not invariant).
+ *
+ * With anisotropic elasticity a line parallel to the surfaces gets the
+ * anisotropic half-space images of surfaceImagesStroh.ts instead (all of b, each
+ * surface freed on its own), when its Stroh eigenvalues are well separated.
+ * Lines inclined to the surfaces get the half-space corrections of
+ * surfaceHalfSpaceInclined.ts (each surface freed on its own, isotropic response).
+ * Added to the anisotropic (Stroh) infinite field the screw corrections above
+ * are the isotropic ones: there they are an approximation (tractions do not
+ * vanish exactly).
+ * Coordinates: crystal Cartesian nm, depth z = r.n with n the unit foil normal
+ * (the entrance surface passes through the origin, geometry/frames.ts).
+ */
+import { type Vec3, cross, dot, norm, unit } from '../math/vec3.js';
+import type { DisplacementField } from './field.js';
+import { strohHalfSpaceImages, strohImagesApply } from './surfaceImagesStroh.js';
+import { inclinedHalfSpaceCorrection } from './surfaceHalfSpaceInclined.js';
+
+export type SurfaceCorrectionKind = 'parallel-screw-images' | 'parallel-stroh-images' | 'normal-screw-twist' | 'inclined-half-space';
+
+/** Whether a correction keeps the field invariant along the line (the shared-column method needs that). */
+export function invariantAlongLine(kind: SurfaceCorrectionKind): boolean {
+  return kind === 'parallel-screw-images' || kind === 'parallel-stroh-images';
+}
+
+/** Plain data (worker threads rebuild the field from it). */
+export interface SurfaceCorrectionSpec {
+  readonly kind: SurfaceCorrectionKind;
+  /** Unit foil normal (crystal Cartesian); the foil is 0 <= r.n <= thickness_nm. */
+  readonly normal: Vec3;
+  readonly thickness_nm: number;
+}
+
+/** How close to parallel / normal a line must be (|u.n| resp. |u x n|) to get its correction. */
+export const GEOMETRY_TOLERANCE = 1e-9;
+
+/**
+ * The correction that applies to a line (unit `line`, through `point_nm`) with
+ * Burgers vector b in the foil, or null: lines parallel to the surfaces without a
+ * screw component (isotropic elasticity), lines normal to them without one, and a line parallel
+ * to the surfaces that does not lie strictly inside the foil (one lying in a
+ * surface, or a partial of a ribbon placed outside the foil: its images would
+ * not be outside the foil). With `stiffness_GPa` (anisotropic elasticity) a
+ * parallel line gets the anisotropic half-space images of both surfaces
+ * (surfaceImagesStroh.ts, every Burgers vector) when its Stroh eigenvalues are
+ * well separated, else the isotropic screw images. A line inclined to the
+ * surfaces gets the half-space corrections of both surfaces (surfaceHalfSpaceInclined.ts).
+ */
+export function surfaceCorrectionFor(
+  b_nm: Vec3,
+  line: Vec3,
+  point_nm: Vec3,
+  normal: Vec3,
+  thickness_nm: number,
+  stiffness_GPa?: readonly number[],
+): SurfaceCorrectionSpec | null {
+  const u = unit(line);
+  const n = unit(normal);
+  const screw = Math.abs(dot(b_nm, u)) >= 1e-12 * norm(b_nm);
+  if (Math.abs(dot(u, n)) < GEOMETRY_TOLERANCE) {
+    const z0 = dot(point_nm, n);
+    if (!(z0 > 1e-9 * thickness_nm && z0 < (1 - 1e-9) * thickness_nm)) return null;
+    if (stiffness_GPa !== undefined && strohImagesApply(stiffness_GPa, u, n)) return { kind: 'parallel-stroh-images', normal: n, thickness_nm };
+    return screw ? { kind: 'parallel-screw-images', normal: n, thickness_nm } : null;
+  }
+  if (norm(cross(u, n)) < GEOMETRY_TOLERANCE) return screw ? { kind: 'normal-screw-twist', normal: n, thickness_nm } : null;
+  return { kind: 'inclined-half-space', normal: n, thickness_nm };
+}
+
+/** Whether a line is parallel or normal to the surfaces (the geometries with a correction). */
+export function correctableGeometry(line: Vec3, normal: Vec3): 'parallel' | 'normal' | 'inclined' {
+  const u = unit(line);
+  const n = unit(normal);
+  if (Math.abs(dot(u, n)) < GEOMETRY_TOLERANCE) return 'parallel';
+  if (norm(cross(u, n)) < GEOMETRY_TOLERANCE) return 'normal';
+  return 'inclined';
+}
+
+export interface SurfaceCorrectionOptions {
+  readonly b_nm: Vec3;
+  readonly line: Vec3;
+  readonly point_nm: Vec3;
+  readonly correction: SurfaceCorrectionSpec;
+  /** The Voigt stiffness of the line's own field when it is anisotropic (needed for 'parallel-stroh-images'). */
+  readonly stiffness_GPa?: readonly number[];
+  /** Poisson ratio of the isotropic response (needed for 'inclined-half-space'). */
+  readonly poissonRatio?: number;
+}
+
+/** The correction field (to be added to the infinite-medium field of the same line). */
+export function surfaceCorrection(o: SurfaceCorrectionOptions): DisplacementField {
+  const c = o.correction;
+  if (c.kind === 'parallel-stroh-images') {
+    if (o.stiffness_GPa === undefined) throw new Error('internal: anisotropic surface images need the stiffness');
+    return strohHalfSpaceImages({ b_nm: o.b_nm, line: o.line, point_nm: o.point_nm, normal: c.normal, thickness_nm: c.thickness_nm, stiffness_GPa: o.stiffness_GPa });
+  }
+  if (c.kind === 'inclined-half-space') {
+    if (o.poissonRatio === undefined) throw new Error('internal: the half-space correction needs the Poisson ratio');
+    return inclinedHalfSpaceCorrection({
+      b_nm: o.b_nm,
+      line: o.line,
+      point_nm: o.point_nm,
+      normal: c.normal,
+      thickness_nm: c.thickness_nm,
+      poissonRatio: o.poissonRatio,
+      ...(o.stiffness_GPa === undefined ? {} : { stiffness_GPa: o.stiffness_GPa }),
+    });
+  }
+  return c.kind === 'parallel-screw-images' ? parallelScrewImages(o) : normalScrewTwist(o);
+}
+
+/** arg(z) wrapped into (-pi, pi]. */
+function wrap(a: number): number {
+  if (a > Math.PI) return a - 2 * Math.PI;
+  if (a <= -Math.PI) return a + 2 * Math.PI;
+  return a;
+}
+
+function parallelScrewImages(o: SurfaceCorrectionOptions): DisplacementField {
+  const u = unit(o.line);
+  const n = o.correction.normal;
+  const t = o.correction.thickness_nm;
+  const e1 = unit(cross(n, u)); // e1, n, u right-handed
+  const B = dot(o.b_nm, u);
+  const c = B / (2 * Math.PI);
+  const A = Math.PI / (2 * t); // pi / L, L = 2 t
+  const P = o.point_nm;
+  const xi0 = dot(P, e1);
+  const z0 = dot(P, n);
+  const tiny = 1e-7 * t;
+  const e10 = e1[0], e11 = e1[1], e12 = e1[2];
+  const n0 = n[0], n1 = n[1], n2 = n[2];
+  const u0 = u[0], u1 = u[1], u2 = u[2];
+  // the two derivatives of the correction w_c (along u) into d[0] = dw/dxi, d[1] = dw/dz
+  const d = new Float64Array(2);
+  const derivs = (x: number, y: number, z: number): void => {
+    let xi = x * e10 + y * e11 + z * e12 - xi0;
+    const zz = x * n0 + y * n1 + z * n2;
+    // on the line itself both the image sum and the real line are 0/0; the correction is smooth there: step aside
+    if (Math.abs(xi) < tiny && Math.abs(zz - z0) < tiny) xi = tiny;
+    const E = Math.exp(-2 * A * Math.abs(xi));
+    const sg = xi < 0 ? -1 : 1;
+    const a1 = 2 * A * (zz - z0);
+    const a2 = 2 * A * (zz + z0);
+    const den1 = 1 + E * E - 2 * E * Math.cos(a1);
+    const den2 = 1 + E * E - 2 * E * Math.cos(a2);
+    const dz1 = zz - z0;
+    const rho2 = xi * xi + dz1 * dz1;
+    // sums over all images (real line included), then the real line taken off
+    const sumXi = A * (-(2 * E * Math.sin(a1)) / den1 + (2 * E * Math.sin(a2)) / den2);
+    const sumZ = A * sg * (1 - E * E) * (1 / den1 - 1 / den2);
+    d[0] = c * (sumXi + dz1 / rho2);
+    d[1] = c * (sumZ - xi / rho2);
+  };
+  return {
+    displacement(out, x, y, z) {
+      const xi = x * e10 + y * e11 + z * e12 - xi0;
+      const zz = x * n0 + y * n1 + z * n2;
+      const a = A * xi;
+      const b1 = A * (zz - z0);
+      const b2 = A * (zz + z0);
+      const th = Math.tanh(a);
+      // arg(sinh(w)/w) for w = a + i b1 (|b1| < pi/2: no zero, continuous) and arg(sinh(a + i b2)) (0 < b2 < pi)
+      const arg1 = wrap(Math.atan2(Math.sin(b1), th * Math.cos(b1)) - Math.atan2(b1, a));
+      const arg2 = Math.atan2(Math.sin(b2), th * Math.cos(b2));
+      const w = c * (arg1 - arg2);
+      out[0] = w * u0;
+      out[1] = w * u1;
+      out[2] = w * u2;
+    },
+    gradient(out, x, y, z) {
+      derivs(x, y, z);
+      for (let i = 0; i < 3; i++) {
+        const ui = i === 0 ? u0 : i === 1 ? u1 : u2;
+        out[3 * i] = ui * (d[0] * e10 + d[1] * n0);
+        out[3 * i + 1] = ui * (d[0] * e11 + d[1] * n1);
+        out[3 * i + 2] = ui * (d[0] * e12 + d[1] * n2);
+      }
+    },
+    directional(g, k) {
+      const gu = g[0] * u0 + g[1] * u1 + g[2] * u2;
+      const ke = k[0] * e10 + k[1] * e11 + k[2] * e12;
+      const kn = k[0] * n0 + k[1] * n1 + k[2] * n2;
+      if (gu === 0) return () => 0;
+      return (x, y, z) => {
+        derivs(x, y, z);
+        return gu * (d[0] * ke + d[1] * kn);
+      };
+    },
+  };
+}
+
+function normalScrewTwist(o: SurfaceCorrectionOptions): DisplacementField {
+  const u = unit(o.line);
+  const n = o.correction.normal;
+  const t = o.correction.thickness_nm;
+  // in-plane frame e1, e2 with e1 x e2 = n; the screw field is (B/2pi) theta_n n with B = b.u (either sense of u)
+  const trial: Vec3 = Math.abs(n[0]) < 0.9 ? [1, 0, 0] : [0, 1, 0];
+  const e1 = unit(cross(trial, n));
+  const e2 = cross(n, e1);
+  const B = dot(o.b_nm, u);
+  const c = -B / (2 * Math.PI);
+  const P = o.point_nm;
+  const x0 = dot(P, e1);
+  const y0 = dot(P, e2);
+  // g = u_theta / r, gr = (dg/dr)/r, gz = dg/dz into s[0..2]
+  const s = new Float64Array(3);
+  // the last K partial sums of each series (Euler's transformation of an alternating series: repeated averaging)
+  const K = 8;
+  const tiny2 = (1e-7 * t) ** 2;
+  const ps = new Float64Array(3 * K);
+  const twist = (X: number, Y: number, Z: number): void => {
+    // the twist is singular only where the line meets a surface (r = 0, z = 0 or t): keep it finite there
+    const r2 = Math.max(X * X + Y * Y, tiny2);
+    const r = Math.sqrt(r2);
+    // terms fall off like 1/m^2 once m t exceeds r; enough of them for the averaging to converge
+    const M = K + 8 + Math.ceil((2 * r) / t);
+    let g = 0, gr = 0, gz = 0;
+    let sign = 1;
+    for (let m = 0; m < M; m++) {
+      const a1 = (m + 1) * t - Z;
+      const a2 = Z + m * t;
+      const q1 = Math.sqrt(r2 + a1 * a1);
+      const q2 = Math.sqrt(r2 + a2 * a2);
+      const h1 = 1 / (q1 + a1);
+      const h2 = 1 / (q2 + a2);
+      g += sign * (h1 - h2);
+      // dh/dr / r = -h^2/q; dh/da = -h/q; dz a1 = -1, dz a2 = +1
+      gr += sign * (-(h1 * h1) / q1 + (h2 * h2) / q2);
+      gz += sign * (h1 / q1 + h2 / q2);
+      sign = -sign;
+      const j = m - (M - K);
+      if (j >= 0) {
+        ps[j] = g;
+        ps[K + j] = gr;
+        ps[2 * K + j] = gz;
+      }
+    }
+    for (let q = 0; q < 3; q++) {
+      const o = q * K;
+      for (let level = K - 1; level > 0; level--) for (let j = 0; j < level; j++) ps[o + j] = 0.5 * (ps[o + j] + ps[o + j + 1]);
+      s[q] = c * ps[o];
+    }
+  };
+  const e10 = e1[0], e11 = e1[1], e12 = e1[2];
+  const e20 = e2[0], e21 = e2[1], e22 = e2[2];
+  const n0 = n[0], n1 = n[1], n2 = n[2];
+  // local gradient L[a][b] (a: e1, e2 components of u; b: d/de1, d/de2, d/dn) into loc[0..5]
+  const loc = new Float64Array(6);
+  const local = (x: number, y: number, z: number): void => {
+    const X = x * e10 + y * e11 + z * e12 - x0;
+    const Y = x * e20 + y * e21 + z * e22 - y0;
+    const Z = x * n0 + y * n1 + z * n2;
+    twist(X, Y, Z);
+    const g = s[0], gr = s[1], gz = s[2];
+    // u_1 = -Y g, u_2 = X g
+    loc[0] = -Y * X * gr;
+    loc[1] = -g - Y * Y * gr;
+    loc[2] = -Y * gz;
+    loc[3] = g + X * X * gr;
+    loc[4] = X * Y * gr;
+    loc[5] = X * gz;
+  };
+  return {
+    displacement(out, x, y, z) {
+      const X = x * e10 + y * e11 + z * e12 - x0;
+      const Y = x * e20 + y * e21 + z * e22 - y0;
+      const Z = x * n0 + y * n1 + z * n2;
+      twist(X, Y, Z);
+      const a = -Y * s[0];
+      const b = X * s[0];
+      out[0] = a * e10 + b * e20;
+      out[1] = a * e11 + b * e21;
+      out[2] = a * e12 + b * e22;
+    },
+    gradient(out, x, y, z) {
+      local(x, y, z);
+      for (let i = 0; i < 3; i++) {
+        const p = i === 0 ? e10 : i === 1 ? e11 : e12;
+        const q = i === 0 ? e20 : i === 1 ? e21 : e22;
+        for (let j = 0; j < 3; j++) {
+          const ej1 = j === 0 ? e10 : j === 1 ? e11 : e12;
+          const ej2 = j === 0 ? e20 : j === 1 ? e21 : e22;
+          const ejn = j === 0 ? n0 : j === 1 ? n1 : n2;
+          out[3 * i + j] = p * (loc[0] * ej1 + loc[1] * ej2 + loc[2] * ejn) + q * (loc[3] * ej1 + loc[4] * ej2 + loc[5] * ejn);
+        }
+      }
+    },
+    directional(gv, k) {
+      const g1 = gv[0] * e10 + gv[1] * e11 + gv[2] * e12;
+      const g2 = gv[0] * e20 + gv[1] * e21 + gv[2] * e22;
+      const k1 = k[0] * e10 + k[1] * e11 + k[2] * e12;
+      const k2 = k[0] * e20 + k[1] * e21 + k[2] * e22;
+      const kn = k[0] * n0 + k[1] * n1 + k[2] * n2;
+      if (g1 === 0 && g2 === 0) return () => 0;
+      return (x, y, z) => {
+        local(x, y, z);
+        return g1 * (loc[0] * k1 + loc[1] * k2 + loc[2] * kn) + g2 * (loc[3] * k1 + loc[4] * k2 + loc[5] * kn);
+      };
+    },
+  };
+}

@@ -1,0 +1,81 @@
+/**
+ * What the foil surfaces do to a scenario's dislocation fields, in words and as
+ * plain data, for render.json, reports and figure captions (beside the
+ * elasticity note, src/elasticity/elasticityNote.ts).
+ */
+import type { Scenario } from '../scenario/types.js';
+import { correctableGeometry, type SurfaceCorrectionKind } from '../elasticity/surfaceRelaxation.js';
+import { directionToCartesian } from '../crystal/lattice.js';
+import { defectModel } from './fieldSpecs.js';
+
+export interface SurfacesDescription {
+  readonly setting: 'relaxed' | 'infinite';
+  /** One sentence for captions and reports. */
+  readonly text: string;
+  /** Straight lines (dislocations and partials) in the scenario, and how many of them carry a surface correction. */
+  readonly lines: number;
+  readonly correctedLines: number;
+  /** Lines per geometry: parallel to the surfaces, normal to them, inclined. */
+  readonly geometry: { readonly parallel: number; readonly normal: number; readonly inclined: number };
+  /** What is exact and what is approximated or left out. */
+  readonly approximations: readonly string[];
+}
+
+/** What each correction does, in words. */
+const KIND_TEXT: Readonly<Record<SurfaceCorrectionKind, string>> = {
+  'parallel-screw-images':
+    'lines parallel to the surfaces: the screw component gets its infinite series of image screws (closed form; exact for a screw in an isotropic plate), the edge component is not corrected',
+  'parallel-stroh-images':
+    'lines parallel to the surfaces: the anisotropic half-space image of each surface (Stroh formalism, every Burgers vector; each surface is freed exactly on its own, but the image of one surface leaves a traction on the other, no repeated reflections: about 9-15 % of the unrelaxed traction for a line 10 nm deep in a 60 nm foil)',
+  'normal-screw-twist':
+    'lines normal to the surfaces: the screw component gets the Eshelby & Stroh (1951) plate twist (exact for a screw in an isotropic plate), the edge component is not corrected',
+  'inclined-half-space':
+    'lines inclined to the surfaces: the isotropic half-space correction of each surface where the line meets it (2D Fourier solution of the surface tractions, every Burgers vector; each surface is freed on its own, the correction of one leaves a traction on the other; tabulated over directions from the emergence point and interpolated)',
+};
+
+export function describeSurfaces(sc: Scenario): SurfacesDescription {
+  const fields = defectModel(sc).fields.flatMap((f) => (f.kind === 'dislocation' ? [f] : []));
+  const n = fields.length;
+  const geometry = { parallel: 0, normal: 0, inclined: 0 };
+  const normal = directionToCartesian(sc.material.lattice, sc.foilNormal);
+  const kinds = new Set<SurfaceCorrectionKind>();
+  let corrected = 0;
+  for (const f of fields) {
+    geometry[correctableGeometry(f.line, normal)]++;
+    if (f.surfaceCorrection !== undefined) {
+      corrected++;
+      kinds.add(f.surfaceCorrection.kind);
+    }
+  }
+  if (sc.surfaces === 'infinite') {
+    return {
+      setting: 'infinite',
+      text: 'infinite-medium dislocation fields (no free-surface relaxation; "surfaces": "infinite")',
+      lines: n,
+      correctedLines: 0,
+      geometry,
+      approximations: ['the foil surfaces are not traction-free: the infinite-medium field is used throughout'],
+    };
+  }
+  const approximations: string[] = [...kinds].map((k) => KIND_TEXT[k]);
+  if (sc.elasticity === 'anisotropic' && (kinds.has('parallel-screw-images') || kinds.has('normal-screw-twist') || kinds.has('inclined-half-space'))) {
+    approximations.push('the screw image series, the plate twist and the half-space correction of inclined lines are isotropic (for inclined lines: the anisotropic field\'s own surface tractions, an isotropic response with the Voigt-average shear modulus), added to the anisotropic (Stroh) infinite field: the surface tractions are reduced, not exactly cancelled');
+  }
+  approximations.push('inclusions are not relaxed at the surfaces');
+  const count = n === 0 ? 'no straight lines in this scenario' : `${corrected} of ${n} straight line${n === 1 ? '' : 's'} corrected`;
+  const SHORT: Readonly<Record<SurfaceCorrectionKind, string>> = {
+    'parallel-stroh-images': ' (anisotropic half-space images of each surface)',
+    'parallel-screw-images': ' (screw image series)',
+    'normal-screw-twist': ' (screw plate twist)',
+    'inclined-half-space': ' (isotropic half-space correction of each surface)',
+  };
+  const used = [...kinds].map((k) => KIND_TEXT[k].split(':')[0] + SHORT[k]);
+  return {
+    setting: 'relaxed',
+    text: `relaxed foil surfaces (${count}${used.length ? `: ${used.join('; ')}` : ''})`,
+    lines: n,
+    correctedLines: corrected,
+    geometry,
+    approximations,
+  };
+}
