@@ -74,11 +74,11 @@ describe('thinfoil demo', () => {
     // render.json says which elasticity the fields used (default: anisotropic, from the material's Cij)
     expect(summary.elasticity.model).toBe('anisotropic');
     expect(summary.note).toMatch(/anisotropic elasticity/);
-    // and what the foil surfaces did (default: relaxed; how many lines were corrected, and how)
-    expect(summary.surfaces.setting).toBe('relaxed');
-    expect(summary.surfaces.text).toMatch(/^relaxed foil surfaces \(\d+ of \d+ straight lines? corrected/);
-    expect(summary.surfaces.correctedLines).toBeGreaterThan(0);
-    expect(summary.surfaces.approximations.join(' ')).toMatch(/each surface is freed/);
+    // and what the foil surfaces did (default: the infinite medium, said in words)
+    expect(summary.surfaces.setting).toBe('infinite');
+    expect(summary.surfaces.text).toMatch(/^infinite-medium dislocation fields \(no free-surface relaxation/);
+    expect(summary.surfaces.correctedLines).toBe(0);
+    expect(summary.surfaces.approximations.join(' ')).toMatch(/not traction-free/);
     for (const e of summary.images) {
       expect(existsSync(e.png)).toBe(true);
       expect(existsSync(e.tiff)).toBe(true);
