@@ -57,13 +57,16 @@ const FOUR_PI = 4 * Math.PI;
 /**
  * Number of sides of the polygon that stands for a circle of radius r (nm) in
  * an image of pixel size p (nm): the smallest N for which the polygon's
- * sagitta r (1 - cos(pi/N)) is at most p / 8, clamped to 12 .. 180.
+ * sagitta r (1 - cos(pi/N)) is at most p / 8, rounded up to an even number
+ * (so that the polygon keeps the circle's mirror planes through the centre
+ * normal to its first vertex direction and its inversion symmetry), clamped
+ * to 12 .. 180.
  */
 export function circleSides(radius_nm: number, pixel_nm: number): number {
   const eps = pixel_nm / 8;
   const c = 1 - eps / radius_nm;
   const n = c <= -1 ? 12 : Math.ceil(Math.PI / Math.acos(Math.max(-1, c)));
-  return Math.min(180, Math.max(12, n));
+  return Math.min(180, Math.max(12, n + (n % 2)));
 }
 
 /**
@@ -139,7 +142,7 @@ export function loopField(opts: LoopFieldOptions): DisplacementField {
     gy += ay[i] / n;
     gz += az[i] / n;
   }
-  const c2 = 1 / (8 * Math.PI * (1 - nu * 0.9));
+  const c2 = 1 / (8 * Math.PI * (1 - nu));
   const cA = 1 / FOUR_PI - c2;
   const rc2 = rc * rc;
   const rm2 = 4 * rc2;
