@@ -153,6 +153,18 @@ function readFault(v: unknown, path: string, m: Material, b: Vec3, normal: Vec3)
   return { nature, vector };
 }
 
+/**
+ * Nature of a loop from b and its normal (loopField.ts: the line runs counterclockwise about n, so
+ * b.n > 0 is a vacancy loop and b.n < 0 an interstitial loop); "shear" when b lies in the loop plane
+ * (|b.n| < 1e-6 |b|).
+ */
+export function loopNature(m: Material, d: LoopSpec): 'vacancy' | 'interstitial' | 'shear' {
+  const b = directionToCartesian(m.lattice, d.b);
+  const bn = dot(b, d.frame.n);
+  if (Math.abs(bn) < 1e-6 * norm(b)) return 'shear';
+  return bn > 0 ? 'vacancy' : 'interstitial';
+}
+
 export const loop: DefectType<LoopSpec> = {
   type: 'loop',
   positionKey: 'centre_nm',

@@ -50,7 +50,20 @@ export interface LoopFieldOptions {
   readonly poissonRatio: number;
   /** Core radius rc (nm), > 0; default |b|. */
   readonly coreRadius_nm?: number;
+  /**
+   * Beyond this many loop radii (largest vertex distance from the vertex centroid) `gradient` and
+   * `directional` use the infinitesimal-loop (dipole) field; default FAR_LOOP_RADII. Infinity: always exact.
+   */
+  readonly farRadii?: number;
 }
+
+/**
+ * Default switch to the dipole field, in loop radii. Just beyond 8 radii the dipole gradient differs from
+ * the polygon's by < 2 % of its size for a circle and < 7 % for an irregular polygon (the first neglected
+ * term falls as R/r there, as (R/r)^2 for a centrally symmetric loop; test/elasticity/loopField.test.ts),
+ * where the gradient itself has fallen to about 1/500 of its size at one radius.
+ */
+export const FAR_LOOP_RADII = 8;
 
 const FOUR_PI = 4 * Math.PI;
 
@@ -142,6 +155,19 @@ export function loopField(opts: LoopFieldOptions): DisplacementField {
     gy += ay[i] / n;
     gz += az[i] / n;
   }
+  // far field: the infinitesimal loop of area vector A at the centroid (Kroupa 1960),
+  // u_i = C [(1 - 2 nu)(b_i (A.x) + A_i (b.x) - (b.A) x_i) / r^3 + 3 x_i (b.x)(A.x) / r^5],  C = -1 / (8 pi (1 - nu))
+  const [Ax, Ay, Az] = polygonAreaVector(v);
+  let reach2 = 0;
+  for (let i = 0; i < n; i++) reach2 = Math.max(reach2, (ax[i] - gx) ** 2 + (ay[i] - gy) ** 2 + (az[i] - gz) ** 2);
+  const far = opts.farRadii ?? FAR_LOOP_RADII;
+  const far2 = far === Infinity ? Infinity : far * far * reach2;
+  const Cd = -1 / (8 * Math.PI * (1 - nu));
+  const oneM2nu = 1 - 2 * nu;
+  const bA = bx * Ax + by * Ay + bz * Az;
+  const bv = Float64Array.of(bx, by, bz);
+  const Av = Float64Array.of(Ax, Ay, Az);
+  const xv = new Float64Array(3);
   const c2 = 1 / (8 * Math.PI * (1 - nu));
   const cA = 1 / FOUR_PI - c2;
   const rc2 = rc * rc;
@@ -158,7 +184,7 @@ export function loopField(opts: LoopFieldOptions): DisplacementField {
    * [f]_A^B for the odd antiderivatives f(sigma) = sign(sigma) (C / q^m + h(sigma)) with the constant
    * C / q^m cancelling analytically when both ends lie on the same side.
    */
-  const segment = (i: number, x: number, y: number, z: number): void => {
+  const segment = (i: number, x: number, y: number, z: number, withLog: boolean, knownRA: number): void => {
     const rx = ax[i] - x, ry = ay[i] - y, rz = az[i] - z;
     const sA = rx * tx[i] + ry * ty[i] + rz * tz[i];
     const sB = sA + len[i];
@@ -171,11 +197,15 @@ export function loopField(opts: LoopFieldOptions): DisplacementField {
       const o = 1 - delta2 / rm2;
       q = d2 + rc2 * o * o * o;
     }
-    const RA = Math.sqrt(sA * sA + q);
+    // outside the core R_A = |rho_A| (the previous segment's R_B when the caller passes it)
+    const RA = q === d2 ? (knownRA === knownRA ? knownRA : Math.sqrt(r2)) : Math.sqrt(sA * sA + q);
     const RB = Math.sqrt(sB * sB + q);
-    const argA = sA >= 0 ? RA + sA : q / (RA - sA);
-    const argB = sB >= 0 ? RB + sB : q / (RB - sB);
-    const J1 = Math.log(argB / argA);
+    let J1 = 0;
+    if (withLog) {
+      const argA = sA >= 0 ? RA + sA : q / (RA - sA);
+      const argB = sB >= 0 ? RB + sB : q / (RB - sB);
+      J1 = Math.log(argB / argA);
+    }
     const aA = Math.abs(sA), aB = Math.abs(sB);
     const hA = -1 / (RA * (aA + RA));
     const hB = -1 / (RB * (aB + RB));
@@ -198,7 +228,7 @@ export function loopField(opts: LoopFieldOptions): DisplacementField {
     w[S_RAY] = ry;
     w[S_RAZ] = rz;
     w[S_SA] = sA;
-    w[S_Q] = q;
+    w[S_Q] = q === d2 ? -1 : q; // -1: outside every core, R_B is |rho_B|
     w[S_RA] = RA;
     w[S_RB] = RB;
     w[S_J1] = J1;
@@ -231,7 +261,7 @@ export function loopField(opts: LoopFieldOptions): DisplacementField {
       const f = -solidAngle(x, y, z) / FOUR_PI;
       let ux = f * bx, uy = f * by, uz = f * bz;
       for (let i = 0; i < n; i++) {
-        segment(i, x, y, z);
+        segment(i, x, y, z, true, NaN);
         const sA = w[S_SA];
         const px = w[S_RAX] - sA * tx[i], py = w[S_RAY] - sA * ty[i], pz = w[S_RAZ] - sA * tz[i];
         const cr = cx[i] * w[S_RAX] + cy[i] * w[S_RAY] + cz[i] * w[S_RAZ];
@@ -247,9 +277,36 @@ export function loopField(opts: LoopFieldOptions): DisplacementField {
       out[2] = uz;
     },
     gradient(out, x, y, z) {
+      const X = x - gx, Y = y - gy, Z = z - gz;
+      const r2 = X * X + Y * Y + Z * Z;
+      if (r2 > far2) {
+        // d_l u_i = C [(1-2nu)((b_i A_l + A_i b_l - (b.A) d_il) / r^3 - 3 (b_i a + A_i beta - (b.A) x_i) x_l / r^5)
+        //              + 3 (d_il beta a + x_i b_l a + x_i beta A_l) / r^5 - 15 x_i beta a x_l / r^7]
+        const ir2 = 1 / r2;
+        const ir3 = ir2 / Math.sqrt(r2);
+        const ir5 = ir3 * ir2;
+        const ir7 = ir5 * ir2;
+        const a = Ax * X + Ay * Y + Az * Z;
+        const be = bx * X + by * Y + bz * Z;
+        xv[0] = X;
+        xv[1] = Y;
+        xv[2] = Z;
+        for (let i = 0; i < 3; i++) {
+          const w1 = bv[i] * a + Av[i] * be - bA * xv[i];
+          for (let l = 0; l < 3; l++) {
+            const d = i === l ? 1 : 0;
+            out[3 * i + l] =
+              Cd *
+              (oneM2nu * ((bv[i] * Av[l] + Av[i] * bv[l] - bA * d) * ir3 - 3 * w1 * xv[l] * ir5) +
+                3 * (d * be * a + xv[i] * bv[l] * a + xv[i] * be * Av[l]) * ir5 -
+                15 * xv[i] * be * a * xv[l] * ir7);
+          }
+        }
+        return;
+      }
       for (let k = 0; k < 9; k++) out[k] = 0;
       for (let i = 0; i < n; i++) {
-        segment(i, x, y, z);
+        segment(i, x, y, z, false, NaN);
         t[0] = tx[i]; t[1] = ty[i]; t[2] = tz[i];
         c[0] = cx[i]; c[1] = cy[i]; c[2] = cz[i];
         rA[0] = w[S_RAX]; rA[1] = w[S_RAY]; rA[2] = w[S_RAZ];
@@ -296,10 +353,36 @@ export function loopField(opts: LoopFieldOptions): DisplacementField {
         kty[i] = k2 * tx[i] - k0 * tz[i];
         ktz[i] = k0 * ty[i] - k1 * tx[i];
       }
+      // far field: g.(grad u).k of the dipole
+      const gbd = g0 * bx + g1 * by + g2 * bz;
+      const gA = g0 * Ax + g1 * Ay + g2 * Az;
+      const kA = k0 * Ax + k1 * Ay + k2 * Az;
+      const kb = k0 * bx + k1 * by + k2 * bz;
       return (x, y, z) => {
+        const X = x - gx, Y = y - gy, Z = z - gz;
+        const r2 = X * X + Y * Y + Z * Z;
+        if (r2 > far2) {
+          const ir2 = 1 / r2;
+          const ir3 = ir2 / Math.sqrt(r2);
+          const ir5 = ir3 * ir2;
+          const a = Ax * X + Ay * Y + Az * Z;
+          const be = bx * X + by * Y + bz * Z;
+          const ga = g0 * X + g1 * Y + g2 * Z;
+          const xk = k0 * X + k1 * Y + k2 * Z;
+          const lin = gbd * a + gA * be - bA * ga;
+          const cub = ga * be * a;
+          return (
+            Cd *
+            (oneM2nu * ((gbd * kA + gA * kb - bA * gk) * ir3 - 3 * lin * xk * ir5) +
+              3 * (gk * be * a + ga * kb * a + ga * be * kA) * ir5 -
+              15 * cub * xk * ir5 * ir2)
+          );
+        }
         let s = 0;
+        let carry = NaN; // |rho| at the start of segment i when the previous segment lay outside every core
         for (let i = 0; i < n; i++) {
-          segment(i, x, y, z);
+          segment(i, x, y, z, false, carry);
+          carry = w[S_Q] < 0 ? w[S_RB] : NaN;
           const rx = w[S_RAX], ry = w[S_RAY], rz = w[S_RAZ];
           const sA = w[S_SA];
           const J3 = w[S_J3], P = w[S_P];

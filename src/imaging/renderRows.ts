@@ -225,7 +225,8 @@ export function columnEvaluator(job: RenderJob): ColumnEvaluator {
   // Both engines: the plane of each loop is a breakpoint (a zero phase step) where a column crosses it, so that
   // the stepper restarts with a small step where the loop's strain peaks (the crossing inside the polygon is
   // also a phase step when g.b is not an integer; the two then sit at the same depth, which the engines allow).
-  const loopPlanes = job.model.surfaces.flatMap((f) => (f.kind === 'polygon' ? [{ p: f.point_nm, n: f.normal }] : []));
+  // Only near the loop (within LOOP_BREAK_RADII loop radii of its centre): elsewhere a restart costs steps and gains nothing.
+  const loopPlanes = job.model.surfaces.flatMap((f) => (f.kind === 'polygon' ? [{ p: f.point_nm, n: f.normal, reach2: loopReach2(f.point_nm, f.vertices_nm ?? []) }] : []));
   const nMax = surfaces.length + lines.length + 2 * spheres.length + loopPlanes.length;
   // fault crossings of the current column: [z, alpha] pairs sorted by z, one array per count
   const stride = vector ? 4 : 2;
@@ -267,11 +268,13 @@ export function columnEvaluator(job: RenderJob): ColumnEvaluator {
         if (z2 > 0 && z2 < L) count = insertByDepth(zs, as, count, z2, 0);
       }
       for (let d = 0; d < loopPlanes.length; d++) {
-        const { p, n } = loopPlanes[d];
+        const { p, n, reach2 } = loopPlanes[d];
         const kn = kx * n[0] + ky * n[1] + kz * n[2];
         if (Math.abs(kn) < 1e-12) continue;
         const zc = ((p[0] - cx) * n[0] + (p[1] - cy) * n[1] + (p[2] - cz) * n[2]) / kn;
-        if (zc > 0 && zc < L) count = insertByDepth(zs, as, count, zc, 0);
+        if (!(zc > 0 && zc < L)) continue;
+        const hx = cx + zc * kx - p[0], hy = cy + zc * ky - p[1], hz = cz + zc * kz - p[2];
+        if (hx * hx + hy * hy + hz * hz < reach2) count = insertByDepth(zs, as, count, zc, 0);
       }
       let faults = none;
       if (count > 0) {
@@ -299,6 +302,16 @@ export function columnEvaluator(job: RenderJob): ColumnEvaluator {
       }
     },
   };
+}
+
+/** Loop-plane breakpoints are added within this many loop radii of the loop's centre. */
+const LOOP_BREAK_RADII = 3;
+
+/** (LOOP_BREAK_RADII times the largest distance of a vertex from the centre)^2. */
+function loopReach2(p: Vec3, v: readonly number[]): number {
+  let r2 = 0;
+  for (let i = 0; i + 2 < v.length; i += 3) r2 = Math.max(r2, (v[i] - p[0]) ** 2 + (v[i + 1] - p[1]) ** 2 + (v[i + 2] - p[2]) ** 2);
+  return LOOP_BREAK_RADII * LOOP_BREAK_RADII * r2;
 }
 
 /** Insert (z, alpha) into the first `count` entries of zs/as kept sorted by z; returns the new count. */

@@ -254,3 +254,68 @@ describe('loop field: limits', () => {
     }
   });
 });
+
+describe('loop field: the far field beyond FAR_LOOP_RADII loop radii', () => {
+  it('the dipole (infinitesimal loop, Kroupa 1960) gradient differs from the polygon\'s by < 7 % at 8.5 radii (irregular pentagon; the first neglected term falls as R/r) and < 2 % for a circle (as (R/r)^2); directional agrees', () => {
+    const b: Vec3 = [0.12, -0.2, 0.25];
+    const exact = loopField({ b_nm: b, vertices_nm: PENTA, poissonRatio: NU, farRadii: Infinity });
+    const fast = loopField({ b_nm: b, vertices_nm: PENTA, poissonRatio: NU });
+    // largest vertex distance from the vertex centroid of PENTA
+    const cx = (-6 + 7 + 5 + 0 - 5) / 5, cy = (-5 - 4 + 6 + 1 + 5) / 5;
+    let R = 0;
+    for (let i = 0; i < 5; i++) R = Math.max(R, Math.hypot(PENTA[3 * i] - cx, PENTA[3 * i + 1] - cy));
+    const g1 = new Float64Array(9);
+    const g2 = new Float64Array(9);
+    const errAt = (m: number): number => {
+      let e = 0;
+      for (const d of [[1, 2, 3], [-2, 1, 0.5], [0.3, -1, -2], [2, 2, -1], [0, 0, 1]]) {
+        const l = Math.hypot(d[0], d[1], d[2]);
+        const p = [cx + (m * R * d[0]) / l, cy + (m * R * d[1]) / l, (m * R * d[2]) / l];
+        exact.gradient(g1, p[0], p[1], p[2]);
+        fast.gradient(g2, p[0], p[1], p[2]);
+        let size = 0;
+        let diff = 0;
+        for (let i = 0; i < 9; i++) {
+          size = Math.max(size, Math.abs(g1[i]));
+          diff = Math.max(diff, Math.abs(g1[i] - g2[i]));
+        }
+        e = Math.max(e, diff / size);
+      }
+      return e;
+    };
+    const e85 = errAt(8.5);
+    const e20 = errAt(20);
+    expect(e85).toBeGreaterThan(0); // the far branch is in use
+    expect(e85).toBeLessThan(0.07);
+    expect(e20).toBeLessThan(e85 / 2);
+    // a circle (even regular polygon, centrally symmetric: no quadrupole term)
+    const cv = circleVertices([0, 0, 0], [1, 0, 0], [0, 1, 0], 3, 24);
+    const ce = loopField({ b_nm: b, vertices_nm: cv, poissonRatio: NU, farRadii: Infinity });
+    const cf = loopField({ b_nm: b, vertices_nm: cv, poissonRatio: NU });
+    const Rc = Math.hypot(cv[0], cv[1]);
+    let ec = 0;
+    for (const d of [[1, 2, 3], [-2, 1, 0.5], [0.3, -1, -2]]) {
+      const l = Math.hypot(d[0], d[1], d[2]);
+      const p = d.map((c) => (8.5 * Rc * c) / l);
+      ce.gradient(g1, p[0], p[1], p[2]);
+      cf.gradient(g2, p[0], p[1], p[2]);
+      let size = 0;
+      let diff = 0;
+      for (let i = 0; i < 9; i++) {
+        size = Math.max(size, Math.abs(g1[i]));
+        diff = Math.max(diff, Math.abs(g1[i] - g2[i]));
+      }
+      ec = Math.max(ec, diff / size);
+    }
+    expect(ec).toBeGreaterThan(0);
+    expect(ec).toBeLessThan(0.02);
+    const gv: [number, number, number] = [2.1, -0.7, 1.3];
+    const kv: [number, number, number] = [0.2, 0.3, Math.sqrt(1 - 0.13)];
+    const dir = fast.directional(gv, kv);
+    const p = [cx + 10 * R, cy - 3 * R, 2 * R];
+    fast.gradient(g2, p[0], p[1], p[2]);
+    let s = 0;
+    for (let i = 0; i < 3; i++) for (let j = 0; j < 3; j++) s += gv[i] * g2[3 * i + j] * kv[j];
+    expect(dir(p[0], p[1], p[2])).toBeCloseTo(s, 14);
+  });
+});
