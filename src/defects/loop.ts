@@ -34,6 +34,10 @@ import { imagePointToCrystal } from '../geometry/frames.js';
 import { circleSides, circleVertices } from '../elasticity/loopField.js';
 import { sig } from '../format.js';
 import type { DefectType } from './defectType.js';
+import type { Candidate } from '../analysis/candidates.js';
+import { formatBurgers } from '../analysis/candidates.js';
+import { InputError } from '../errors.js';
+import { burgersNote } from './lineDefect.js';
 
 export interface LoopSpec {
   readonly type: 'loop';
@@ -238,6 +242,31 @@ export const loop: DefectType<LoopSpec> = {
     return w;
   },
   line: () => undefined,
-  visibilityRows: () => [],
-  visibilityNote: () => ({ quantity: '' }),
+  /** One row: the loop's b (g.b rule; no simulated strip, which needs a straight line). */
+  visibilityRows: (_sc, d, row) => [row(d.label, d.b, undefined, undefined)],
+  /**
+   * Every Burgers vector of the scenario's "candidates" list with both signs, on the target's habit plane,
+   * centre and shape: with the normal fixed, b and -b are the two natures (vacancy, interstitial) of a loop
+   * with a prismatic component. A candidate names no fault: its jump b across the loop is the enclosed fault.
+   */
+  candidates(sc, target, defectIndex) {
+    if (sc.candidates.length === 0) {
+      throw new InputError('candidates is empty; list the Burgers vectors to compare, e.g. "candidates": ["1/3<111>", "1/2<110>"]');
+    }
+    const out: Candidate[] = [];
+    const seen = new Set<string>();
+    for (const spec of sc.candidates) {
+      for (const sign of [1, -1]) {
+        const b: Vec3 = [sign * spec.b[0] + 0, sign * spec.b[1] + 0, sign * spec.b[2] + 0];
+        const key = formatVector(b);
+        if (seen.has(key)) continue;
+        seen.add(key);
+        const { fault: _fault, ...rest } = target;
+        const defect: LoopSpec = { ...rest, b };
+        out.push({ label: `b = ${formatBurgers(b)} (${loopNature(sc.material, defect)})`, kind: 'burgers', defectIndex, defect, b });
+      }
+    }
+    return out;
+  },
+  visibilityNote: burgersNote,
 };

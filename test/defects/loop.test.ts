@@ -11,6 +11,8 @@ import { translationPlan } from '../../src/imaging/translationColumns.js';
 import { coreMask } from '../../src/imaging/cores.js';
 import { columnEvaluator } from '../../src/imaging/renderRows.js';
 import { InputError } from '../../src/errors.js';
+import { identificationCandidates, variantScenario } from '../../src/analysis/candidates.js';
+import { visibilityTable } from '../../src/analysis/visibilityTable.js';
 import type { Scenario } from '../../src/scenario/types.js';
 
 const FRANK = { type: 'loop', b: '1/3[1 1 1]', normal: [1, 1, 1], centre_nm: [0, 0, 50], radius_nm: 12 };
@@ -296,4 +298,35 @@ describe('loops in the many-beam engine', () => {
     // a corner pixel, 20 nm from a loop of radius 6 nm: within 10 % of the perfect crystal (the strain tail at w = 0.3)
     expect(Math.abs(row.bf[0] / row.background.bf - 1)).toBeLessThan(0.1);
   }, 60_000);
+});
+
+describe('loop candidates and visibility rows', () => {
+  const sc = scenario({
+    image: { width_px: 16, height_px: 16, pixel_nm: 1 },
+    conditions: [{ id: 'g200', g: [2, 0, 0], w: 0.5 }, { id: 'g2m20', g: [2, -2, 0], w: 0.5 }],
+    defects: [{ ...FRANK, fault: 'intrinsic' }],
+    candidates: ['1/3<111>', '1/2<110>'],
+  });
+  it('candidates: every b of 1/3<111> and 1/2<110> with both signs, its nature from b.n on the habit plane, no fault named', () => {
+    const c = identificationCandidates(sc);
+    expect(c).toHaveLength(8 + 12); // the families hold both signs already
+    const frank = c.find((k) => k.label.startsWith('b = 1/3[1 1 1]'));
+    const anti = c.find((k) => k.label.startsWith('b = 1/3[-1 -1 -1]'));
+    expect(frank?.label).toContain('(vacancy)');
+    expect(anti?.label).toContain('(interstitial)');
+    // a 1/2<110> vector in the (111) plane is a shear loop
+    expect(c.find((k) => k.label.startsWith('b = 1/2[1 -1 0]'))?.label).toContain('(shear)');
+    for (const k of c) expect(k.defect.type === 'loop' && k.defect.fault === undefined).toBe(true);
+    // the variant renders as a scenario (its jump surface carries the enclosed fault)
+    expect(job(variantScenario(sc, frank as NonNullable<typeof frank>)).model.surfaces).toHaveLength(1);
+  });
+  it('visibility: one row for the loop with its g.b per condition (2/3 at 200, 0 at 2-20) and the rule of thumb (Howie & Whelan 1962 for |g.b| = 2/3)', () => {
+    const rows = visibilityTable(sc).filter((r) => r.kind === 'defect');
+    expect(rows).toHaveLength(1);
+    const [e200, e2m20] = rows[0].entries;
+    expect(e200.gb).toBeCloseTo(2 / 3, 9);
+    expect(e200.ruleVerdict).toBe('visible');
+    expect(e2m20.gb).toBe(0);
+    expect(e200.simulated).toBeUndefined();
+  });
 });
