@@ -36,6 +36,11 @@
  * it is finite. Omega is not smoothed (the renderer never uses it: it applies
  * the jump b across the polygon as an exact phase step), so `displacement`
  * keeps the exact jump and `gradient` is the smoothed derivative.
+ *
+ * Far field. Beyond FAR_LOOP_RADII loop radii from the vertex centroid,
+ * `gradient` and `directional` use the infinitesimal loop of the same area
+ * vector (Kroupa 1960), which costs a few dozen operations instead of a pass
+ * over the sides; `displacement` is always exact.
  */
 import { type Vec3, norm } from '../math/vec3.js';
 import { InputError } from '../errors.js';
