@@ -2,7 +2,7 @@
 import { jsonText } from '../output/json.js';
 import { join } from 'node:path';
 import { DEMO_SCENARIO } from '../scenario/demo.js';
-import { parseScenario } from '../scenario/parse.js';
+import { formatVector, parseScenario } from '../scenario/parse.js';
 import { visibilityTable } from '../analysis/visibilityTable.js';
 import { OutputSet } from '../output/outputSet.js';
 import { DEFAULT_IMAGE_OPTIONS, renderAndWrite } from './renderCommand.js';
@@ -10,6 +10,7 @@ import { formatVisibility } from './visibilityCommand.js';
 import { sig, table } from './run.js';
 import { faultReport, formatFaults, formatInclusions } from './faultCommand.js';
 import { dissociationWidth_nm } from '../defects/dissociated.js';
+import { loopNature } from '../defects/loop.js';
 import { DEMO_HIDDEN_CANDIDATE, DEMO_IDENTIFY_SCENARIO, DEMO_MICROGRAPHS, DEMO_SYNTHESIS } from '../scenario/demoIdentify.js';
 import { identificationCandidates } from '../analysis/candidates.js';
 import { syntheticFileName, syntheticMicrographs } from '../analysis/synthetic.js';
@@ -68,6 +69,11 @@ async function demoMain(sc: ReturnType<typeof parseScenario>, demo: object, set:
   for (const d of sc.defects) {
     if (d.type === 'dissociated') {
       process.stdout.write(`\n${d.label}: partial separation ${sig(dissociationWidth_nm(sc.material, d, undefined, sc.elasticity), 3)} nm (${sc.elasticity} equilibrium width for ${sc.material.stackingFaultEnergy_mJ_per_m2} mJ/m^2)\n`);
+    }
+    if (d.type === 'loop') {
+      const gb = sc.conditions.map((c) => `${c.id} ${sig(c.g[0] * d.b[0] + c.g[1] * d.b[1] + c.g[2] * d.b[2], 3)}`).join(', ');
+      const fault = d.fault === undefined ? 'no fault' : `encloses a fault with R = b (${d.fault.nature})`;
+      process.stdout.write(`\n${d.label}: ${loopNature(sc.material, d)} loop, b = ${formatVector(d.b)}, ${fault}; g.b: ${gb} (isotropic infinite-medium field)\n`);
     }
   }
   const fr = faultReport(sc);

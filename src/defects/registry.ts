@@ -8,9 +8,10 @@ import { partial, type PartialSpec } from './partial.js';
 import { dissociated, type DissociatedSpec } from './dissociated.js';
 import { fault, type FaultSpec } from './fault.js';
 import { inclusion, type InclusionSpec } from './inclusion.js';
+import { loop, type LoopSpec } from './loop.js';
 
 /** A validated scenario defect: one spec per type. */
-export type DefectSpec = DislocationSpec | PartialSpec | DissociatedSpec | FaultSpec | InclusionSpec;
+export type DefectSpec = DislocationSpec | PartialSpec | DissociatedSpec | FaultSpec | InclusionSpec | LoopSpec;
 
 type AnyDefectType = { [T in DefectSpec['type']]: DefectType<Extract<DefectSpec, { type: T }>> }[DefectSpec['type']];
 
@@ -18,7 +19,7 @@ let table: Map<string, AnyDefectType> | undefined;
 
 /** Built on first use, so that the modules may import the parser's readers without an import-order trap. */
 function types(): Map<string, AnyDefectType> {
-  table ??= new Map<string, AnyDefectType>([dislocation, partial, dissociated, fault, inclusion].map((t) => [t.type, t]));
+  table ??= new Map<string, AnyDefectType>([dislocation, partial, dissociated, fault, inclusion, loop].map((t) => [t.type, t]));
   return table;
 }
 

@@ -14,6 +14,16 @@ export interface ElasticityDescription {
 
 export function describeElasticity(sc: Scenario): ElasticityDescription {
   const m = sc.material;
+  const d = describeLinesElasticity(sc);
+  if (!sc.defects.some((x) => x.type === 'loop') || d.model === 'isotropic') return d;
+  return {
+    ...d,
+    text: `${d.text}; dislocation loops always isotropic (Burgers' formula, infinite medium, ${m.elastic.average} nu = ${m.elastic.poissonRatio.toPrecision(3)})`,
+  };
+}
+
+function describeLinesElasticity(sc: Scenario): ElasticityDescription {
+  const m = sc.material;
   if (sc.elasticity === 'anisotropic') {
     const c = m.elastic.cij_GPa as unknown as Record<string, number>;
     const list = Object.entries(c).map(([k, v]) => `${k} ${v}`).join(', ');

@@ -16,6 +16,7 @@
  */
 import { cross } from '../math/vec3.js';
 import { columnEntryPoint } from '../geometry/frames.js';
+import { loopSegments } from '../elasticity/loopField.js';
 import type { RenderJob } from './renderRows.js';
 
 /** Sub-columns per axis averaged in a pixel whose area reaches a core. */
@@ -30,6 +31,8 @@ interface CoreLine {
   readonly n: readonly number[] | null;
   /** radius of the modified core (nm) */
   readonly r: number;
+  /** length of the line from p along u (nm): Infinity for a straight dislocation, the side length for a loop's segment */
+  readonly len: number;
 }
 
 export interface CoreGeometry {
@@ -52,8 +55,18 @@ export function coreGeometry(job: RenderJob): CoreGeometry | null {
     const rc = f.coreRadius_nm ?? Math.hypot(f.b_nm[0], f.b_nm[1], f.b_nm[2]);
     const n = cross(k, f.line);
     const nl = Math.hypot(n[0], n[1], n[2]);
-    return [{ p: f.point_nm, u: f.line, n: nl > 1e-9 ? [n[0] / nl, n[1] / nl, n[2] / nl] : null, r: CORE_RADII * rc }];
+    return [{ p: f.point_nm, u: f.line, n: nl > 1e-9 ? [n[0] / nl, n[1] / nl, n[2] / nl] : null, r: CORE_RADII * rc, len: Infinity }];
   });
+  // the sides of loop polygons: finite segments with the same core
+  for (const f of job.model.fields) {
+    if (f.kind !== 'loop') continue;
+    const rc = f.coreRadius_nm ?? Math.hypot(f.b_nm[0], f.b_nm[1], f.b_nm[2]);
+    for (const s of loopSegments(f.vertices_nm)) {
+      const n = cross(k, s.u);
+      const nl = Math.hypot(n[0], n[1], n[2]);
+      lines.push({ p: s.p, u: s.u, n: nl > 1e-9 ? [n[0] / nl, n[1] / nl, n[2] / nl] : null, r: CORE_RADII * rc, len: s.length });
+    }
+  }
   if (lines.length === 0) return null;
   const [ex0, ex1, ex2] = frame.ex;
   const [ey0, ey1, ey2] = frame.ey;
@@ -76,8 +89,27 @@ export function coreGeometry(job: RenderJob): CoreGeometry | null {
   };
   const reach = (l: CoreLine, x: number, y: number, margin: number): number => {
     const d = Math.abs(offset(l, x, y));
-    const z = depth(l);
     const m = l.r + margin;
+    if (l.len !== Infinity) return segmentReach(l, m);
+    const z = depth(l);
+    return d < m && z > -m && z < L + m ? d : Infinity;
+  };
+  // a finite segment (w = c0 - p left by offset): distance of the column from the nearest point of the segment
+  const segmentReach = (l: CoreLine, m: number): number => {
+    const b = k[0] * l.u[0] + k[1] * l.u[1] + k[2] * l.u[2];
+    const wu = w[0] * l.u[0] + w[1] * l.u[1] + w[2] * l.u[2];
+    const wk = w[0] * k[0] + w[1] * k[1] + w[2] * k[2];
+    const den = 1 - b * b;
+    // parameter along the segment of the closest approach of the two lines, clamped to the segment
+    let s = den < 1e-9 ? 0 : (wu - b * wk) / den;
+    if (s < 0) s = 0;
+    if (s > l.len) s = l.len;
+    // the point p + s u, seen from the column c0 + z k: nearest column depth and distance
+    const qx = l.p[0] + s * l.u[0] - (l.p[0] + w[0]);
+    const qy = l.p[1] + s * l.u[1] - (l.p[1] + w[1]);
+    const qz = l.p[2] + s * l.u[2] - (l.p[2] + w[2]);
+    const z = qx * k[0] + qy * k[1] + qz * k[2];
+    const d = Math.hypot(qx - z * k[0], qy - z * k[1], qz - z * k[2]);
     return d < m && z > -m && z < L + m ? d : Infinity;
   };
   return {

@@ -13,6 +13,7 @@ import type { DisplacementField } from '../elasticity/field.js';
 import { superpose } from '../elasticity/field.js';
 import { straightDislocation } from '../elasticity/straightDislocation.js';
 import { sphericalInclusion } from '../elasticity/inclusion.js';
+import { loopField } from '../elasticity/loopField.js';
 import { anisotropicDislocation } from '../elasticity/anisotropicDislocation.js';
 import { materialStiffness } from '../elasticity/stiffness.js';
 import { surfaceCorrection, surfaceCorrectionFor, type SurfaceCorrectionSpec } from '../elasticity/surfaceRelaxation.js';
@@ -50,7 +51,17 @@ export interface InclusionFieldSpec {
   readonly poissonRatio: number;
 }
 
-export type FieldSpec = DislocationFieldSpec | InclusionFieldSpec;
+/** A closed plane polygon loop, isotropic infinite medium (elasticity/loopField.ts). */
+export interface LoopFieldSpec {
+  readonly kind: 'loop';
+  readonly b_nm: Vec3;
+  /** Vertices (Cartesian nm, flat x y z ...), counterclockwise about the loop normal. */
+  readonly vertices_nm: readonly number[];
+  readonly poissonRatio: number;
+  readonly coreRadius_nm?: number;
+}
+
+export type FieldSpec = DislocationFieldSpec | InclusionFieldSpec | LoopFieldSpec;
 
 /**
  * A surface across which the displacement jumps. For a column crossing from
@@ -58,7 +69,7 @@ export type FieldSpec = DislocationFieldSpec | InclusionFieldSpec;
  * `jump_nm` (R behind minus R in front).
  */
 export interface JumpSurface {
-  readonly kind: 'plane' | 'half-plane';
+  readonly kind: 'plane' | 'half-plane' | 'polygon';
   readonly point_nm: Vec3;
   /** Unit normal of the plane. */
   readonly normal: Vec3;
@@ -66,6 +77,8 @@ export interface JumpSurface {
   /** Half-plane only: the bounding line direction (unit) and the in-plane direction (unit) into the half-plane. */
   readonly edge?: Vec3;
   readonly into?: Vec3;
+  /** Polygon only: its vertices in the plane (Cartesian nm, flat x y z ...). */
+  readonly vertices_nm?: readonly number[];
 }
 
 export interface DefectModel {
@@ -105,6 +118,7 @@ export function elasticStiffness(sc: Scenario): number[] | undefined {
 export function buildField(specs: readonly FieldSpec[]): DisplacementField | null {
   if (specs.length === 0) return null;
   const fields = specs.flatMap((s) => {
+    if (s.kind === 'loop') return [loopField(s)];
     if (s.kind !== 'dislocation') return [sphericalInclusion({ centre_nm: s.centre_nm, radius_nm: s.radius_nm, strain: s.strain, poissonRatio: s.poissonRatio })];
     const line = s.stiffness_GPa === undefined ? straightDislocation(s) : anisotropicDislocation({ ...s, stiffness_GPa: s.stiffness_GPa });
     return s.surfaceCorrection === undefined ? [line] : [line, surfaceCorrection({ b_nm: s.b_nm, line: s.line, point_nm: s.point_nm, correction: s.surfaceCorrection, stiffness_GPa: s.stiffness_GPa, poissonRatio: s.poissonRatio })];

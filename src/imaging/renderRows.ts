@@ -68,6 +68,45 @@ export interface ActiveSurface {
   readonly into: Vec3;
   /** R behind minus R in front for a crossing along +normal (nm). */
   readonly jump: Vec3;
+  /**
+   * Polygon only: the vertices on in-plane axes a1, a2 about p (interleaved u, v), else null;
+   * a crossing counts only inside the polygon.
+   */
+  readonly poly: Float64Array | null;
+  readonly a1: Vec3;
+  readonly a2: Vec3;
+}
+
+/** In-plane coordinates of a polygon surface's vertices on axes a1, a2 (a1 any unit vector normal to n, a2 = n x a1). */
+function polygonAxes(p: Vec3, n: Vec3, v: readonly number[]): { poly: Float64Array; a1: Vec3; a2: Vec3 } {
+  const ax = Math.abs(n[0]) <= Math.abs(n[1]) && Math.abs(n[0]) <= Math.abs(n[2]) ? 0 : Math.abs(n[1]) <= Math.abs(n[2]) ? 1 : 2;
+  const e: [number, number, number] = [0, 0, 0];
+  e[ax] = 1;
+  const d = dot(e, n);
+  const r: Vec3 = [e[0] - d * n[0], e[1] - d * n[1], e[2] - d * n[2]];
+  const rl = Math.hypot(r[0], r[1], r[2]);
+  const a1: Vec3 = [r[0] / rl, r[1] / rl, r[2] / rl];
+  const a2: Vec3 = [n[1] * a1[2] - n[2] * a1[1], n[2] * a1[0] - n[0] * a1[2], n[0] * a1[1] - n[1] * a1[0]];
+  const m = v.length / 3;
+  const poly = new Float64Array(2 * m);
+  for (let i = 0; i < m; i++) {
+    const wx = v[3 * i] - p[0], wy = v[3 * i + 1] - p[1], wz = v[3 * i + 2] - p[2];
+    poly[2 * i] = wx * a1[0] + wy * a1[1] + wz * a1[2];
+    poly[2 * i + 1] = wx * a2[0] + wy * a2[1] + wz * a2[2];
+  }
+  return { poly, a1, a2 };
+}
+
+/** True when (u, v) lies inside the polygon (interleaved u, v vertices): crossing-number rule. */
+function insidePolygon(poly: Float64Array, u: number, v: number): boolean {
+  const m = poly.length / 2;
+  let inside = false;
+  for (let i = 0, j = m - 1; i < m; j = i++) {
+    const ui = poly[2 * i], vi = poly[2 * i + 1];
+    const uj = poly[2 * j], vj = poly[2 * j + 1];
+    if (vi > v !== vj > v && u < ((uj - ui) * (v - vi)) / (vj - vi) + ui) inside = !inside;
+  }
+  return inside;
 }
 
 /** Surfaces whose phase is not a multiple of 2 pi and that columns actually cross. */
@@ -81,14 +120,26 @@ export function activeSurfaces(job: RenderJob): ActiveSurface[] {
     if (!keepAll && Math.abs(gR - Math.round(gR)) < 1e-9) continue; // alpha = 2 pi n: invisible
     const kn = dot(k, s.normal);
     if (Math.abs(kn) < 1e-12) continue; // the beam runs within the plane: columns never cross it
-    out.push({ alpha: 2 * Math.PI * gR, p: s.point_nm, n: s.normal, kn, halfPlane: s.kind === 'half-plane', into: s.into ?? [0, 0, 0], jump: s.jump_nm });
+    const pg = s.kind === 'polygon' ? polygonAxes(s.point_nm, s.normal, s.vertices_nm ?? []) : null;
+    out.push({
+      alpha: 2 * Math.PI * gR,
+      p: s.point_nm,
+      n: s.normal,
+      kn,
+      halfPlane: s.kind === 'half-plane',
+      into: s.into ?? [0, 0, 0],
+      jump: s.jump_nm,
+      poly: pg === null ? null : pg.poly,
+      a1: pg === null ? ZERO3 : pg.a1,
+      a2: pg === null ? ZERO3 : pg.a2,
+    });
   }
   return out;
 }
 
 /**
  * Depth z in (0, zMax) at which the column c + z k crosses surface f (for a
- * half-plane: only on the half-plane itself), or NaN when it does not.
+ * half-plane or a polygon: only on the half-plane or inside the polygon), or NaN when it does not.
  */
 export function crossingDepth(f: ActiveSurface, cx: number, cy: number, cz: number, kx: number, ky: number, kz: number, zMax: number): number {
   const zc = ((f.p[0] - cx) * f.n[0] + (f.p[1] - cy) * f.n[1] + (f.p[2] - cz) * f.n[2]) / f.kn;
@@ -96,6 +147,9 @@ export function crossingDepth(f: ActiveSurface, cx: number, cy: number, cz: numb
   if (f.halfPlane) {
     const t = (cx + zc * kx - f.p[0]) * f.into[0] + (cy + zc * ky - f.p[1]) * f.into[1] + (cz + zc * kz - f.p[2]) * f.into[2];
     if (t <= 0) return NaN;
+  } else if (f.poly !== null) {
+    const hx = cx + zc * kx - f.p[0], hy = cy + zc * ky - f.p[1], hz = cz + zc * kz - f.p[2];
+    if (!insidePolygon(f.poly, hx * f.a1[0] + hy * f.a1[1] + hz * f.a1[2], hx * f.a2[0] + hy * f.a2[1] + hz * f.a2[2])) return NaN;
   }
   return zc;
 }
@@ -168,7 +222,12 @@ export function columnEvaluator(job: RenderJob): ColumnEvaluator {
   // uniform, outside it is the Ashby-Brown 1/r^3 field), so both depths are breakpoints (zero phase steps).
   // A step error estimate of 4th order does not see a jump inside a slice (a first-order error).
   const spheres = job.model.fields.flatMap((f) => (f.kind === 'inclusion' ? [{ c: f.centre_nm, r2: f.radius_nm * f.radius_nm }] : []));
-  const nMax = surfaces.length + lines.length + 2 * spheres.length;
+  // Both engines: the plane of each loop is a breakpoint (a zero phase step) where a column crosses it, so that
+  // the stepper restarts with a small step where the loop's strain peaks (the crossing inside the polygon is
+  // also a phase step when g.b is not an integer; the two then sit at the same depth, which the engines allow).
+  // Only near the loop (within LOOP_BREAK_RADII loop radii of its centre): elsewhere a restart costs steps and gains nothing.
+  const loopPlanes = job.model.surfaces.flatMap((f) => (f.kind === 'polygon' ? [{ p: f.point_nm, n: f.normal, reach2: loopReach2(f.point_nm, f.vertices_nm ?? []) }] : []));
+  const nMax = surfaces.length + lines.length + 2 * spheres.length + loopPlanes.length;
   // fault crossings of the current column: [z, alpha] pairs sorted by z, one array per count
   const stride = vector ? 4 : 2;
   const crossings = Array.from({ length: nMax }, (_, i) => new Float64Array(stride * (i + 1)));
@@ -208,6 +267,15 @@ export function columnEvaluator(job: RenderJob): ColumnEvaluator {
         if (z1 > 0 && z1 < L) count = insertByDepth(zs, as, count, z1, 0);
         if (z2 > 0 && z2 < L) count = insertByDepth(zs, as, count, z2, 0);
       }
+      for (let d = 0; d < loopPlanes.length; d++) {
+        const { p, n, reach2 } = loopPlanes[d];
+        const kn = kx * n[0] + ky * n[1] + kz * n[2];
+        if (Math.abs(kn) < 1e-12) continue;
+        const zc = ((p[0] - cx) * n[0] + (p[1] - cy) * n[1] + (p[2] - cz) * n[2]) / kn;
+        if (!(zc > 0 && zc < L)) continue;
+        const hx = cx + zc * kx - p[0], hy = cy + zc * ky - p[1], hz = cz + zc * kz - p[2];
+        if (hx * hx + hy * hy + hz * hz < reach2) count = insertByDepth(zs, as, count, zc, 0);
+      }
       let faults = none;
       if (count > 0) {
         faults = crossings[count - 1];
@@ -234,6 +302,16 @@ export function columnEvaluator(job: RenderJob): ColumnEvaluator {
       }
     },
   };
+}
+
+/** Loop-plane breakpoints are added within this many loop radii of the loop's centre. */
+const LOOP_BREAK_RADII = 3;
+
+/** (LOOP_BREAK_RADII times the largest distance of a vertex from the centre)^2. */
+function loopReach2(p: Vec3, v: readonly number[]): number {
+  let r2 = 0;
+  for (let i = 0; i + 2 < v.length; i += 3) r2 = Math.max(r2, (v[i] - p[0]) ** 2 + (v[i + 1] - p[1]) ** 2 + (v[i + 2] - p[2]) ** 2);
+  return LOOP_BREAK_RADII * LOOP_BREAK_RADII * r2;
 }
 
 /** Insert (z, alpha) into the first `count` entries of zs/as kept sorted by z; returns the new count. */

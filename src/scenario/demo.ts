@@ -5,7 +5,7 @@
  * values chosen for the demonstration, not measurements of a real alloy.
  */
 export const DEMO_SCENARIO = {
-  name: 'demo: dislocations, a fault ribbon and a particle in an invented Ni-Co foil',
+  name: 'demo: dislocations, a fault ribbon, a particle and loops in an invented Ni-Co foil',
   description: 'Invented scenario for demonstration; the alloy, foil and defects are made up.',
   material: {
     name: 'Tenalloy 7 (invented)',
@@ -52,6 +52,19 @@ export const DEMO_SCENARIO = {
     { type: 'dislocation', label: 'C (screw, parallel to foil)', b: '1/2[1 -1 0]', line: [1, -1, 0], point_nm: [-10, 50, 45] },
     { type: 'dissociated', label: 'D (dissociated screw)', b: '1/2[1 1 0]', plane: [1, -1, 1], line: [1, 1, 0], point_nm: [-40, 35, 60] },
     { type: 'inclusion', label: 'E (coherent particle)', centre_nm: [42, 38, 50], radius_nm: 6, misfit: 0.02 },
+    // a small hexagonal Frank loop on (111), edges along <110> (vertices on the in-plane axes e1 = beam x n, e2 = n x e1):
+    // b = +1/3[1 1 1] along the normal, a vacancy loop enclosing an intrinsic fault
+    {
+      type: 'loop',
+      label: 'F (Frank loop, intrinsic fault)',
+      b: '1/3[1 1 1]',
+      normal: [1, 1, 1],
+      centre_nm: [-25, -12, 60],
+      vertices_nm: [[4, 0], [2, 3.464], [-2, 3.464], [-4, 0], [-2, -3.464], [2, -3.464]],
+      fault: 'intrinsic',
+    },
+    // a perfect prismatic loop of radius 1.5 nm just below the entrance surface: a black-white dot
+    { type: 'loop', label: 'H (small prismatic loop near the surface)', b: '1/2[1 1 0]', normal: [1, 1, 0], centre_nm: [-50, 8, 6], radius_nm: 1.5 },
   ],
   candidates: ['1/2<110>'],
 };

@@ -44,6 +44,7 @@ export type { PartialSpec } from '../defects/partial.js';
 export type { DissociatedSpec } from '../defects/dissociated.js';
 export type { FaultSpec } from '../defects/fault.js';
 export type { InclusionSpec } from '../defects/inclusion.js';
+export type { LoopSpec } from '../defects/loop.js';
 
 export interface CandidateSpec {
   readonly label: string;

@@ -46,6 +46,7 @@ const BASE = {
     { type: 'dislocation', label: 'P', b: '1/2[1 0 1]', line: [1, 1, 2], point_nm: [0, 0, 30] },
     { type: 'fault', plane: [1, 1, 1], nature: 'intrinsic', point_nm: [0, 0, 30] },
     { type: 'inclusion', centre_nm: [5, 5, 30], radius_nm: 3, misfit: 0.02 },
+    { type: 'loop', b: '1/3[1 1 1]', normal: [1, 1, 1], centre_nm: [-5, 5, 30], radius_nm: 4, fault: 'intrinsic' },
   ],
   candidates: ['1/2<110>'],
 };

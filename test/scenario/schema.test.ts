@@ -77,6 +77,9 @@ const BAD: [string, unknown][] = [
   ['a fault nature misspelt', defect({ type: 'fault', plane: [1, 1, 1], nature: 'intrinsik' })],
   ['an inclusion with misfit 0.5', defect({ type: 'inclusion', centre_nm: [0, 0, 50], radius_nm: 5, misfit: 0.5 })],
   ['an inclusion with misfit and strain', defect({ type: 'inclusion', centre_nm: [0, 0, 50], radius_nm: 5, misfit: 0.01, strain: 0.01 })],
+  ['a loop with radius and vertices', defect({ type: 'loop', b: '1/3[1 1 1]', normal: [1, 1, 1], centre_nm: [0, 0, 50], radius_nm: 5, vertices_nm: [[0, 0], [1, 0], [0, 1]] })],
+  ['a loop without normal', defect({ type: 'loop', b: '1/3[1 1 1]', centre_nm: [0, 0, 50], radius_nm: 5 })],
+  ['a loop vertex of three numbers', defect({ type: 'loop', b: '1/3[1 1 1]', normal: [1, 1, 1], centre_nm: [0, 0, 50], vertices_nm: [[0, 0, 0], [1, 0, 0], [0, 1, 0]] })],
   ['a point with two coordinates', defect({ type: 'dislocation', b: '1/2[1 1 0]', line: [1, -1, 2], point_nm: [0, 0] })],
   ['a micrograph field "bright"', with_({ micrographs: { g200: { field: 'bright' } } })],
   ['a micrograph crop of 3 numbers', with_({ micrographs: { g200: { crop: [0, 0, 10] } } })],
@@ -94,6 +97,10 @@ const PARSER_ONLY: [string, unknown][] = [
   ['g not perpendicular to the beam', cond({ g: [1, 1, 1], w: 0.5 })],
   ['a forbidden reflection (fcc 100)', with_({ conditions: [{ id: 'g100', g: [1, 0, 0], w: 0.5 }] })],
   ['an index string that is not indices', defect({ type: 'dislocation', b: '1/2[1 1 0]', line: 'one two three', point_nm: [0, 0, 50] })],
+  ['a loop fault misspelt (the schema takes any string as a vector)', defect({ type: 'loop', b: '1/3[1 1 1]', normal: [1, 1, 1], centre_nm: [0, 0, 50], radius_nm: 5, fault: 'intrinsik' })],
+  ['a loop cut by the entrance surface', defect({ type: 'loop', b: '1/3[1 1 1]', normal: [1, 1, 1], centre_nm: [0, 0, 3], radius_nm: 10 })],
+  ['a loop whose fault does not match b', defect({ type: 'loop', b: '1/3[1 1 1]', normal: [1, 1, 1], centre_nm: [0, 0, 50], radius_nm: 5, fault: 'extrinsic' })],
+  ['a loop polygon with crossing edges', defect({ type: 'loop', b: '1/2[1 1 0]', normal: [1, 1, 0], centre_nm: [0, 0, 50], vertices_nm: [[0, 0], [4, 4], [4, 0], [0, 4]] })],
   ['a foil tilted by 85 degrees', with_({ foil: { thickness_nm: 100, normal: [1, 0, 0.08] } })],
 ];
 
