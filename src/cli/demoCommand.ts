@@ -64,7 +64,8 @@ async function demoMain(sc: ReturnType<typeof parseScenario>, demo: object, set:
       process.stdout.write(`\n${d.label}: partial separation ${sig(dissociationWidth_nm(sc.material, d, undefined, sc.elasticity), 3)} nm (${sc.elasticity} equilibrium width for ${sc.material.stackingFaultEnergy_mJ_per_m2} mJ/m^2)\n`);
     }
   }
-  const fr = faultReport(sc);
+  // loop read-outs render every loop several times per condition: `thinfoil nature` gives them
+  const fr = faultReport(sc, undefined, { loops: false });
   const frText = formatFaults(fr.faults) + formatInclusions(fr.inclusions);
   if (frText) {
     set.write('faults-and-inclusions.txt', frText);
