@@ -76,7 +76,8 @@ async function demoMain(sc: ReturnType<typeof parseScenario>, demo: object, set:
       process.stdout.write(`\n${d.label}: ${loopNature(sc.material, d)} loop, b = ${formatVector(d.b)}, ${fault}; g.b: ${gb} (isotropic infinite-medium field)\n`);
     }
   }
-  const fr = faultReport(sc);
+  // loop read-outs render every loop several times per condition: `thinfoil nature` gives them
+  const fr = faultReport(sc, undefined, { loops: false });
   const frText = formatFaults(fr.faults) + formatInclusions(fr.inclusions);
   if (frText) {
     set.write('faults-and-inclusions.txt', frText);

@@ -93,8 +93,9 @@ program
   .action(run(() => import('./blochCommand.js'), 'blochCommand'));
 
 program
-  .command('fault')
-  .description('fault nature (intrinsic / extrinsic outer fringes) and inclusion misfit sign, by simulation')
+  .command('nature')
+  .alias('fault')
+  .description('fault nature (outer fringes), inclusion misfit sign and loop nature (inside-outside, black-white lobes), by simulation')
   .argument('<scenario>', 'scenario file (JSON)')
   .option('--json', 'JSON on stdout')
   .option('--progress-json', 'progress as JSON lines {"progress", "stage"} on stderr (a bar is drawn on a terminal otherwise)')

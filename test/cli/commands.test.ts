@@ -29,6 +29,21 @@ describe('thinfoil fault', () => {
     expect(g022.readings[0].bf.top).toBe('none');
     expect(j.inclusions.length).toBe(3);
   });
+  it('`nature` (the same command) reads loop nature from a simulated +g/-g pair and black-white lobes of a small loop', () => {
+    // the physics of these readings is checked in test/analysis/loopReadout.test.ts; here the plumbing
+    const r = run('nature', 'scenarios/copper-loop-nature.json', '--json');
+    expect(r.code, r.err).toBe(0);
+    const j = JSON.parse(r.out);
+    expect(j.loops.length).toBe(2);
+    const [big, small] = j.loops;
+    expect(big.pair).toBe('+g outside and -g inside: vacancy; +g inside and -g outside: interstitial');
+    expect(small.small).toBe(true);
+    expect(small.natures[0].depthSeries.length).toBe(12);
+    const t = run('nature', 'scenarios/copper-loop-nature.json');
+    expect(t.code, t.err).toBe(0);
+    expect(t.out).toMatch(/A \(25 nm\), g220: \+g outside and -g inside: vacancy/);
+    expect(t.out).toMatch(/sign of l\.g with depth/);
+  }, 120_000);
   it('says so when there is nothing to analyse', () => {
     const r = run('fault', 'scenarios/copper-dislocations.json');
     expect(r.code).toBe(0);
