@@ -27,7 +27,7 @@
 import { sig } from '../format.js';
 import type { PreparedMicrograph } from './identifyMicrographs.js';
 import { immerkaerSigma, structureRatio } from './noiseEstimate.js';
-import type { Verdict } from './ranking.js';
+import { pairStats, type Verdict } from './ranking.js';
 
 /** Above this structure ratio a residual is "well above the noise" (pure white noise gives about 1). */
 export const STRUCTURE_LIMIT = 4;
@@ -90,14 +90,7 @@ export interface ConsistencyFlag {
 
 /** Free-scale R2 of a micrograph c and a window s (both plane-removed): cs^2 / (ss cc) for cs > 0. */
 export function freeR2(c: Float64Array, s: Float64Array): number {
-  let cs = 0;
-  let ss = 0;
-  let cc = 0;
-  for (let k = 0; k < c.length; k++) {
-    cs += c[k] * s[k];
-    ss += s[k] * s[k];
-    cc += c[k] * c[k];
-  }
+  const { cs, ss, cc } = pairStats(c, s);
   return cs > 0 && ss > 0 && cc > 0 ? (cs * cs) / (ss * cc) : 0;
 }
 

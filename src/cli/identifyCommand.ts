@@ -31,15 +31,12 @@ import { identificationCandidates } from '../analysis/candidates.js';
 import { measuredInputs, simulateCandidates } from '../analysis/identify.js';
 import { InternalError } from '../errors.js';
 import {
-  fingerprint,
+  commitShard,
   parseShard,
   readArray,
   sha256,
   shardItems,
   ShardData,
-  SHARD_DATA,
-  SHARD_FORMAT,
-  SHARD_MANIFEST,
   printShard,
   type LoadedShard,
   type ShardInput,
@@ -217,24 +214,11 @@ export async function runIdentifyShard(
     const data = new ShardData();
     const items = mine.map((k, j) => ({ index: k, label: candidates[k].label, arrays: sims[j].map((a) => data.add(a)) }));
     const bytes = data.toBytes();
-    const manifest: ShardManifest = {
-      format: SHARD_FORMAT,
-      kind: 'identify',
-      shard,
-      fingerprint: fingerprint('identify', p.scenarioInput, p.micrographInputs, p.options),
-      cwd: process.cwd(),
-      scenario: p.scenarioInput,
-      micrographs: p.micrographInputs,
-      options: p.options,
-      total: candidates.length,
-      items,
-      dataBytes: bytes.length,
-      dataSha256: sha256(bytes),
-      seconds,
-    };
-    set.write(SHARD_DATA, bytes);
-    set.write(SHARD_MANIFEST, `${jsonText(manifest, 2)}\n`);
-    set.commit();
+    const manifest = commitShard(
+      set,
+      { kind: 'identify', shard, scenario: p.scenarioInput, micrographs: p.micrographInputs, options: p.options, total: candidates.length, items, seconds },
+      bytes,
+    );
     return { dir: set.dir, manifest };
   } catch (e) {
     set.abort();

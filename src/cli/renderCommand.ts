@@ -13,7 +13,7 @@ import { parseScenario } from '../scenario/parse.js';
 import { resolveCondition } from '../imaging/resolveCondition.js';
 import { excerpt, InternalError } from '../errors.js';
 import { MAX_SCENARIO_BYTES } from './readInput.js';
-import { fingerprint, parseShard, printShard, readArray, readRecordedInput, sha256, shardItems, ShardData, SHARD_DATA, SHARD_FORMAT, SHARD_MANIFEST, type LoadedShard, type ShardManifest } from './shard.js';
+import { commitShard, fingerprint, parseShard, printShard, readArray, readRecordedInput, sha256, shardItems, ShardData, type LoadedShard, type ShardManifest } from './shard.js';
 import { slug } from './slug.js';
 import { printJson, sig, table } from './run.js';
 import { progressBar } from './progress.js';
@@ -269,24 +269,7 @@ export async function renderShard(file: string, opts: RenderOptions & { shard: s
     const out = data.toBytes();
     const scenario = { path: file, sha256: sha256(bytes) };
     const options = renderShardOptions(opts);
-    const manifest: ShardManifest = {
-      format: SHARD_FORMAT,
-      kind: 'render',
-      shard,
-      fingerprint: fingerprint('render', scenario, [], options),
-      cwd: process.cwd(),
-      scenario,
-      micrographs: [],
-      options,
-      total: sc.conditions.length,
-      items,
-      dataBytes: out.length,
-      dataSha256: sha256(out),
-      seconds,
-    };
-    set.write(SHARD_DATA, out);
-    set.write(SHARD_MANIFEST, `${jsonText(manifest, 2)}\n`);
-    set.commit();
+    const manifest = commitShard(set, { kind: 'render', shard, scenario, micrographs: [], options, total: sc.conditions.length, items, seconds }, out);
     return { dir: set.dir, manifest };
   } catch (e) {
     set.abort();

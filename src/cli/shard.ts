@@ -15,6 +15,8 @@ import { createHash } from 'node:crypto';
 import { join, resolve } from 'node:path';
 import { excerpt, InputError } from '../errors.js';
 import { readInputFile } from './readInput.js';
+import type { OutputSet } from '../output/outputSet.js';
+import { jsonText } from '../output/json.js';
 import { printJson, sig } from './run.js';
 
 export const SHARD_MANIFEST = 'shard.json';
@@ -90,6 +92,29 @@ export interface ShardManifest {
   readonly dataBytes: number;
   readonly dataSha256: string;
   readonly seconds: number;
+}
+
+/**
+ * Writes a shard (its data and its manifest, completed here with the format, the fingerprint of its inputs and
+ * options, the working folder and the data's size and hash) into its output set and commits the set.
+ */
+export function commitShard(
+  set: OutputSet,
+  part: Omit<ShardManifest, 'format' | 'fingerprint' | 'cwd' | 'dataBytes' | 'dataSha256'>,
+  data: Uint8Array,
+): ShardManifest {
+  const manifest: ShardManifest = {
+    format: SHARD_FORMAT,
+    ...part,
+    fingerprint: fingerprint(part.kind, part.scenario, part.micrographs, part.options),
+    cwd: process.cwd(),
+    dataBytes: data.length,
+    dataSha256: sha256(data),
+  };
+  set.write(SHARD_DATA, data);
+  set.write(SHARD_MANIFEST, `${jsonText(manifest, 2)}\n`);
+  set.commit();
+  return manifest;
 }
 
 /**
