@@ -83,6 +83,12 @@ async function demoMain(sc: ReturnType<typeof parseScenario>, demo: object, set:
     set.write('faults-and-inclusions.txt', frText);
     process.stdout.write(`\nfault nature and misfit sign read-outs (simulated):\n${frText}`);
   }
+  if (sc.defects.some((d) => d.type === 'loop')) {
+    process.stdout.write(
+      '\nloop nature (inside-outside contrast at +g and -g, black-white lobes of small loops): not run here, it renders each loop\n' +
+        `a few thousand columns per condition; run  npx thinfoil nature ${set.finalPath('scenario.json')}\n`,
+    );
+  }
 }
 
 /**
