@@ -51,7 +51,11 @@ export async function goldenSection(f: (x: number) => number | Promise<number>, 
   let d = a + GOLD * (b - a);
   let fc = await ev(c);
   let fd = await ev(d);
-  while (b - a > tol && evaluations < maxEvaluations) {
+  // While the bracket still touches an end of [lo, hi], one evaluation is kept
+  // back for that end: interior points alone never come nearer to it than
+  // GOLD^n of the range, so a minimum at the bound would otherwise be missed.
+  const touches = () => a === lo || b === hi;
+  while (b - a > tol && evaluations < maxEvaluations - (touches() ? 1 : 0)) {
     if (fc <= fd) {
       b = d;
       d = c;
@@ -66,6 +70,8 @@ export async function goldenSection(f: (x: number) => number | Promise<number>, 
       fd = await ev(d);
     }
   }
+  if (a === lo && evaluations < maxEvaluations) await ev(lo);
+  if (b === hi && evaluations < maxEvaluations) await ev(hi);
   return { x: [bestX], value: bestV, evaluations };
 }
 
