@@ -269,4 +269,12 @@ describe('thinfoil visibility', () => {
     expect(text.code).toBe(0);
     expect(text.out).toMatch(/g200/);
   });
+  it('--help of render states each default once and never "(default: [])"', () => {
+    const h = run('render', '--help');
+    expect(h.code).toBe(0);
+    expect(h.out).not.toMatch(/default: \[\]/);
+    expect(h.out.replace(/\s+/g, ' ')).not.toMatch(/\(default[^()]*\) \(default/);
+    expect(h.out.replace(/\s+/g, ' ')).toMatch(/"each" \(default: "shared"\)/);
+    expect(h.out.replace(/\s+/g, ' ')).toMatch(/simulated images \(default: 0\)/);
+  });
 });

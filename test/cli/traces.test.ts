@@ -81,4 +81,11 @@ describe('thinfoil traces', () => {
     expect(r.err.trim().split('\n').length).toBe(1);
     expect(r.err).not.toMatch(/\n\s+at /);
   });
+  it('--help of traces states each default once and never "(default: [])"', () => {
+    const h = run('traces', '--help');
+    expect(h.code).toBe(0);
+    expect(h.out).not.toMatch(/default: \[\]/);
+    expect(h.out.replace(/\s+/g, ' ')).not.toMatch(/\(default[^()]*\) \(default/);
+    expect(h.out.replace(/\s+/g, ' ')).toMatch(/repeat for more \(default: the scenario's candidates\)/);
+  });
 });
