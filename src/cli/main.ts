@@ -112,7 +112,7 @@ program
   .option('--json', 'one JSON object on stdout: ranking and verdict')
   .option('--defect <index>', 'which defect to identify (default 0)')
   .option('--top <n>', 'leading candidates fully registered, resampled and shown (default 4)')
-  .option('--bootstrap <n>', 'bootstrap copies for the noise of the scores (default 50)')
+  .option('--bootstrap <n>', 'bootstrap copies for the noise of the scores, 2 to 1000 (default 50)')
   .option('--seed <n>', 'seed of the bootstrap (default 1)')
   .option('--shard <k/n>', 'simulate only candidates k, k+n, k+2n, ... (the k-th of n shares, k from 1) into shard files for `thinfoil merge`')
   .option('--progress-json', 'progress as JSON lines {"progress", "stage"} on stderr (a bar is drawn on a terminal otherwise)')

@@ -241,6 +241,8 @@ describe('thinfoil identify: bad input gives exit code 2 and one sentence', () =
     ['a malformed --micrograph', () => ({ micrograph: ['g200'] }), /--micrograph "g200" must be <conditionId>=<file>/],
     ['no micrograph', () => ({}), /no micrograph given/],
     ['a bad --top', () => ({ micrograph: args, top: 'x' }), /--top "x" must be a whole number/],
+    // no bootstrap copies would make the gap's standard deviation 0 and exclude candidates on noise alone
+    ['--bootstrap 0', () => ({ micrograph: args, bootstrap: '0' }), /^thinfoil: --bootstrap "0" must be a whole number between 2 and 1000/],
   ])('%s', async (_what, opts, pattern) => {
     const r = await runAction(scenarioFile, opts());
     expect(r.thrown).toBe('exit 2');
