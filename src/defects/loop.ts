@@ -235,7 +235,7 @@ export const loop: DefectType<LoopSpec> = {
       w.push(`${ctx.where}: the loop plane contains the beam (seen edge-on), so the loop shows as a line and an enclosed fault shows no fringes`);
     }
     const pixel = ctx.sc.image.pixel_nm;
-    if (2 * reach < 2 * pixel) w.push(`${ctx.where}: the loop is smaller than two pixels (${pixel} nm); its image is only its strain field`);
+    if (2 * reach < 2 * pixel) w.push(`${ctx.where}: the loop (${sig(2 * reach, 3)} nm across in the image) is smaller than two pixels of ${pixel} nm; its image is only its strain field`);
     if (d.fault === undefined && !isLatticeTranslation(ctx.sc.material, d.b)) {
       w.push(`${ctx.where}: b = ${formatVector(d.b)} is not a lattice translation, so the loop encloses a fault with fault vector b (name it with "fault")`);
     }
