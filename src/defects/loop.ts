@@ -145,6 +145,7 @@ function readFault(v: unknown, path: string, m: Material, b: Vec3, normal: Vec3)
     vector = [h[0] * k, h[1] * k, h[2] * k];
   } else {
     if (typeof v === 'string' && !/[[\d]/.test(v)) fail(path, `"${v}" is not a fault; use "intrinsic", "extrinsic" or a fault vector such as "1/3[1 1 1]"`);
+    if (typeof v !== 'string' && !Array.isArray(v)) fail(path, `${JSON.stringify(v)} is not a fault; use "intrinsic", "extrinsic" or a fault vector such as "1/3[1 1 1]"`);
     vector = readVector(v, path, m);
   }
   const diff: Vec3 = [b[0] - vector[0], b[1] - vector[1], b[2] - vector[2]];
