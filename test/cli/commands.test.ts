@@ -44,7 +44,7 @@ describe('thinfoil fault', () => {
     expect(t.out).toMatch(/A \(25 nm\), g220: \+g outside and -g inside: vacancy/);
     expect(t.out).toMatch(/sign of l\.g with depth/);
   }, 120_000);
-  it('at w = 0 (or a weak beam, w far above 1) the loop line suggests s > 0 with |w| near 1 (README), not "a larger |w|"', () => {
+  it('at w = 0 the loop line suggests s > 0 with |w| near 1 (README), not "a larger |w|"', () => {
     const dir = mkdtempSync(join(tmpdir(), 'thinfoil-loop-w0-'));
     const sc = JSON.parse(readFileSync(join(ROOT, 'scenarios', 'copper-loop-nature.json'), 'utf8'));
     sc.conditions = [{ id: 'g220', g: [2, 2, 0], w: 0 }];
