@@ -6,7 +6,8 @@
  *  - goldenSection: one parameter in [lo, hi], golden-section search
  *    (Kiefer 1953, "Sequential minimax search for a maximum"; Press et al.,
  *    Numerical Recipes 3rd ed. 2007, section 10.2). Returns the best point
- *    evaluated, the bracket ends included.
+ *    evaluated, including the end of [lo, hi] that the final bracket still
+ *    touches (one of the maxEvaluations is kept for it).
  *  - nelderMead: several parameters in a box, the downhill simplex of
  *    Nelder & Mead 1965 (Computer Journal 7, 308) with the standard
  *    coefficients (reflection 1, expansion 2, contraction 1/2, shrink 1/2;
