@@ -6,7 +6,8 @@
  *  - goldenSection: one parameter in [lo, hi], golden-section search
  *    (Kiefer 1953, "Sequential minimax search for a maximum"; Press et al.,
  *    Numerical Recipes 3rd ed. 2007, section 10.2). Returns the best point
- *    evaluated, the bracket ends included.
+ *    evaluated, including the end of [lo, hi] that the final bracket still
+ *    touches (one of the maxEvaluations is kept for it).
  *  - nelderMead: several parameters in a box, the downhill simplex of
  *    Nelder & Mead 1965 (Computer Journal 7, 308) with the standard
  *    coefficients (reflection 1, expansion 2, contraction 1/2, shrink 1/2;
@@ -51,7 +52,11 @@ export async function goldenSection(f: (x: number) => number | Promise<number>, 
   let d = a + GOLD * (b - a);
   let fc = await ev(c);
   let fd = await ev(d);
-  while (b - a > tol && evaluations < maxEvaluations) {
+  // While the bracket still touches an end of [lo, hi], one evaluation is kept
+  // back for that end: interior points alone never come nearer to it than
+  // GOLD^n of the range, so a minimum at the bound would otherwise be missed.
+  const touches = () => a === lo || b === hi;
+  while (b - a > tol && evaluations < maxEvaluations - (touches() ? 1 : 0)) {
     if (fc <= fd) {
       b = d;
       d = c;
@@ -66,6 +71,8 @@ export async function goldenSection(f: (x: number) => number | Promise<number>, 
       fd = await ev(d);
     }
   }
+  if (a === lo && evaluations < maxEvaluations) await ev(lo);
+  if (b === hi && evaluations < maxEvaluations) await ev(hi);
   return { x: [bestX], value: bestV, evaluations };
 }
 

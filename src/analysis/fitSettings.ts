@@ -50,6 +50,7 @@ export function parseFitSettings(raw: unknown): FitSettings {
   if (o.thicknessError_nm !== undefined) {
     if (o.thickness_nm === undefined) fail(at('thicknessError_nm'), 'needs the measured "thickness_nm" beside it');
     s.thicknessError_nm = number(o.thicknessError_nm, at('thicknessError_nm'), { above: 0, max: 0.45 * (o.thickness_nm as number), unit: 'nm, below 45 % of the thickness' });
+    if (o.thicknessRange !== undefined) fail(at('thicknessRange'), 'is not used beside a measured thickness with "thicknessError_nm" (that one is fitted within 2 of its uncertainties); remove one of the two');
   }
   if (o.depthRange_nm !== undefined) s.depthRange_nm = number(o.depthRange_nm, at('depthRange_nm'), { min: 0, max: 100000, unit: 'nm' });
   if (o.lineCone_deg !== undefined) s.lineCone_deg = number(o.lineCone_deg, at('lineCone_deg'), { min: 0, max: 30, unit: 'degrees' });

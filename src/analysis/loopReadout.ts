@@ -103,7 +103,10 @@ export function insideOutsideRule(gb: number, s_per_nm: number, nDotBeam: number
   return Math.abs(gb) < 1e-9 || s_per_nm === 0 || Math.abs(nDotBeam) < 1e-9 ? 'undecided' : v > 0 ? 'outside' : 'inside';
 }
 
-/** Darkness (fraction of the incident beam) below which a loop shows no image. */
+/**
+ * Dark-field excess (fraction of the incident beam) below which a loop shows no image; where the
+ * perfect-crystal dark field is itself weaker (a weak beam), an excess equal to that background counts.
+ */
 const MIN_CONTRAST = 0.01;
 /** The image side is read only when its peak beats the other side's by this factor. */
 const PEAK_MARGIN = 1.2;
@@ -149,6 +152,8 @@ interface Evaluated {
   readonly rc: ResolvedCondition;
   /** Dark-field intensity minus background at an image point (nm, the condition's frame). */
   df(x: number, y: number): number;
+  /** Perfect-crystal dark-field intensity (fraction of the incident beam). */
+  readonly bg: number;
   /** The loop centre and outline projected into the condition's image (nm). */
   readonly centre: readonly [number, number];
   readonly line: readonly (readonly [number, number])[];
@@ -167,6 +172,7 @@ function evaluate(sc: Scenario, d: LoopSpec, b: Vec3, c: Condition, depth_nm?: n
   const proj = (p: Vec3): [number, number] => [dot(p, fr.ex), dot(p, fr.ey)];
   return {
     rc,
+    bg,
     df(x, y) {
       ev.column(a, x, y);
       return a[2] * a[2] + a[3] * a[3] - bg;
@@ -227,7 +233,7 @@ function sideOf(e: Evaluated, reach_nm: number, exclude_nm: number, points: numb
   }
   const contrast = profile[best];
   const side: Side =
-    contrast < MIN_CONTRAST ? 'no contrast' : contrast < PEAK_MARGIN * Math.max(0, profile[other]) ? 'unclear' : offset > 0 ? 'outside' : 'inside';
+    contrast < Math.min(MIN_CONTRAST, e.bg) ? 'no contrast' : contrast < PEAK_MARGIN * Math.max(0, profile[other]) ? 'unclear' : offset > 0 ? 'outside' : 'inside';
   return { side, offset_nm: offset, contrast };
 }
 

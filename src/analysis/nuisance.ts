@@ -9,6 +9,7 @@
  * |a|, |b| <= cone outside the disc are pulled back onto its rim, so the
  * tilt never exceeds the cone.
  */
+import { InputError } from '../errors.js';
 import type { Vec3 } from '../math/vec3.js';
 import { add, cross, dot, norm, scale, unit } from '../math/vec3.js';
 import { cartesianToDirection, directionToCartesian } from '../crystal/lattice.js';
@@ -52,6 +53,10 @@ export function nuisanceModel(sc: Scenario, cand: Candidate, micrographs: readon
   const point = pointOf(d0);
   const depthIndex = point === undefined ? -1 : params.length;
   if (point !== undefined) {
+    if (tMeasured && point[2] >= t0 + tHalf)
+      throw new InputError(
+        `fit.thickness_nm: the measured thickness ${t0} nm (at most ${t0 + tHalf} nm within ${fit.thicknessError_nm !== undefined ? '2 of its uncertainties' : 'fit.thicknessRange'}) leaves the depth ${point[2]} nm of the defect's point below the foil; check the measured thickness or give the defect's depth (its point_nm or centre_nm) within the foil`,
+      );
     const half = fit.depthRange_nm ?? 0.25 * t0;
     params.push({ name: 'depth', unit: 'nm', nominal: point[2], lo: Math.max(0, point[2] - half), hi: Math.min(t0 + tHalf, point[2] + half), scope: 'shared', from: fit.depthRange_nm === undefined ? 'default range' : 'scenario range' });
   }

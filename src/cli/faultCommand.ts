@@ -78,7 +78,7 @@ export function formatLoops(rows: readonly LoopConditionReading[]): string {
     }
     if (r.note) pairs.push(`  ${r.loop}, ${r.condition}: ${r.note}`);
     else if (r.pair) pairs.push(`  ${r.loop}, ${r.condition}: ${r.pair}`);
-    else pairs.push(`  ${r.loop}, ${r.condition}: the simulated +g/-g pair does not separate the natures here; choose another g or a larger |w|`);
+    else pairs.push(`  ${r.loop}, ${r.condition}: the simulated +g/-g pair does not separate the natures here; choose another g, or s > 0 with |w| near 1`);
   }
   return (
     table(['loop', 'condition', 'g', 'w', 'nature', 'b', 'g.b', 'rule at +g', 'image at +g', 'image at -g', 'black-white l (+g)'], body) +

@@ -130,7 +130,8 @@ function prepareIdentify(scenarioFile: string, opts: IdentifyCommandOptions, bas
   const args = opts.micrograph === undefined ? [] : Array.isArray(opts.micrograph) ? opts.micrograph : [opts.micrograph];
   const defectIndex = intOption('--defect', opts.defect, 0, Math.max(0, sc.defects.length - 1), 0);
   const top = intOption('--top', opts.top, 1, 8, 4);
-  const B = intOption('--bootstrap', opts.bootstrap, 0, MAX_BOOTSTRAP, 50);
+  // at least 2: the standard deviation of the gap needs two copies (0 would silently drop the noise from the verdict)
+  const B = intOption('--bootstrap', opts.bootstrap, 2, MAX_BOOTSTRAP, 50);
   const seed = intOption('--seed', opts.seed, 0, 2 ** 31 - 1, 1);
   const inputs = args.map((a) => readMicrograph(a, base));
   // the direction of g on a micrograph cannot be guessed: a wrong angle ranks the wrong candidate first

@@ -62,8 +62,8 @@ program
   .description('bright- and dark-field images of every condition of a scenario')
   .argument('<scenario>', 'scenario file (JSON)')
   .option('--out <dir>', 'output folder (default out/<scenario name>)')
-  .option('--contrast <mode>', 'grey scale of the figures: "shared" (one scale for all conditions, default) or "each"', userOption(parseContrast), 'shared')
-  .option('--blur-nm <sigma>', 'Gaussian point spread (standard deviation, nm) applied to the simulated images (default 0)', userOption(parseBlurNm), 0)
+  .option('--contrast <mode>', 'grey scale of the figures: "shared" (one scale for all conditions) or "each"', userOption(parseContrast), 'shared')
+  .option('--blur-nm <sigma>', 'Gaussian point spread (standard deviation, nm) applied to the simulated images', userOption(parseBlurNm), 0)
   .option('--json', 'one JSON object on stdout listing the images')
   .option('--progress-json', 'progress as JSON lines {"progress", "stage"} on stderr (a bar is drawn on a terminal otherwise)')
   .option('--each-column', 'integrate every column on its own, also where straight defects let columns share one long column (slower; for checking)')
@@ -101,17 +101,18 @@ program
   .option('--progress-json', 'progress as JSON lines {"progress", "stage"} on stderr (a bar is drawn on a terminal otherwise)')
   .action(run(() => import('./faultCommand.js'), 'faultCommand'));
 
-const collect = (v: string, prev: string[]) => [...prev, v];
+// repeatable options have no default value, so that commander's help shows no "(default: [])"
+const collect = (v: string, prev: string[] | undefined) => [...(prev ?? []), v];
 program
   .command('identify')
   .description('rank candidate defects against micrographs: simulate, register, score, verdict; writes a comparison figure and an HTML report')
   .argument('<scenario>', 'scenario file (JSON); per-micrograph settings under "micrographs"')
-  .option('--micrograph <conditionId=file>', 'a micrograph (PNG or TIFF) taken under one condition; repeat for each', collect, [])
+  .option('--micrograph <conditionId=file>', 'a micrograph (PNG or TIFF) taken under one condition; repeat for each', collect)
   .option('--out <dir>', 'output folder (default out/<scenario name>-identify)')
   .option('--json', 'one JSON object on stdout: ranking and verdict')
   .option('--defect <index>', 'which defect to identify (default 0)')
   .option('--top <n>', 'leading candidates fully registered, resampled and shown (default 4)')
-  .option('--bootstrap <n>', 'bootstrap copies for the noise of the scores (default 50)')
+  .option('--bootstrap <n>', 'bootstrap copies for the noise of the scores, 2 to 1000 (default 50)')
   .option('--seed <n>', 'seed of the bootstrap (default 1)')
   .option('--shard <k/n>', 'simulate only candidates k, k+n, k+2n, ... (the k-th of n shares, k from 1) into shard files for `thinfoil merge`')
   .option('--progress-json', 'progress as JSON lines {"progress", "stage"} on stderr (a bar is drawn on a terminal otherwise)')
@@ -171,9 +172,9 @@ program
   .command('traces')
   .description('line direction u of a straight dislocation from its traces in two or more beam directions: u with its uncertainty, planes containing u, glide planes of candidate b, inclination from a projected length')
   .argument('<material|scenario>', 'material name from `thinfoil materials`, or a scenario file (JSON) for its material, foil, conditions and candidates')
-  .option('--view <pairs>', 'one micrograph: "beam=U,V,W g=H,K,L gAngle=DEG lineAngle=DEG [error=DEG] [length=NM [lengthError=NM]]" or, with a scenario, "condition=ID lineAngle=DEG"; angles counter-clockwise from +x, +y down; repeat for each', collect, [])
+  .option('--view <pairs>', 'one micrograph: "beam=U,V,W g=H,K,L gAngle=DEG lineAngle=DEG [error=DEG] [length=NM [lengthError=NM]]" or, with a scenario, "condition=ID lineAngle=DEG"; angles counter-clockwise from +x, +y down; repeat for each', collect)
   .option('--angle-error <deg>', 'one-sigma error of each measured angle difference (line minus g), degrees (default 1)')
-  .option('--b <vector>', 'candidate Burgers vector for the glide planes, e.g. "1/2[1 1 0]" or a family "1/2<110>"; repeat for more (default: the scenario\'s candidates)', collect, [])
+  .option('--b <vector>', 'candidate Burgers vector for the glide planes, e.g. "1/2[1 1 0]" or a family "1/2<110>"; repeat for more (default: the scenario\'s candidates)', collect)
   .option('--thickness <nm>', 'foil thickness for the projected-length check (default: the scenario\'s)')
   .option('--thickness-error <nm>', 'one-sigma error of the thickness (default 0)')
   .option('--normal <uvw>', 'foil normal as a crystal direction (default: the scenario\'s)')

@@ -85,6 +85,7 @@ export function ribbonCommand(scenarioPath: string, opts: RibbonOptions): void {
   const simGAngle = screenAngle_deg(geo.c.frame, geo.c.g_cart);
   let lineAngle: number;
   let lineAngleFrom: string;
+  if (opts.lineAngle !== undefined && opts.gAngle !== undefined) throw new InputError('--line-angle and --g-angle: give one of the two (the line direction on the micrograph, or the direction of g, from which the scenario\'s line gives the line direction)');
   if (opts.lineAngle !== undefined) {
     lineAngle = numberOption('--line-angle', -360, 360, 'the direction of the line on the micrograph in degrees')(opts.lineAngle);
     lineAngleFrom = '--line-angle';
@@ -114,6 +115,7 @@ export function ribbonCommand(scenarioPath: string, opts: RibbonOptions): void {
   while (lo < hi && full.count[lo] === 0) lo++;
   while (hi > lo && full.count[hi] === 0) hi--;
   const reach = Math.min(-full.x_nm[lo], full.x_nm[hi]);
+  if (!(reach > 2 * bin) && opts.binNm !== undefined && bin > pixel_nm) throw new InputError(`--bin-nm: bins of ${sig(bin, 3)} nm leave fewer than two bins on one side of the centre (within --half-width ${sig(halfWidth, 3)} nm and the micrograph); give a smaller --bin-nm or a centre farther from the edge`);
   if (!(reach > 2 * bin)) throw new InputError('--centre: the profile reaches the micrograph\'s edge on one side within two bins; give a point on the ribbon farther from the edge');
   const keep = (k: number) => Math.abs(full.x_nm[k]) <= reach;
   const idx = [...full.x_nm.keys()].filter(keep);

@@ -31,8 +31,9 @@ import { numberOption } from './options.js';
 import { printJson, sig, table } from './run.js';
 
 export interface TracesOptions {
-  view: string[];
-  b: string[];
+  /** Repeatable options: undefined when not given. */
+  view?: string[];
+  b?: string[];
   angleError?: string;
   thickness?: string;
   thicknessError?: string;
@@ -121,7 +122,7 @@ function candidateVectors(opts: TracesOptions, m: Material, sc: Scenario | undef
   const add = (b: Vec3) => {
     if (!out.some((x) => same(x, b, 1) || same(x, b, -1))) out.push(b);
   };
-  opts.b.forEach((text, i) => {
+  (opts.b ?? []).forEach((text, i) => {
     const field = `--b ${i + 1}`;
     if (/[<>{}]/.test(text)) {
       const f = parseFamily(text, m, { collapseSign: true, field });
@@ -129,14 +130,16 @@ function candidateVectors(opts: TracesOptions, m: Material, sc: Scenario | undef
       f.members.forEach(add);
     } else add(readVector(text, field, m));
   });
-  if (opts.b.length === 0 && sc !== undefined) sc.candidates.forEach((c) => add(c.b));
+  if ((opts.b ?? []).length === 0 && sc !== undefined) sc.candidates.forEach((c) => add(c.b));
   return out;
 }
 
-const f1 = (x: number) => sig(x, 3);
+// degrees and nm: below 1e-9 is rounding noise of an exact zero (a line lying in a plane), printed as 0
+const f1 = (x: number) => sig(Math.abs(x) < 1e-9 ? 0 : x, 3);
 const bText = (m: Material, b: Vec3) => formatDirectionIn(m.lattice, b);
 
-export function tracesCommand(subject: string, opts: TracesOptions): void {
+export function tracesCommand(subject: string, given: TracesOptions): void {
+  const opts = { ...given, view: given.view ?? [], b: given.b ?? [] };
   let m: Material;
   let sc: Scenario | undefined;
   let raw: Record<string, unknown> | undefined;
@@ -222,7 +225,7 @@ export function tracesCommand(subject: string, opts: TracesOptions): void {
   }
 
   const out: string[] = [];
-  out.push(`line direction u = ${directionText(fit.u)}  (${m.name}; unit Cartesian ${fit.u_cart.map((x) => sig(x, 4)).join(', ')})`);
+  out.push(`line direction u = ${directionText(fit.u)}  (${m.name}; unit Cartesian ${fit.u_cart.map((x) => sig(Math.abs(x) < 1e-12 ? 0 : x, 4)).join(', ')})`);
   out.push(`  one-sigma uncertainty: ${f1(fit.sigmaMajor_deg)} x ${f1(fit.sigmaMinor_deg)} degrees (cone ${f1(fit.cone_deg)} degrees), from the stated angle errors`);
   out.push(`  nearest low-index direction ${fit.nearest.text} at ${f1(fit.nearest.angle_deg)} degrees${nearOk ? ' (within two sigma)' : ' (farther than two sigma: u is not that direction)'}`);
   if (fit.dof === 0) out.push('  two views fix u exactly (no check of the traces); a third view in another beam direction tests them');

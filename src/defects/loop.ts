@@ -145,6 +145,7 @@ function readFault(v: unknown, path: string, m: Material, b: Vec3, normal: Vec3)
     vector = [h[0] * k, h[1] * k, h[2] * k];
   } else {
     if (typeof v === 'string' && !/[[\d]/.test(v)) fail(path, `"${v}" is not a fault; use "intrinsic", "extrinsic" or a fault vector such as "1/3[1 1 1]"`);
+    if (typeof v !== 'string' && !Array.isArray(v)) fail(path, `${JSON.stringify(v)} is not a fault; use "intrinsic", "extrinsic" or a fault vector such as "1/3[1 1 1]"`);
     vector = readVector(v, path, m);
   }
   const diff: Vec3 = [b[0] - vector[0], b[1] - vector[1], b[2] - vector[2]];
@@ -235,7 +236,7 @@ export const loop: DefectType<LoopSpec> = {
       w.push(`${ctx.where}: the loop plane contains the beam (seen edge-on), so the loop shows as a line and an enclosed fault shows no fringes`);
     }
     const pixel = ctx.sc.image.pixel_nm;
-    if (2 * reach < 2 * pixel) w.push(`${ctx.where}: the loop is smaller than two pixels (${pixel} nm); its image is only its strain field`);
+    if (2 * reach < 2 * pixel) w.push(`${ctx.where}: the loop (${sig(2 * reach, 3)} nm across in the image) is smaller than two pixels of ${pixel} nm; its image is only its strain field`);
     if (d.fault === undefined && !isLatticeTranslation(ctx.sc.material, d.b)) {
       w.push(`${ctx.where}: b = ${formatVector(d.b)} is not a lattice translation, so the loop encloses a fault with fault vector b (name it with "fault")`);
     }

@@ -62,6 +62,7 @@ export function describeSurfaces(sc: Scenario): SurfacesDescription {
     approximations.push('the screw image series, the plate twist and the half-space correction of inclined lines are isotropic (for inclined lines: the anisotropic field\'s own surface tractions, an isotropic response with the Voigt-average shear modulus), added to the anisotropic (Stroh) infinite field: the surface tractions are reduced, not exactly cancelled');
   }
   approximations.push('inclusions are not relaxed at the surfaces');
+  approximations.push('dislocation loops are not relaxed at the surfaces (isotropic infinite-medium field; a loop that a surface cuts is refused)');
   const count = n === 0 ? 'no straight lines in this scenario' : `${corrected} of ${n} straight line${n === 1 ? '' : 's'} corrected`;
   const SHORT: Readonly<Record<SurfaceCorrectionKind, string>> = {
     'parallel-stroh-images': ' (anisotropic half-space images of each surface)',

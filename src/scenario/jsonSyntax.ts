@@ -29,7 +29,7 @@ export function locateJsonError(text: string): JsonSyntaxError | null {
   const ws = () => {
     while (i < n && (text[i] === ' ' || text[i] === '\t' || text[i] === '\n' || text[i] === '\r')) i++;
   };
-  const shown = (k: number) => (k >= n ? 'the end of the file' : `"${text[k]}"`);
+  const shown = (k: number) => (k >= n ? 'end of the file' : `"${text[k]}"`);
   const unexpected = (k: number, expected: string): never => {
     if (text.startsWith('//', k) || text.startsWith('/*', k)) throw new Stop(k, 'a comment; JSON has no comments, remove it');
     throw new Stop(k, `unexpected ${shown(k)}, expected ${expected}`);

@@ -63,4 +63,14 @@ print(json.dumps(r.x))`,
     expect(r.evaluations).toBeLessThanOrEqual(12);
     expect(r.x[0]).toBeLessThan(-0.9);
   });
+  it('a minimum at a bound is found exactly with the 7 evaluations identify spends per w (so its 2 % range-edge flag can fire)', async () => {
+    // f(x) = x on [0.4, 0.6]: the minimum is at the bound 0.4 by inspection; interior golden-section
+    // points alone stop at 0.4 + 0.2 * GOLD^5 or so, 3 % of the range from it.
+    const up = await goldenSection((x) => x, 0.4, 0.6, 0.2 / 30, 7);
+    expect(up.x[0]).toBe(0.4);
+    expect(up.evaluations).toBeLessThanOrEqual(7);
+    const down = await goldenSection((x) => -x, 0.4, 0.6, 0.2 / 30, 7);
+    expect(down.x[0]).toBe(0.6);
+    expect(down.evaluations).toBeLessThanOrEqual(7);
+  });
 });

@@ -74,6 +74,18 @@ describe('inside-outside contrast of an inclined prismatic loop (radius 25 nm, C
     expect(p.pair).toContain(`+g ${vac.plus.side} and -g ${vac.minus.side}: vacancy`);
   });
 
+  it('a weak beam g(3g) (dark-field background below 1 % of the incident beam) still reads a side, as the rule says', () => {
+    // the weak-beam image of the loop is a sharp line (as `thinfoil render` of this loop shows); the side follows the same
+    // (g.b) s rule (Edington 1975; Williams & Carter 2009); before, a fixed 1 % threshold called it "no contrast"
+    const [wb] = analyseLoops(scenario(large, [{ id: 'wb', g: [2, 2, 0], weakBeam: 3 }]));
+    for (const x of wb.natures) {
+      expect(x.plus.side).toBe(x.rulePlus);
+      expect(x.minus.side).not.toBe(x.plus.side);
+      expect(['inside', 'outside']).toContain(x.minus.side);
+    }
+    expect(wb.pair).toMatch(/vacancy/);
+  }, 120_000);
+
   it('the same physical loop given with -n and -b reads the same', () => {
     const flipped = analyseLoops(scenario({ ...large, b: '1/2[-1 0 -1]', normal: [-1, 0, -1] }, [{ id: 'sPlus', g: [2, 2, 0], w: 1 }]))[0];
     for (const x of rows[0].natures) {

@@ -83,7 +83,15 @@ describe('nuisance parameters and their ranges', () => {
     expect(() => parseFitSettings({ wRange: -1 })).toThrow(InputError);
     expect(() => parseFitSettings({ wRange: -1 })).toThrow(/fit\.wRange: must be at least 0/);
     expect(() => parseFitSettings({ thicknessError_nm: 2 })).toThrow(/fit\.thicknessError_nm: needs the measured "thickness_nm"/);
+    // a fractional range beside a measured thickness with its error would be silently ignored: refused instead
+    expect(() => parseFitSettings({ thickness_nm: 100, thicknessError_nm: 3, thicknessRange: 0.2 })).toThrow(/^fit\.thicknessRange: is not used beside a measured thickness .*remove one of the two$/);
+    expect(parseFitSettings({ thickness_nm: 100, thicknessRange: 0.2 }).thicknessRange).toBe(0.2);
     expect(() => parseMicrographSettings({ g200: { wError: 0.1 } }, ['g200'])).toThrow(/micrographs\.g200\.wError: needs the measured "w"/);
     expect(parseFitSettings(undefined)).toEqual(DEFAULT_FIT);
+    // a measured thickness thinner than the defect's depth (40 nm here) gave an inverted depth range and a defect below the foil
+    expect(() => model(undefined, { thickness_nm: 30, thicknessError_nm: 1 })).toThrow(InputError);
+    expect(() => model(undefined, { thickness_nm: 30, thicknessError_nm: 1 })).toThrow(/^fit\.thickness_nm: the measured thickness 30 nm \(at most 32 nm .*\) leaves the depth 40 nm of the defect's point below the foil; /);
+    const ok = Object.fromEntries(model(undefined, { thickness_nm: 38, thicknessError_nm: 2 }).parameters.map((x) => [x.name, x]));
+    expect(ok.depth.lo).toBeLessThan(ok.depth.hi);
   });
 });

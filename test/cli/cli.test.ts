@@ -269,4 +269,29 @@ describe('thinfoil visibility', () => {
     expect(text.code).toBe(0);
     expect(text.out).toMatch(/g200/);
   });
+  it('--help of render states each default once and never "(default: [])"', () => {
+    const h = run('render', '--help');
+    expect(h.code).toBe(0);
+    expect(h.out).not.toMatch(/default: \[\]/);
+    expect(h.out.replace(/\s+/g, ' ')).not.toMatch(/\(default[^()]*\) \(default/);
+    expect(h.out.replace(/\s+/g, ' ')).toMatch(/"each" \(default: "shared"\)/);
+    expect(h.out.replace(/\s+/g, ' ')).toMatch(/simulated images \(default: 0\)/);
+  });
+});
+
+describe('render warns about a loop smaller than two pixels, with its size and the pixel size', () => {
+  it('a 1.2 nm loop at 1 nm pixels', () => {
+    const dir = mkdtempSync(join(tmpdir(), 'thinfoil-tinyloop-'));
+    const file = join(dir, 'tiny.json');
+    writeFileSync(file, JSON.stringify({
+      name: 'tiny loop (invented)', material: 'Cu', kV: 200,
+      foil: { thickness_nm: 40, normal: [0, 0, 1] }, beam: [0, 0, 1], imageX: [1, 0, 0],
+      image: { width_px: 16, height_px: 16, pixel_nm: 1 },
+      conditions: [{ id: 'g220', g: [2, 2, 0], w: 1 }],
+      defects: [{ type: 'loop', label: 'L', b: '1/3[1 1 1]', normal: [1, 1, 1], centre_nm: [0, 0, 20], radius_nm: 0.6 }],
+    }));
+    const r = run('render', file, '--out', join(dir, 'out'));
+    expect(r.code, r.err).toBe(0);
+    expect(r.err).toMatch(/defects\[0\] \(L\): the loop \([0-9.]+ nm across in the image\) is smaller than two pixels of 1 nm; its image is only its strain field/);
+  });
 });

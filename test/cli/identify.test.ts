@@ -7,6 +7,7 @@
  */
 import { afterAll, beforeAll, describe, expect, it, vi } from 'vitest';
 import { createHash } from 'node:crypto';
+import { spawnSync } from 'node:child_process';
 import { mkdtempSync, readFileSync, rmSync, writeFileSync, existsSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
@@ -240,6 +241,8 @@ describe('thinfoil identify: bad input gives exit code 2 and one sentence', () =
     ['a malformed --micrograph', () => ({ micrograph: ['g200'] }), /--micrograph "g200" must be <conditionId>=<file>/],
     ['no micrograph', () => ({}), /no micrograph given/],
     ['a bad --top', () => ({ micrograph: args, top: 'x' }), /--top "x" must be a whole number/],
+    // no bootstrap copies would make the gap's standard deviation 0 and exclude candidates on noise alone
+    ['--bootstrap 0', () => ({ micrograph: args, bootstrap: '0' }), /^thinfoil: --bootstrap "0" must be a whole number between 2 and 1000/],
   ])('%s', async (_what, opts, pattern) => {
     const r = await runAction(scenarioFile, opts());
     expect(r.thrown).toBe('exit 2');
@@ -258,5 +261,14 @@ describe('thinfoil identify: bad input gives exit code 2 and one sentence', () =
     expect(r.thrown).toBe('exit 2');
     expect(r.err).toMatch(pattern);
     expect(r.err.trim().split('\n').length).toBe(1);
+  });
+  it('--help of identify states each default once and never "(default: [])"', () => {
+    // the compiled CLI, as a user calls it
+    const r = spawnSync(process.execPath, [join(import.meta.dirname, '..', '..', 'dist', 'cli', 'main.js'), 'identify', '--help'], { encoding: 'utf8' });
+    const h = { code: r.status, out: r.stdout };
+    expect(h.code).toBe(0);
+    expect(h.out).not.toMatch(/default: \[\]/);
+    expect(h.out.replace(/\s+/g, ' ')).not.toMatch(/\(default[^()]*\) \(default/);
+    expect(h.out).toMatch(/--micrograph <conditionId=file>/);
   });
 });

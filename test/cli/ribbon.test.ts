@@ -45,6 +45,8 @@ describe('thinfoil ribbon', () => {
     [['ribbon', SC, '--micrograph', 'MICRO', '--line-angle', '90', '--field', 'xx'], /--field/],
     [['ribbon', SC, '--micrograph', 'MICRO', '--line-angle', 'abc'], /--line-angle: "abc" is not a number/],
     [['ribbon', SC, '--micrograph', 'MICRO', '--line-angle', '90', '--centre', '5'], /--centre/],
+    [['ribbon', SC, '--micrograph', 'MICRO', '--line-angle', '90', '--g-angle', '90'], /^thinfoil: --line-angle and --g-angle: give one of the two/],
+    [['ribbon', SC, '--micrograph', 'MICRO', '--g-angle', '90', '--bin-nm', '100'], /^thinfoil: --bin-nm: bins of 100 nm leave fewer than two bins .* give a smaller --bin-nm or a centre farther from the edge\n$/],
     [['ribbon', 'scenarios/copper-dislocations.json', '--micrograph', 'MICRO', '--condition', 'g200', '--line-angle', '90'], /dissociated/],
   ])('bad input %j: exit code 2 and one sentence naming the field', (args, pattern) => {
     const micro = join(out, 'wb-df.tif');

@@ -81,4 +81,19 @@ describe('thinfoil traces', () => {
     expect(r.err.trim().split('\n').length).toBe(1);
     expect(r.err).not.toMatch(/\n\s+at /);
   });
+  it('--help of traces states each default once and never "(default: [])"', () => {
+    const h = run('traces', '--help');
+    expect(h.code).toBe(0);
+    expect(h.out).not.toMatch(/default: \[\]/);
+    expect(h.out.replace(/\s+/g, ' ')).not.toMatch(/\(default[^()]*\) \(default/);
+    expect(h.out.replace(/\s+/g, ' ')).toMatch(/repeat for more \(default: the scenario's candidates\)/);
+  });
+  it('a line exactly in a symmetry plane prints a zero Cartesian component as 0, not as rounding noise like -6.993e-17', () => {
+    // [001] view with g along +x and the trace along g: u lies in the (0 1 0) plane, so its y component is exactly 0
+    const r = run('traces', 'Cu', '--view', 'beam=0,0,1 g=2,0,0 gAngle=12 lineAngle=12', '--view', 'beam=0,1,1 g=2,0,0 gAngle=-35 lineAngle=30');
+    expect(r.code, r.err).toBe(0);
+    expect(r.out).toMatch(/unit Cartesian [-0-9.]+, 0, [-0-9.]+\)/);
+    expect(r.out).toMatch(/\(0 1 0\) 0,/);
+    expect(r.out).not.toMatch(/e-1\d/);
+  });
 });

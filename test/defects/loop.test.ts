@@ -46,6 +46,7 @@ describe('loop entries: reading and one-sentence refusals naming the field', () 
     expect(refusal({ ...FRANK, radius_nm: undefined, vertices_nm: [[0, 0], [1, 1], [2, 2]] })).toMatch(/vertices_nm: encloses no area/);
     expect(refusal({ ...FRANK, normal: [0, 0, 0] })).toMatch(/^defects\[0\]\.normal: /);
     expect(refusal({ ...FRANK, fault: 'intrinsik' })).toMatch(/^defects\[0\]\.fault: "intrinsik" is not a fault/);
+    expect(refusal({ ...FRANK, fault: 3 })).toMatch(/^defects\[0\].fault: 3 is not a fault; use "intrinsic", "extrinsic" or a fault vector/);
     for (const m of [refusal({ ...FRANK, centre_nm: [0, 0, 5] }), refusal({ ...FRANK, fault: 'extrinsic' })]) expect(m.split('\n')).toHaveLength(1);
   });
   it('a fault vector equal to b up to a lattice translation is accepted (Shockley loop 1/6[1 1 -2] with R = -1/3[1 1 1])', () => {

@@ -39,6 +39,15 @@ describe('"surfaces" scenario key', () => {
     expect(iso.text).toMatch(/screw image series/);
     expect(describeSurfaces({ ...sc, surfaces: 'infinite' }).correctedLines).toBe(0);
   });
+  it('a relaxed scenario with only a loop says that loops are not relaxed (README, Foil surfaces)', () => {
+    const sc = scenario({
+      surfaces: 'relaxed',
+      defects: [{ type: 'loop', b: '1/3[1 1 1]', normal: [1, 1, 1], centre_nm: [0, 0, 30], radius_nm: 5 }],
+    });
+    const d = describeSurfaces(sc);
+    expect(d.lines).toBe(0);
+    expect(d.approximations.join(' ')).toMatch(/dislocation loops are not relaxed at the surfaces/);
+  });
 });
 
 /** Largest |I - I_perfect| over the pixels within / beyond a distance (nm) of the image centre, core pixels left out. */

@@ -22,7 +22,7 @@ describe('locateJsonError', () => {
     ['{\n  "a": 1 // metres\n}', 2, 10, /comment/],
     ['{\n  "a": [1, 2,]\n}', 2, 14, /trailing comma/],
     ['{\n  "a": 1,\n}', 3, 1, /trailing comma/],
-    ['{"a":', 1, 6, /end of the file/],
+    ['{"a":', 1, 6, /unexpected end of the file, expected/],
     ['{"a": 1}\n}', 2, 1, /nothing more/],
     ['{\n  "a": "x\ty"\n}', 2, 10, /control character/],
     ["{'a': 1}", 1, 2, /double quotes/],
