@@ -5,6 +5,8 @@
  */
 import { describe, expect, it } from 'vitest';
 import { immerkaerSigma, structureRatio } from '../../src/analysis/noiseEstimate.js';
+import { absoluteFit, MODEL_FLOOR, STRUCTURE_LIMIT } from '../../src/analysis/identifyChecks.js';
+import type { PreparedMicrograph } from '../../src/analysis/identifyMicrographs.js';
 import { needPython, pythonJson } from '../python.js';
 
 const py = needPython('numpy');
@@ -50,5 +52,29 @@ describe('structureRatio', () => {
     const { data } = image(0.5, 1.5, 3);
     const withBlob = Float64Array.from(data, (v, k) => v - (3.0 + 0.01 * (k % W) - 0.02 * Math.floor(k / W)));
     expect(structureRatio(withBlob, W, H, 0.5)).toBeGreaterThan(4);
+  });
+});
+
+describe('absoluteFit: a noise-free micrograph of the right model is explained', () => {
+  // A clean micrograph has noise near 0, so any residual would be "structure" without the model floor
+  // (MODEL_FLOOR, our choice: a residual below 15 % of the contrast RMS is not called unexplained).
+  const W2 = 48;
+  const H2 = 40;
+  const blob = (amp: number, x0: number) => {
+    const a = new Float64Array(W2 * H2);
+    for (let y = 0; y < H2; y++) for (let x = 0; x < W2; x++) a[y * W2 + x] = amp * Math.exp(-((x - x0) ** 2 + (y - 20) ** 2) / (2 * 5 ** 2));
+    return a;
+  };
+  const micrograph = (contrast: Float64Array) => ({ conditionId: 'g200', width: W2, height: H2, contrast }) as unknown as PreparedMicrograph;
+  it('a 5 % smooth misfit on a clean image is explained; a wrong blob position is not', () => {
+    const model = blob(1, 24);
+    const clean = blob(1, 24).map((v, k) => v + 0.05 * model[k] * Math.cos(k / 7));
+    const ok = absoluteFit([micrograph(clean)], [model], [1]);
+    expect(ok.perMicrograph[0].sigma).toBeLessThan(0.01);
+    expect(ok.perMicrograph[0].structure).toBeGreaterThan(STRUCTURE_LIMIT); // by the noise alone it would fail
+    expect(ok.explained).toBe(true);
+    const wrong = absoluteFit([micrograph(blob(1, 12))], [model], [1]);
+    expect(wrong.explained).toBe(false);
+    expect(wrong.perMicrograph[0].residualRms).toBeGreaterThan(MODEL_FLOOR * wrong.perMicrograph[0].contrastRms);
   });
 });
