@@ -31,6 +31,7 @@
  * We report l at the loop's depth and its sign at a series of depths.
  */
 import type { Vec3 } from '../math/vec3.js';
+import { sig } from '../format.js';
 import { add, dot, scale } from '../math/vec3.js';
 import type { Condition, LoopSpec, Scenario } from '../scenario/types.js';
 import { resolveCondition, type ResolvedCondition } from '../imaging/resolveCondition.js';
@@ -291,7 +292,8 @@ export function analyseLoops(sc: Scenario, onStep?: (label: string) => void, set
       const edgeOn = inclination < EDGE_ON;
       const reversible = c.beams.kind !== 'set';
       const note = small
-        ? `small loop (radius under ${SMALL} xi_g): its image is not a line inside or outside it; read the black-white vector`
+        ? `small loop (radius under ${SMALL} xi_g): its image is not a line inside or outside it; read the black-white vector` +
+          (Math.abs(rc.w) > 0.5 ? ` (black-white lobes are usually read near s = 0; at w = ${sig(rc.w, 2)} the depth layers are less regular)` : '')
         : edgeOn
           ? 'loop seen nearly edge-on: no inside or outside'
           : reversible

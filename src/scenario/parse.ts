@@ -115,10 +115,15 @@ export function parseScenario(raw: unknown): Scenario {
 }
 
 /** "elasticity": "anisotropic" (default: every material carries its Cij) or "isotropic". */
+/** " (write it in lower case)" when v differs from one of the words only in case. */
+function lowerCaseHint(v: unknown, words: readonly string[]): string {
+  return typeof v === 'string' && words.includes(v.toLowerCase()) ? ` (write it in lower case: "${v.toLowerCase()}")` : '';
+}
+
 function readElasticity(v: unknown): Elasticity {
   if (v === undefined) return 'anisotropic';
   if (v === 'anisotropic' || v === 'isotropic') return v;
-  return fail('elasticity', `must be "anisotropic" (Stroh solution from the material's Cij, the default) or "isotropic" (Hirth & Lothe closed form), got ${JSON.stringify(v)}`);
+  return fail('elasticity', `must be "anisotropic" (Stroh solution from the material's Cij, the default) or "isotropic" (Hirth & Lothe closed form), got ${JSON.stringify(v)}${lowerCaseHint(v, ['anisotropic', 'isotropic'])}`);
 }
 
 /**
@@ -129,7 +134,7 @@ function readElasticity(v: unknown): Elasticity {
 function readSurfaces(v: unknown): Surfaces {
   if (v === undefined) return 'infinite';
   if (v === 'relaxed' || v === 'infinite') return v;
-  return fail('surfaces', `must be "infinite" (infinite-medium fields, the default) or "relaxed" (free-surface corrections of straight dislocation fields), got ${JSON.stringify(v)}`);
+  return fail('surfaces', `must be "infinite" (infinite-medium fields, the default) or "relaxed" (free-surface corrections of straight dislocation fields), got ${JSON.stringify(v)}${lowerCaseHint(v, ['infinite', 'relaxed'])}`);
 }
 
 function readMaterial(v: unknown): Material {

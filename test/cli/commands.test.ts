@@ -38,6 +38,8 @@ describe('thinfoil fault', () => {
     const [big, small] = j.loops;
     expect(big.pair).toBe('+g outside and -g inside: vacancy; +g inside and -g outside: interstitial');
     expect(small.small).toBe(true);
+    // at w = 1 the lobes are read with a caution: they are usually read near s = 0 (common practice)
+    expect(small.note).toMatch(/usually read near s = 0; at w = 1/);
     expect(small.natures[0].depthSeries.length).toBe(12);
     const t = run('nature', 'scenarios/copper-loop-nature.json');
     expect(t.code, t.err).toBe(0);
