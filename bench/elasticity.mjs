@@ -11,18 +11,9 @@ import { renderRows } from '../dist/imaging/renderRows.js';
 import { straightDislocation } from '../dist/elasticity/straightDislocation.js';
 import { anisotropicDislocation } from '../dist/elasticity/anisotropicDislocation.js';
 import { voigtStiffness } from '../dist/elasticity/stiffness.js';
+import { fmt, inclinedDislocation, lcg, median, perPointNs } from './common.mjs';
 
-const base = {
-  name: 'bench',
-  material: 'Cu',
-  kV: 200,
-  foil: { thickness_nm: 100, normal: [0, 0, 1] },
-  beam: [0, 0, 1],
-  imageX: [1, 0, 0],
-  image: { width_px: 256, height_px: 256, pixel_nm: 0.5 },
-  conditions: [{ id: 'g200', g: [2, 0, 0], w: 0.5 }],
-  defects: [{ type: 'dislocation', b: '1/2[1 0 1]', line: [1, 1, 2], point_nm: [0, 0, 50] }],
-};
+const base = inclinedDislocation();
 
 function renderOnce(elasticity) {
   const sc = parseScenario({ ...base, elasticity });
@@ -37,7 +28,6 @@ function renderOnce(elasticity) {
   return { seconds: (c.user + c.system) / 1e6, slices };
 }
 
-const median = (a) => a.slice().sort((x, y) => x - y)[Math.floor(a.length / 2)];
 renderOnce('isotropic'); // warm-up
 renderOnce('anisotropic');
 const tI = [], tA = [];
@@ -50,7 +40,6 @@ for (let r = 0; r < 3; r++) {
   sA = a.slices;
   sI = i.slices;
 }
-const fmt = (x) => x.toPrecision(3);
 console.log('render 256 x 256, Cu, mixed 1/2[101] along [112], g = 200, w = 0.5, t = 100 nm, one thread, CPU seconds (median of 3):');
 console.log(`  isotropic  : ${fmt(median(tI))} s, ${fmt(sI / 65536)} slices/column`);
 console.log(`  anisotropic: ${fmt(median(tA))} s, ${fmt(sA / 65536)} slices/column`);
@@ -59,8 +48,7 @@ console.log(`  ratio anisotropic / isotropic: ${fmt(median(tA) / median(tI))}x (
 // per-point cost of beta'
 const N = 2_000_000;
 const pts = new Float64Array(3 * 4096);
-let seed = 12345;
-const rnd = () => ((seed = (seed * 1103515245 + 12345) % 2147483648) / 2147483648);
+const rnd = lcg();
 for (let i = 0; i < pts.length; i++) pts[i] = 40 * rnd() - 20;
 const g = [4.5, 1.2, -0.7], k = [0.1, 0.2, 0.97];
 const opts = { b_nm: [0.18, 0, 0.18], line: [1, 1, 2], point_nm: [0, 0, 0], coreRadius_nm: 0.01 };
@@ -70,15 +58,7 @@ const fields = {
   'anisotropic (diagonal)': anisotropicDislocation({ ...opts, stiffness_GPa: cu }),
   'anisotropic (triangular)': anisotropicDislocation({ ...opts, stiffness_GPa: cu, forceTriangular: true }),
 };
-function perPoint(f) {
-  const d = f.directional(g, k);
-  let s = 0;
-  for (let i = 0; i < 200000; i++) { const j = 3 * (i & 4095); s += d(pts[j], pts[j + 1], pts[j + 2]); }
-  const c0 = process.cpuUsage();
-  for (let i = 0; i < N; i++) { const j = 3 * (i & 4095); s += d(pts[j], pts[j + 1], pts[j + 2]); }
-  const c = process.cpuUsage(c0);
-  return { ns: ((c.user + c.system) * 1e3) / N, s };
-}
+const perPoint = (f) => perPointNs(f, g, k, pts, N);
 const res = {};
 for (let r = 0; r < 3; r++) for (const [name, f] of Object.entries(fields)) (res[name] ??= []).push(perPoint(f).ns);
 console.log('directional derivative g.(grad R).k per point, CPU time (median of 3):');

@@ -13,20 +13,10 @@ import { resolveCondition } from '../dist/imaging/resolveCondition.js';
 import { createRenderPool } from '../dist/imaging/workerPool.js';
 import { pageFiles } from '../dist/cli/exploreCommand.js';
 import { startExplorerServer } from '../dist/explorer/server.js';
+import { inclinedDislocation, median } from './common.mjs';
 
-const RAW = {
-  name: 'bench',
-  material: 'Cu',
-  kV: 200,
-  foil: { thickness_nm: 100, normal: [0, 0, 1] },
-  beam: [0, 0, 1],
-  imageX: [1, 0, 0],
-  image: { width_px: 256, height_px: 256, pixel_nm: 0.5 },
-  conditions: [{ id: 'g200', g: [2, 0, 0], w: 0.5 }],
-  defects: [{ type: 'dislocation', b: '1/2[1 0 1]', line: [1, 1, 2], point_nm: [0, 0, 50] }],
-};
+const RAW = inclinedDislocation();
 const ROUNDS = 5;
-const median = (a) => [...a].sort((x, y) => x - y)[Math.floor(a.length / 2)];
 
 const dir = mkdtempSync(join(tmpdir(), 'thinfoil-bench-explore-'));
 const files = pageFiles();

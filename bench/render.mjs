@@ -7,18 +7,9 @@ import { renderJob } from '../dist/imaging/renderScenario.js';
 import { resolveCondition } from '../dist/imaging/resolveCondition.js';
 import { createRenderPool } from '../dist/imaging/workerPool.js';
 import { renderRows } from '../dist/imaging/renderRows.js';
+import { fmt, inclinedDislocation } from './common.mjs';
 
-const sc = parseScenario({
-  name: 'bench',
-  material: 'Cu',
-  kV: 200,
-  foil: { thickness_nm: 100, normal: [0, 0, 1] },
-  beam: [0, 0, 1],
-  imageX: [1, 0, 0],
-  image: { width_px: 256, height_px: 256, pixel_nm: 0.5 },
-  conditions: [{ id: 'g200', g: [2, 0, 0], w: 0.5 }],
-  defects: [{ type: 'dislocation', b: '1/2[1 0 1]', line: [1, 1, 2], point_nm: [0, 0, 50] }],
-});
+const sc = parseScenario(inclinedDislocation());
 const cond = resolveCondition(sc, sc.conditions[0]);
 const W = sc.image.width_px;
 const H = sc.image.height_px;
@@ -77,7 +68,6 @@ for (let r = 0; r < 3; r++) {
 await pool.close();
 const wall = times.sort((a, b) => a - b)[1];
 
-const fmt = (x) => x.toPrecision(3);
 console.log('');
 console.log(`image: 256 x 256, bright + dark field from one integration, inclined mixed dislocation, t = 100 nm, Cu 200, w = 0.5`);
 console.log(`adaptive (default tol ${job.tol}), 1 thread : ${fmt(ours1.seconds)} s, ${fmt(ours1.slices / W / H)} slices/column, ${fmt(ours1.slices / ours1.seconds / 1e6)} M column-slices/s, max error ${err.toExponential(2)}`);

@@ -19,6 +19,7 @@ import { surfaceCorrection } from '../dist/elasticity/surfaceRelaxation.js';
 import { anisotropicDislocation } from '../dist/elasticity/anisotropicDislocation.js';
 import { voigtStiffness } from '../dist/elasticity/stiffness.js';
 import { inclinedHalfSpaceCorrection } from '../dist/elasticity/surfaceHalfSpaceInclined.js';
+import { fmt, inclinedDislocation, lcg, median, perPointNs } from './common.mjs';
 
 const parallel = {
   name: 'bench-parallel',
@@ -32,17 +33,7 @@ const parallel = {
   conditions: [{ id: 'g200', g: [2, 0, 0], w: 0.5 }],
   defects: [{ type: 'dislocation', b: '1/2[1 0 1]', line: [1, 1, 0], point_nm: [0, 0, 20] }],
 };
-const inclined = {
-  name: 'bench-inclined',
-  material: 'Cu',
-  kV: 200,
-  foil: { thickness_nm: 100, normal: [0, 0, 1] },
-  beam: [0, 0, 1],
-  imageX: [1, 0, 0],
-  image: { width_px: 128, height_px: 128, pixel_nm: 1 },
-  conditions: [{ id: 'g200', g: [2, 0, 0], w: 0.5 }],
-  defects: [{ type: 'dislocation', b: '1/2[1 0 1]', line: [1, 1, 2], point_nm: [0, 0, 50] }],
-};
+const inclined = inclinedDislocation({ name: 'bench-inclined', size: 128, pixel_nm: 1 });
 const normal = {
   name: 'bench-normal',
   material: 'Cu',
@@ -71,8 +62,6 @@ function renderOnce(spec, surfaces) {
   return { seconds: (c.user + c.system) / 1e6, shared: plan !== null };
 }
 
-const median = (a) => a.slice().sort((x, y) => x - y)[Math.floor(a.length / 2)];
-const fmt = (x) => x.toPrecision(3);
 for (const [label, spec] of [
   ['isotropic, mixed 1/2[101] along [110], parallel to the surfaces 20 nm deep, 256 x 256, g = 200, w = 0.5, t = 100 nm', parallel],
   ['anisotropic, the same line', { ...parallel, elasticity: 'anisotropic' }],
@@ -102,8 +91,7 @@ for (const [label, spec] of [
 // per-point cost of beta'
 const N = 2_000_000;
 const pts = new Float64Array(3 * 4096);
-let seed = 12345;
-const rnd = () => ((seed = (seed * 1103515245 + 12345) % 2147483648) / 2147483648);
+const rnd = lcg();
 for (let i = 0; i < pts.length; i += 3) {
   pts[i] = 40 * rnd() - 20;
   pts[i + 1] = 40 * rnd() - 20;
@@ -120,15 +108,7 @@ const fields = {
   'inclined: half-space tables': inclinedHalfSpaceCorrection({ b_nm: [0.18, 0, 0.18], line: [1, 1, 2], point_nm: [0, 0, 30], normal: [0, 0, 1], thickness_nm: t, poissonRatio: 0.34 }),
   'normal: plate twist': surfaceCorrection({ b_nm: [0, 0, 0.25], line: [0, 0, 1], point_nm: [0, 0, 0], correction: { kind: 'normal-screw-twist', normal: [0, 0, 1], thickness_nm: t } }),
 };
-function perPoint(f) {
-  const d = f.directional(g, k);
-  let s = 0;
-  for (let i = 0; i < 200000; i++) { const j = 3 * (i & 4095); s += d(pts[j], pts[j + 1], pts[j + 2]); }
-  const c0 = process.cpuUsage();
-  for (let i = 0; i < N; i++) { const j = 3 * (i & 4095); s += d(pts[j], pts[j + 1], pts[j + 2]); }
-  const c = process.cpuUsage(c0);
-  return { ns: ((c.user + c.system) * 1e3) / N, s };
-}
+const perPoint = (f) => perPointNs(f, g, k, pts, N);
 const res = {};
 for (let r = 0; r < 3; r++) for (const [name, f] of Object.entries(fields)) (res[name] ??= []).push(perPoint(f).ns);
 console.log('directional derivative g.(grad R).k per point, CPU time (median of 3):');

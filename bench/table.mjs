@@ -20,6 +20,7 @@ import { resolveCondition } from '../dist/imaging/resolveCondition.js';
 import { createRenderPool } from '../dist/imaging/workerPool.js';
 import { renderRows } from '../dist/imaging/renderRows.js';
 import { renderTranslated, translationPlan } from '../dist/imaging/translationColumns.js';
+import { inclinedDislocation } from './common.mjs';
 
 const args = process.argv.slice(2);
 const withProcess = !args.includes('--no-process');
@@ -74,17 +75,7 @@ function median(f, k = 3) {
   return t.sort((a, b) => a - b)[Math.floor(k / 2)];
 }
 
-const dislocation = (size, pixel) => ({
-  name: `bench dislocation ${size}`,
-  material: 'Cu',
-  kV: 200,
-  foil: { thickness_nm: 100, normal: [0, 0, 1] },
-  beam: [0, 0, 1],
-  imageX: [1, 0, 0],
-  image: { width_px: size, height_px: size, pixel_nm: pixel },
-  conditions: [{ id: 'g200', g: [2, 0, 0], w: 0.5 }],
-  defects: [{ type: 'dislocation', b: '1/2[1 0 1]', line: [1, 1, 2], point_nm: [0, 0, 50] }],
-});
+const dislocation = (size, pixel) => inclinedDislocation({ name: `bench dislocation ${size}`, size, pixel_nm: pixel });
 const weakBeam = {
   name: 'bench weak beam',
   material: 'Cu',
