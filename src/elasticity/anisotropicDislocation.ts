@@ -59,7 +59,7 @@ import { type Vec3, cross, dot, norm, scale, sub } from '../math/vec3.js';
 import { InputError } from '../errors.js';
 import { complexSchur } from '../dynamics/complexEigen.js';
 import type { DisplacementField } from './field.js';
-import { finiteVec3, nonZeroVec3 } from './checks.js';
+import { coreRadius, finiteVec3, nonZeroVec3 } from './checks.js';
 import { dislocationFrame } from './straightDislocation.js';
 import { checkVoigt, stiffnessTensor } from './stiffness.js';
 
@@ -607,10 +607,7 @@ export function anisotropicDislocation(opts: AnisotropicDislocationOptions): Dis
   const P = finiteVec3(opts.point_nm, 'dislocation point_nm');
   const b = nonZeroVec3(opts.b_nm, 'dislocation b_nm');
   const bLen = norm(b);
-  const rc = opts.coreRadius_nm ?? bLen;
-  if (!Number.isFinite(rc) || rc <= 0) {
-    throw new InputError('dislocation coreRadius_nm must be a positive finite length in nm; omit it to use |b|.');
-  }
+  const rc = coreRadius(opts.coreRadius_nm, bLen, 'dislocation coreRadius_nm');
   const ln = anisotropicLine(opts);
   const { modes, cRe, cIm } = ln;
   const { tRe, tIm, aRe, aIm, diagonal } = modes;

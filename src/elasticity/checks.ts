@@ -22,6 +22,13 @@ export function poisson(nu: number, field: string): number {
   return nu;
 }
 
+/** The core radius of a dislocation line or loop: the given one (positive, finite) or |b|. */
+export function coreRadius(rc: number | undefined, bLen: number, field: string): number {
+  const r = rc ?? bLen;
+  if (!Number.isFinite(r) || r <= 0) throw new InputError(`${field} must be a positive finite length in nm; omit it to use |b|.`);
+  return r;
+}
+
 export function positive(v: number, field: string, hint: string): number {
   if (!Number.isFinite(v) || v <= 0) throw new InputError(`${field} must be a positive finite number; ${hint}.`);
   return v;

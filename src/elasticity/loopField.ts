@@ -45,7 +45,7 @@
 import { type Vec3, norm } from '../math/vec3.js';
 import { InputError } from '../errors.js';
 import type { DisplacementField } from './field.js';
-import { nonZeroVec3, poisson } from './checks.js';
+import { coreRadius, nonZeroVec3, poisson } from './checks.js';
 
 export interface LoopFieldOptions {
   /** Cartesian Burgers vector (nm), FS/RH about the line direction given by the vertex order. */
@@ -131,8 +131,7 @@ export function loopField(opts: LoopFieldOptions): DisplacementField {
   if (v.length < 9 || v.length % 3 !== 0 || !v.every((x) => Number.isFinite(x))) {
     throw new InputError('loop vertices_nm must hold at least three points of three finite numbers each.');
   }
-  const rc = opts.coreRadius_nm ?? norm(b);
-  if (!Number.isFinite(rc) || rc <= 0) throw new InputError('loop coreRadius_nm must be a positive finite length in nm; omit it to use |b|.');
+  const rc = coreRadius(opts.coreRadius_nm, norm(b), 'loop coreRadius_nm');
   const n = v.length / 3;
   const [bx, by, bz] = b;
   // segments: start A, unit t, length l, c = t x b

@@ -41,7 +41,7 @@
 import { type Vec3, cross, dot, norm, scale, sub } from '../math/vec3.js';
 import { InputError } from '../errors.js';
 import type { DisplacementField } from './field.js';
-import { finiteVec3, nonZeroVec3, poisson } from './checks.js';
+import { coreRadius, finiteVec3, nonZeroVec3, poisson } from './checks.js';
 
 export interface StraightDislocationOptions {
   /** Cartesian Burgers vector (nm), FS/RH about `line`. */
@@ -103,10 +103,7 @@ export function straightDislocation(opts: StraightDislocationOptions): Displacem
   const P = finiteVec3(opts.point_nm, 'dislocation point_nm');
   const nu = poisson(opts.poissonRatio, 'poissonRatio');
   const bLen = norm(b);
-  const rc = opts.coreRadius_nm ?? bLen;
-  if (!Number.isFinite(rc) || rc <= 0) {
-    throw new InputError('dislocation coreRadius_nm must be a positive finite length in nm; omit it to use |b|.');
-  }
+  const rc = coreRadius(opts.coreRadius_nm, bLen, 'dislocation coreRadius_nm');
   const fr = dislocationFrame(b, line);
   const { e1, e2, e3 } = fr;
 
