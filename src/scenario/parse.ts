@@ -15,7 +15,7 @@ import { parseFamily } from '../crystal/symmetry.js';
 import { InputError } from '../errors.js';
 import type { DefectEntry } from '../defects/defectType.js';
 import { defectTypeNamed, defectTypeNames, defectTypeOf } from '../defects/registry.js';
-import { array, fail, isObject, joinPath, number, object, onlyKeys, required, string } from './check.js';
+import { array, fail, isObject, joinPath, number, object, onlyKeys, required, string, suggestKey } from './check.js';
 import type { BeamSet, CandidateSpec, Condition, DefectSpec, Deviation, Elasticity, ImageSpec, Scenario, Surfaces } from './types.js';
 import { beamCount, MAX_PIXELS, MAX_SIDE_PX } from './types.js';
 import { formatDirectionIn } from '../crystal/formatIndices.js';
@@ -115,15 +115,16 @@ export function parseScenario(raw: unknown): Scenario {
 }
 
 /** "elasticity": "anisotropic" (default: every material carries its Cij) or "isotropic". */
-/** " (write it in lower case)" when v differs from one of the words only in case. */
-function lowerCaseHint(v: unknown, words: readonly string[]): string {
-  return typeof v === 'string' && words.includes(v.toLowerCase()) ? ` (write it in lower case: "${v.toLowerCase()}")` : '';
+/** '; did you mean "relaxed"?' when v is a string near one of the words (another case, a typo), as for keys. */
+function wordHint(v: unknown, words: readonly string[]): string {
+  const near = typeof v === 'string' ? suggestKey(v, words) : undefined;
+  return near === undefined ? '' : `; did you mean "${near}"?`;
 }
 
 function readElasticity(v: unknown): Elasticity {
   if (v === undefined) return 'anisotropic';
   if (v === 'anisotropic' || v === 'isotropic') return v;
-  return fail('elasticity', `must be "anisotropic" (Stroh solution from the material's Cij, the default) or "isotropic" (Hirth & Lothe closed form), got ${JSON.stringify(v)}${lowerCaseHint(v, ['anisotropic', 'isotropic'])}`);
+  return fail('elasticity', `must be "anisotropic" (Stroh solution from the material's Cij, the default) or "isotropic" (Hirth & Lothe closed form), got ${JSON.stringify(v)}${wordHint(v, ['anisotropic', 'isotropic'])}`);
 }
 
 /**
@@ -134,7 +135,7 @@ function readElasticity(v: unknown): Elasticity {
 function readSurfaces(v: unknown): Surfaces {
   if (v === undefined) return 'infinite';
   if (v === 'relaxed' || v === 'infinite') return v;
-  return fail('surfaces', `must be "infinite" (infinite-medium fields, the default) or "relaxed" (free-surface corrections of straight dislocation fields), got ${JSON.stringify(v)}${lowerCaseHint(v, ['infinite', 'relaxed'])}`);
+  return fail('surfaces', `must be "infinite" (infinite-medium fields, the default) or "relaxed" (free-surface corrections of straight dislocation fields), got ${JSON.stringify(v)}${wordHint(v, ['infinite', 'relaxed'])}`);
 }
 
 function readMaterial(v: unknown): Material {

@@ -17,7 +17,7 @@ describe('"surfaces" scenario key', () => {
     expect(scenario({}).surfaces).toBe('infinite');
     expect(scenario({ surfaces: 'relaxed' }).surfaces).toBe('relaxed');
     expect(() => scenario({ surfaces: 'free' })).toThrow(/^surfaces: must be "infinite" .* or "relaxed"/);
-    expect(() => scenario({ surfaces: 'Relaxed' })).toThrow(/got "Relaxed" \(write it in lower case: "relaxed"\)$/);
+    expect(() => scenario({ surfaces: 'Relaxed' })).toThrow(/got "Relaxed"; did you mean "relaxed"\?$/);
   });
   it('the description counts the corrected lines and names the approximations', () => {
     const sc = scenario({
