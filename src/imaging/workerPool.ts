@@ -53,13 +53,12 @@ export function createRenderPool(threads = availableParallelism()): RenderPool {
   // Workers start on the first job that needs them (a worker costs a start-up and its own JIT warm-up).
   // A larger young generation: the first bands run unoptimised code that boxes doubles, and scavenges are then frequent.
   let started: Worker[] | null = null;
-  const inThread = inThreadPool();
   return {
     threads,
     async render(job, onProgress) {
       const plan = translationPlan(job);
       // small shared-column jobs are done here: cheaper than starting and warming up workers
-      if (plan !== null && sharedWork(job, plan) < IN_THREAD_WORK) return inThread.render(job, onProgress);
+      if (plan !== null && sharedWork(job, plan) < IN_THREAD_WORK) return renderHere(job, plan, onProgress);
       started ??= Array.from({ length: threads }, () => new Worker(file, { resourceLimits: { maxYoungGenerationSizeMb: 64 } }));
       const workers = started;
       const n = job.width * job.height;
@@ -151,17 +150,21 @@ function sharedWork(job: RenderJob, plan: TranslationPlan): number {
 /** Shared-column jobs below this work (see sharedWork) are rendered in the calling thread. */
 const IN_THREAD_WORK = 4e5;
 
+/** The whole job in the calling thread, with its translation plan (null: column by column). */
+function renderHere(job: RenderJob, plan: TranslationPlan | null, onProgress?: Progress): RenderedImage {
+  const n = job.width * job.height;
+  const bf = new Float32Array(n);
+  const df = new Float32Array(n);
+  const stats = plan === null ? renderRows(job, 0, job.height, bf, df) : renderTranslated(job, plan, 0, 1, bf, df);
+  onProgress?.(job.height, job.height);
+  return { bf, df, slices: stats.slices };
+}
+
 function inThreadPool(): RenderPool {
   return {
     threads: 1,
     async render(job, onProgress) {
-      const n = job.width * job.height;
-      const bf = new Float32Array(n);
-      const df = new Float32Array(n);
-      const plan = translationPlan(job);
-      const stats = plan === null ? renderRows(job, 0, job.height, bf, df) : renderTranslated(job, plan, 0, 1, bf, df);
-      onProgress?.(job.height, job.height);
-      return { bf, df, slices: stats.slices };
+      return renderHere(job, translationPlan(job), onProgress);
     },
     async close() {},
   };
