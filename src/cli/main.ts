@@ -17,6 +17,7 @@ program
   .description('Simulate diffraction-contrast images of crystal defects in a thin foil and identify the defects.')
   .version('0.1.0')
   .exitOverride()
+  .showHelpAfterError('(thinfoil <command> --help lists the arguments and options of a command)')
   .configureOutput({ writeErr: (s) => process.stderr.write(s) });
 
 /** An option parser whose InputError ends the program like any user error. */

@@ -21,7 +21,7 @@ import { checkProfileOptions, lineProfile, removeBackground, twoPeaks } from '..
 import { profileAgreement, ribbonDefect, ribbonStripGeometry, scenarioRibbonWidth_nm, widthFromSeparation, type RibbonTarget } from '../analysis/ribbonWidth.js';
 import { readScenarioJson } from './loadScenario.js';
 import { readInputFile } from './readInput.js';
-import { numberOption } from './options.js';
+import { numberOption, parseBlurNm } from './options.js';
 import { printJson, sig, table } from './run.js';
 
 /** Shape agreement (R^2) below which the read-out is flagged (our choice). */
@@ -98,7 +98,7 @@ export function ribbonCommand(scenarioPath: string, opts: RibbonOptions): void {
   const halfWidth = opts.halfWidth === undefined ? 15 : numberOption('--half-width', 0.01, 1e4, 'the half-width of the profile in nm')(opts.halfWidth);
   const window = opts.window === undefined ? undefined : numberOption('--window', 0.01, 1e4, 'the largest distance of a peak from the centre in nm')(opts.window);
   const bin = opts.binNm === undefined ? pixel_nm : numberOption('--bin-nm', pixel_nm / 8, 1e3, 'the bin width of the profile in nm')(opts.binNm);
-  const blur = opts.blurNm === undefined ? 0 : numberOption('--blur-nm', 0, 100, 'the standard deviation of the point spread in nm')(opts.blurNm);
+  const blur = opts.blurNm === undefined ? 0 : parseBlurNm(opts.blurNm);
   const field = opts.field ?? 'df';
   if (field !== 'df' && field !== 'bf') throw new InputError(`--field: "${field}" is not a field; give "df" (weak-beam dark field, bright peaks; default) or "bf"`);
   const profileOptions = {

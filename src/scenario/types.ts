@@ -61,7 +61,7 @@ export interface ImageSpec {
 
 export type Elasticity = 'anisotropic' | 'isotropic';
 
-/** Foil surfaces: "relaxed" (free-surface corrections of straight lines, the default) or "infinite" (infinite-medium fields). */
+/** Foil surfaces: "infinite" (infinite-medium fields, the default) or "relaxed" (free-surface corrections of straight lines). */
 export type Surfaces = 'relaxed' | 'infinite';
 
 export interface Scenario {
@@ -86,8 +86,8 @@ export interface Scenario {
   readonly elasticity: Elasticity;
   /**
    * Free-surface relaxation of straight dislocation fields (src/elasticity/surfaceRelaxation.ts):
-   * "relaxed" (the default) adds a surface correction to every straight line (see README, Foil
-   * surfaces, for what is exact and what is approximated); "infinite" uses the infinite-medium fields.
+   * "infinite" (the default) uses the infinite-medium fields; "relaxed" adds a surface correction to
+   * every straight line (see README, Foil surfaces, for what is exact and what is approximated).
    */
   readonly surfaces: Surfaces;
   readonly conditions: readonly Condition[];
