@@ -28,6 +28,10 @@ import { spawnSync } from 'node:child_process';
 import { existsSync, mkdtempSync, readFileSync, rmSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
+import Ajv2020Module from 'ajv/dist/2020.js';
+
+// ajv is CommonJS: its class is the default export's default under NodeNext (as in test/scenario/schema.test.ts)
+const Ajv2020 = (Ajv2020Module as unknown as { default: typeof Ajv2020Module.default }).default ?? Ajv2020Module;
 
 const ROOT = join(import.meta.dirname, '..', '..');
 const CLI = join(ROOT, 'dist', 'cli', 'main.js');
@@ -148,6 +152,15 @@ describe('README walk-through: traces -> identify on SYNTHETIC micrographs (scen
       rmSync(out, { recursive: true, force: true });
     }
   }, 600_000);
+
+  it('scenario.json is valid for the JSON Schema (ajv) and points to it', () => {
+    const sc = JSON.parse(readFileSync(join(DIR, 'scenario.json'), 'utf8')) as Record<string, unknown>;
+    expect(sc.$schema).toBe('../../schema/scenario.schema.json');
+    const schema = JSON.parse(readFileSync(join(ROOT, 'schema', 'scenario.schema.json'), 'utf8')) as object;
+    const ajv = new Ajv2020({ allErrors: true, strict: true, strictRequired: false, allowUnionTypes: true });
+    const validate = ajv.compile(schema);
+    expect(validate(sc), ajv.errorsText(validate.errors)).toBe(true);
+  });
 
   it('the README shows these command lines', () => {
     const readme = readFileSync(join(ROOT, 'README.md'), 'utf8');
