@@ -20,7 +20,8 @@
  *   that goes with the line sense traces chose (traces gave u near [0 -1 -1],
  *   the generator's u is near [0 1 1], so the same dislocation is
  *   b = -1/2[1 1 0] = 1/2[-1 -1 0] with that sense; FS/RH), and the fitted
- *   thickness within its range and nearer the true 108 nm than the stated 100.
+ *   thickness and every w nearer the generator's values than the stated ones
+ *   (the README's table).
  * The README's command lines are checked to be the ones run here.
  */
 import { describe, expect, it } from 'vitest';
@@ -66,7 +67,7 @@ interface Truth {
   bVector: Vec;
   glidePlane: Vec;
   thickness_nm: number;
-  micrographs: { id: string; gAngle_deg: number; lineAngle_deg: number; projectedLength_nm: number }[];
+  micrographs: { id: string; gAngle_deg: number; lineAngle_deg: number; projectedLength_nm: number; wStated: number; wTrue: number }[];
 }
 const truth = JSON.parse(readFileSync(join(DIR, 'truth.json'), 'utf8')) as Truth;
 const scenario = JSON.parse(readFileSync(join(DIR, 'scenario.json'), 'utf8')) as {
@@ -145,9 +146,15 @@ describe('README walk-through: traces -> identify on SYNTHETIC micrographs (scen
       // identify.json (the file the README points to) carries the fitted values per ranked candidate
       const file = JSON.parse(readFileSync(join(out, 'identify.json'), 'utf8')) as typeof r;
       expect(file.verdict.best).toBe(r.verdict.best);
-      const th = file.ranking[0].fit!.parameters.find((p) => p.name === 'thickness')!;
-      expect(th.value).toBeGreaterThan(100);
+      const params = file.ranking[0].fit!.parameters;
+      const th = params.find((p) => p.name === 'thickness')!;
       expect(th.value).toBeLessThanOrEqual(th.hi);
+      // the README's table: thickness and every w nearer the generator's than the stated value (the depth is not)
+      expect(Math.abs(th.value - truth.thickness_nm)).toBeLessThan(Math.abs(100 - truth.thickness_nm));
+      for (const m of truth.micrographs) {
+        const w = params.find((p) => p.name === `w ${m.id}`)!;
+        expect(Math.abs(w.value - m.wTrue), m.id).toBeLessThan(Math.abs(m.wStated - m.wTrue));
+      }
     } finally {
       rmSync(out, { recursive: true, force: true });
     }
