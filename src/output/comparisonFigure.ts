@@ -150,8 +150,11 @@ export function drawComparison(s: Surface, data: ComparisonFigureData, L: Figure
     const { x } = L.cell(0, j);
     const top = margin + L.titleH;
     s.text(c.id, x, top + 30, { size: 28, bold: true, color: INK });
-    s.text(`g = (${c.g.map(fmtIndex).join(' ')})   ${c.field === 'bf' ? 'bright field' : 'dark field'}`, x, top + 64, { size: 22, color: INK });
-    s.text(c.deviation, x, top + 94, { size: 22, color: SOFT });
+    // a header line longer than the cell is drawn smaller, not into the next column's header
+    const within = (text: string, size: number) => Math.min(size, (size * L.cellW) / Math.max(1, s.measureText(text, size, false)));
+    const gLine = `g = (${c.g.map(fmtIndex).join(' ')})   ${c.field === 'bf' ? 'bright field' : 'dark field'}`;
+    s.text(gLine, x, top + 64, { size: within(gLine, 22), color: INK });
+    s.text(c.deviation, x, top + 94, { size: within(c.deviation, 22), color: SOFT });
   });
 
   // row 0: micrographs
