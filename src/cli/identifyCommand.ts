@@ -421,10 +421,10 @@ export function printIdentify(out: IdentifyOutput, json: boolean): void {
   if (json) {
     const j = resultJson(res, files);
     printJson({
-      ranking: j.ranking.map(({ candidate, score, perCondition }) => ({ candidate, score, perCondition })),
+      // the ranking as in identify.json without the per-pixel detail; a fitted candidate carries its "fit" there too
+      ranking: j.ranking.map(({ candidate, score, perCondition, fit }) => ({ candidate, score, perCondition, ...(fit === undefined ? {} : { fit }) })),
       verdict: j.verdict,
       synthetic: j.synthetic,
-      fits: res.ranking.filter((r) => r.fit).map((r) => ({ candidate: r.candidate, ...r.fit })),
       absolute: j.absolute,
       flags: j.flags,
       files,
