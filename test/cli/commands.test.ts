@@ -46,7 +46,7 @@ describe('thinfoil fault', () => {
     expect(t.code, t.err).toBe(0);
     expect(t.out).toMatch(/A \(25 nm\), g220: \+g outside and -g inside: vacancy/);
     expect(t.out).toMatch(/sign of l\.g with depth/);
-  }, 120_000);
+  });
   it('at w = 0 the loop line suggests s > 0 with |w| near 1 (README), not "a larger |w|"', () => {
     const dir = mkdtempSync(join(tmpdir(), 'thinfoil-loop-w0-'));
     const sc = JSON.parse(readFileSync(join(ROOT, 'scenarios', 'copper-loop-nature.json'), 'utf8'));
@@ -57,7 +57,7 @@ describe('thinfoil fault', () => {
     expect(r.code, r.err).toBe(0);
     expect(r.out).toMatch(/A \(25 nm\), g220: the simulated \+g\/-g pair does not separate the natures here; choose another g, or s > 0 with \|w\| near 1/);
     expect(r.out).not.toMatch(/a larger \|w\|/);
-  }, 120_000);
+  });
   it('says so when there is nothing to analyse', () => {
     const r = run('fault', 'scenarios/copper-dislocations.json');
     expect(r.code).toBe(0);
