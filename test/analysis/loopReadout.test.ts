@@ -53,7 +53,7 @@ describe('inside-outside contrast of an inclined prismatic loop (radius 25 nm, C
         expect(x.minus.side).not.toBe(x.plus.side);
       }
     }
-  }, 120_000);
+  });
 
   it('reversing s moves the image across the line, as reversing g does', () => {
     const [p, m] = rows;
@@ -84,7 +84,7 @@ describe('inside-outside contrast of an inclined prismatic loop (radius 25 nm, C
       expect(['inside', 'outside']).toContain(x.minus.side);
     }
     expect(wb.pair).toMatch(/vacancy/);
-  }, 120_000);
+  });
 
   it('the same physical loop given with -n and -b reads the same', () => {
     const flipped = analyseLoops(scenario({ ...large, b: '1/2[-1 0 -1]', normal: [-1, 0, -1] }, [{ id: 'sPlus', g: [2, 2, 0], w: 1 }]))[0];
@@ -96,7 +96,7 @@ describe('inside-outside contrast of an inclined prismatic loop (radius 25 nm, C
       expect(y.plus.offset_nm).toBeCloseTo(x.plus.offset_nm, 6);
       expect(y.rulePlus).toBe(x.rulePlus);
     }
-  }, 120_000);
+  });
 });
 
 describe('the rule itself', () => {
@@ -128,5 +128,5 @@ describe('black-white contrast of a small loop (radius 2 nm, Cu 200, w = 0)', ()
     }
     expect(a.blackWhite!.sign).toBe(-b.blackWhite!.sign);
     a.depthSeries!.forEach((q, i) => expect(q.sign).toBe(-b.depthSeries![i].sign));
-  }, 120_000);
+  });
 });

@@ -160,7 +160,7 @@ describe('weak-beam ribbon: width and SFE back from a simulated micrograph (plum
     expect(Math.abs(gEst - gTrue)).toBeLessThan(gErr);
     // the simulated strip at the found width has the measured profile's shape
     expect(profileAgreement(t, res.width_nm, opts, prof.x_nm, y)).toBeGreaterThan(0.9);
-  }, 120_000);
+  });
 
   it('an oblique line (120 degrees on the screen) with half-pixel bins: 6 nm back within the pixel size', async () => {
     const c = Math.cos(Math.PI / 6), s30 = Math.sin(Math.PI / 6);
@@ -181,7 +181,7 @@ describe('weak-beam ribbon: width and SFE back from a simulated micrograph (plum
     const res = widthFromSeparation(t, pk.separation_nm, Math.hypot(pk.sigma_nm, (bin * Math.SQRT2) / Math.sqrt(12)), opts);
     expect(Math.abs(res.width_nm - 6)).toBeLessThan(0.25);
     expect(profileAgreement(t, res.width_nm, opts, prof.x_nm, y)).toBeGreaterThan(0.9);
-  }, 120_000);
+  });
 
   it('a ribbon too narrow to resolve (the equilibrium 1 nm of Cu) is flagged: its two strongest maxima are not reproduced in shape', async () => {
     const r = raw(6);
@@ -206,5 +206,5 @@ describe('weak-beam ribbon: width and SFE back from a simulated micrograph (plum
       }
     }
     expect(flagged).toBe(true);
-  }, 120_000);
+  });
 });

@@ -1,5 +1,6 @@
 /**
- * fault, bloch and demo end to end through the compiled CLI (`npm test` builds dist/ first).
+ * fault, bloch and the refusals of render end to end through the compiled CLI (`npm test` builds dist/ first);
+ * the demo has its own file (test/cli/demo.test.ts) so that the two test workers share the long files.
  */
 import { describe, expect, it } from 'vitest';
 import { spawnSync } from 'node:child_process';
@@ -45,7 +46,7 @@ describe('thinfoil fault', () => {
     expect(t.code, t.err).toBe(0);
     expect(t.out).toMatch(/A \(25 nm\), g220: \+g outside and -g inside: vacancy/);
     expect(t.out).toMatch(/sign of l\.g with depth/);
-  }, 120_000);
+  });
   it('at w = 0 the loop line suggests s > 0 with |w| near 1 (README), not "a larger |w|"', () => {
     const dir = mkdtempSync(join(tmpdir(), 'thinfoil-loop-w0-'));
     const sc = JSON.parse(readFileSync(join(ROOT, 'scenarios', 'copper-loop-nature.json'), 'utf8'));
@@ -56,7 +57,7 @@ describe('thinfoil fault', () => {
     expect(r.code, r.err).toBe(0);
     expect(r.out).toMatch(/A \(25 nm\), g220: the simulated \+g\/-g pair does not separate the natures here; choose another g, or s > 0 with \|w\| near 1/);
     expect(r.out).not.toMatch(/a larger \|w\|/);
-  }, 120_000);
+  });
   it('says so when there is nothing to analyse', () => {
     const r = run('fault', 'scenarios/copper-dislocations.json');
     expect(r.code).toBe(0);
@@ -87,32 +88,6 @@ describe('thinfoil bloch', () => {
     expect(r.err).toMatch(pattern);
     expect(r.err).not.toMatch(/\n\s+at /);
   });
-});
-
-describe('thinfoil demo', () => {
-  it('renders the invented demo, says it is invented, and writes images and tables', () => {
-    const out = mkdtempSync(join(tmpdir(), 'thinfoil-demo-'));
-    // --size 64 keeps the test short (same scenario, same field of view, coarser pixels); every check stays
-    const r = run('demo', '--out', out, '--size', '64');
-    expect(r.code, r.err).toBe(0);
-    expect(r.out).toMatch(/invented/);
-    expect(r.out).toMatch(/64 x 64 px at 2 nm/);
-    const summary = JSON.parse(readFileSync(join(out, 'render.json'), 'utf8'));
-    expect(summary.images.length).toBeGreaterThanOrEqual(8);
-    // render.json says which elasticity the fields used (default: anisotropic, from the material's Cij)
-    expect(summary.elasticity.model).toBe('anisotropic');
-    expect(summary.note).toMatch(/anisotropic elasticity/);
-    // and what the foil surfaces did (default: the infinite medium, said in words)
-    expect(summary.surfaces.setting).toBe('infinite');
-    expect(summary.surfaces.text).toMatch(/^infinite-medium dislocation fields \(no free-surface relaxation/);
-    expect(summary.surfaces.correctedLines).toBe(0);
-    expect(summary.surfaces.approximations.join(' ')).toMatch(/not traction-free/);
-    for (const e of summary.images) {
-      expect(existsSync(e.png)).toBe(true);
-      expect(existsSync(e.tiff)).toBe(true);
-    }
-    expect(existsSync(join(out, 'visibility.txt'))).toBe(true);
-  }, 300_000);
 });
 
 describe('commands refuse a scenario that is not an object', () => {

@@ -35,7 +35,7 @@ describe('thinfoil plan', () => {
     const t = run('plan', 'scenarios/copper-plan.json', '--out', out, '--holder', 'rotation', '--primary', '-25,25');
     expect(t.code, t.err).toBe(0);
     expect(t.out).toMatch(/in the order of least tilting/);
-  }, 120_000);
+  });
 
   it('writes one output set: a folder holding a file thinfoil did not write is refused before any planning, nothing in it changes', () => {
     const out = mkdtempSync(join(tmpdir(), 'thinfoil-plan-'));

@@ -35,7 +35,7 @@ describe('thinfoil ribbon', () => {
     expect(text.code, text.err).toBe(0);
     expect(text.out).toMatch(/true partial separation 6\.0\d* \+- /);
     expect(text.out).toMatch(/stacking-fault energy: isotropic/);
-  }, 120_000);
+  });
 
   it.each([
     [['ribbon', SC], /--micrograph is missing/],

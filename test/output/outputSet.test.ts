@@ -170,5 +170,5 @@ describe.skipIf(!fs.existsSync(CLI))('render killed with SIGKILL at different mo
     }
     console.log(outcomes.join('; '));
     expect(outcomes.some((o) => o.includes('new set'))).toBe(true);
-  }, 300_000);
+  });
 });
