@@ -115,6 +115,37 @@ describe('residualStructure: the unexplained fraction does not grow with the sig
   });
 });
 
+describe('residualStructure against scipy (gaussian_filter, mode nearest, truncate 4)', () => {
+  const pyScipy = needPython('numpy', 'scipy');
+  it('structure ratio and unexplained fraction of a noisy ridge and a misfit model agree with a scipy computation of the same definitions to 1e-9', (ctx) => {
+    pyScipy.require(ctx);
+    const ref = pythonJson<{ c: number[]; r: number[]; sigma: number; structure: number; unexplained: number }>(
+      `import json, math, numpy as np
+from scipy import ndimage
+rng = np.random.default_rng(16)
+y, x = np.mgrid[0:${H}, 0:${W}]
+ridge = np.exp(-((x - 0.8 * y - 10) / math.sqrt(1.64)) ** 2 / 18.0)
+c = ridge + 0.2 * rng.normal(size=(${H}, ${W}))
+r = c - 0.6 * np.roll(ridge, 3, axis=1)
+v = ndimage.convolve(c, np.array([[1, -2, 1], [-2, 4, -2], [1, -2, 1]], float))[1:-1, 1:-1]
+sigma = math.sqrt(math.pi / 2) * np.abs(v).sum() / (6 * ${W - 2} * ${H - 2})
+s = 1.5
+n = 2 * math.ceil(4 * s) + 1
+d = np.zeros((n, n)); d[n // 2, n // 2] = 1
+k2 = (ndimage.gaussian_filter(d, s, mode='nearest', truncate=4.0) ** 2).sum()
+b = math.ceil(2 * s)
+pw = lambda a: (ndimage.gaussian_filter(a, s, mode='nearest', truncate=4.0)[b:-b, b:-b] ** 2).mean()
+pn = sigma ** 2 * k2
+print(json.dumps({'c': c.ravel().tolist(), 'r': r.ravel().tolist(), 'sigma': sigma, 'structure': pw(r) / pn, 'unexplained': (pw(r) - pn) / (pw(c) - pn)}))`,
+    );
+    const sigma = immerkaerSigma(ref.c, W, H);
+    expect(Math.abs(sigma / ref.sigma - 1)).toBeLessThan(1e-9);
+    const x = residualStructure(Float64Array.from(ref.r), Float64Array.from(ref.c), W, H, sigma);
+    expect(Math.abs(x.structure / ref.structure - 1)).toBeLessThan(1e-9);
+    expect(Math.abs(x.unexplained - ref.unexplained)).toBeLessThan(1e-9);
+  });
+});
+
 describe('absoluteFit: structure above the noise that is also a large part of the micrograph', () => {
   const micrograph = (contrast: Float64Array) => ({ conditionId: 'g200', width: W, height: H, contrast }) as unknown as PreparedMicrograph;
   it('noise 0.1 on a ridge of 1: a model 20 % too weak leaves structure above the limit but only 4 % of the ridge: explained; a ridge 12 px off is not', (ctx) => {
