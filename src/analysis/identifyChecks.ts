@@ -99,7 +99,7 @@ export function absoluteFit(micrographs: readonly PreparedMicrograph[], windows:
     method:
       `Pixel noise of each micrograph from the absolute Laplacian-difference response (Immerkaer 1996), without any candidate; ` +
       `the best candidate's residual, smoothed by a Gaussian of ${STRUCTURE_SMOOTHING_PX} pixels, is compared with what that noise alone would leave (structure, about 1 for noise) ` +
-      `and with the micrograph's own smoothed structure, the noise's share removed from both (unexplained fraction, 0 to 1). ` +
+      `and with the micrograph's own smoothed structure, the noise's share removed from both (unexplained fraction: 0 all explained, 1 nothing, above 1 contrast the micrograph does not show). ` +
       `A micrograph with structure above ${STRUCTURE_LIMIT} and unexplained fraction above ${UNEXPLAINED_LIMIT} holds structure no candidate explains ` +
       `(below that fraction the misfit is what a model leaves of a micrograph; our choice, measured on synthetic micrographs from an independent generator, where it still calls some correct candidates unexplained).`,
   };
