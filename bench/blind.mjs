@@ -8,6 +8,10 @@
  *   top-1 accuracy   over the cases whose true b is in the candidate list
  *   wrong verdicts   "identified" naming a candidate that is not the true b
  *                    (in cases with the true b outside the list, any "identified")
+ *   none explains    how many cases end "no candidate explains", with b outside
+ *                    the list (wanted) and with b in it (false alarms); per case
+ *                    the largest structure ratio and unexplained fraction of the
+ *                    best candidate's residual (identifyChecks.ts)
  *   seconds          wall time of the whole benchmark
  *
  * Requirement (issue 14): top-1 >= 90 % and no wrong "identified". Exit code 0
@@ -103,6 +107,9 @@ export async function runBlind({ cases, jobs, keep }) {
         decision,
         best,
         wrongIdentified: decision === 'identified' && !same(labelVector(best), tv),
+        // the absolute fit (identifyChecks.ts): the largest structure ratio of the best candidate's residual over the micrographs
+        maxStructure: Math.max(...j.absolute.perMicrograph.map((p) => p.structure)),
+        maxUnexplained: Math.max(...j.absolute.perMicrograph.map((p) => p.unexplained)),
         indistinguishable: j.verdict.indistinguishable,
         seconds: r.seconds,
       };
@@ -121,6 +128,9 @@ export async function runBlind({ cases, jobs, keep }) {
   const wrong = results.filter((r) => r.wrongIdentified || r.error).length;
   const outsideNamed = results.filter((r) => !r.inList && r.decision === 'identified').length;
   const errors = results.filter((r) => r.error).length;
+  // "no candidate explains" per class: wanted where the true b is outside the list, a false alarm where it is in it
+  const ran = results.filter((r) => !r.error);
+  const noneExplains = (rs) => rs.filter((r) => r.decision === 'no candidate explains').length;
   const summary = {
     cases: results.length,
     inList: inList.length,
@@ -130,6 +140,8 @@ export async function runBlind({ cases, jobs, keep }) {
     identifiedCorrect: results.filter((r) => r.decision === 'identified' && !r.wrongIdentified).length,
     wrongIdentified: wrong - errors,
     outsideListNamed: outsideNamed,
+    noneExplainsOutside: noneExplains(ran.filter((r) => !r.inList)),
+    noneExplainsInList: noneExplains(ran.filter((r) => r.inList)),
     errors,
     seconds,
     cpuSeconds,
@@ -147,15 +159,15 @@ async function main() {
     process.stdout.write(`${JSON.stringify({ results, summary, pass })}\n`);
   } else {
     const pad = (s, n) => String(s).padEnd(n);
-    process.stdout.write(`${pad('case', 8)}${pad('true b', 16)}${pad('in list', 9)}${pad('top-ranked', 20)}${pad('top-1', 7)}${pad('verdict', 13)}${pad('seconds', 8)}\n`);
+    process.stdout.write(`${pad('case', 8)}${pad('true b', 16)}${pad('in list', 9)}${pad('top-ranked', 20)}${pad('top-1', 7)}${pad('verdict', 15)}${pad('structure', 11)}${pad('unexpl.', 9)}${pad('seconds', 8)}\n`);
     for (const r of results) {
       if (r.error) {
         process.stdout.write(`${pad(r.case, 8)}${pad(r.truth, 16)}${pad(r.inList ? 'yes' : 'no', 9)}ERROR ${r.error}\n`);
         continue;
       }
-      const verdict = r.decision === 'identified' ? (r.wrongIdentified ? 'WRONG ident.' : 'identified') : 'cannot tell';
+      const verdict = r.decision === 'identified' ? (r.wrongIdentified ? 'WRONG ident.' : 'identified') : r.decision === 'cannot tell' ? 'cannot tell' : 'none explains';
       process.stdout.write(
-        `${pad(r.case, 8)}${pad(r.truth, 16)}${pad(r.inList ? 'yes' : 'no', 9)}${pad(r.top.replace(/^b = /, ''), 20)}${pad(r.inList ? (r.topCorrect ? 'yes' : 'NO') : '-', 7)}${pad(verdict, 13)}${r.seconds.toFixed(1)}\n`,
+        `${pad(r.case, 8)}${pad(r.truth, 16)}${pad(r.inList ? 'yes' : 'no', 9)}${pad(r.top.replace(/^b = /, ''), 20)}${pad(r.inList ? (r.topCorrect ? 'yes' : 'NO') : '-', 7)}${pad(verdict, 15)}${pad(r.maxStructure.toFixed(2), 11)}${pad(r.maxUnexplained.toFixed(2), 9)}${r.seconds.toFixed(1)}\n`,
       );
     }
     const s = summary;
@@ -163,6 +175,7 @@ async function main() {
       `\ntop-1 accuracy: ${s.top1Correct}/${s.inList} = ${(100 * s.top1Accuracy).toFixed(1)} % (required >= ${100 * MIN_TOP1} %)\n` +
         `"identified" verdicts: ${s.identified} (${s.identifiedCorrect} correct, ${s.wrongIdentified} wrong; required 0 wrong)\n` +
         `cases with the true b outside the list named as identified: ${s.outsideListNamed} of ${s.cases - s.inList} (required 0)\n` +
+        `"no candidate explains": ${s.noneExplainsOutside} of ${s.cases - s.inList} cases with b outside the list, ${s.noneExplainsInList} of ${s.inList} with b in it (false alarms); structure, unexpl.: the largest structure ratio and unexplained fraction of the best candidate's residual over the micrographs\n` +
         (s.errors ? `cases that failed to run: ${s.errors}\n` : '') +
         `${s.cases} cases in ${s.seconds.toFixed(1)} s wall (${jobs} at a time)${s.cpuSeconds === undefined ? '' : `, ${s.cpuSeconds.toFixed(1)} CPU s in the identify processes`}; load average at the end ${s.loadAverage.toFixed(1)}\n` +
         `requirement ${pass ? 'MET' : 'NOT MET'}\n`,

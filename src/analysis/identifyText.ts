@@ -24,9 +24,16 @@ export function gapText(x: number | undefined): string {
   return x === undefined ? '' : sig(x, 3);
 }
 
-/** "sigma 0.163, residual 0.171, structure 1.57". */
-export function noiseText(p: IdentifyResult['absolute']['perMicrograph'][number]): string {
-  return `noise ${sig(p.sigma, 3)}, residual ${sig(p.residualRms, 3)}, structure ${sig(p.structure, 3)}`;
+type MicrographNoise = IdentifyResult['absolute']['perMicrograph'][number];
+
+/** "noise 0.163, residual 0.171, structure 1.57, unexplained 0.04". */
+export function noiseText(p: MicrographNoise): string {
+  return `noise ${sig(p.sigma, 3)}, residual ${sig(p.residualRms, 3)}, structure ${sig(p.structure, 3)}, unexplained ${sig(p.unexplained, 2)}`;
+}
+
+/** "structure 21.3 times the noise, 50 % of its structure unexplained" (the verdict's reason for one micrograph). */
+export function structureText(p: Pick<MicrographNoise, 'structure' | 'unexplained'>): string {
+  return `structure ${sig(p.structure, 3)} times the noise, ${sig(100 * p.unexplained, 2)} % of its structure unexplained`;
 }
 
 export function decisionWord(d: IdentifyResult['verdict']['decision']): string {
