@@ -18,6 +18,7 @@ import type { Scenario } from '../scenario/types.js';
 import { InputError, InternalError } from '../errors.js';
 import { identificationCandidates, variantScenario, visibilityNote, type Candidate, type VisibilityNote } from './candidates.js';
 import { simulateView, type Renderer } from './simulateView.js';
+import { cachedRenderer } from './renderCache.js';
 import { DEFAULT_FIT, type FitSettings } from './fitSettings.js';
 import { nuisanceModel } from './nuisance.js';
 import { fitCandidate, fitViews } from './fitCandidate.js';
@@ -156,10 +157,12 @@ export async function identify(scStated: Scenario, micrographsStated: readonly P
   const progress = opts.onProgress ?? (() => undefined);
   const nC = micrographs.length;
   const linear = micrographs.map((m) => m.settings.intensity === 'linear');
+  // full-size views are asked for more than once (stated values in the ranking, the spread and the checks): rendered once
+  const renderFull = cachedRenderer(render);
 
   // 1. simulations in each micrograph's view (the only work per candidate: shards split it)
   const t0 = performance.now();
-  const sims = opts.simulations ?? (await simulateCandidates(sc, micrographs, render, candidates.map((_, k) => k), defectIndex, progress));
+  const sims = opts.simulations ?? (await simulateCandidates(sc, micrographs, renderFull, candidates.map((_, k) => k), defectIndex, progress));
   if (sims.length !== candidates.length || sims.some((row) => row.length !== nC)) throw new InternalError('identify: simulations do not match the candidates and micrographs');
   const t1 = performance.now();
 
@@ -219,7 +222,7 @@ export async function identify(scStated: Scenario, micrographsStated: readonly P
   // 3b. nuisance parameters of the leaders, fitted on small views, checked at full size
   const fits = new Map<number, { report: CandidateFitReport; values: readonly number[]; apply: (v: readonly number[]) => { scenario: Scenario; conditions: readonly Condition[] } }>();
   const simulateWith = (scenario: Scenario, conditions: readonly Condition[], i: number, over: Partial<PreparedMicrograph> = {}) =>
-    simulateView(scenario, { ...micrographs[i], condition: conditions[i], ...over }, render, { alongLine: false });
+    simulateView(scenario, { ...micrographs[i], condition: conditions[i], ...over }, renderFull, { alongLine: false });
   const registerSim = (i: number, sim: Float64Array, start: { rotation_deg: number; scale: number }, full: boolean): Pair => {
     const m = micrographs[i];
     const reg = register(cors[i], tpls[i], sim, { ...regOpts, ...(full ? { initialRotationStep_deg: 1, initialScaleStep: 0.01 } : {}), search: full, start });
@@ -363,8 +366,8 @@ export async function identify(scStated: Scenario, micrographsStated: readonly P
       // rendered along the line where possible (three times faster; slightly blurrier, which only makes the check
       // more cautious) and registered by shift only, at the micrograph's rotation (mirrored: its negative) and scale
       const v = viewOf(k, i);
-      const rev = registerSim(i, await simulateView(st.scenario, { ...m, condition: reversed }, render, { defectIndex }), v, false);
-      const mir = registerSim(i, await simulateView(st.scenario, { ...m, condition: c, settings: { ...m.settings, mirrored: !m.settings.mirrored } }, render, { defectIndex }), { rotation_deg: -v.rotation_deg, scale: v.scale }, false);
+      const rev = registerSim(i, await simulateView(st.scenario, { ...m, condition: reversed }, renderFull, { defectIndex }), v, false);
+      const mir = registerSim(i, await simulateView(st.scenario, { ...m, condition: c, settings: { ...m.settings, mirrored: !m.settings.mirrored } }, renderFull, { defectIndex }), { rotation_deg: -v.rotation_deg, scale: v.scale }, false);
       for (const [kind, pr] of [['reversed', rev], ['mirrored', mir]] as const) {
         const score = fitAmplitudes(base.map((x, j) => (j === i ? pr.stats : x)), linear, spread).score;
         if (score > alt[i][kind].score) alt[i][kind] = { score, k, r2: freeR2(m.contrast, pr.window) };
