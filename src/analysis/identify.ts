@@ -278,36 +278,68 @@ export async function identify(scStated: Scenario, micrographsStated: readonly P
   // 4. bootstrap of the leaders (the fully registered prefix of the ranking)
   const firstPartial = order.findIndex((k) => !pairs[k][0].full);
   const leaders = order.slice(0, Math.min(top, firstPartial < 0 ? order.length : firstPartial));
-  const replicates = bootstrap(micrographs, cors, pairs, leaders, linear, spread, B, seed, (f) => progress('estimating the noise of the scores', f));
-  const t4 = performance.now();
-
-  // 5. spread of the gaps across the parameter ranges (fitted leaders), and the gain unfitted candidates might get
+  // the renders of steps 5 and 6 do not depend on the bootstrap: asked for now, so that the workers render them while
+  // this thread bootstraps (awaited in their steps; a failure is reported there)
+  const bestK = order[0];
   const scoreWith = async (k: number, v: readonly number[], fk: { apply: (v: readonly number[]) => { scenario: Scenario; conditions: readonly Condition[] } }) => {
     const { scenario, conditions } = fk.apply(v);
     const ps = await Promise.all(micrographs.map(async (_, i) => registerSim(i, await simulateWith(scenario, conditions, i), viewOf(k, i), false)));
     return fitAmplitudes(ps.map((p) => p.stats), linear, spread).score;
   };
+  // the other candidate at the best one's values and the best at the other's (the same parameter names in the same
+  // order), for every fitted candidate side by side
+  const fbFit = fits.get(bestK);
+  const crossedP =
+    !fitOn || fbFit === undefined
+      ? null
+      : Promise.all(
+          order.map(async (k, r) => {
+            const fk = fits.get(k);
+            if (r === 0 || fk === undefined) return null;
+            const sK = scoreOf(k).score;
+            if (fbFit.values.length !== fk.values.length) return { sK, kAtB: sK, bAtK: scoreOf(bestK).score };
+            const [kAtB, bAtK] = await Promise.all([scoreWith(k, fbFit.values, fk), scoreWith(bestK, fk.values, fbFit)]);
+            return { sK, kAtB, bAtK };
+          }),
+        );
+  // g reversed or the image mirrored on one micrograph: every leading candidate at its own parameters, that
+  // micrograph replaced by the variant (step 6)
+  const stateOf = (k: number) => {
+    const f = fits.get(k);
+    return f ? f.apply(f.values) : { scenario: variantScenario(sc, candidates[k]), conditions: micrographs.map((m) => m.condition) };
+  };
+  const variantsP = Promise.all(
+    leaders.map((k) => {
+      const st = stateOf(k);
+      return Promise.all(
+        micrographs.map(async (m, i) => {
+          const c = st.conditions[i];
+          const reversed: Condition = { ...c, g: [-c.g[0], -c.g[1], -c.g[2]] };
+          // rendered along the line where possible (three times faster; slightly blurrier, which only makes the check
+          // more cautious) and registered by shift only, at the micrograph's rotation (mirrored: its negative) and scale
+          const v = viewOf(k, i);
+          const [simRev, simMir] = await Promise.all([
+            simulateView(st.scenario, { ...m, condition: reversed }, renderFull, { defectIndex }),
+            simulateView(st.scenario, { ...m, condition: c, settings: { ...m.settings, mirrored: !m.settings.mirrored } }, renderFull, { defectIndex }),
+          ]);
+          return [registerSim(i, simRev, v, false), registerSim(i, simMir, { rotation_deg: -v.rotation_deg, scale: v.scale }, false)] as const;
+        }),
+      );
+    }),
+  );
+  for (const pr of [crossedP, variantsP]) pr?.catch(() => undefined);
+  const replicates = bootstrap(micrographs, cors, pairs, leaders, linear, spread, B, seed, (f) => progress('estimating the noise of the scores', f));
+  const t4 = performance.now();
+
+  // 5. spread of the gaps across the parameter ranges (fitted leaders), and the gain unfitted candidates might get
   const spreads = order.map(() => 0);
-  const bestK = order[0];
-  if (fitOn && fits.has(bestK)) {
+  if (crossedP !== null) {
     progress('spread of the scores across the parameter ranges', 0);
-    const fb = fits.get(bestK)!;
     const sB = scoreOf(bestK).score;
     let maxSpread = 0;
     let maxGain = 0;
     for (const f of fits.values()) maxGain = Math.max(maxGain, f.report.fittedScore - f.report.nominalScore);
-    // the other candidate at the best one's values and the best at the other's (the same parameter names in the same
-    // order), for every fitted candidate side by side
-    const crossed = await Promise.all(
-      order.map(async (k, r) => {
-        const fk = fits.get(k);
-        if (r === 0 || fk === undefined) return null;
-        const sK = scoreOf(k).score;
-        if (fb.values.length !== fk.values.length) return { sK, kAtB: sK, bAtK: sB };
-        const [kAtB, bAtK] = await Promise.all([scoreWith(k, fb.values, fk), scoreWith(bestK, fk.values, fb)]);
-        return { sK, kAtB, bAtK };
-      }),
-    );
+    const crossed = await crossedP;
     for (let r = 1; r < order.length; r++) {
       const c = crossed[r];
       if (c === null) continue;
@@ -355,34 +387,11 @@ export async function identify(scStated: Scenario, micrographsStated: readonly P
   const bestState = fb ? fb.apply(fb.values) : { scenario: variantScenario(sc, candidates[bestK]), conditions: micrographs.map((m) => m.condition) };
   const maxR = regOpts.maxRotation_deg ?? DEFAULT_MAX_ROTATION_DEG;
   const maxS = regOpts.maxScale ?? DEFAULT_MAX_SCALE;
-  // g reversed or the image mirrored on one micrograph: every leading candidate at its own parameters, that
-  // micrograph replaced by the variant; flagged when the best such score beats the best score as stated
-  const stateOf = (k: number) => {
-    const f = fits.get(k);
-    return f ? f.apply(f.values) : { scenario: variantScenario(sc, candidates[k]), conditions: micrographs.map((m) => m.condition) };
-  };
+  // g reversed or the image mirrored on one micrograph: flagged when the best such score beats the best score as stated
   const flipMargin = Math.max(3 * verdict0.gapSigma, FLIP_MARGIN / nC);
   const alt = micrographs.map(() => ({ reversed: { score: -Infinity, k: bestK, r2: 0 }, mirrored: { score: -Infinity, k: bestK, r2: 0 } }));
-  // every leader's variants rendered side by side, then compared in the leaders' order (ties keep the first)
-  const variants = await Promise.all(
-    leaders.map((k) => {
-      const st = stateOf(k);
-      return Promise.all(
-        micrographs.map(async (m, i) => {
-          const c = st.conditions[i];
-          const reversed: Condition = { ...c, g: [-c.g[0], -c.g[1], -c.g[2]] };
-          // rendered along the line where possible (three times faster; slightly blurrier, which only makes the check
-          // more cautious) and registered by shift only, at the micrograph's rotation (mirrored: its negative) and scale
-          const v = viewOf(k, i);
-          const [simRev, simMir] = await Promise.all([
-            simulateView(st.scenario, { ...m, condition: reversed }, renderFull, { defectIndex }),
-            simulateView(st.scenario, { ...m, condition: c, settings: { ...m.settings, mirrored: !m.settings.mirrored } }, renderFull, { defectIndex }),
-          ]);
-          return [registerSim(i, simRev, v, false), registerSim(i, simMir, { rotation_deg: -v.rotation_deg, scale: v.scale }, false)] as const;
-        }),
-      );
-    }),
-  );
+  // every leader's variants (rendered side by side), compared in the leaders' order (ties keep the first)
+  const variants = await variantsP;
   leaders.forEach((k, j) => {
     const base = pairs[k].map((p) => p.stats);
     for (let i = 0; i < nC; i++) {
