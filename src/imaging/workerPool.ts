@@ -81,6 +81,8 @@ export function createRenderPool(threads = availableParallelism()): RenderPool {
         const t = running.get(w);
         running.delete(w);
         workers = workers?.filter((x) => x !== w) ?? null;
+        const at = idle.indexOf(w);
+        if (at >= 0) idle.splice(at, 1);
         t?.fail(e);
         if (workers !== null && workers.length === 0) for (const q of queue.splice(0)) q.fail(e);
       });
