@@ -85,28 +85,26 @@ export async function fitCandidate(inp: FitInputs): Promise<CandidateFit> {
   const nC = views.length;
   const shared = P.map((p, i) => (p.scope === 'shared' ? i : -1)).filter((i) => i >= 0);
   const own = views.map((_, c) => P.map((p, i) => (p.scope === c ? i : -1)).filter((i) => i >= 0));
-  const cache = views.map(() => new Map<string, PairStats>());
+  const cache = views.map(() => new Map<string, Promise<PairStats>>());
   let renders = 0;
-  const statsOf = async (c: number, v: readonly number[]): Promise<PairStats> => {
+  const statsOf = (c: number, v: readonly number[]): Promise<PairStats> => {
     const key = [...shared, ...own[c]].map((i) => v[i].toPrecision(9)).join(' ');
     const hit = cache[c].get(key);
     if (hit) return hit;
     const { scenario, conditions } = model.apply(v);
     const fv = views[c];
     const m = { ...fv.micrograph, condition: conditions[c] };
-    const sim = await simulateView(scenario, m, inp.render, { defectIndex: inp.defectIndex });
+    const st = simulateView(scenario, m, inp.render, { defectIndex: inp.defectIndex }).then((sim) => {
+      const reg = register(fv.cor, fv.tpl, sim, { search: false, start: inp.view[c] });
+      const w = removePlane(new Float64Array(reg.window.length), reg.window, m.width, m.height);
+      return pairStats(m.contrast, w);
+    });
     renders++;
-    const reg = register(fv.cor, fv.tpl, sim, { search: false, start: inp.view[c] });
-    const w = removePlane(new Float64Array(reg.window.length), reg.window, m.width, m.height);
-    const st = pairStats(m.contrast, w);
     cache[c].set(key, st);
     return st;
   };
-  const score = async (v: readonly number[]) => {
-    const st: PairStats[] = [];
-    for (let c = 0; c < nC; c++) st.push(await statsOf(c, v));
-    return fitAmplitudes(st, inp.linear, inp.spread).score;
-  };
+  // the micrographs of one evaluation are rendered side by side (a render pool with workers runs them in parallel)
+  const score = async (v: readonly number[]) => fitAmplitudes(await Promise.all(views.map((_, c) => statsOf(c, v))), inp.linear, inp.spread).score;
   const x = P.map((p) => p.nominal);
   const nominalScore = await score(x);
   let best = nominalScore;

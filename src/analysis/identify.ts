@@ -18,6 +18,7 @@ import type { Scenario } from '../scenario/types.js';
 import { InputError, InternalError } from '../errors.js';
 import { identificationCandidates, variantScenario, visibilityNote, type Candidate, type VisibilityNote } from './candidates.js';
 import { simulateView, type Renderer } from './simulateView.js';
+import { cachedRenderer } from './renderCache.js';
 import { DEFAULT_FIT, type FitSettings } from './fitSettings.js';
 import { nuisanceModel } from './nuisance.js';
 import { fitCandidate, fitViews } from './fitCandidate.js';
@@ -129,6 +130,7 @@ export interface IdentifyResult {
   readonly flags: readonly ConsistencyFlag[];
   /** Per micrograph: the best score as stated, and the best score of any leading candidate with that micrograph's g reversed or its image mirrored. */
   readonly consistency: readonly { readonly condition: string; readonly scoreStated: number; readonly scoreReversed: number; readonly scoreMirrored: number }[];
+  /** Wall seconds per step; checks: the parameter spread and the consistency checks (their renders are asked for before the bootstrap). */
   readonly seconds: { readonly render: number; readonly register: number; readonly fit: number; readonly bootstrap: number; readonly checks: number };
 }
 
@@ -156,10 +158,12 @@ export async function identify(scStated: Scenario, micrographsStated: readonly P
   const progress = opts.onProgress ?? (() => undefined);
   const nC = micrographs.length;
   const linear = micrographs.map((m) => m.settings.intensity === 'linear');
+  // full-size views are asked for more than once (stated values in the ranking, the spread and the checks): rendered once
+  const renderFull = cachedRenderer(render);
 
   // 1. simulations in each micrograph's view (the only work per candidate: shards split it)
   const t0 = performance.now();
-  const sims = opts.simulations ?? (await simulateCandidates(sc, micrographs, render, candidates.map((_, k) => k), defectIndex, progress));
+  const sims = opts.simulations ?? (await simulateCandidates(sc, micrographs, renderFull, candidates.map((_, k) => k), defectIndex, progress));
   if (sims.length !== candidates.length || sims.some((row) => row.length !== nC)) throw new InternalError('identify: simulations do not match the candidates and micrographs');
   const t1 = performance.now();
 
@@ -219,7 +223,7 @@ export async function identify(scStated: Scenario, micrographsStated: readonly P
   // 3b. nuisance parameters of the leaders, fitted on small views, checked at full size
   const fits = new Map<number, { report: CandidateFitReport; values: readonly number[]; apply: (v: readonly number[]) => { scenario: Scenario; conditions: readonly Condition[] } }>();
   const simulateWith = (scenario: Scenario, conditions: readonly Condition[], i: number, over: Partial<PreparedMicrograph> = {}) =>
-    simulateView(scenario, { ...micrographs[i], condition: conditions[i], ...over }, render, { alongLine: false });
+    simulateView(scenario, { ...micrographs[i], condition: conditions[i], ...over }, renderFull, { alongLine: false });
   const registerSim = (i: number, sim: Float64Array, start: { rotation_deg: number; scale: number }, full: boolean): Pair => {
     const m = micrographs[i];
     const reg = register(cors[i], tpls[i], sim, { ...regOpts, ...(full ? { initialRotationStep_deg: 1, initialScaleStep: 0.01 } : {}), search: full, start });
@@ -229,25 +233,25 @@ export async function identify(scStated: Scenario, micrographsStated: readonly P
   if (fitOn) {
     const views = fitViews(micrographs);
     const fitted = order.slice(0, top);
-    for (const [n, k] of fitted.entries()) {
-      progress(`fitting thickness, depth, line and w for ${candidates[k].label}`, n / fitted.length);
-      const model = nuisanceModel(sc, candidates[k], micrographs, fitSettings);
+    // the leaders' fits are independent: they run side by side (with workers, their renders share them)
+    let fitsDone = 0;
+    progress(`fitting thickness, depth, line and w for ${fitted.map((k) => candidates[k].label).join(', ')}`, 0);
+    const results = await Promise.all(
+      fitted.map(async (k) => {
+        const model = nuisanceModel(sc, candidates[k], micrographs, fitSettings);
+        const nominalScore = scoreOf(k).score;
+        const view = micrographs.map((_, i) => viewOf(k, i));
+        const f = await fitCandidate({ model, views, view, linear, spread, render, defectIndex });
+        // the fit's values at full size, kept only when they score better there than the stated ones
+        const { scenario, conditions } = model.apply(f.values);
+        const ps = await Promise.all(micrographs.map(async (_, i) => registerSim(i, await simulateWith(scenario, conditions, i), view[i], true)));
+        progress(`fitted thickness, depth, line and w for ${candidates[k].label}`, ++fitsDone / fitted.length);
+        return { k, model, nominalScore, f, full: { ps, score: fitAmplitudes(ps.map((p) => p.stats), linear, spread).score } };
+      }),
+    );
+    for (const { k, model, nominalScore, f, full } of results) {
       const nominal = model.parameters.map((p) => p.nominal);
-      const nominalScore = scoreOf(k).score;
-      const f = await fitCandidate({ model, views, view: micrographs.map((_, i) => viewOf(k, i)), linear, spread, render, defectIndex });
-      let renders = f.renders;
-      // the fit's values at full size, kept only when they score better there than the stated ones
-      const tryValues = async (v: readonly number[]) => {
-        const { scenario, conditions } = model.apply(v);
-        const ps: Pair[] = [];
-        for (let i = 0; i < nC; i++) {
-          ps.push(registerSim(i, await simulateWith(scenario, conditions, i), viewOf(k, i), true));
-          renders++;
-        }
-        return { ps, score: fitAmplitudes(ps.map((p) => p.stats), linear, spread).score };
-      };
       const base = { ps: pairs[k], score: nominalScore };
-      const full = await tryValues(f.values);
       const improved = full.score > base.score;
       const values = improved ? f.values : nominal;
       pairs[k] = improved ? full.ps : base.ps;
@@ -264,7 +268,7 @@ export async function identify(scStated: Scenario, micrographsStated: readonly P
           nominalScore: base.score,
           fittedScore: Math.max(full.score, base.score),
           improved,
-          renders,
+          renders: f.renders + nC,
         },
       });
     }
@@ -275,33 +279,73 @@ export async function identify(scStated: Scenario, micrographsStated: readonly P
   // 4. bootstrap of the leaders (the fully registered prefix of the ranking)
   const firstPartial = order.findIndex((k) => !pairs[k][0].full);
   const leaders = order.slice(0, Math.min(top, firstPartial < 0 ? order.length : firstPartial));
+  // the renders of steps 5 and 6 do not depend on the bootstrap: asked for now, so that the workers render them while
+  // this thread bootstraps (awaited in their steps; a failure is reported there)
+  const bestK = order[0];
+  const scoreWith = async (k: number, v: readonly number[], fk: { apply: (v: readonly number[]) => { scenario: Scenario; conditions: readonly Condition[] } }) => {
+    const { scenario, conditions } = fk.apply(v);
+    const ps = await Promise.all(micrographs.map(async (_, i) => registerSim(i, await simulateWith(scenario, conditions, i), viewOf(k, i), false)));
+    return fitAmplitudes(ps.map((p) => p.stats), linear, spread).score;
+  };
+  // the other candidate at the best one's values and the best at the other's (the same parameter names in the same
+  // order), for every fitted candidate side by side
+  const fbFit = fits.get(bestK);
+  const crossedP =
+    !fitOn || fbFit === undefined
+      ? null
+      : Promise.all(
+          order.map(async (k, r) => {
+            const fk = fits.get(k);
+            if (r === 0 || fk === undefined) return null;
+            const sK = scoreOf(k).score;
+            if (fbFit.values.length !== fk.values.length) return { sK, kAtB: sK, bAtK: scoreOf(bestK).score };
+            const [kAtB, bAtK] = await Promise.all([scoreWith(k, fbFit.values, fk), scoreWith(bestK, fk.values, fbFit)]);
+            return { sK, kAtB, bAtK };
+          }),
+        );
+  // g reversed or the image mirrored on one micrograph: every leading candidate at its own parameters, that
+  // micrograph replaced by the variant (step 6)
+  const stateOf = (k: number) => {
+    const f = fits.get(k);
+    return f ? f.apply(f.values) : { scenario: variantScenario(sc, candidates[k]), conditions: micrographs.map((m) => m.condition) };
+  };
+  const variantsP = Promise.all(
+    leaders.map((k) => {
+      const st = stateOf(k);
+      return Promise.all(
+        micrographs.map(async (m, i) => {
+          const c = st.conditions[i];
+          const reversed: Condition = { ...c, g: [-c.g[0], -c.g[1], -c.g[2]] };
+          // rendered along the line where possible (three times faster; slightly blurrier, which only makes the check
+          // more cautious) and registered by shift only, at the micrograph's rotation (mirrored: its negative) and scale
+          const v = viewOf(k, i);
+          const [simRev, simMir] = await Promise.all([
+            simulateView(st.scenario, { ...m, condition: reversed }, renderFull, { defectIndex }),
+            simulateView(st.scenario, { ...m, condition: c, settings: { ...m.settings, mirrored: !m.settings.mirrored } }, renderFull, { defectIndex }),
+          ]);
+          return [registerSim(i, simRev, v, false), registerSim(i, simMir, { rotation_deg: -v.rotation_deg, scale: v.scale }, false)] as const;
+        }),
+      );
+    }),
+  );
+  for (const pr of [crossedP, variantsP]) pr?.catch(() => undefined);
+  const tb = performance.now();
   const replicates = bootstrap(micrographs, cors, pairs, leaders, linear, spread, B, seed, (f) => progress('estimating the noise of the scores', f));
   const t4 = performance.now();
 
   // 5. spread of the gaps across the parameter ranges (fitted leaders), and the gain unfitted candidates might get
-  const scoreWith = async (k: number, v: readonly number[], fk: { apply: (v: readonly number[]) => { scenario: Scenario; conditions: readonly Condition[] } }) => {
-    const { scenario, conditions } = fk.apply(v);
-    const ps: Pair[] = [];
-    for (let i = 0; i < nC; i++) ps.push(registerSim(i, await simulateWith(scenario, conditions, i), viewOf(k, i), false));
-    return fitAmplitudes(ps.map((p) => p.stats), linear, spread).score;
-  };
   const spreads = order.map(() => 0);
-  const bestK = order[0];
-  if (fitOn && fits.has(bestK)) {
+  if (crossedP !== null) {
     progress('spread of the scores across the parameter ranges', 0);
-    const fb = fits.get(bestK)!;
     const sB = scoreOf(bestK).score;
     let maxSpread = 0;
     let maxGain = 0;
     for (const f of fits.values()) maxGain = Math.max(maxGain, f.report.fittedScore - f.report.nominalScore);
+    const crossed = await crossedP;
     for (let r = 1; r < order.length; r++) {
-      const k = order[r];
-      const fk = fits.get(k);
-      if (fk === undefined) continue;
-      const sK = scoreOf(k).score;
-      // the other candidate at the best one's values and the best at the other's (the same parameter names in the same order)
-      const kAtB = fb.values.length === fk.values.length ? await scoreWith(k, fb.values, fk) : sK;
-      const bAtK = fb.values.length === fk.values.length ? await scoreWith(bestK, fk.values, fb) : sB;
+      const c = crossed[r];
+      if (c === null) continue;
+      const { sK, kAtB, bAtK } = c;
       const gaps = [sB - sK, sB - kAtB, bAtK - sK];
       spreads[r] = 0.5 * (Math.max(...gaps) - Math.min(...gaps));
       maxSpread = Math.max(maxSpread, spreads[r]);
@@ -345,32 +389,22 @@ export async function identify(scStated: Scenario, micrographsStated: readonly P
   const bestState = fb ? fb.apply(fb.values) : { scenario: variantScenario(sc, candidates[bestK]), conditions: micrographs.map((m) => m.condition) };
   const maxR = regOpts.maxRotation_deg ?? DEFAULT_MAX_ROTATION_DEG;
   const maxS = regOpts.maxScale ?? DEFAULT_MAX_SCALE;
-  // g reversed or the image mirrored on one micrograph: every leading candidate at its own parameters, that
-  // micrograph replaced by the variant; flagged when the best such score beats the best score as stated
-  const stateOf = (k: number) => {
-    const f = fits.get(k);
-    return f ? f.apply(f.values) : { scenario: variantScenario(sc, candidates[k]), conditions: micrographs.map((m) => m.condition) };
-  };
+  // g reversed or the image mirrored on one micrograph: flagged when the best such score beats the best score as stated
   const flipMargin = Math.max(3 * verdict0.gapSigma, FLIP_MARGIN / nC);
   const alt = micrographs.map(() => ({ reversed: { score: -Infinity, k: bestK, r2: 0 }, mirrored: { score: -Infinity, k: bestK, r2: 0 } }));
-  for (const k of leaders) {
-    const st = stateOf(k);
+  // every leader's variants (rendered side by side), compared in the leaders' order (ties keep the first)
+  const variants = await variantsP;
+  leaders.forEach((k, j) => {
     const base = pairs[k].map((p) => p.stats);
     for (let i = 0; i < nC; i++) {
       const m = micrographs[i];
-      const c = st.conditions[i];
-      const reversed: Condition = { ...c, g: [-c.g[0], -c.g[1], -c.g[2]] };
-      // rendered along the line where possible (three times faster; slightly blurrier, which only makes the check
-      // more cautious) and registered by shift only, at the micrograph's rotation (mirrored: its negative) and scale
-      const v = viewOf(k, i);
-      const rev = registerSim(i, await simulateView(st.scenario, { ...m, condition: reversed }, render, { defectIndex }), v, false);
-      const mir = registerSim(i, await simulateView(st.scenario, { ...m, condition: c, settings: { ...m.settings, mirrored: !m.settings.mirrored } }, render, { defectIndex }), { rotation_deg: -v.rotation_deg, scale: v.scale }, false);
+      const [rev, mir] = variants[j][i];
       for (const [kind, pr] of [['reversed', rev], ['mirrored', mir]] as const) {
         const score = fitAmplitudes(base.map((x, j) => (j === i ? pr.stats : x)), linear, spread).score;
         if (score > alt[i][kind].score) alt[i][kind] = { score, k, r2: freeR2(m.contrast, pr.window) };
       }
     }
-  }
+  });
   const bestScore = fitsOfOrder[0].score;
   for (let i = 0; i < nC; i++) {
     const m = micrographs[i];
@@ -380,16 +414,22 @@ export async function identify(scStated: Scenario, micrographsStated: readonly P
     if (fm) flags.push(fm);
     consistency.push({ condition: m.conditionId, scoreStated: bestScore, scoreReversed: alt[i].reversed.score, scoreMirrored: alt[i].mirrored.score });
   }
+  // registration at a limit: compare with the best registration inside 80 % of the ranges
+  const atLimit = micrographs.map((_, i) => {
+    const reg = pairs[bestK][i].reg;
+    return { rotAt: Math.abs(reg.rotation_deg) >= maxR - 1e-6, scaleAt: Math.abs(reg.scale - 1) >= maxS - 1e-6 };
+  });
+  const limitSims = await Promise.all(
+    micrographs.map((_, i) => (!atLimit[i].rotAt && !atLimit[i].scaleAt ? null : fb ? simulateWith(bestState.scenario, bestState.conditions, i) : sims[bestK][i])),
+  );
   for (let i = 0; i < nC; i++) {
     const m = micrographs[i];
-    // registration at a limit: compare with the best registration inside 80 % of the ranges
     const reg = pairs[bestK][i].reg;
-    const rotAt = Math.abs(reg.rotation_deg) >= maxR - 1e-6;
-    const scaleAt = Math.abs(reg.scale - 1) >= maxS - 1e-6;
-    if (rotAt || scaleAt) {
+    const { rotAt, scaleAt } = atLimit[i];
+    const sim = limitSims[i];
+    if (sim !== null) {
       const inner = { maxRotation_deg: 0.8 * maxR, maxScale: 0.8 * maxS };
       const start = { rotation_deg: Math.max(-inner.maxRotation_deg, Math.min(inner.maxRotation_deg, reg.rotation_deg)), scale: Math.max(1 - inner.maxScale, Math.min(1 + inner.maxScale, reg.scale)) };
-      const sim = fb ? await simulateWith(bestState.scenario, bestState.conditions, i) : sims[bestK][i];
       const r2 = register(cors[i], tpls[i], sim, { ...regOpts, ...inner, start, initialRotationStep_deg: 1, initialScaleStep: 0.01 });
       const w = removePlane(new Float64Array(r2.window.length), r2.window, m.width, m.height);
       const what = rotAt && scaleAt ? `rotation (${maxR} degrees) and scale (${100 * maxS} %)` : rotAt ? `rotation (${maxR} degrees)` : `scale (${100 * maxS} %)`;
@@ -415,7 +455,7 @@ export async function identify(scStated: Scenario, micrographsStated: readonly P
     absolute,
     flags,
     consistency,
-    seconds: { render: (t1 - t0) / 1000, register: (t2 - t1) / 1000, fit: (t3 - t2) / 1000, bootstrap: (t4 - t3) / 1000, checks: (t5 - t4) / 1000 },
+    seconds: { render: (t1 - t0) / 1000, register: (t2 - t1) / 1000, fit: (t3 - t2) / 1000, bootstrap: (t4 - tb) / 1000, checks: (tb - t3 + t5 - t4) / 1000 },
   };
 }
 
@@ -434,22 +474,24 @@ export async function simulateCandidates(
   progress: (message: string, fraction: number) => void = () => undefined,
 ): Promise<Float64Array[][]> {
   const candidates = identificationCandidates(sc, defectIndex);
-  const sims: Float64Array[][] = [];
+  // all requested side by side: with workers, one view's post-processing overlaps the next ones' rendering
   let done = 0;
-  for (const k of indices) {
-    const cand = candidates[k];
-    const vsc = variantScenario(sc, cand);
-    const row: Float64Array[] = [];
-    for (const m of micrographs) {
-      progress(`simulating ${cand.label} under ${m.conditionId}`, done / (indices.length * micrographs.length));
-      row.push(await simulateView(vsc, m, render, { alongLine: false }));
-      done++;
-    }
-    sims.push(row);
-  }
-  return sims;
+  const total = indices.length * micrographs.length;
+  progress(`simulating ${indices.length} candidate(s) under ${micrographs.length} micrograph(s)`, 0);
+  return Promise.all(
+    indices.map((k) => {
+      const cand = candidates[k];
+      const vsc = variantScenario(sc, cand);
+      return Promise.all(
+        micrographs.map(async (m) => {
+          const sim = await simulateView(vsc, m, render, { alongLine: false });
+          progress(`simulated ${cand.label} under ${m.conditionId}`, ++done / total);
+          return sim;
+        }),
+      );
+    }),
+  );
 }
-
 /**
  * The scenario and micrographs with measured values in place of the stated
  * ones: the foil thickness, and each micrograph's w (its condition then gives

@@ -106,7 +106,8 @@ export function nuisanceModel(sc: Scenario, cand: Candidate, micrographs: readon
       let d: DefectSpec = d0;
       if (depthIndex >= 0) d = withDepth(d, v[depthIndex]);
       const t = tiltOf(v);
-      if (t !== undefined && u0 !== undefined && d.type === 'dislocation') {
+      // no tilt: the stated line itself (not its normalised copy), so the stated values give the stated scenario exactly
+      if (t !== undefined && u0 !== undefined && d.type === 'dislocation' && (t[0] !== 0 || t[1] !== 0)) {
         const u = unit(add(u0, add(scale(e1, Math.tan(t[0] * DEG)), scale(e2, Math.tan(t[1] * DEG)))));
         const line = cartesianToDirection(lattice, u);
         const n = norm(line);

@@ -52,89 +52,123 @@ export function createRenderPool(threads = availableParallelism()): RenderPool {
   if (file === null || threads <= 1) return inThreadPool();
   // Workers start on the first job that needs them (a worker costs a start-up and its own JIT warm-up).
   // A larger young generation: the first bands run unoptimised code that boxes doubles, and scavenges are then frequent.
-  let started: Worker[] | null = null;
+  // Every piece of work (a band of rows, a part of the classes, a whole small job) is a task in one queue that
+  // the workers take from in turn, so renders requested at the same time (identification asks for many) share them.
+  let workers: Worker[] | null = null;
+  const idle: Worker[] = [];
+  const running = new Map<Worker, Task>();
+  const queue: Task[] = [];
+  const pump = () => {
+    while (idle.length > 0 && queue.length > 0) {
+      const w = idle.shift()!;
+      const t = queue.shift()!;
+      running.set(w, t);
+      w.postMessage(t.request);
+    }
+  };
+  const start = (f: string): void => {
+    workers = Array.from({ length: threads }, () => new Worker(f, { resourceLimits: { maxYoungGenerationSizeMb: 64 } }));
+    for (const w of workers) {
+      w.on('message', (m: BandReply) => {
+        const t = running.get(w);
+        running.delete(w);
+        idle.push(w);
+        pump();
+        t?.reply(m);
+      });
+      w.on('error', (e: Error) => {
+        // a worker that failed outside a task's try (out of memory, a crash) is gone: its task fails, the others go on
+        const t = running.get(w);
+        running.delete(w);
+        workers = workers?.filter((x) => x !== w) ?? null;
+        const at = idle.indexOf(w);
+        if (at >= 0) idle.splice(at, 1);
+        t?.fail(e);
+        if (workers !== null && workers.length === 0) for (const q of queue.splice(0)) q.fail(e);
+      });
+    }
+    idle.push(...workers);
+  };
+  const submit = (request: unknown): Promise<BandReply> =>
+    new Promise((resolve, reject) => {
+      queue.push({
+        request,
+        reply: (m) => (m.ok ? resolve(m) : reject(m.userError ? new InputError(m.error ?? 'bad input') : new Error(m.error))),
+        fail: reject,
+      });
+      pump();
+    });
   return {
     threads,
     async render(job, onProgress) {
       const plan = translationPlan(job);
-      // small shared-column jobs are done here: cheaper than starting and warming up workers
-      if (plan !== null && sharedWork(job, plan) < IN_THREAD_WORK) return renderHere(job, plan, onProgress);
-      started ??= Array.from({ length: threads }, () => new Worker(file, { resourceLimits: { maxYoungGenerationSizeMb: 64 } }));
-      const workers = started;
+      const small = plan !== null && sharedWork(job, plan) < IN_THREAD_WORK;
+      // small shared-column jobs are done here while no worker runs (cheaper than starting and warming them up);
+      // once workers run, such a job is one task, so that several requested together render side by side
+      if (small && workers === null) return renderHere(job, plan, onProgress);
+      if (workers === null) start(file);
       const n = job.width * job.height;
+      if (small) {
+        const m = await submit({ job, plan, part: 0, parts: 1 });
+        onProgress?.(job.height, job.height);
+        return { bf: m.bf, df: m.df, slices: m.slices };
+      }
       const bf = new Float32Array(n);
       const df = new Float32Array(n);
-      // translation method: parts of the classes of pixels; otherwise bands of rows
-      const parts = plan === null ? 0 : Math.min(threads * 4, plan.starts.length);
-      const bandRows = Math.max(1, Math.floor(job.height / (threads * 8)));
-      let next = 0;
-      let nextPart = 0;
       let done = 0;
       let slices = 0;
-      await Promise.all(
-        workers.map(
-          (w) =>
-            new Promise<void>((resolve, reject) => {
-              const ask = () => {
-                if (plan !== null) {
-                  if (nextPart >= parts) {
-                    w.off('message', onMessage);
-                    w.off('error', onError);
-                    resolve();
-                    return;
-                  }
-                  w.postMessage({ job, plan, part: nextPart++, parts });
-                  return;
-                }
-                if (next >= job.height) {
-                  w.off('message', onMessage);
-                  w.off('error', onError);
-                  resolve();
-                  return;
-                }
-                const row0 = next;
-                const row1 = Math.min(job.height, next + bandRows);
-                next = row1;
-                w.postMessage({ job, row0, row1 });
-              };
-              const onMessage = (m: BandReply) => {
-                if (!m.ok) {
-                  w.off('message', onMessage);
-                  w.off('error', onError);
-                  reject(m.userError ? new InputError(m.error ?? 'bad input') : new Error(m.error));
-                  return;
-                }
-                if (m.part !== undefined) {
-                  // full-size part: every pixel belongs to exactly one part, the others hold 0
-                  for (let k = 0; k < n; k++) {
-                    bf[k] += m.bf[k];
-                    df[k] += m.df[k];
-                  }
-                  done++;
-                  onProgress?.(Math.round((done / parts) * job.height), job.height);
-                } else {
-                  bf.set(m.bf, m.row0 * job.width);
-                  df.set(m.df, m.row0 * job.width);
-                  done += m.row1 - m.row0;
-                  onProgress?.(done, job.height);
-                }
-                slices += m.slices;
-                ask();
-              };
-              const onError = (e: Error) => reject(e);
-              w.on('message', onMessage);
-              w.on('error', onError);
-              ask();
+      const tasks: Promise<void>[] = [];
+      if (plan !== null) {
+        // translation method: parts of the classes of pixels, full-size images holding 0 outside their part
+        const parts = Math.min(threads * 4, plan.starts.length);
+        for (let part = 0; part < parts; part++) {
+          tasks.push(
+            submit({ job, plan, part, parts }).then((m) => {
+              for (let k = 0; k < n; k++) {
+                bf[k] += m.bf[k];
+                df[k] += m.df[k];
+              }
+              done++;
+              slices += m.slices;
+              onProgress?.(Math.round((done / parts) * job.height), job.height);
             }),
-        ),
-      );
+          );
+        }
+      } else {
+        // bands of rows, small enough that fast and slow bands balance
+        const bandRows = Math.max(1, Math.floor(job.height / (threads * 8)));
+        for (let row0 = 0; row0 < job.height; row0 += bandRows) {
+          const row1 = Math.min(job.height, row0 + bandRows);
+          tasks.push(
+            submit({ job, row0, row1 }).then((m) => {
+              bf.set(m.bf, m.row0 * job.width);
+              df.set(m.df, m.row0 * job.width);
+              done += m.row1 - m.row0;
+              slices += m.slices;
+              onProgress?.(done, job.height);
+            }),
+          );
+        }
+      }
+      await Promise.all(tasks);
       return { bf, df, slices };
     },
     async close() {
-      if (started !== null) await Promise.all(started.map((w) => w.terminate()));
-      started = null;
+      const ws = workers;
+      workers = null;
+      idle.length = 0;
+      running.clear();
+      for (const q of queue.splice(0)) q.fail(new Error('the render pool was closed'));
+      if (ws !== null) await Promise.all(ws.map((w) => w.terminate()));
     },
   };
+}
+
+/** One piece of work for a worker and what to do with its reply. */
+interface Task {
+  readonly request: unknown;
+  reply(m: BandReply): void;
+  fail(e: Error): void;
 }
 
 /**
