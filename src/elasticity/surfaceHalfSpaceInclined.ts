@@ -58,8 +58,13 @@ interface SurfaceTable {
   readonly e1: Vec3;
   readonly e2: Vec3;
   readonly ez: Vec3;
-  /** F in the local frame, 9 components (i row: displacement, j column: derivative), [(ip * N_AZ + ia) * 9 + 3 i + j]. */
+  /**
+   * F in the crystal Cartesian frame, 9 components (i row: displacement, j column: derivative), on the
+   * padded grid (see `padded`): [node * 9 + 3 i + j].
+   */
   readonly F: Float64Array;
+  /** Contractions g.F.k already made (padded scalar grids), by "g,k". */
+  readonly contracted: Map<string, Float64Array>;
   /** The harmonics m kept and their coefficients p0_m, p1_m (9 complex each), for the direct (untabulated) sum. */
   readonly ms: readonly number[];
   readonly c0r: readonly number[];
@@ -291,7 +296,7 @@ function buildTable(o: InclinedHalfSpaceOptions, which: 'entrance' | 'exit'): Su
       for (let ia = 0; ia < N_AZ; ia++) F[(ip * N_AZ + ia) * 9 + k] = re[ia];
     }
   }
-  return { O, e1, e2, ez, F, ms, c0r, c0i, c1r, c1i };
+  return { O, e1, e2, ez, F: padded(cartesian(F, [e1, e2, ez]), 9), contracted: new Map(), ms, c0r, c0i, c1r, c1i };
 }
 
 /**
@@ -369,13 +374,61 @@ function fftInPlace(re: Float64Array, im: Float64Array): void {
   }
 }
 
-/** Catmull-Rom weights for fraction f. */
-function cr(f: number, w: Float64Array): void {
-  const f2 = f * f, f3 = f2 * f;
-  w[0] = 0.5 * (-f3 + 2 * f2 - f);
-  w[1] = 0.5 * (3 * f3 - 5 * f2 + 2);
-  w[2] = 0.5 * (-3 * f3 + 4 * f2 + f);
-  w[3] = 0.5 * (f3 - f2);
+/** Row length of the padded grids: azimuth nodes -1 .. N_AZ + 1. */
+const PAD_W = N_AZ + 3;
+/** Rows of the padded grids: polar nodes -1 .. N_POLAR. */
+const PAD_H = N_POLAR + 2;
+
+/**
+ * A grid (N_POLAR x N_AZ nodes, `comps` numbers per node) padded with the nodes the bicubic stencil
+ * reaches beyond its edges, so that the hot path reads 4 x 4 neighbours without wrapping: azimuth -1 and
+ * N_AZ, N_AZ + 1 wrap round; polar -1 (through the normal: polar -v at azimuth phi is polar v at phi + pi)
+ * and polar N_POLAR (beyond the surface plane, mirrored: points there lie outside the foil).
+ */
+function padded(T: Float64Array, comps: number): Float64Array {
+  const out = new Float64Array(PAD_H * PAD_W * comps);
+  for (let r = 0; r < PAD_H; r++) {
+    const ip = r - 1;
+    const src = ip < 0 ? -ip : ip > N_POLAR - 1 ? 2 * (N_POLAR - 1) - ip : ip;
+    const shift = ip < 0 ? N_AZ / 2 : 0;
+    for (let c = 0; c < PAD_W; c++) {
+      const ia = (((c - 1 + shift) % N_AZ) + N_AZ) % N_AZ;
+      const from = (src * N_AZ + ia) * comps;
+      const to = (r * PAD_W + c) * comps;
+      for (let k = 0; k < comps; k++) out[to + k] = T[from + k];
+    }
+  }
+  return out;
+}
+
+/** The 9-component local grid (frame E = [e1, e2, ez]) turned into the Cartesian frame, node by node: E local E^T. */
+function cartesian(F: Float64Array, E: readonly Vec3[]): Float64Array {
+  const out = new Float64Array(F.length);
+  for (let c = 0; c < F.length; c += 9)
+    for (let i = 0; i < 3; i++)
+      for (let j = 0; j < 3; j++) {
+        let s = 0;
+        for (let a = 0; a < 3; a++) for (let b = 0; b < 3; b++) s += E[a][i] * F[c + 3 * a + b] * E[b][j];
+        out[c + 3 * i + j] = s;
+      }
+  return out;
+}
+
+/** The scalar g.F.k of a table on its padded grid, made once per (g, k) and kept with the table. */
+function contract(tb: SurfaceTable, g: readonly number[], k: readonly number[]): Float64Array {
+  const key = `${g[0]},${g[1]},${g[2]},${k[0]},${k[1]},${k[2]}`;
+  const hit = tb.contracted.get(key);
+  if (hit !== undefined) return hit;
+  const w = new Float64Array(9);
+  for (let i = 0; i < 3; i++) for (let j = 0; j < 3; j++) w[3 * i + j] = g[i] * k[j];
+  const F = tb.F;
+  const S = new Float64Array(F.length / 9);
+  for (let c = 0; c < S.length; c++) {
+    const o = 9 * c;
+    S[c] = w[0] * F[o] + w[1] * F[o + 1] + w[2] * F[o + 2] + w[3] * F[o + 3] + w[4] * F[o + 4] + w[5] * F[o + 5] + w[6] * F[o + 6] + w[7] * F[o + 7] + w[8] * F[o + 8];
+  }
+  remember(tb.contracted, CONTRACTED_SIZE, key, S);
+  return S;
 }
 
 /**
@@ -389,6 +442,8 @@ const byGeometry = new Map<string, SurfaceTable[] | 'seen'>();
 // a table holds 65 x 256 x 9 numbers (1.2 MB): at most 16 per b and 8 geometries (x 3 unit b) per thread
 const BY_B_SIZE = 16;
 const BY_GEOMETRY_SIZE = 8;
+// contracted scalar grids (136 kB each) kept per table: the conditions of one scenario or identification
+const CONTRACTED_SIZE = 8;
 
 function remember<V>(m: Map<string, V>, size: number, key: string, v: V): void {
   if (m.size >= size) m.delete(m.keys().next().value as string);
@@ -430,7 +485,7 @@ function tableFor(o: InclinedHalfSpaceOptions, which: 'entrance' | 'exit'): Surf
       }
     });
   });
-  const tb: SurfaceTable = { O: t0.O, e1: t0.e1, e2: t0.e2, ez: t0.ez, F, ms, c0r, c0i, c1r, c1i };
+  const tb: SurfaceTable = { O: t0.O, e1: t0.e1, e2: t0.e2, ez: t0.ez, F, contracted: new Map(), ms, c0r, c0i, c1r, c1i };
   remember(byB, BY_B_SIZE, bKey, tb);
   return tb;
 }
@@ -444,62 +499,62 @@ export function inclinedHalfSpaceCorrection(o: InclinedHalfSpaceOptions): Displa
   const tables: SurfaceTable[] = [];
   if (o.only !== 'exit') tables.push(tableFor(o, 'entrance'));
   if (o.only !== 'entrance') tables.push(tableFor(o, 'exit'));
-  const wp = new Float64Array(4), wa = new Float64Array(4);
-  const dP = 1 / (N_POLAR - 1);
-  const dA = (2 * Math.PI) / N_AZ;
-  /** interpolates table `tab` (stride `stride`, component offset `k`) at (polar, azimuth): sets wp, wa and returns the base indices. */
-  const ip0 = new Int32Array(4), ia0 = new Int32Array(4), shift = new Int32Array(4);
-  const locate = (X: number, Y: number, Z: number): number => {
+  const nT = tables.length;
+  // per surface: the emergence point and the local axes, flat (x, y, z per vector)
+  const geo = new Float64Array(12 * nT);
+  tables.forEach((tb, q) => geo.set([...tb.O, ...tb.e1, ...tb.e2, ...tb.ez], 12 * q));
+  const invDP = N_POLAR - 1;
+  const invDA = N_AZ / (2 * Math.PI);
+  // the last point located: 1/R, the padded grid's stencil corner (node index) and the Catmull-Rom weights
+  const at = new Float64Array(9);
+  const corner = new Int32Array(1);
+  /** Locates (x, y, z) relative to surface q: sets `at` and `corner`. */
+  const locate = (q: number, x: number, y: number, z: number): void => {
+    const b = 12 * q;
+    const rx = x - geo[b], ry = y - geo[b + 1], rz = z - geo[b + 2];
+    const X = rx * geo[b + 3] + ry * geo[b + 4] + rz * geo[b + 5];
+    const Y = rx * geo[b + 6] + ry * geo[b + 7] + rz * geo[b + 8];
+    const Z = rx * geo[b + 9] + ry * geo[b + 10] + rz * geo[b + 11];
     const rho2 = X * X + Y * Y;
     const rho = Math.sqrt(rho2);
     const R = Math.sqrt(rho2 + Z * Z);
-    const vt = R > 0 ? rho / (R + Math.max(Z, 0)) : 0; // s = tan(polar / 2)
+    const sv = R > 0 ? rho / (R + (Z > 0 ? Z : 0)) : 0; // s = tan(polar / 2)
     let ph = Math.atan2(Y, X);
     if (ph < 0) ph += 2 * Math.PI;
-    const fp = vt / dP;
+    const fp = sv * invDP;
     let i = Math.floor(fp);
     if (i > N_POLAR - 2) i = N_POLAR - 2;
-    cr(fp - i, wp);
-    const fa = ph / dA;
-    const a = Math.floor(fa);
-    cr(fa - a, wa);
-    for (let k = 0; k < 4; k++) {
-      let pi = i - 1 + k;
-      shift[k] = 0;
-      if (pi < 0) {
-        // through the normal: polar -v at azimuth phi is polar v at phi + pi
-        pi = -pi;
-        shift[k] = N_AZ / 2;
-      }
-      if (pi > N_POLAR - 1) pi = 2 * (N_POLAR - 1) - pi; // beyond the surface plane: mirror (points there lie outside the foil)
-      ip0[k] = pi;
-      ia0[k] = (((a - 1 + k) % N_AZ) + N_AZ) % N_AZ;
-    }
-    return R;
+    const fa = ph * invDA;
+    let a = Math.floor(fa);
+    const f = fp - i;
+    const g = fa - a;
+    if (a >= N_AZ) a -= N_AZ; // ph rounded up to 2 pi
+    // Catmull-Rom weights of both fractions
+    const f2 = f * f, f3 = f2 * f, g2 = g * g, g3 = g2 * g;
+    at[0] = 1 / (R > 1e-9 ? R : 1e-9);
+    at[1] = 0.5 * (-f3 + 2 * f2 - f);
+    at[2] = 0.5 * (3 * f3 - 5 * f2 + 2);
+    at[3] = 0.5 * (-3 * f3 + 4 * f2 + f);
+    at[4] = 0.5 * (f3 - f2);
+    at[5] = 0.5 * (-g3 + 2 * g2 - g);
+    at[6] = 0.5 * (3 * g3 - 5 * g2 + 2);
+    at[7] = 0.5 * (-3 * g3 + 4 * g2 + g);
+    at[8] = 0.5 * (g3 - g2);
+    corner[0] = i * PAD_W + a; // padded row i is polar node i - 1, padded column a is azimuth node a - 1
   };
-  const local = new Float64Array(9);
   const addGradient = (out: Float64Array, x: number, y: number, z: number): void => {
-    for (const tb of tables) {
-      const rx = x - tb.O[0], ry = y - tb.O[1], rz = z - tb.O[2];
-      const X = rx * tb.e1[0] + ry * tb.e1[1] + rz * tb.e1[2];
-      const Y = rx * tb.e2[0] + ry * tb.e2[1] + rz * tb.e2[2];
-      const Z = rx * tb.ez[0] + ry * tb.ez[1] + rz * tb.ez[2];
-      const R = Math.max(locate(X, Y, Z), 1e-9);
-      local.fill(0);
-      for (let p = 0; p < 4; p++)
-        for (let q = 0; q < 4; q++) {
-          const w = (wp[p] * wa[q]) / R;
-          const base = (ip0[p] * N_AZ + ((ia0[q] + shift[p]) % N_AZ)) * 9;
-          for (let k = 0; k < 9; k++) local[k] += w * tb.F[base + k];
+    for (let q = 0; q < nT; q++) {
+      locate(q, x, y, z);
+      const F = tables[q].F;
+      for (let p = 0; p < 4; p++) {
+        const wp = at[1 + p] * at[0];
+        const row = (corner[0] + p * PAD_W) * 9;
+        for (let c = 0; c < 4; c++) {
+          const w = wp * at[5 + c];
+          const base = row + 9 * c;
+          for (let k = 0; k < 9; k++) out[k] += w * F[base + k];
         }
-      // Cartesian = E local E^T, E columns e1, e2, ez
-      const E = [tb.e1, tb.e2, tb.ez];
-      for (let i = 0; i < 3; i++)
-        for (let j = 0; j < 3; j++) {
-          let s = 0;
-          for (let a = 0; a < 3; a++) for (let b = 0; b < 3; b++) s += E[a][i] * local[3 * a + b] * E[b][j];
-          out[3 * i + j] += s;
-        }
+      }
     }
   };
   return {
@@ -530,36 +585,28 @@ export function inclinedHalfSpaceCorrection(o: InclinedHalfSpaceOptions): Displa
       addGradient(out, x, y, z);
     },
     directional(gv, kv) {
-      // contract each table to the scalar g.F.k once
-      const scal = tables.map((tb) => {
-        const gl = [dot(gv as Vec3, tb.e1), dot(gv as Vec3, tb.e2), dot(gv as Vec3, tb.ez)];
-        const kl = [dot(kv as Vec3, tb.e1), dot(kv as Vec3, tb.e2), dot(kv as Vec3, tb.ez)];
-        const S = new Float64Array(N_POLAR * N_AZ);
-        for (let c = 0; c < S.length; c++) {
-          let s = 0;
-          for (let i = 0; i < 3; i++) for (let j = 0; j < 3; j++) s += gl[i] * tb.F[c * 9 + 3 * i + j] * kl[j];
-          S[c] = s;
+      // each table contracted to the scalar g.F.k once (kept with the table for the next band of rows)
+      const S0 = contract(tables[0], gv, kv);
+      const S1 = nT > 1 ? contract(tables[1], gv, kv) : S0;
+      const one = (S: Float64Array): number => {
+        const c = corner[0];
+        let s = 0;
+        for (let p = 0; p < 4; p++) {
+          const r = c + p * PAD_W;
+          s += at[1 + p] * (at[5] * S[r] + at[6] * S[r + 1] + at[7] * S[r + 2] + at[8] * S[r + 3]);
         }
-        return S;
-      });
-      const nT = tables.length;
-      const Os = tables.map((tb) => tb.O), E1 = tables.map((tb) => tb.e1), E2 = tables.map((tb) => tb.e2), EZ = tables.map((tb) => tb.ez);
+        return s * at[0];
+      };
+      if (nT === 1)
+        return (x, y, z) => {
+          locate(0, x, y, z);
+          return one(S0);
+        };
       return (x, y, z) => {
-        let total = 0;
-        for (let q = 0; q < nT; q++) {
-          const O = Os[q], e1 = E1[q], e2 = E2[q], ez = EZ[q];
-          const rx = x - O[0], ry = y - O[1], rz = z - O[2];
-          const R = Math.max(locate(rx * e1[0] + ry * e1[1] + rz * e1[2], rx * e2[0] + ry * e2[1] + rz * e2[2], rx * ez[0] + ry * ez[1] + rz * ez[2]), 1e-9);
-          const S = scal[q];
-          let s = 0;
-          for (let p = 0; p < 4; p++) {
-            const row = ip0[p] * N_AZ;
-            const h = shift[p];
-            s += wp[p] * (wa[0] * S[row + ((ia0[0] + h) % N_AZ)] + wa[1] * S[row + ((ia0[1] + h) % N_AZ)] + wa[2] * S[row + ((ia0[2] + h) % N_AZ)] + wa[3] * S[row + ((ia0[3] + h) % N_AZ)]);
-          }
-          total += s / R;
-        }
-        return total;
+        locate(0, x, y, z);
+        const a = one(S0);
+        locate(1, x, y, z);
+        return a + one(S1);
       };
     },
   };
