@@ -53,8 +53,12 @@ const N_HARM_SAMPLES = 256; // samples of h(phi) and theta (a line within ~15 de
 const N_POLAR = 65; // nodes in s = tan(polar angle / 2) on [0, 1] (polar angle 0 to pi/2)
 const N_AZ = 256; // azimuth nodes on [0, 2 pi)
 
+/**
+ * The table of one surface. It does not depend on where the line meets the surface (the correction is
+ * F(direction)/R about the emergence point O): a line shifted in the foil, or another foil thickness,
+ * reuses it; only the line direction, b, the foil normal, the elastic constants and the side count.
+ */
 interface SurfaceTable {
-  readonly O: Vec3;
   readonly e1: Vec3;
   readonly e2: Vec3;
   readonly ez: Vec3;
@@ -94,13 +98,9 @@ function buildTable(o: InclinedHalfSpaceOptions, which: 'entrance' | 'exit'): Su
   const N_HARM = N_HARM_SAMPLES;
   const u = unit(o.line);
   const n = unit(o.normal);
-  const t = o.thickness_nm;
   const nu = o.poissonRatio;
-  const P = o.point_nm;
-  const un = dot(u, n);
-  const depth = which === 'entrance' ? 0 : t;
-  const lam = (depth - dot(P, n)) / un;
-  const O: Vec3 = [P[0] + lam * u[0], P[1] + lam * u[1], P[2] + lam * u[2]];
+  // the line through the origin (the table is the same for every emergence point)
+  const O: Vec3 = [0, 0, 0];
   const ez = which === 'entrance' ? n : scale(n, -1);
   const trial: Vec3 = Math.abs(ez[0]) < 0.9 ? [1, 0, 0] : [0, 1, 0];
   const e1 = unit(cross(trial, ez));
@@ -135,54 +135,39 @@ function buildTable(o: InclinedHalfSpaceOptions, which: 'entrance' | 'exit'): Su
     hr[1][j] = r0 * (T[0] * e2[0] + T[1] * e2[1] + T[2] * e2[2]);
     hr[2][j] = r0 * (T[0] * ez[0] + T[1] * ez[1] + T[2] * ez[2]);
   }
-  // Fourier coefficients h_n, n = -N/2 .. N/2 - 1 (index n + N/2); angles 2 pi k / N from one table
+  // Fourier coefficients h_n = (1/N) sum_j h_j e^{-2 pi i n j / N}, n = -N/2 + 1 .. N/2 - 1 (the Nyquist term is
+  // ambiguous: dropped; h is smooth, it is negligible), then tau(theta_j) = 2 pi sum_n (-i)^|n| h_n e^{i n theta_j};
+  // both by FFT (h real: its forward transform is the conjugate of the + sign one)
   const H = N_HARM / 2;
-  const cosN = new Float64Array(N_HARM), sinN = new Float64Array(N_HARM);
-  for (let k = 0; k < N_HARM; k++) {
-    cosN[k] = Math.cos((2 * Math.PI * k) / N_HARM);
-    sinN[k] = Math.sin((2 * Math.PI * k) / N_HARM);
-  }
-  const idx = (k: number): number => ((k % N_HARM) + N_HARM) % N_HARM;
-  const hnR = [0, 1, 2].map(() => new Float64Array(N_HARM));
-  const hnI = [0, 1, 2].map(() => new Float64Array(N_HARM));
-  for (let q = 0; q < N_HARM; q++) {
-    const nn = q - H;
-    for (let j = 0; j < N_HARM; j++) {
-      const ka = idx(-nn * j);
-      const ca = cosN[ka], sa = sinN[ka];
-      for (let c = 0; c < 3; c++) {
-        hnR[c][q] += (hr[c][j] * ca) / N_HARM;
-        hnI[c][q] += (hr[c][j] * sa) / N_HARM;
-      }
-    }
-  }
-  // the Nyquist term is ambiguous: drop it (h is smooth, it is negligible)
+  const tauR = [0, 1, 2].map(() => new Float64Array(N_HARM));
+  const tauI = [0, 1, 2].map(() => new Float64Array(N_HARM));
   for (let c = 0; c < 3; c++) {
-    hnR[c][0] = 0;
-    hnI[c][0] = 0;
+    const re = tauR[c], im = tauI[c];
+    re.set(hr[c]);
+    fftInPlace(re, im);
+    // slot k holds sum_j h_j e^{+2 pi i k j / N}: h_n = conj(slot n mod N) / N; then the phase (-i)^|n| and 2 pi
+    for (let k = 0; k < N_HARM; k++) {
+      const nn = k < H ? k : k - N_HARM;
+      if (nn === -H) {
+        re[k] = 0;
+        im[k] = 0;
+        continue;
+      }
+      const xr = re[k] / N_HARM, xi = -im[k] / N_HARM;
+      const an = Math.abs(nn) % 4; // (-i)^|n|: 1, -i, -1, i
+      const pr = an === 0 ? 1 : an === 2 ? -1 : 0;
+      const pi = an === 1 ? -1 : an === 3 ? 1 : 0;
+      re[k] = 2 * Math.PI * (pr * xr - pi * xi);
+      im[k] = 2 * Math.PI * (pr * xi + pi * xr);
+    }
+    fftInPlace(re, im);
   }
   // P0(theta), P1(theta) at theta_j (9 complex each, local frame)
   const P0r = new Float64Array(N_HARM * 9), P0i = new Float64Array(N_HARM * 9);
   const P1r = new Float64Array(N_HARM * 9), P1i = new Float64Array(N_HARM * 9);
   for (let j = 0; j < N_HARM; j++) {
     const th = (2 * Math.PI * j) / N_HARM;
-    // tau = 2 pi sum_n (-i)^|n| h_n e^{i n theta}
-    const tr = [0, 0, 0], ti = [0, 0, 0];
-    for (let q = 1; q < N_HARM; q++) {
-      const nn = q - H;
-      const an = Math.abs(nn) % 4; // (-i)^|n|: 1, -i, -1, i
-      const pr = an === 0 ? 1 : an === 2 ? -1 : 0;
-      const pi = an === 1 ? -1 : an === 3 ? 1 : 0;
-      const kk = idx(nn * j);
-      const ca = cosN[kk], sa = sinN[kk];
-      for (let c = 0; c < 3; c++) {
-        // h_n e^{i n th}
-        const xr = hnR[c][q] * ca - hnI[c][q] * sa;
-        const xi = hnR[c][q] * sa + hnI[c][q] * ca;
-        tr[c] += 2 * Math.PI * (pr * xr - pi * xi);
-        ti[c] += 2 * Math.PI * (pr * xi + pi * xr);
-      }
-    }
+    const tr = [tauR[0][j], tauR[1][j], tauR[2][j]], ti = [tauI[0][j], tauI[1][j], tauI[2][j]];
     const ct = Math.cos(th), st = Math.sin(th);
     const tkR = tr[0] * ct + tr[1] * st, tkI = ti[0] * ct + ti[1] * st;
     const tpR = -tr[0] * st + tr[1] * ct, tpI = -ti[0] * st + ti[1] * ct;
@@ -296,7 +281,7 @@ function buildTable(o: InclinedHalfSpaceOptions, which: 'entrance' | 'exit'): Su
       for (let ia = 0; ia < N_AZ; ia++) F[(ip * N_AZ + ia) * 9 + k] = re[ia];
     }
   }
-  return { O, e1, e2, ez, F: padded(cartesian(F, [e1, e2, ez]), 9), contracted: new Map(), ms, c0r, c0i, c1r, c1i };
+  return { e1, e2, ez, F: padded(cartesian(F, [e1, e2, ez]), 9), contracted: new Map(), ms, c0r, c0i, c1r, c1i };
 }
 
 /**
@@ -305,7 +290,8 @@ function buildTable(o: InclinedHalfSpaceOptions, which: 'entrance' | 'exit'): Su
  */
 export function halfSpaceGradientDirect(o: InclinedHalfSpaceOptions, which: 'entrance' | 'exit', out: Float64Array, x: number, y: number, z: number): void {
   const tb = tableFor(o, which);
-  const rx = x - tb.O[0], ry = y - tb.O[1], rz = z - tb.O[2];
+  const O = emergencePoint(o, which);
+  const rx = x - O[0], ry = y - O[1], rz = z - O[2];
   const X = rx * tb.e1[0] + ry * tb.e1[1] + rz * tb.e1[2];
   const Y = rx * tb.e2[0] + ry * tb.e2[1] + rz * tb.e2[2];
   const Z = rx * tb.ez[0] + ry * tb.ez[1] + rz * tb.ez[2];
@@ -349,8 +335,11 @@ function fftInPlace(re: Float64Array, im: Float64Array): void {
     for (; j & bit; bit >>= 1) j ^= bit;
     j ^= bit;
     if (i < j) {
-      [re[i], re[j]] = [re[j], re[i]];
-      [im[i], im[j]] = [im[j], im[i]];
+      const tr = re[i], ti = im[i];
+      re[i] = re[j];
+      im[i] = im[j];
+      re[j] = tr;
+      im[j] = ti;
     }
   }
   for (let len = 2; len <= n; len <<= 1) {
@@ -450,8 +439,18 @@ function remember<V>(m: Map<string, V>, size: number, key: string, v: V): void {
   m.set(key, v);
 }
 
+/** Where the line meets the surface (entrance r.n = 0 or exit r.n = t). */
+function emergencePoint(o: InclinedHalfSpaceOptions, which: 'entrance' | 'exit'): Vec3 {
+  const u = unit(o.line);
+  const n = unit(o.normal);
+  const P = o.point_nm;
+  const lam = ((which === 'entrance' ? 0 : o.thickness_nm) - dot(P, n)) / dot(u, n);
+  return [P[0] + lam * u[0], P[1] + lam * u[1], P[2] + lam * u[2]];
+}
+
 function tableFor(o: InclinedHalfSpaceOptions, which: 'entrance' | 'exit'): SurfaceTable {
-  const gKey = JSON.stringify([o.line, o.point_nm, o.normal, o.thickness_nm, o.poissonRatio, o.stiffness_GPa ?? null, which]);
+  // not the point or the thickness: the table is the same wherever the line meets the surface
+  const gKey = JSON.stringify([unit(o.line), unit(o.normal), o.poissonRatio, o.stiffness_GPa ?? null, which]);
   const bKey = JSON.stringify([o.b_nm, gKey]);
   const hit = byB.get(bKey);
   if (hit !== undefined) return hit;
@@ -485,7 +484,7 @@ function tableFor(o: InclinedHalfSpaceOptions, which: 'entrance' | 'exit'): Surf
       }
     });
   });
-  const tb: SurfaceTable = { O: t0.O, e1: t0.e1, e2: t0.e2, ez: t0.ez, F, contracted: new Map(), ms, c0r, c0i, c1r, c1i };
+  const tb: SurfaceTable = { e1: t0.e1, e2: t0.e2, ez: t0.ez, F, contracted: new Map(), ms, c0r, c0i, c1r, c1i };
   remember(byB, BY_B_SIZE, bKey, tb);
   return tb;
 }
@@ -502,7 +501,8 @@ export function inclinedHalfSpaceCorrection(o: InclinedHalfSpaceOptions): Displa
   const nT = tables.length;
   // per surface: the emergence point and the local axes, flat (x, y, z per vector)
   const geo = new Float64Array(12 * nT);
-  tables.forEach((tb, q) => geo.set([...tb.O, ...tb.e1, ...tb.e2, ...tb.ez], 12 * q));
+  const Os = tables.map((_, q) => emergencePoint(o, nT === 2 ? (q === 0 ? 'entrance' : 'exit') : (o.only as 'entrance' | 'exit')));
+  tables.forEach((tb, q) => geo.set([...Os[q], ...tb.e1, ...tb.e2, ...tb.ez], 12 * q));
   const invDP = N_POLAR - 1;
   const invDA = N_AZ / (2 * Math.PI);
   // the last point located: 1/R, the padded grid's stencil corner (node index) and the Catmull-Rom weights
@@ -565,7 +565,7 @@ export function inclinedHalfSpaceCorrection(o: InclinedHalfSpaceOptions): Displa
       out[2] = 0;
       const t0 = tables[0];
       const mid = scale(t0.ez, o.thickness_nm / 2);
-      const ref: Vec3 = [t0.O[0] + mid[0], t0.O[1] + mid[1], t0.O[2] + mid[2]];
+      const ref: Vec3 = [Os[0][0] + mid[0], Os[0][1] + mid[1], Os[0][2] + mid[2]];
       const gl = [-0.9602898564975363, -0.7966664774136267, -0.5255324099163290, -0.1834346424956498, 0.1834346424956498, 0.5255324099163290, 0.7966664774136267, 0.9602898564975363];
       const gw = [0.1012285362903763, 0.2223810344533745, 0.3137066458778873, 0.3626837833783620, 0.3626837833783620, 0.3137066458778873, 0.2223810344533745, 0.1012285362903763];
       const g = new Float64Array(9);
