@@ -154,6 +154,7 @@ function parallelScrewImages(o: SurfaceCorrectionOptions): DisplacementField {
   const xi0 = dot(P, e1);
   const z0 = dot(P, n);
   const tiny = 1e-7 * t;
+  const c0 = Math.cos(2 * A * z0), s0 = Math.sin(2 * A * z0);
   const e10 = e1[0], e11 = e1[1], e12 = e1[2];
   const n0 = n[0], n1 = n[1], n2 = n[2];
   const u0 = u[0], u1 = u[1], u2 = u[2];
@@ -166,14 +167,16 @@ function parallelScrewImages(o: SurfaceCorrectionOptions): DisplacementField {
     if (Math.abs(xi) < tiny && Math.abs(zz - z0) < tiny) xi = tiny;
     const E = Math.exp(-2 * A * Math.abs(xi));
     const sg = xi < 0 ? -1 : 1;
-    const a1 = 2 * A * (zz - z0);
-    const a2 = 2 * A * (zz + z0);
-    const den1 = 1 + E * E - 2 * E * Math.cos(a1);
-    const den2 = 1 + E * E - 2 * E * Math.cos(a2);
+    // a1 = 2 A (zz - z0), a2 = 2 A (zz + z0): their sines and cosines from those of 2 A zz (angle addition)
+    const Cz = Math.cos(2 * A * zz), Sz = Math.sin(2 * A * zz);
+    const cos1 = Cz * c0 + Sz * s0, sin1 = Sz * c0 - Cz * s0;
+    const cos2 = Cz * c0 - Sz * s0, sin2 = Sz * c0 + Cz * s0;
+    const den1 = 1 + E * E - 2 * E * cos1;
+    const den2 = 1 + E * E - 2 * E * cos2;
     const dz1 = zz - z0;
     const rho2 = xi * xi + dz1 * dz1;
     // sums over all images (real line included), then the real line taken off
-    const sumXi = A * (-(2 * E * Math.sin(a1)) / den1 + (2 * E * Math.sin(a2)) / den2);
+    const sumXi = A * (-(2 * E * sin1) / den1 + (2 * E * sin2) / den2);
     const sumZ = A * sg * (1 - E * E) * (1 / den1 - 1 / den2);
     d[0] = c * (sumXi + dz1 / rho2);
     d[1] = c * (sumZ - xi / rho2);
