@@ -10,7 +10,7 @@
 // 2. Per-point cost of beta' = g.(grad R).k for a line alone and for each correction.
 // 3. Set-up of the inclined-line correction: building the two surface tables for a new line direction (they do
 //    not depend on the line's point or the foil thickness, so only a new direction, b or material pays this), and
-//    contracting them to g.F.k for a new condition.
+//    making the scalar g.F.k of both for a new condition.
 // Run with `npm run bench` (builds dist/ first) or `node bench/surfaces.mjs` after a build. Never a timed test.
 import { parseScenario } from '../dist/scenario/parse.js';
 import { renderJob } from '../dist/imaging/renderScenario.js';
@@ -132,4 +132,4 @@ for (let r = 0; r < 5; r++) {
 }
 console.log('inclined-line correction set-up, anisotropic (Cu), CPU time (median of 3):');
 console.log(`  both surface tables for a new line direction: ${fmt(median(build))} ms`);
-console.log(`  contraction to g.F.k for a new condition    : ${fmt(median(contract))} ms`);
+console.log(`  scalar g.F.k of both for a new condition   : ${fmt(median(contract))} ms`);

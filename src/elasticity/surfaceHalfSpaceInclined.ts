@@ -52,6 +52,10 @@ export interface InclinedHalfSpaceOptions {
 const N_HARM_SAMPLES = 256; // samples of h(phi) and theta (a line within ~15 degrees of the surface plane is resolved less well: see the tests)
 const N_POLAR = 65; // nodes in s = tan(polar angle / 2) on [0, 1] (polar angle 0 to pi/2)
 const N_AZ = 256; // azimuth nodes on [0, 2 pi)
+// the scalar g.F.k of the hot path is made from the harmonic sums on a finer grid (lines far from the normal
+// need high harmonics near the surface plane; the 9-component grid above serves `gradient`)
+const S_POLAR = 129;
+const S_AZ = 512;
 
 /**
  * The table of one surface. It does not depend on where the line meets the surface (the correction is
@@ -363,10 +367,8 @@ function fftInPlace(re: Float64Array, im: Float64Array): void {
   }
 }
 
-/** Row length of the padded grids: azimuth nodes -1 .. N_AZ + 1. */
+/** Row length of the padded 9-component grids: azimuth nodes -1 .. N_AZ + 1 (rows: polar nodes -1 .. N_POLAR). */
 const PAD_W = N_AZ + 3;
-/** Rows of the padded grids: polar nodes -1 .. N_POLAR. */
-const PAD_H = N_POLAR + 2;
 
 /**
  * A grid (N_POLAR x N_AZ nodes, `comps` numbers per node) padded with the nodes the bicubic stencil
@@ -374,16 +376,17 @@ const PAD_H = N_POLAR + 2;
  * N_AZ, N_AZ + 1 wrap round; polar -1 (through the normal: polar -v at azimuth phi is polar v at phi + pi)
  * and polar N_POLAR (beyond the surface plane, mirrored: points there lie outside the foil).
  */
-function padded(T: Float64Array, comps: number): Float64Array {
-  const out = new Float64Array(PAD_H * PAD_W * comps);
-  for (let r = 0; r < PAD_H; r++) {
+function padded(T: Float64Array, comps: number, nP = N_POLAR, nA = N_AZ): Float64Array {
+  const padW = nA + 3;
+  const out = new Float64Array((nP + 2) * padW * comps);
+  for (let r = 0; r < nP + 2; r++) {
     const ip = r - 1;
-    const src = ip < 0 ? -ip : ip > N_POLAR - 1 ? 2 * (N_POLAR - 1) - ip : ip;
-    const shift = ip < 0 ? N_AZ / 2 : 0;
-    for (let c = 0; c < PAD_W; c++) {
-      const ia = (((c - 1 + shift) % N_AZ) + N_AZ) % N_AZ;
-      const from = (src * N_AZ + ia) * comps;
-      const to = (r * PAD_W + c) * comps;
+    const src = ip < 0 ? -ip : ip > nP - 1 ? 2 * (nP - 1) - ip : ip;
+    const shift = ip < 0 ? nA / 2 : 0;
+    for (let c = 0; c < padW; c++) {
+      const ia = (((c - 1 + shift) % nA) + nA) % nA;
+      const from = (src * nA + ia) * comps;
+      const to = (r * padW + c) * comps;
       for (let k = 0; k < comps; k++) out[to + k] = T[from + k];
     }
   }
@@ -403,19 +406,64 @@ function cartesian(F: Float64Array, E: readonly Vec3[]): Float64Array {
   return out;
 }
 
-/** The scalar g.F.k of a table on its padded grid, made once per (g, k) and kept with the table. */
+/**
+ * The scalar g.F.k of a table on the fine padded grid (S_POLAR x S_AZ), made once per (g, k) from the
+ * harmonic sums contracted (one FFT per ring) and kept with the table.
+ */
 function contract(tb: SurfaceTable, g: readonly number[], k: readonly number[]): Float64Array {
   const key = `${g[0]},${g[1]},${g[2]},${k[0]},${k[1]},${k[2]}`;
   const hit = tb.contracted.get(key);
   if (hit !== undefined) return hit;
-  const w = new Float64Array(9);
-  for (let i = 0; i < 3; i++) for (let j = 0; j < 3; j++) w[3 * i + j] = g[i] * k[j];
-  const F = tb.F;
-  const S = new Float64Array(F.length / 9);
-  for (let c = 0; c < S.length; c++) {
-    const o = 9 * c;
-    S[c] = w[0] * F[o] + w[1] * F[o + 1] + w[2] * F[o + 2] + w[3] * F[o + 3] + w[4] * F[o + 4] + w[5] * F[o + 5] + w[6] * F[o + 6] + w[7] * F[o + 7] + w[8] * F[o + 8];
+  // g and k in the table's local frame; the coefficients are local (row: displacement, column: derivative)
+  const E = [tb.e1, tb.e2, tb.ez];
+  const gl = E.map((e) => g[0] * e[0] + g[1] * e[1] + g[2] * e[2]);
+  const kl = E.map((e) => k[0] * e[0] + k[1] * e[1] + k[2] * e[2]);
+  const nH = tb.ms.length;
+  const a0r = new Float64Array(nH), a0i = new Float64Array(nH), a1r = new Float64Array(nH), a1i = new Float64Array(nH);
+  for (let q = 0; q < nH; q++)
+    for (let i = 0; i < 3; i++)
+      for (let j = 0; j < 3; j++) {
+        const w = gl[i] * kl[j];
+        const o = q * 9 + 3 * i + j;
+        a0r[q] += w * tb.c0r[o];
+        a0i[q] += w * tb.c0i[o];
+        a1r[q] += w * tb.c1r[o];
+        a1i[q] += w * tb.c1i[o];
+      }
+  // S(s, phi) = Re sum_m e^{i m phi} (i s)^|m| [a0_m + a1_m (c^2 + |m| c)] / 2 pi, ring by ring
+  const T = new Float64Array(S_POLAR * S_AZ);
+  const re = new Float64Array(S_AZ), im = new Float64Array(S_AZ);
+  const slots = new Int32Array(nH), ams = new Int32Array(nH);
+  let mMax = 0;
+  for (let q = 0; q < nH; q++) {
+    ams[q] = Math.abs(tb.ms[q]);
+    slots[q] = ((tb.ms[q] % S_AZ) + S_AZ) % S_AZ;
+    mMax = Math.max(mMax, ams[q]);
   }
+  const pw = new Float64Array(mMax + 1); // s^m / 2 pi
+  for (let ip = 0; ip < S_POLAR; ip++) {
+    const sv = ip / (S_POLAR - 1);
+    const c = (1 - sv * sv) / (1 + sv * sv);
+    pw[0] = 1 / (2 * Math.PI);
+    for (let m = 1; m <= mMax; m++) pw[m] = pw[m - 1] * sv;
+    re.fill(0);
+    im.fill(0);
+    for (let q = 0; q < nH; q++) {
+      const am = ams[q];
+      const mag = pw[am];
+      const r4 = am & 3;
+      const ir = r4 === 0 ? mag : r4 === 2 ? -mag : 0;
+      const ii = r4 === 1 ? mag : r4 === 3 ? -mag : 0;
+      const w = c * c + am * c;
+      const xr = a0r[q] + a1r[q] * w, xi = a0i[q] + a1i[q] * w;
+      const slot = slots[q];
+      re[slot] += ir * xr - ii * xi;
+      im[slot] += ir * xi + ii * xr;
+    }
+    fftInPlace(re, im);
+    T.set(re, ip * S_AZ);
+  }
+  const S = padded(T, 1, S_POLAR, S_AZ);
   remember(tb.contracted, CONTRACTED_SIZE, key, S);
   return S;
 }
@@ -470,17 +518,29 @@ function tableFor(o: InclinedHalfSpaceOptions, which: 'entrance' | 'exit'): Surf
   const [t0, t1, t2] = bs;
   const F = new Float64Array(t0.F.length);
   for (let k = 0; k < F.length; k++) F[k] = b[0] * t0.F[k] + b[1] * t1.F[k] + b[2] * t2.F[k];
-  // the harmonic coefficients of the three, merged (the tests' direct sum)
+  // the harmonic coefficients of the three combined, one entry per harmonic m
   const ms: number[] = [];
   const c0r: number[] = [], c0i: number[] = [], c1r: number[] = [], c1i: number[] = [];
+  const at = new Map<number, number>();
   bs.forEach((tb, i) => {
     tb.ms.forEach((m, q) => {
-      ms.push(m);
+      let e = at.get(m);
+      if (e === undefined) {
+        e = ms.length;
+        at.set(m, e);
+        ms.push(m);
+        for (let k = 0; k < 9; k++) {
+          c0r.push(0);
+          c0i.push(0);
+          c1r.push(0);
+          c1i.push(0);
+        }
+      }
       for (let k = 0; k < 9; k++) {
-        c0r.push(b[i] * tb.c0r[q * 9 + k]);
-        c0i.push(b[i] * tb.c0i[q * 9 + k]);
-        c1r.push(b[i] * tb.c1r[q * 9 + k]);
-        c1i.push(b[i] * tb.c1i[q * 9 + k]);
+        c0r[e * 9 + k] += b[i] * tb.c0r[q * 9 + k];
+        c0i[e * 9 + k] += b[i] * tb.c0i[q * 9 + k];
+        c1r[e * 9 + k] += b[i] * tb.c1r[q * 9 + k];
+        c1i[e * 9 + k] += b[i] * tb.c1i[q * 9 + k];
       }
     });
   });
@@ -503,13 +563,15 @@ export function inclinedHalfSpaceCorrection(o: InclinedHalfSpaceOptions): Displa
   const geo = new Float64Array(12 * nT);
   const Os = tables.map((_, q) => emergencePoint(o, nT === 2 ? (q === 0 ? 'entrance' : 'exit') : (o.only as 'entrance' | 'exit')));
   tables.forEach((tb, q) => geo.set([...Os[q], ...tb.e1, ...tb.e2, ...tb.ez], 12 * q));
-  const invDP = N_POLAR - 1;
-  const invDA = N_AZ / (2 * Math.PI);
   // the last point located: 1/R, the padded grid's stencil corner (node index) and the Catmull-Rom weights
   const at = new Float64Array(9);
   const corner = new Int32Array(1);
-  /** Locates (x, y, z) relative to surface q: sets `at` and `corner`. */
-  const locate = (q: number, x: number, y: number, z: number): void => {
+  /** For a grid of nP x nA nodes: locates (x, y, z) relative to surface q, sets `at` and `corner`. */
+  const locator = (nP: number, nA: number) => {
+  const invDP = nP - 1;
+  const invDA = nA / (2 * Math.PI);
+  const padW = nA + 3;
+  return (q: number, x: number, y: number, z: number): void => {
     const b = 12 * q;
     const rx = x - geo[b], ry = y - geo[b + 1], rz = z - geo[b + 2];
     const X = rx * geo[b + 3] + ry * geo[b + 4] + rz * geo[b + 5];
@@ -523,12 +585,12 @@ export function inclinedHalfSpaceCorrection(o: InclinedHalfSpaceOptions): Displa
     if (ph < 0) ph += 2 * Math.PI;
     const fp = sv * invDP;
     let i = Math.floor(fp);
-    if (i > N_POLAR - 2) i = N_POLAR - 2;
+    if (i > nP - 2) i = nP - 2;
     const fa = ph * invDA;
     let a = Math.floor(fa);
     const f = fp - i;
     const g = fa - a;
-    if (a >= N_AZ) a -= N_AZ; // ph rounded up to 2 pi
+    if (a >= nA) a -= nA; // ph rounded up to 2 pi
     // Catmull-Rom weights of both fractions
     const f2 = f * f, f3 = f2 * f, g2 = g * g, g3 = g2 * g;
     at[0] = 1 / (R > 1e-9 ? R : 1e-9);
@@ -540,8 +602,12 @@ export function inclinedHalfSpaceCorrection(o: InclinedHalfSpaceOptions): Displa
     at[6] = 0.5 * (3 * g3 - 5 * g2 + 2);
     at[7] = 0.5 * (-3 * g3 + 4 * g2 + g);
     at[8] = 0.5 * (g3 - g2);
-    corner[0] = i * PAD_W + a; // padded row i is polar node i - 1, padded column a is azimuth node a - 1
+    corner[0] = i * padW + a; // padded row i is polar node i - 1, padded column a is azimuth node a - 1
   };
+  };
+  const locate = locator(N_POLAR, N_AZ);
+  const locateS = locator(S_POLAR, S_AZ);
+  const S_PAD_W = S_AZ + 3;
   const addGradient = (out: Float64Array, x: number, y: number, z: number): void => {
     for (let q = 0; q < nT; q++) {
       locate(q, x, y, z);
@@ -592,20 +658,20 @@ export function inclinedHalfSpaceCorrection(o: InclinedHalfSpaceOptions): Displa
         const c = corner[0];
         let s = 0;
         for (let p = 0; p < 4; p++) {
-          const r = c + p * PAD_W;
+          const r = c + p * S_PAD_W;
           s += at[1 + p] * (at[5] * S[r] + at[6] * S[r + 1] + at[7] * S[r + 2] + at[8] * S[r + 3]);
         }
         return s * at[0];
       };
       if (nT === 1)
         return (x, y, z) => {
-          locate(0, x, y, z);
+          locateS(0, x, y, z);
           return one(S0);
         };
       return (x, y, z) => {
-        locate(0, x, y, z);
+        locateS(0, x, y, z);
         const a = one(S0);
-        locate(1, x, y, z);
+        locateS(1, x, y, z);
         return a + one(S1);
       };
     },

@@ -620,10 +620,12 @@ describe('surface corrections on the renderer hot path (directional g.(grad R).k
     }
   });
   // per column (60 columns through a 60 nm foil, 25 points each): the largest error over the largest |beta'| of the correction
+  // (the scalar grid is finer than the 9-component one `gradient` reads: 129 x 512 directions)
   const inclinedCases: [string, Vec3, Vec3, number][] = [
-    ['35 degrees from the normal (measured 2.5e-5)', [0.2, 0.1, 0.12], [0.5, 0.3, 1], 1e-4],
-    ['60 degrees (measured 1.2e-4)', [0.15, -0.04, 0.1], [1.5, -0.4, 1], 5e-4],
-    ['75 degrees (measured 2.3e-3: high harmonics near the surface plane)', [0.1, 0.2, -0.15], [1, 3, 0.8], 1e-2],
+    ['35 degrees from the normal (measured 2.3e-6)', [0.2, 0.1, 0.12], [0.5, 0.3, 1], 1e-5],
+    ['60 degrees (measured 3.1e-6)', [0.15, -0.04, 0.1], [1.5, -0.4, 1], 1e-5],
+    ['75 degrees (measured 5.3e-5: high harmonics near the surface plane)', [0.1, 0.2, -0.15], [1, 3, 0.8], 2e-4],
+    ['84 degrees (measured 3.7e-3)', [0.2, 0.1, 0.12], [1, 0.2, 0.1], 1e-2],
   ];
   for (const [label, b, line, bound] of inclinedCases) {
     it(`inclined line ${label}: the contracted table of both surfaces equals the direct harmonic sums contracted, per column to ${bound}`, () => {
