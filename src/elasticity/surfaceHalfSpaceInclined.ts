@@ -441,13 +441,14 @@ function contract(tb: SurfaceTable, g: readonly number[], k: readonly number[]):
     mMax = Math.max(mMax, ams[q]);
   }
   const pw = new Float64Array(mMax + 1); // s^m / 2 pi
-  for (let ip = 0; ip < S_POLAR; ip++) {
+  // the coefficients of one ring into (cr, ci) by slot
+  const ring = (ip: number, cr: Float64Array, ci: Float64Array): void => {
     const sv = ip / (S_POLAR - 1);
     const c = (1 - sv * sv) / (1 + sv * sv);
     pw[0] = 1 / (2 * Math.PI);
     for (let m = 1; m <= mMax; m++) pw[m] = pw[m - 1] * sv;
-    re.fill(0);
-    im.fill(0);
+    cr.fill(0);
+    ci.fill(0);
     for (let q = 0; q < nH; q++) {
       const am = ams[q];
       const mag = pw[am];
@@ -457,11 +458,36 @@ function contract(tb: SurfaceTable, g: readonly number[], k: readonly number[]):
       const w = c * c + am * c;
       const xr = a0r[q] + a1r[q] * w, xi = a0i[q] + a1i[q] * w;
       const slot = slots[q];
-      re[slot] += ir * xr - ii * xi;
-      im[slot] += ir * xi + ii * xr;
+      cr[slot] += ir * xr - ii * xi;
+      ci[slot] += ir * xi + ii * xr;
+    }
+  };
+  // Two rings per FFT: Re sum_m c_m e^{i m phi} = sum_m d_m e^{i m phi} with d_m = (c_m + conj(c_-m))/2 (Hermitian,
+  // so the sum is real); transforming dA + i dB gives ring A in the real part and ring B in the imaginary part.
+  const bRe = new Float64Array(S_AZ), bIm = new Float64Array(S_AZ);
+  for (let ip = 0; ip < S_POLAR; ip += 2) {
+    const pair = ip + 1 < S_POLAR;
+    ring(ip, re, im);
+    if (pair) ring(ip + 1, bRe, bIm);
+    else {
+      bRe.fill(0);
+      bIm.fill(0);
+    }
+    // in place, slot k with its mirror S_AZ - k (k = 0 and S_AZ / 2 are their own mirrors)
+    for (let k = 0; k <= S_AZ / 2; k++) {
+      const kk = (S_AZ - k) % S_AZ;
+      const aR = 0.5 * (re[k] + re[kk]), aI = 0.5 * (im[k] - im[kk]); // dA_k
+      const aR2 = 0.5 * (re[kk] + re[k]), aI2 = 0.5 * (im[kk] - im[k]); // dA_kk
+      const bR = 0.5 * (bRe[k] + bRe[kk]), bI = 0.5 * (bIm[k] - bIm[kk]);
+      const bR2 = 0.5 * (bRe[kk] + bRe[k]), bI2 = 0.5 * (bIm[kk] - bIm[k]);
+      re[k] = aR - bI;
+      im[k] = aI + bR;
+      re[kk] = aR2 - bI2;
+      im[kk] = aI2 + bR2;
     }
     fftInPlace(re, im);
     T.set(re, ip * S_AZ);
+    if (pair) T.set(im, (ip + 1) * S_AZ);
   }
   const S = padded(T, 1, S_POLAR, S_AZ);
   remember(tb.contracted, CONTRACTED_SIZE, key, S);
