@@ -8,6 +8,9 @@
 //    c. screw normal to the foil seen with a tilted beam (the Eshelby-Stroh twist changes along the line:
 //       translationPlan declines it, so the relaxed render goes column by column).
 // 2. Per-point cost of beta' = g.(grad R).k for a line alone and for each correction.
+// 3. Set-up of the inclined-line correction: building the two surface tables for a new line direction (they do
+//    not depend on the line's point or the foil thickness, so only a new direction, b or material pays this), and
+//    making the scalar g.F.k of both for a new condition.
 // Run with `npm run bench` (builds dist/ first) or `node bench/surfaces.mjs` after a build. Never a timed test.
 import { parseScenario } from '../dist/scenario/parse.js';
 import { renderJob } from '../dist/imaging/renderScenario.js';
@@ -114,3 +117,19 @@ for (let r = 0; r < 3; r++) for (const [name, f] of Object.entries(fields)) (res
 console.log('directional derivative g.(grad R).k per point, CPU time (median of 3):');
 const ref = median(res['isotropic line (reference)']);
 for (const name of Object.keys(fields)) console.log(`  ${name.padEnd(27)}: ${fmt(median(res[name]))} ns  (${fmt(median(res[name]) / ref)}x the line)`);
+
+// set-up cost of the inclined-line tables (a new direction each time: the tables are cached per direction and b)
+const build = [], contract = [];
+for (let r = 0; r < 5; r++) {
+  const c0 = process.cpuUsage();
+  const f = inclinedHalfSpaceCorrection({ b_nm: [0.18, 0, 0.18], line: [1, 1 + 0.013 * r, 2], point_nm: [0, 0, 30], normal: [0, 0, 1], thickness_nm: t, poissonRatio: 0.34, stiffness_GPa: cu });
+  const c1 = process.cpuUsage();
+  f.directional(g, k);
+  const c2 = process.cpuUsage();
+  if (r < 2) continue; // warm-up
+  build.push((c1.user + c1.system - c0.user - c0.system) / 1e3);
+  contract.push((c2.user + c2.system - c1.user - c1.system) / 1e3);
+}
+console.log('inclined-line correction set-up, anisotropic (Cu), CPU time (median of 3):');
+console.log(`  both surface tables for a new line direction: ${fmt(median(build))} ms`);
+console.log(`  scalar g.F.k of both for a new condition   : ${fmt(median(contract))} ms`);

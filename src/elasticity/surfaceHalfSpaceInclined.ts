@@ -52,14 +52,27 @@ export interface InclinedHalfSpaceOptions {
 const N_HARM_SAMPLES = 256; // samples of h(phi) and theta (a line within ~15 degrees of the surface plane is resolved less well: see the tests)
 const N_POLAR = 65; // nodes in s = tan(polar angle / 2) on [0, 1] (polar angle 0 to pi/2)
 const N_AZ = 256; // azimuth nodes on [0, 2 pi)
+// the scalar g.F.k of the hot path is made from the harmonic sums on a finer grid (lines far from the normal
+// need high harmonics near the surface plane; the 9-component grid above serves `gradient`)
+const S_POLAR = 129;
+const S_AZ = 512;
 
+/**
+ * The table of one surface. It does not depend on where the line meets the surface (the correction is
+ * F(direction)/R about the emergence point O): a line shifted in the foil, or another foil thickness,
+ * reuses it; only the line direction, b, the foil normal, the elastic constants and the side count.
+ */
 interface SurfaceTable {
-  readonly O: Vec3;
   readonly e1: Vec3;
   readonly e2: Vec3;
   readonly ez: Vec3;
-  /** F in the local frame, 9 components (i row: displacement, j column: derivative), [(ip * N_AZ + ia) * 9 + 3 i + j]. */
+  /**
+   * F in the crystal Cartesian frame, 9 components (i row: displacement, j column: derivative), on the
+   * padded grid (see `padded`): [node * 9 + 3 i + j].
+   */
   readonly F: Float64Array;
+  /** Contractions g.F.k already made (padded scalar grids), by "g,k". */
+  readonly contracted: Map<string, Float64Array>;
   /** The harmonics m kept and their coefficients p0_m, p1_m (9 complex each), for the direct (untabulated) sum. */
   readonly ms: readonly number[];
   readonly c0r: readonly number[];
@@ -89,13 +102,9 @@ function buildTable(o: InclinedHalfSpaceOptions, which: 'entrance' | 'exit'): Su
   const N_HARM = N_HARM_SAMPLES;
   const u = unit(o.line);
   const n = unit(o.normal);
-  const t = o.thickness_nm;
   const nu = o.poissonRatio;
-  const P = o.point_nm;
-  const un = dot(u, n);
-  const depth = which === 'entrance' ? 0 : t;
-  const lam = (depth - dot(P, n)) / un;
-  const O: Vec3 = [P[0] + lam * u[0], P[1] + lam * u[1], P[2] + lam * u[2]];
+  // the line through the origin (the table is the same for every emergence point)
+  const O: Vec3 = [0, 0, 0];
   const ez = which === 'entrance' ? n : scale(n, -1);
   const trial: Vec3 = Math.abs(ez[0]) < 0.9 ? [1, 0, 0] : [0, 1, 0];
   const e1 = unit(cross(trial, ez));
@@ -130,54 +139,39 @@ function buildTable(o: InclinedHalfSpaceOptions, which: 'entrance' | 'exit'): Su
     hr[1][j] = r0 * (T[0] * e2[0] + T[1] * e2[1] + T[2] * e2[2]);
     hr[2][j] = r0 * (T[0] * ez[0] + T[1] * ez[1] + T[2] * ez[2]);
   }
-  // Fourier coefficients h_n, n = -N/2 .. N/2 - 1 (index n + N/2); angles 2 pi k / N from one table
+  // Fourier coefficients h_n = (1/N) sum_j h_j e^{-2 pi i n j / N}, n = -N/2 + 1 .. N/2 - 1 (the Nyquist term is
+  // ambiguous: dropped; h is smooth, it is negligible), then tau(theta_j) = 2 pi sum_n (-i)^|n| h_n e^{i n theta_j};
+  // both by FFT (h real: its forward transform is the conjugate of the + sign one)
   const H = N_HARM / 2;
-  const cosN = new Float64Array(N_HARM), sinN = new Float64Array(N_HARM);
-  for (let k = 0; k < N_HARM; k++) {
-    cosN[k] = Math.cos((2 * Math.PI * k) / N_HARM);
-    sinN[k] = Math.sin((2 * Math.PI * k) / N_HARM);
-  }
-  const idx = (k: number): number => ((k % N_HARM) + N_HARM) % N_HARM;
-  const hnR = [0, 1, 2].map(() => new Float64Array(N_HARM));
-  const hnI = [0, 1, 2].map(() => new Float64Array(N_HARM));
-  for (let q = 0; q < N_HARM; q++) {
-    const nn = q - H;
-    for (let j = 0; j < N_HARM; j++) {
-      const ka = idx(-nn * j);
-      const ca = cosN[ka], sa = sinN[ka];
-      for (let c = 0; c < 3; c++) {
-        hnR[c][q] += (hr[c][j] * ca) / N_HARM;
-        hnI[c][q] += (hr[c][j] * sa) / N_HARM;
-      }
-    }
-  }
-  // the Nyquist term is ambiguous: drop it (h is smooth, it is negligible)
+  const tauR = [0, 1, 2].map(() => new Float64Array(N_HARM));
+  const tauI = [0, 1, 2].map(() => new Float64Array(N_HARM));
   for (let c = 0; c < 3; c++) {
-    hnR[c][0] = 0;
-    hnI[c][0] = 0;
+    const re = tauR[c], im = tauI[c];
+    re.set(hr[c]);
+    fftInPlace(re, im);
+    // slot k holds sum_j h_j e^{+2 pi i k j / N}: h_n = conj(slot n mod N) / N; then the phase (-i)^|n| and 2 pi
+    for (let k = 0; k < N_HARM; k++) {
+      const nn = k < H ? k : k - N_HARM;
+      if (nn === -H) {
+        re[k] = 0;
+        im[k] = 0;
+        continue;
+      }
+      const xr = re[k] / N_HARM, xi = -im[k] / N_HARM;
+      const an = Math.abs(nn) % 4; // (-i)^|n|: 1, -i, -1, i
+      const pr = an === 0 ? 1 : an === 2 ? -1 : 0;
+      const pi = an === 1 ? -1 : an === 3 ? 1 : 0;
+      re[k] = 2 * Math.PI * (pr * xr - pi * xi);
+      im[k] = 2 * Math.PI * (pr * xi + pi * xr);
+    }
+    fftInPlace(re, im);
   }
   // P0(theta), P1(theta) at theta_j (9 complex each, local frame)
   const P0r = new Float64Array(N_HARM * 9), P0i = new Float64Array(N_HARM * 9);
   const P1r = new Float64Array(N_HARM * 9), P1i = new Float64Array(N_HARM * 9);
   for (let j = 0; j < N_HARM; j++) {
     const th = (2 * Math.PI * j) / N_HARM;
-    // tau = 2 pi sum_n (-i)^|n| h_n e^{i n theta}
-    const tr = [0, 0, 0], ti = [0, 0, 0];
-    for (let q = 1; q < N_HARM; q++) {
-      const nn = q - H;
-      const an = Math.abs(nn) % 4; // (-i)^|n|: 1, -i, -1, i
-      const pr = an === 0 ? 1 : an === 2 ? -1 : 0;
-      const pi = an === 1 ? -1 : an === 3 ? 1 : 0;
-      const kk = idx(nn * j);
-      const ca = cosN[kk], sa = sinN[kk];
-      for (let c = 0; c < 3; c++) {
-        // h_n e^{i n th}
-        const xr = hnR[c][q] * ca - hnI[c][q] * sa;
-        const xi = hnR[c][q] * sa + hnI[c][q] * ca;
-        tr[c] += 2 * Math.PI * (pr * xr - pi * xi);
-        ti[c] += 2 * Math.PI * (pr * xi + pi * xr);
-      }
-    }
+    const tr = [tauR[0][j], tauR[1][j], tauR[2][j]], ti = [tauI[0][j], tauI[1][j], tauI[2][j]];
     const ct = Math.cos(th), st = Math.sin(th);
     const tkR = tr[0] * ct + tr[1] * st, tkI = ti[0] * ct + ti[1] * st;
     const tpR = -tr[0] * st + tr[1] * ct, tpI = -ti[0] * st + ti[1] * ct;
@@ -291,7 +285,7 @@ function buildTable(o: InclinedHalfSpaceOptions, which: 'entrance' | 'exit'): Su
       for (let ia = 0; ia < N_AZ; ia++) F[(ip * N_AZ + ia) * 9 + k] = re[ia];
     }
   }
-  return { O, e1, e2, ez, F, ms, c0r, c0i, c1r, c1i };
+  return { e1, e2, ez, F: padded(cartesian(F, [e1, e2, ez]), 9), contracted: new Map(), ms, c0r, c0i, c1r, c1i };
 }
 
 /**
@@ -300,7 +294,8 @@ function buildTable(o: InclinedHalfSpaceOptions, which: 'entrance' | 'exit'): Su
  */
 export function halfSpaceGradientDirect(o: InclinedHalfSpaceOptions, which: 'entrance' | 'exit', out: Float64Array, x: number, y: number, z: number): void {
   const tb = tableFor(o, which);
-  const rx = x - tb.O[0], ry = y - tb.O[1], rz = z - tb.O[2];
+  const O = emergencePoint(o, which);
+  const rx = x - O[0], ry = y - O[1], rz = z - O[2];
   const X = rx * tb.e1[0] + ry * tb.e1[1] + rz * tb.e1[2];
   const Y = rx * tb.e2[0] + ry * tb.e2[1] + rz * tb.e2[2];
   const Z = rx * tb.ez[0] + ry * tb.ez[1] + rz * tb.ez[2];
@@ -344,8 +339,11 @@ function fftInPlace(re: Float64Array, im: Float64Array): void {
     for (; j & bit; bit >>= 1) j ^= bit;
     j ^= bit;
     if (i < j) {
-      [re[i], re[j]] = [re[j], re[i]];
-      [im[i], im[j]] = [im[j], im[i]];
+      const tr = re[i], ti = im[i];
+      re[i] = re[j];
+      im[i] = im[j];
+      re[j] = tr;
+      im[j] = ti;
     }
   }
   for (let len = 2; len <= n; len <<= 1) {
@@ -369,13 +367,131 @@ function fftInPlace(re: Float64Array, im: Float64Array): void {
   }
 }
 
-/** Catmull-Rom weights for fraction f. */
-function cr(f: number, w: Float64Array): void {
-  const f2 = f * f, f3 = f2 * f;
-  w[0] = 0.5 * (-f3 + 2 * f2 - f);
-  w[1] = 0.5 * (3 * f3 - 5 * f2 + 2);
-  w[2] = 0.5 * (-3 * f3 + 4 * f2 + f);
-  w[3] = 0.5 * (f3 - f2);
+/** Row length of the padded 9-component grids: azimuth nodes -1 .. N_AZ + 1 (rows: polar nodes -1 .. N_POLAR). */
+const PAD_W = N_AZ + 3;
+
+/**
+ * A grid (N_POLAR x N_AZ nodes, `comps` numbers per node) padded with the nodes the bicubic stencil
+ * reaches beyond its edges, so that the hot path reads 4 x 4 neighbours without wrapping: azimuth -1 and
+ * N_AZ, N_AZ + 1 wrap round; polar -1 (through the normal: polar -v at azimuth phi is polar v at phi + pi)
+ * and polar N_POLAR (beyond the surface plane, mirrored: points there lie outside the foil).
+ */
+function padded(T: Float64Array, comps: number, nP = N_POLAR, nA = N_AZ): Float64Array {
+  const padW = nA + 3;
+  const out = new Float64Array((nP + 2) * padW * comps);
+  for (let r = 0; r < nP + 2; r++) {
+    const ip = r - 1;
+    const src = ip < 0 ? -ip : ip > nP - 1 ? 2 * (nP - 1) - ip : ip;
+    const shift = ip < 0 ? nA / 2 : 0;
+    for (let c = 0; c < padW; c++) {
+      const ia = (((c - 1 + shift) % nA) + nA) % nA;
+      const from = (src * nA + ia) * comps;
+      const to = (r * padW + c) * comps;
+      for (let k = 0; k < comps; k++) out[to + k] = T[from + k];
+    }
+  }
+  return out;
+}
+
+/** The 9-component local grid (frame E = [e1, e2, ez]) turned into the Cartesian frame, node by node: E local E^T. */
+function cartesian(F: Float64Array, E: readonly Vec3[]): Float64Array {
+  const out = new Float64Array(F.length);
+  for (let c = 0; c < F.length; c += 9)
+    for (let i = 0; i < 3; i++)
+      for (let j = 0; j < 3; j++) {
+        let s = 0;
+        for (let a = 0; a < 3; a++) for (let b = 0; b < 3; b++) s += E[a][i] * F[c + 3 * a + b] * E[b][j];
+        out[c + 3 * i + j] = s;
+      }
+  return out;
+}
+
+/**
+ * The scalar g.F.k of a table on the fine padded grid (S_POLAR x S_AZ), made once per (g, k) from the
+ * harmonic sums contracted (one FFT per ring) and kept with the table.
+ */
+function contract(tb: SurfaceTable, g: readonly number[], k: readonly number[]): Float64Array {
+  const key = `${g[0]},${g[1]},${g[2]},${k[0]},${k[1]},${k[2]}`;
+  const hit = tb.contracted.get(key);
+  if (hit !== undefined) return hit;
+  // g and k in the table's local frame; the coefficients are local (row: displacement, column: derivative)
+  const E = [tb.e1, tb.e2, tb.ez];
+  const gl = E.map((e) => g[0] * e[0] + g[1] * e[1] + g[2] * e[2]);
+  const kl = E.map((e) => k[0] * e[0] + k[1] * e[1] + k[2] * e[2]);
+  const nH = tb.ms.length;
+  const a0r = new Float64Array(nH), a0i = new Float64Array(nH), a1r = new Float64Array(nH), a1i = new Float64Array(nH);
+  for (let q = 0; q < nH; q++)
+    for (let i = 0; i < 3; i++)
+      for (let j = 0; j < 3; j++) {
+        const w = gl[i] * kl[j];
+        const o = q * 9 + 3 * i + j;
+        a0r[q] += w * tb.c0r[o];
+        a0i[q] += w * tb.c0i[o];
+        a1r[q] += w * tb.c1r[o];
+        a1i[q] += w * tb.c1i[o];
+      }
+  // S(s, phi) = Re sum_m e^{i m phi} (i s)^|m| [a0_m + a1_m (c^2 + |m| c)] / 2 pi, ring by ring
+  const T = new Float64Array(S_POLAR * S_AZ);
+  const re = new Float64Array(S_AZ), im = new Float64Array(S_AZ);
+  const slots = new Int32Array(nH), ams = new Int32Array(nH);
+  let mMax = 0;
+  for (let q = 0; q < nH; q++) {
+    ams[q] = Math.abs(tb.ms[q]);
+    slots[q] = ((tb.ms[q] % S_AZ) + S_AZ) % S_AZ;
+    mMax = Math.max(mMax, ams[q]);
+  }
+  const pw = new Float64Array(mMax + 1); // s^m / 2 pi
+  // the coefficients of one ring into (cr, ci) by slot
+  const ring = (ip: number, cr: Float64Array, ci: Float64Array): void => {
+    const sv = ip / (S_POLAR - 1);
+    const c = (1 - sv * sv) / (1 + sv * sv);
+    pw[0] = 1 / (2 * Math.PI);
+    for (let m = 1; m <= mMax; m++) pw[m] = pw[m - 1] * sv;
+    cr.fill(0);
+    ci.fill(0);
+    for (let q = 0; q < nH; q++) {
+      const am = ams[q];
+      const mag = pw[am];
+      const r4 = am & 3;
+      const ir = r4 === 0 ? mag : r4 === 2 ? -mag : 0;
+      const ii = r4 === 1 ? mag : r4 === 3 ? -mag : 0;
+      const w = c * c + am * c;
+      const xr = a0r[q] + a1r[q] * w, xi = a0i[q] + a1i[q] * w;
+      const slot = slots[q];
+      cr[slot] += ir * xr - ii * xi;
+      ci[slot] += ir * xi + ii * xr;
+    }
+  };
+  // Two rings per FFT: Re sum_m c_m e^{i m phi} = sum_m d_m e^{i m phi} with d_m = (c_m + conj(c_-m))/2 (Hermitian,
+  // so the sum is real); transforming dA + i dB gives ring A in the real part and ring B in the imaginary part.
+  const bRe = new Float64Array(S_AZ), bIm = new Float64Array(S_AZ);
+  for (let ip = 0; ip < S_POLAR; ip += 2) {
+    const pair = ip + 1 < S_POLAR;
+    ring(ip, re, im);
+    if (pair) ring(ip + 1, bRe, bIm);
+    else {
+      bRe.fill(0);
+      bIm.fill(0);
+    }
+    // in place, slot k with its mirror S_AZ - k (k = 0 and S_AZ / 2 are their own mirrors)
+    for (let k = 0; k <= S_AZ / 2; k++) {
+      const kk = (S_AZ - k) % S_AZ;
+      const aR = 0.5 * (re[k] + re[kk]), aI = 0.5 * (im[k] - im[kk]); // dA_k
+      const aR2 = 0.5 * (re[kk] + re[k]), aI2 = 0.5 * (im[kk] - im[k]); // dA_kk
+      const bR = 0.5 * (bRe[k] + bRe[kk]), bI = 0.5 * (bIm[k] - bIm[kk]);
+      const bR2 = 0.5 * (bRe[kk] + bRe[k]), bI2 = 0.5 * (bIm[kk] - bIm[k]);
+      re[k] = aR - bI;
+      im[k] = aI + bR;
+      re[kk] = aR2 - bI2;
+      im[kk] = aI2 + bR2;
+    }
+    fftInPlace(re, im);
+    T.set(re, ip * S_AZ);
+    if (pair) T.set(im, (ip + 1) * S_AZ);
+  }
+  const S = padded(T, 1, S_POLAR, S_AZ);
+  remember(tb.contracted, CONTRACTED_SIZE, key, S);
+  return S;
 }
 
 /**
@@ -389,14 +505,26 @@ const byGeometry = new Map<string, SurfaceTable[] | 'seen'>();
 // a table holds 65 x 256 x 9 numbers (1.2 MB): at most 16 per b and 8 geometries (x 3 unit b) per thread
 const BY_B_SIZE = 16;
 const BY_GEOMETRY_SIZE = 8;
+// contracted scalar grids (136 kB each) kept per table: the conditions of one scenario or identification
+const CONTRACTED_SIZE = 8;
 
 function remember<V>(m: Map<string, V>, size: number, key: string, v: V): void {
   if (m.size >= size) m.delete(m.keys().next().value as string);
   m.set(key, v);
 }
 
+/** Where the line meets the surface (entrance r.n = 0 or exit r.n = t). */
+function emergencePoint(o: InclinedHalfSpaceOptions, which: 'entrance' | 'exit'): Vec3 {
+  const u = unit(o.line);
+  const n = unit(o.normal);
+  const P = o.point_nm;
+  const lam = ((which === 'entrance' ? 0 : o.thickness_nm) - dot(P, n)) / dot(u, n);
+  return [P[0] + lam * u[0], P[1] + lam * u[1], P[2] + lam * u[2]];
+}
+
 function tableFor(o: InclinedHalfSpaceOptions, which: 'entrance' | 'exit'): SurfaceTable {
-  const gKey = JSON.stringify([o.line, o.point_nm, o.normal, o.thickness_nm, o.poissonRatio, o.stiffness_GPa ?? null, which]);
+  // not the point or the thickness: the table is the same wherever the line meets the surface
+  const gKey = JSON.stringify([unit(o.line), unit(o.normal), o.poissonRatio, o.stiffness_GPa ?? null, which]);
   const bKey = JSON.stringify([o.b_nm, gKey]);
   const hit = byB.get(bKey);
   if (hit !== undefined) return hit;
@@ -416,21 +544,33 @@ function tableFor(o: InclinedHalfSpaceOptions, which: 'entrance' | 'exit'): Surf
   const [t0, t1, t2] = bs;
   const F = new Float64Array(t0.F.length);
   for (let k = 0; k < F.length; k++) F[k] = b[0] * t0.F[k] + b[1] * t1.F[k] + b[2] * t2.F[k];
-  // the harmonic coefficients of the three, merged (the tests' direct sum)
+  // the harmonic coefficients of the three combined, one entry per harmonic m
   const ms: number[] = [];
   const c0r: number[] = [], c0i: number[] = [], c1r: number[] = [], c1i: number[] = [];
+  const at = new Map<number, number>();
   bs.forEach((tb, i) => {
     tb.ms.forEach((m, q) => {
-      ms.push(m);
+      let e = at.get(m);
+      if (e === undefined) {
+        e = ms.length;
+        at.set(m, e);
+        ms.push(m);
+        for (let k = 0; k < 9; k++) {
+          c0r.push(0);
+          c0i.push(0);
+          c1r.push(0);
+          c1i.push(0);
+        }
+      }
       for (let k = 0; k < 9; k++) {
-        c0r.push(b[i] * tb.c0r[q * 9 + k]);
-        c0i.push(b[i] * tb.c0i[q * 9 + k]);
-        c1r.push(b[i] * tb.c1r[q * 9 + k]);
-        c1i.push(b[i] * tb.c1i[q * 9 + k]);
+        c0r[e * 9 + k] += b[i] * tb.c0r[q * 9 + k];
+        c0i[e * 9 + k] += b[i] * tb.c0i[q * 9 + k];
+        c1r[e * 9 + k] += b[i] * tb.c1r[q * 9 + k];
+        c1i[e * 9 + k] += b[i] * tb.c1i[q * 9 + k];
       }
     });
   });
-  const tb: SurfaceTable = { O: t0.O, e1: t0.e1, e2: t0.e2, ez: t0.ez, F, ms, c0r, c0i, c1r, c1i };
+  const tb: SurfaceTable = { e1: t0.e1, e2: t0.e2, ez: t0.ez, F, contracted: new Map(), ms, c0r, c0i, c1r, c1i };
   remember(byB, BY_B_SIZE, bKey, tb);
   return tb;
 }
@@ -444,62 +584,69 @@ export function inclinedHalfSpaceCorrection(o: InclinedHalfSpaceOptions): Displa
   const tables: SurfaceTable[] = [];
   if (o.only !== 'exit') tables.push(tableFor(o, 'entrance'));
   if (o.only !== 'entrance') tables.push(tableFor(o, 'exit'));
-  const wp = new Float64Array(4), wa = new Float64Array(4);
-  const dP = 1 / (N_POLAR - 1);
-  const dA = (2 * Math.PI) / N_AZ;
-  /** interpolates table `tab` (stride `stride`, component offset `k`) at (polar, azimuth): sets wp, wa and returns the base indices. */
-  const ip0 = new Int32Array(4), ia0 = new Int32Array(4), shift = new Int32Array(4);
-  const locate = (X: number, Y: number, Z: number): number => {
+  const nT = tables.length;
+  // per surface: the emergence point and the local axes, flat (x, y, z per vector)
+  const geo = new Float64Array(12 * nT);
+  const Os = tables.map((_, q) => emergencePoint(o, nT === 2 ? (q === 0 ? 'entrance' : 'exit') : (o.only as 'entrance' | 'exit')));
+  tables.forEach((tb, q) => geo.set([...Os[q], ...tb.e1, ...tb.e2, ...tb.ez], 12 * q));
+  // the last point located: 1/R, the padded grid's stencil corner (node index) and the Catmull-Rom weights
+  const at = new Float64Array(9);
+  const corner = new Int32Array(1);
+  /** For a grid of nP x nA nodes: locates (x, y, z) relative to surface q, sets `at` and `corner`. */
+  const locator = (nP: number, nA: number) => {
+  const invDP = nP - 1;
+  const invDA = nA / (2 * Math.PI);
+  const padW = nA + 3;
+  return (q: number, x: number, y: number, z: number): void => {
+    const b = 12 * q;
+    const rx = x - geo[b], ry = y - geo[b + 1], rz = z - geo[b + 2];
+    const X = rx * geo[b + 3] + ry * geo[b + 4] + rz * geo[b + 5];
+    const Y = rx * geo[b + 6] + ry * geo[b + 7] + rz * geo[b + 8];
+    const Z = rx * geo[b + 9] + ry * geo[b + 10] + rz * geo[b + 11];
     const rho2 = X * X + Y * Y;
     const rho = Math.sqrt(rho2);
     const R = Math.sqrt(rho2 + Z * Z);
-    const vt = R > 0 ? rho / (R + Math.max(Z, 0)) : 0; // s = tan(polar / 2)
+    const sv = R > 0 ? rho / (R + (Z > 0 ? Z : 0)) : 0; // s = tan(polar / 2)
     let ph = Math.atan2(Y, X);
     if (ph < 0) ph += 2 * Math.PI;
-    const fp = vt / dP;
+    const fp = sv * invDP;
     let i = Math.floor(fp);
-    if (i > N_POLAR - 2) i = N_POLAR - 2;
-    cr(fp - i, wp);
-    const fa = ph / dA;
-    const a = Math.floor(fa);
-    cr(fa - a, wa);
-    for (let k = 0; k < 4; k++) {
-      let pi = i - 1 + k;
-      shift[k] = 0;
-      if (pi < 0) {
-        // through the normal: polar -v at azimuth phi is polar v at phi + pi
-        pi = -pi;
-        shift[k] = N_AZ / 2;
-      }
-      if (pi > N_POLAR - 1) pi = 2 * (N_POLAR - 1) - pi; // beyond the surface plane: mirror (points there lie outside the foil)
-      ip0[k] = pi;
-      ia0[k] = (((a - 1 + k) % N_AZ) + N_AZ) % N_AZ;
-    }
-    return R;
+    if (i > nP - 2) i = nP - 2;
+    const fa = ph * invDA;
+    let a = Math.floor(fa);
+    const f = fp - i;
+    const g = fa - a;
+    if (a >= nA) a -= nA; // ph rounded up to 2 pi
+    // Catmull-Rom weights of both fractions
+    const f2 = f * f, f3 = f2 * f, g2 = g * g, g3 = g2 * g;
+    at[0] = 1 / (R > 1e-9 ? R : 1e-9);
+    at[1] = 0.5 * (-f3 + 2 * f2 - f);
+    at[2] = 0.5 * (3 * f3 - 5 * f2 + 2);
+    at[3] = 0.5 * (-3 * f3 + 4 * f2 + f);
+    at[4] = 0.5 * (f3 - f2);
+    at[5] = 0.5 * (-g3 + 2 * g2 - g);
+    at[6] = 0.5 * (3 * g3 - 5 * g2 + 2);
+    at[7] = 0.5 * (-3 * g3 + 4 * g2 + g);
+    at[8] = 0.5 * (g3 - g2);
+    corner[0] = i * padW + a; // padded row i is polar node i - 1, padded column a is azimuth node a - 1
   };
-  const local = new Float64Array(9);
+  };
+  const locate = locator(N_POLAR, N_AZ);
+  const locateS = locator(S_POLAR, S_AZ);
+  const S_PAD_W = S_AZ + 3;
   const addGradient = (out: Float64Array, x: number, y: number, z: number): void => {
-    for (const tb of tables) {
-      const rx = x - tb.O[0], ry = y - tb.O[1], rz = z - tb.O[2];
-      const X = rx * tb.e1[0] + ry * tb.e1[1] + rz * tb.e1[2];
-      const Y = rx * tb.e2[0] + ry * tb.e2[1] + rz * tb.e2[2];
-      const Z = rx * tb.ez[0] + ry * tb.ez[1] + rz * tb.ez[2];
-      const R = Math.max(locate(X, Y, Z), 1e-9);
-      local.fill(0);
-      for (let p = 0; p < 4; p++)
-        for (let q = 0; q < 4; q++) {
-          const w = (wp[p] * wa[q]) / R;
-          const base = (ip0[p] * N_AZ + ((ia0[q] + shift[p]) % N_AZ)) * 9;
-          for (let k = 0; k < 9; k++) local[k] += w * tb.F[base + k];
+    for (let q = 0; q < nT; q++) {
+      locate(q, x, y, z);
+      const F = tables[q].F;
+      for (let p = 0; p < 4; p++) {
+        const wp = at[1 + p] * at[0];
+        const row = (corner[0] + p * PAD_W) * 9;
+        for (let c = 0; c < 4; c++) {
+          const w = wp * at[5 + c];
+          const base = row + 9 * c;
+          for (let k = 0; k < 9; k++) out[k] += w * F[base + k];
         }
-      // Cartesian = E local E^T, E columns e1, e2, ez
-      const E = [tb.e1, tb.e2, tb.ez];
-      for (let i = 0; i < 3; i++)
-        for (let j = 0; j < 3; j++) {
-          let s = 0;
-          for (let a = 0; a < 3; a++) for (let b = 0; b < 3; b++) s += E[a][i] * local[3 * a + b] * E[b][j];
-          out[3 * i + j] += s;
-        }
+      }
     }
   };
   return {
@@ -510,7 +657,7 @@ export function inclinedHalfSpaceCorrection(o: InclinedHalfSpaceOptions): Displa
       out[2] = 0;
       const t0 = tables[0];
       const mid = scale(t0.ez, o.thickness_nm / 2);
-      const ref: Vec3 = [t0.O[0] + mid[0], t0.O[1] + mid[1], t0.O[2] + mid[2]];
+      const ref: Vec3 = [Os[0][0] + mid[0], Os[0][1] + mid[1], Os[0][2] + mid[2]];
       const gl = [-0.9602898564975363, -0.7966664774136267, -0.5255324099163290, -0.1834346424956498, 0.1834346424956498, 0.5255324099163290, 0.7966664774136267, 0.9602898564975363];
       const gw = [0.1012285362903763, 0.2223810344533745, 0.3137066458778873, 0.3626837833783620, 0.3626837833783620, 0.3137066458778873, 0.2223810344533745, 0.1012285362903763];
       const g = new Float64Array(9);
@@ -530,36 +677,28 @@ export function inclinedHalfSpaceCorrection(o: InclinedHalfSpaceOptions): Displa
       addGradient(out, x, y, z);
     },
     directional(gv, kv) {
-      // contract each table to the scalar g.F.k once
-      const scal = tables.map((tb) => {
-        const gl = [dot(gv as Vec3, tb.e1), dot(gv as Vec3, tb.e2), dot(gv as Vec3, tb.ez)];
-        const kl = [dot(kv as Vec3, tb.e1), dot(kv as Vec3, tb.e2), dot(kv as Vec3, tb.ez)];
-        const S = new Float64Array(N_POLAR * N_AZ);
-        for (let c = 0; c < S.length; c++) {
-          let s = 0;
-          for (let i = 0; i < 3; i++) for (let j = 0; j < 3; j++) s += gl[i] * tb.F[c * 9 + 3 * i + j] * kl[j];
-          S[c] = s;
+      // each table contracted to the scalar g.F.k once (kept with the table for the next band of rows)
+      const S0 = contract(tables[0], gv, kv);
+      const S1 = nT > 1 ? contract(tables[1], gv, kv) : S0;
+      const one = (S: Float64Array): number => {
+        const c = corner[0];
+        let s = 0;
+        for (let p = 0; p < 4; p++) {
+          const r = c + p * S_PAD_W;
+          s += at[1 + p] * (at[5] * S[r] + at[6] * S[r + 1] + at[7] * S[r + 2] + at[8] * S[r + 3]);
         }
-        return S;
-      });
-      const nT = tables.length;
-      const Os = tables.map((tb) => tb.O), E1 = tables.map((tb) => tb.e1), E2 = tables.map((tb) => tb.e2), EZ = tables.map((tb) => tb.ez);
+        return s * at[0];
+      };
+      if (nT === 1)
+        return (x, y, z) => {
+          locateS(0, x, y, z);
+          return one(S0);
+        };
       return (x, y, z) => {
-        let total = 0;
-        for (let q = 0; q < nT; q++) {
-          const O = Os[q], e1 = E1[q], e2 = E2[q], ez = EZ[q];
-          const rx = x - O[0], ry = y - O[1], rz = z - O[2];
-          const R = Math.max(locate(rx * e1[0] + ry * e1[1] + rz * e1[2], rx * e2[0] + ry * e2[1] + rz * e2[2], rx * ez[0] + ry * ez[1] + rz * ez[2]), 1e-9);
-          const S = scal[q];
-          let s = 0;
-          for (let p = 0; p < 4; p++) {
-            const row = ip0[p] * N_AZ;
-            const h = shift[p];
-            s += wp[p] * (wa[0] * S[row + ((ia0[0] + h) % N_AZ)] + wa[1] * S[row + ((ia0[1] + h) % N_AZ)] + wa[2] * S[row + ((ia0[2] + h) % N_AZ)] + wa[3] * S[row + ((ia0[3] + h) % N_AZ)]);
-          }
-          total += s / R;
-        }
-        return total;
+        locateS(0, x, y, z);
+        const a = one(S0);
+        locateS(1, x, y, z);
+        return a + one(S1);
       };
     },
   };

@@ -156,15 +156,15 @@ export function strohHalfSpaceImages(o: StrohImagesOptions): DisplacementField {
         let accR = 0, accI = 0;
         if (useTop) {
           const wr = zr + topR[k], wi = zi + topI[k];
-          const w2 = wr * wr + wi * wi;
-          accR += wr / w2;
-          accI -= wi / w2;
+          const iw2 = 1 / (wr * wr + wi * wi);
+          accR += wr * iw2;
+          accI -= wi * iw2;
         }
         if (useBottom) {
           const wr = zr + botR[k], wi = zi + botI[k];
-          const w2 = wr * wr + wi * wi;
-          accR += wr / w2;
-          accI -= wi / w2;
+          const iw2 = 1 / (wr * wr + wi * wi);
+          accR += wr * iw2;
+          accI -= wi * iw2;
         }
         sr[k] = accR;
         si[k] = accI;

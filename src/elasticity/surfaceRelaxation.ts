@@ -40,6 +40,7 @@ import { type Vec3, cross, dot, norm, unit } from '../math/vec3.js';
 import type { DisplacementField } from './field.js';
 import { strohHalfSpaceImages, strohImagesApply } from './surfaceImagesStroh.js';
 import { inclinedHalfSpaceCorrection } from './surfaceHalfSpaceInclined.js';
+import { plateTwistScratch, plateTwistSeries, plateTwistTabulated } from './surfacePlateTwist.js';
 
 export type SurfaceCorrectionKind = 'parallel-screw-images' | 'parallel-stroh-images' | 'normal-screw-twist' | 'inclined-half-space';
 
@@ -153,6 +154,7 @@ function parallelScrewImages(o: SurfaceCorrectionOptions): DisplacementField {
   const xi0 = dot(P, e1);
   const z0 = dot(P, n);
   const tiny = 1e-7 * t;
+  const c0 = Math.cos(2 * A * z0), s0 = Math.sin(2 * A * z0);
   const e10 = e1[0], e11 = e1[1], e12 = e1[2];
   const n0 = n[0], n1 = n[1], n2 = n[2];
   const u0 = u[0], u1 = u[1], u2 = u[2];
@@ -165,14 +167,16 @@ function parallelScrewImages(o: SurfaceCorrectionOptions): DisplacementField {
     if (Math.abs(xi) < tiny && Math.abs(zz - z0) < tiny) xi = tiny;
     const E = Math.exp(-2 * A * Math.abs(xi));
     const sg = xi < 0 ? -1 : 1;
-    const a1 = 2 * A * (zz - z0);
-    const a2 = 2 * A * (zz + z0);
-    const den1 = 1 + E * E - 2 * E * Math.cos(a1);
-    const den2 = 1 + E * E - 2 * E * Math.cos(a2);
+    // a1 = 2 A (zz - z0), a2 = 2 A (zz + z0): their sines and cosines from those of 2 A zz (angle addition)
+    const Cz = Math.cos(2 * A * zz), Sz = Math.sin(2 * A * zz);
+    const cos1 = Cz * c0 + Sz * s0, sin1 = Sz * c0 - Cz * s0;
+    const cos2 = Cz * c0 - Sz * s0, sin2 = Sz * c0 + Cz * s0;
+    const den1 = 1 + E * E - 2 * E * cos1;
+    const den2 = 1 + E * E - 2 * E * cos2;
     const dz1 = zz - z0;
     const rho2 = xi * xi + dz1 * dz1;
     // sums over all images (real line included), then the real line taken off
-    const sumXi = A * (-(2 * E * Math.sin(a1)) / den1 + (2 * E * Math.sin(a2)) / den2);
+    const sumXi = A * (-(2 * E * sin1) / den1 + (2 * E * sin2) / den2);
     const sumZ = A * sg * (1 - E * E) * (1 / den1 - 1 / den2);
     d[0] = c * (sumXi + dz1 / rho2);
     d[1] = c * (sumZ - xi / rho2);
@@ -228,44 +232,16 @@ function normalScrewTwist(o: SurfaceCorrectionOptions): DisplacementField {
   const P = o.point_nm;
   const x0 = dot(P, e1);
   const y0 = dot(P, e2);
-  // g = u_theta / r, gr = (dg/dr)/r, gz = dg/dz into s[0..2]
+  // g = u_theta / r, gr = (dg/dr)/r, gz = dg/dz into s[0..2] (times c), by the series (surfacePlateTwist.ts)
   const s = new Float64Array(3);
-  // the last K partial sums of each series (Euler's transformation of an alternating series: repeated averaging)
-  const K = 8;
   const tiny2 = (1e-7 * t) ** 2;
-  const ps = new Float64Array(3 * K);
+  const ps = plateTwistScratch();
   const twist = (X: number, Y: number, Z: number): void => {
     // the twist is singular only where the line meets a surface (r = 0, z = 0 or t): keep it finite there
-    const r2 = Math.max(X * X + Y * Y, tiny2);
-    const r = Math.sqrt(r2);
-    // terms fall off like 1/m^2 once m t exceeds r; enough of them for the averaging to converge
-    const M = K + 8 + Math.ceil((2 * r) / t);
-    let g = 0, gr = 0, gz = 0;
-    let sign = 1;
-    for (let m = 0; m < M; m++) {
-      const a1 = (m + 1) * t - Z;
-      const a2 = Z + m * t;
-      const q1 = Math.sqrt(r2 + a1 * a1);
-      const q2 = Math.sqrt(r2 + a2 * a2);
-      const h1 = 1 / (q1 + a1);
-      const h2 = 1 / (q2 + a2);
-      g += sign * (h1 - h2);
-      // dh/dr / r = -h^2/q; dh/da = -h/q; dz a1 = -1, dz a2 = +1
-      gr += sign * (-(h1 * h1) / q1 + (h2 * h2) / q2);
-      gz += sign * (h1 / q1 + h2 / q2);
-      sign = -sign;
-      const j = m - (M - K);
-      if (j >= 0) {
-        ps[j] = g;
-        ps[K + j] = gr;
-        ps[2 * K + j] = gz;
-      }
-    }
-    for (let q = 0; q < 3; q++) {
-      const o = q * K;
-      for (let level = K - 1; level > 0; level--) for (let j = 0; j < level; j++) ps[o + j] = 0.5 * (ps[o + j] + ps[o + j + 1]);
-      s[q] = c * ps[o];
-    }
+    plateTwistSeries(Math.max(X * X + Y * Y, tiny2), Z, t, s, ps);
+    s[0] *= c;
+    s[1] *= c;
+    s[2] *= c;
   };
   const e10 = e1[0], e11 = e1[1], e12 = e1[2];
   const e20 = e2[0], e21 = e2[1], e22 = e2[2];
@@ -318,9 +294,18 @@ function normalScrewTwist(o: SurfaceCorrectionOptions): DisplacementField {
       const k2 = k[0] * e20 + k[1] * e21 + k[2] * e22;
       const kn = k[0] * n0 + k[1] * n1 + k[2] * n2;
       if (g1 === 0 && g2 === 0) return () => 0;
+      // the hot path: the series beyond its first terms from a table (surfacePlateTwist.ts), the local gradient contracted by hand
+      const q = new Float64Array(3);
       return (x, y, z) => {
-        local(x, y, z);
-        return g1 * (loc[0] * k1 + loc[1] * k2 + loc[2] * kn) + g2 * (loc[3] * k1 + loc[4] * k2 + loc[5] * kn);
+        const X = x * e10 + y * e11 + z * e12 - x0;
+        const Y = x * e20 + y * e21 + z * e22 - y0;
+        const Z = x * n0 + y * n1 + z * n2;
+        const r2 = X * X + Y * Y;
+        plateTwistTabulated(r2 > tiny2 ? r2 : tiny2, Z, t, q);
+        const g = q[0], gr = q[1], gz = q[2];
+        // g1 (L00 k1 + L01 k2 + L02 kn) + g2 (L10 k1 + L11 k2 + L12 kn), L as in local()
+        const A = g2 * X - g1 * Y; // the gradient's rows are (-Y, X) times (X gr, Y gr, gz) plus g (e2 e1^T - e1 e2^T)
+        return c * (A * (X * gr * k1 + Y * gr * k2 + gz * kn) + g * (g2 * k1 - g1 * k2));
       };
     },
   };
