@@ -130,7 +130,7 @@ function readElasticity(v: unknown): Elasticity {
 /**
  * "surfaces": "infinite" (default: infinite-medium fields) or "relaxed" (free-surface corrections,
  * src/elasticity/surfaceRelaxation.ts). Not relaxed by default: the corrections of inclined lines break the
- * shared-column method and make renders 25-40x slower (README, Foil surfaces).
+ * shared-column method and make renders of them 7-18x slower (bench/surfaces.mjs; README, Foil surfaces).
  */
 function readSurfaces(v: unknown): Surfaces {
   if (v === undefined) return 'infinite';
