@@ -103,7 +103,10 @@ try {
     const job = renderJob(sc, resolveCondition(sc, sc.conditions[0]));
     const n = job.width * job.height;
     const base = median(() => bareLoop(n));
-    await pool.render(job); // warm-up (JIT in the workers)
+    // warm-up: a small job column by column starts the workers (a pool starts them itself only after about
+    // 1 s of in-thread rendering), then the job itself (JIT in the workers)
+    await pool.render({ ...job, width: 16, height: 16, shareColumns: false });
+    await pool.render(job);
     const warms = [];
     for (let k = 0; k < 3; k++) warms.push(await clock(() => pool.render(job)));
     const warm = warms.sort((a, b) => a.wall - b.wall)[1];

@@ -55,6 +55,8 @@ export function createRenderPool(threads = availableParallelism()): RenderPool {
   // Every piece of work (a band of rows, a part of the classes, a whole small job) is a task in one queue that
   // the workers take from in turn, so renders requested at the same time (identification asks for many) share them.
   let workers: Worker[] | null = null;
+  /** Seconds this pool spent rendering in the calling thread before its workers started. */
+  let inThread_s = 0;
   const idle: Worker[] = [];
   const running = new Map<Worker, Task>();
   const queue: Task[] = [];
@@ -102,13 +104,21 @@ export function createRenderPool(threads = availableParallelism()): RenderPool {
     threads,
     async render(job, onProgress) {
       const plan = translationPlan(job);
-      const small = plan !== null && sharedWork(job, plan) < IN_THREAD_WORK;
-      // small shared-column jobs are done here while no worker runs (cheaper than starting and warming them up);
-      // once workers run, such a job is one task, so that several requested together render side by side
-      if (small && workers === null) return renderHere(job, plan, onProgress);
+      const work = plan === null ? Infinity : sharedWork(job, plan);
+      // small shared-column jobs are done here while no worker runs (cheaper than starting and warming them up),
+      // until this pool has spent about what the workers' start-up costs on them: then the workers start (a
+      // long-lived pool, as in explore or identify, pays the start-up once and renders on every core after it)
+      if (work < IN_THREAD_WORK && workers === null && inThread_s < START_WORKERS_AFTER_S) {
+        const t0 = performance.now();
+        const img = renderHere(job, plan, onProgress);
+        inThread_s += (performance.now() - t0) / 1000;
+        return img;
+      }
       if (workers === null) start(file);
       const n = job.width * job.height;
-      if (small) {
+      // once workers run, a small job is one task, so that several requested together render side by side;
+      // from SPLIT_WORK up it is cut into parts like a large one, so that one render alone uses every core
+      if (work < SPLIT_WORK) {
         const m = await submit({ job, plan, part: 0, parts: 1 });
         onProgress?.(job.height, job.height);
         return { bf: m.bf, df: m.df, slices: m.slices };
@@ -181,8 +191,19 @@ function sharedWork(job: RenderJob, plan: TranslationPlan): number {
   return plan.pathLength_nm * nb * nb;
 }
 
-/** Shared-column jobs below this work (see sharedWork) are rendered in the calling thread. */
+/** Shared-column jobs below this work (see sharedWork) are rendered in the calling thread while no worker runs. */
 const IN_THREAD_WORK = 4e5;
+/**
+ * In-thread rendering time after which the pool starts its workers anyway (about one worker's start-up and
+ * JIT warm-up, bench/table.mjs: "process" against "1 thread"); so no process loses more than about that.
+ */
+const START_WORKERS_AFTER_S = 1;
+/**
+ * With workers running, shared-column jobs from this work up are cut into parts (one inclined line in a 100 nm
+ * foil: 256 x 256 pixels of 0.5 nm about 1.2e5, 128 x 128 of 1 nm 5.8e4, identification's views of 64 x 64
+ * about 2e4, which stay one task each: many of them are asked for together).
+ */
+export const SPLIT_WORK = 1e5;
 
 /** The whole job in the calling thread, with its translation plan (null: column by column). */
 function renderHere(job: RenderJob, plan: TranslationPlan | null, onProgress?: Progress): RenderedImage {

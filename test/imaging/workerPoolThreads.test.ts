@@ -1,7 +1,7 @@
 /**
  * The render pool with worker threads (only from the compiled dist/, as the
  * CLI runs it): renders requested at the same time share one queue of tasks
- * (bands of rows, whole small shared-column jobs) and each must come back
+ * (bands of rows, whole small shared-column jobs, parts of larger ones) and each must come back
  * exactly as the calling thread renders it alone. Plumbing, not physics: the
  * worker runs the same functions on the same data, so the images must be
  * equal to the last bit.
@@ -13,7 +13,8 @@ import { scenario } from './helpers.js';
 import { resolveCondition } from '../../src/imaging/resolveCondition.js';
 import { renderJob } from '../../src/imaging/renderScenario.js';
 import type { RenderJob } from '../../src/imaging/renderRows.js';
-import type { RenderPool } from '../../src/imaging/workerPool.js';
+import { SPLIT_WORK, type RenderPool } from '../../src/imaging/workerPool.js';
+import { translationPlan } from '../../src/imaging/translationColumns.js';
 
 const DIST = fileURLToPath(new URL('../../dist/imaging/workerPool.js', import.meta.url));
 
@@ -34,7 +35,11 @@ describe('render pool with worker threads (dist/)', () => {
       job({ image: { width_px: 20, height_px: 28, pixel_nm: 2 }, defects: [{ type: 'inclusion', centre_nm: [4, 0, 60], radius_nm: 5, misfit: -0.01 }] }),
       line('1/2[0 1 1]', 70),
       { ...line('1/2[1 0 1]', 50), shareColumns: false },
+      // large enough to be cut into parts once the workers run (SPLIT_WORK), so one render alone uses every core
+      job({ image: { width_px: 240, height_px: 240, pixel_nm: 0.5 }, defects: [{ type: 'dislocation', b: '1/2[1 0 1]', line: [1, 1, 2], point_nm: [0, 0, 50] }] }),
     ];
+    const big = jobs[jobs.length - 1];
+    expect(translationPlan(big)!.pathLength_nm).toBeGreaterThanOrEqual(SPLIT_WORK);
     const alone = createRenderPool(1);
     const expected = [];
     for (const j of jobs) expected.push(await alone.render(j));
