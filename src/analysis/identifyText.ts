@@ -6,6 +6,7 @@
  */
 import { sig } from '../format.js';
 import type { CandidateFitReport, FittedParameter, IdentifyResult } from './identify.js';
+import type { MicrographNoise } from './identifyChecks.js';
 
 /** "thickness 81.6 nm (stated 70, range 59.5 to 80.5)". */
 export function parameterText(p: FittedParameter): string {
@@ -23,8 +24,6 @@ export function fitText(f: CandidateFitReport): string {
 export function gapText(x: number | undefined): string {
   return x === undefined ? '' : sig(x, 3);
 }
-
-type MicrographNoise = IdentifyResult['absolute']['perMicrograph'][number];
 
 /** "noise 0.163, residual 0.171, structure 1.57, unexplained 0.04". */
 export function noiseText(p: MicrographNoise): string {

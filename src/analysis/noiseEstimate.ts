@@ -86,14 +86,6 @@ export function structureNullSd(count: number, smoothing_px = STRUCTURE_SMOOTHIN
   return Math.sqrt((4 * Math.PI * smoothing_px * smoothing_px) / Math.max(1, count));
 }
 
-/** mean((k * r)^2) / (sigma^2 sum k^2), the border of 2 sigma_s pixels left out. */
-export function structureRatio(resid: Float64Array, w: number, h: number, sigma: number, smoothing_px = STRUCTURE_SMOOTHING_PX): number {
-  if (!(sigma > 0)) return Infinity;
-  const { power, count } = smoothedPower(resid, w, h, smoothing_px);
-  if (count === 0) return 1;
-  return power / (sigma * sigma * kernelSquareSum(smoothing_px));
-}
-
 export interface ResidualStructure {
   /** Structure ratio of the residual (about 1: noise only). */
   readonly structure: number;
@@ -101,7 +93,10 @@ export interface ResidualStructure {
   readonly unexplained: number;
 }
 
-/** Structure ratio of a residual and the unexplained fraction of the micrograph's structure (module comment). */
+/**
+ * Structure ratio of a residual, mean((k * r)^2) / (sigma^2 sum k^2) with the border of 2 sigma_s pixels left
+ * out, and the unexplained fraction of the micrograph's structure (module comment).
+ */
 export function residualStructure(resid: Float64Array, micrograph: Float64Array, w: number, h: number, sigma: number, smoothing_px = STRUCTURE_SMOOTHING_PX): ResidualStructure {
   const r = smoothedPower(resid, w, h, smoothing_px);
   const c = smoothedPower(micrograph, w, h, smoothing_px);
