@@ -5,15 +5,7 @@
  * transform allocates nothing. fft.js's inverse divides by n per axis, so
  * inverse(forward(x)) = x.
  */
-import { createRequire } from 'node:module';
-
-interface Fft1d {
-  transform(out: Float64Array, data: Float64Array): void;
-  inverseTransform(out: Float64Array, data: Float64Array): void;
-}
-
-// fft.js is CommonJS without type declarations
-const FFT = createRequire(import.meta.url)('fft.js') as new (size: number) => Fft1d;
+import { fft1d } from '../math/fft1d.js';
 
 /** Smallest power of two >= n (at least 2). */
 export function nextPow2(n: number): number {
@@ -39,8 +31,8 @@ export interface Fft2d {
 }
 
 export function fft2d(width: number, height: number): Fft2d {
-  const rowFft = new FFT(width);
-  const colFft = width === height ? rowFft : new FFT(height);
+  const rowFft = fft1d(width);
+  const colFft = width === height ? rowFft : fft1d(height);
   const rowIn = new Float64Array(2 * width);
   const rowOut = new Float64Array(2 * width);
   const colIn = new Float64Array(2 * height);

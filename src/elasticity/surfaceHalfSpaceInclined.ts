@@ -34,6 +34,7 @@ import type { DisplacementField } from './field.js';
 import { straightDislocation } from './straightDislocation.js';
 import { anisotropicDislocation } from './anisotropicDislocation.js';
 import { isotropicVoigt, stiffnessTensor } from './stiffness.js';
+import { fftPlusInPlace } from '../math/fft1d.js';
 
 export interface InclinedHalfSpaceOptions {
   readonly b_nm: Vec3;
@@ -148,7 +149,7 @@ function buildTable(o: InclinedHalfSpaceOptions, which: 'entrance' | 'exit'): Su
   for (let c = 0; c < 3; c++) {
     const re = tauR[c], im = tauI[c];
     re.set(hr[c]);
-    fftInPlace(re, im);
+    fftPlusInPlace(re, im);
     // slot k holds sum_j h_j e^{+2 pi i k j / N}: h_n = conj(slot n mod N) / N; then the phase (-i)^|n| and 2 pi
     for (let k = 0; k < N_HARM; k++) {
       const nn = k < H ? k : k - N_HARM;
@@ -164,7 +165,7 @@ function buildTable(o: InclinedHalfSpaceOptions, which: 'entrance' | 'exit'): Su
       re[k] = 2 * Math.PI * (pr * xr - pi * xi);
       im[k] = 2 * Math.PI * (pr * xi + pi * xr);
     }
-    fftInPlace(re, im);
+    fftPlusInPlace(re, im);
   }
   // P0(theta), P1(theta) at theta_j (9 complex each, local frame)
   const P0r = new Float64Array(N_HARM * 9), P0i = new Float64Array(N_HARM * 9);
@@ -216,7 +217,7 @@ function buildTable(o: InclinedHalfSpaceOptions, which: 'entrance' | 'exit'): Su
           fr[j] = Pr[j * 9 + k];
           fi[j] = -Pi[j * 9 + k];
         }
-        fftInPlace(fr, fi);
+        fftPlusInPlace(fr, fi);
         for (let sl = 0; sl < N_HARM; sl++) {
           spec[(off + k) * N_HARM + sl] = fr[sl] / N_HARM;
           spec[(off + 9 + k) * N_HARM + sl] = -fi[sl] / N_HARM;
@@ -281,7 +282,7 @@ function buildTable(o: InclinedHalfSpaceOptions, which: 'entrance' | 'exit'): Su
         re[slot] += coef[q * 18 + k];
         im[slot] += coef[q * 18 + 9 + k];
       }
-      fftInPlace(re, im);
+      fftPlusInPlace(re, im);
       for (let ia = 0; ia < N_AZ; ia++) F[(ip * N_AZ + ia) * 9 + k] = re[ia];
     }
   }
@@ -326,45 +327,6 @@ export function halfSpaceGradientDirect(o: InclinedHalfSpaceOptions, which: 'ent
       for (let a = 0; a < 3; a++) for (let b = 0; b < 3; b++) s += E[a][i] * local[3 * a + b] * E[b][j];
       out[3 * i + j] = s;
     }
-}
-
-/**
- * In-place radix-2 FFT with the + sign: (re, im)[j] <- sum_m (re, im)[m] e^{+2 pi i j m / n}
- * (n a power of two; set-up only).
- */
-function fftInPlace(re: Float64Array, im: Float64Array): void {
-  const n = re.length;
-  for (let i = 1, j = 0; i < n; i++) {
-    let bit = n >> 1;
-    for (; j & bit; bit >>= 1) j ^= bit;
-    j ^= bit;
-    if (i < j) {
-      const tr = re[i], ti = im[i];
-      re[i] = re[j];
-      im[i] = im[j];
-      re[j] = tr;
-      im[j] = ti;
-    }
-  }
-  for (let len = 2; len <= n; len <<= 1) {
-    const ang = (2 * Math.PI) / len;
-    const wr = Math.cos(ang), wi = Math.sin(ang);
-    for (let i = 0; i < n; i += len) {
-      let cr = 1, ci = 0;
-      for (let k = 0; k < len / 2; k++) {
-        const a = i + k, b = a + len / 2;
-        const xr = re[b] * cr - im[b] * ci;
-        const xi = re[b] * ci + im[b] * cr;
-        re[b] = re[a] - xr;
-        im[b] = im[a] - xi;
-        re[a] += xr;
-        im[a] += xi;
-        const t = cr * wr - ci * wi;
-        ci = cr * wi + ci * wr;
-        cr = t;
-      }
-    }
-  }
 }
 
 /** Row length of the padded 9-component grids: azimuth nodes -1 .. N_AZ + 1 (rows: polar nodes -1 .. N_POLAR). */
@@ -485,7 +447,7 @@ function contract(tb: SurfaceTable, g: readonly number[], k: readonly number[]):
       re[kk] = aR2 - bI2;
       im[kk] = aI2 + bR2;
     }
-    fftInPlace(re, im);
+    fftPlusInPlace(re, im);
     T.set(re, ip * S_AZ);
     if (pair) T.set(im, (ip + 1) * S_AZ);
   }
