@@ -16,7 +16,9 @@ import { cartesianToDirection, directionToCartesian } from '../crystal/lattice.j
 import type { Condition, DefectSpec, Scenario } from '../scenario/types.js';
 import type { Candidate } from './candidates.js';
 import type { PreparedMicrograph } from './identifyMicrographs.js';
-import { MEASURED_SIGMAS, type FitSettings } from './fitSettings.js';
+import { DEFAULT_FIT, MEASURED_SIGMAS, type FitSettings } from './fitSettings.js';
+import { moveDefect } from './identifyView.js';
+import { defectTypeOf } from '../defects/registry.js';
 
 export interface NuisanceParameter {
   readonly name: string;
@@ -48,18 +50,16 @@ export function nuisanceModel(sc: Scenario, cand: Candidate, micrographs: readon
   const tMeasured = fit.thickness_nm !== undefined;
   const t0 = fit.thickness_nm ?? sc.thickness_nm;
   const tHalf = fit.thicknessError_nm !== undefined ? MEASURED_SIGMAS * fit.thicknessError_nm : fit.thicknessRange * t0;
-  params.push({ name: 'thickness', unit: 'nm', nominal: t0, lo: t0 - tHalf, hi: t0 + tHalf, scope: 'shared', from: tMeasured ? 'measured' : fit.thicknessRange === 0.15 ? 'default range' : 'scenario range' });
-  // depth of the defect's point
-  const point = pointOf(d0);
-  const depthIndex = point === undefined ? -1 : params.length;
-  if (point !== undefined) {
-    if (tMeasured && point[2] >= t0 + tHalf)
-      throw new InputError(
-        `fit.thickness_nm: the measured thickness ${t0} nm (at most ${t0 + tHalf} nm within ${fit.thicknessError_nm !== undefined ? '2 of its uncertainties' : 'fit.thicknessRange'}) leaves the depth ${point[2]} nm of the defect's point below the foil; check the measured thickness or give the defect's depth (its point_nm or centre_nm) within the foil`,
-      );
-    const half = fit.depthRange_nm ?? 0.25 * t0;
-    params.push({ name: 'depth', unit: 'nm', nominal: point[2], lo: Math.max(0, point[2] - half), hi: Math.min(t0 + tHalf, point[2] + half), scope: 'shared', from: fit.depthRange_nm === undefined ? 'default range' : 'scenario range' });
-  }
+  params.push({ name: 'thickness', unit: 'nm', nominal: t0, lo: t0 - tHalf, hi: t0 + tHalf, scope: 'shared', from: tMeasured ? 'measured' : fit.thicknessRange === DEFAULT_FIT.thicknessRange ? 'default range' : 'scenario range' });
+  // depth of the defect's point (every defect type has one)
+  const point = defectTypeOf(d0).position(d0);
+  const depthIndex = params.length;
+  if (tMeasured && point[2] >= t0 + tHalf)
+    throw new InputError(
+      `fit.thickness_nm: the measured thickness ${t0} nm (at most ${t0 + tHalf} nm within ${fit.thicknessError_nm !== undefined ? `${MEASURED_SIGMAS} of its uncertainties` : 'fit.thicknessRange'}) leaves the depth ${point[2]} nm of the defect's point below the foil; check the measured thickness or give the defect's depth (its point_nm or centre_nm) within the foil`,
+    );
+  const depthHalf = fit.depthRange_nm ?? 0.25 * t0;
+  params.push({ name: 'depth', unit: 'nm', nominal: point[2], lo: Math.max(0, point[2] - depthHalf), hi: Math.min(t0 + tHalf, point[2] + depthHalf), scope: 'shared', from: fit.depthRange_nm === undefined ? 'default range' : 'scenario range' });
   // line direction (straight dislocations only: partials and ribbons must keep their line in the fault plane)
   const lattice = sc.material.lattice;
   const u0 = d0.type === 'dislocation' && fit.lineCone_deg > 0 ? unit(directionToCartesian(lattice, d0.line)) : undefined;
@@ -71,7 +71,7 @@ export function nuisanceModel(sc: Scenario, cand: Candidate, micrographs: readon
     e1 = unit(cross(u0, trial));
     e2 = cross(u0, e1);
     const c = fit.lineCone_deg;
-    const from = c === 5 ? 'default range' : 'scenario range';
+    const from = c === DEFAULT_FIT.lineCone_deg ? 'default range' : 'scenario range';
     params.push({ name: 'line tilt a', unit: 'degrees', nominal: 0, lo: -c, hi: c, scope: 'shared', from });
     params.push({ name: 'line tilt b', unit: 'degrees', nominal: 0, lo: -c, hi: c, scope: 'shared', from });
   }
@@ -82,7 +82,7 @@ export function nuisanceModel(sc: Scenario, cand: Candidate, micrographs: readon
     const w0 = m.settings.w ?? (m.condition.deviation.kind === 'w' ? m.condition.deviation.w : m.resolved.w);
     const half = m.settings.wError !== undefined ? MEASURED_SIGMAS * m.settings.wError : fit.wRange;
     wIndex.push(params.length);
-    params.push({ name: `w ${m.conditionId}`, unit: '', nominal: w0, lo: w0 - half, hi: w0 + half, scope: i, from: measured && m.settings.wError !== undefined ? 'measured' : fit.wRange === 0.3 ? 'default range' : 'scenario range' });
+    params.push({ name: `w ${m.conditionId}`, unit: '', nominal: w0, lo: w0 - half, hi: w0 + half, scope: i, from: measured && m.settings.wError !== undefined ? 'measured' : fit.wRange === DEFAULT_FIT.wRange ? 'default range' : 'scenario range' });
   });
   const cone = fit.lineCone_deg;
   const tiltOf = (v: readonly number[]): [number, number] | undefined => {
@@ -104,7 +104,7 @@ export function nuisanceModel(sc: Scenario, cand: Candidate, micrographs: readon
     },
     apply(v) {
       let d: DefectSpec = d0;
-      if (depthIndex >= 0) d = withDepth(d, v[depthIndex]);
+      d = moveDefect(d, (p) => [p[0], p[1], v[depthIndex]]);
       const t = tiltOf(v);
       // no tilt: the stated line itself (not its normalised copy), so the stated values give the stated scenario exactly
       if (t !== undefined && u0 !== undefined && d.type === 'dislocation' && (t[0] !== 0 || t[1] !== 0)) {
@@ -118,18 +118,6 @@ export function nuisanceModel(sc: Scenario, cand: Candidate, micrographs: readon
       return { scenario, conditions };
     },
   };
-}
-
-function pointOf(d: DefectSpec): Vec3 | undefined {
-  if ('point_nm' in d) return d.point_nm;
-  if ('centre_nm' in d) return d.centre_nm;
-  return undefined;
-}
-
-function withDepth(d: DefectSpec, depth: number): DefectSpec {
-  if ('point_nm' in d) return { ...d, point_nm: [d.point_nm[0], d.point_nm[1], depth] };
-  if ('centre_nm' in d) return { ...d, centre_nm: [d.centre_nm[0], d.centre_nm[1], depth] };
-  return d;
 }
 
 /** The unit vector check used by tests: angle (degrees) between two crystal directions' Cartesian forms. */
