@@ -83,13 +83,14 @@ export function surfaceCorrectionFor(
   const u = unit(line);
   const n = unit(normal);
   const screw = Math.abs(dot(b_nm, u)) >= 1e-12 * norm(b_nm);
-  if (Math.abs(dot(u, n)) < GEOMETRY_TOLERANCE) {
+  const geometry = correctableGeometry(u, n);
+  if (geometry === 'parallel') {
     const z0 = dot(point_nm, n);
     if (!(z0 > 1e-9 * thickness_nm && z0 < (1 - 1e-9) * thickness_nm)) return null;
     if (stiffness_GPa !== undefined && strohImagesApply(stiffness_GPa, u, n)) return { kind: 'parallel-stroh-images', normal: n, thickness_nm };
     return screw ? { kind: 'parallel-screw-images', normal: n, thickness_nm } : null;
   }
-  if (norm(cross(u, n)) < GEOMETRY_TOLERANCE) return screw ? { kind: 'normal-screw-twist', normal: n, thickness_nm } : null;
+  if (geometry === 'normal') return screw ? { kind: 'normal-screw-twist', normal: n, thickness_nm } : null;
   return { kind: 'inclined-half-space', normal: n, thickness_nm };
 }
 
