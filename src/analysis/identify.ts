@@ -385,8 +385,7 @@ export async function identify(scStated: Scenario, micrographsStated: readonly P
   const absolute = absoluteFit(micrographs, pairs[bestK].map((p) => p.window), bestFit.perCondition.map((p) => p.amplitude));
   const flags: ConsistencyFlag[] = [];
   const consistency: { condition: string; scoreStated: number; scoreReversed: number; scoreMirrored: number }[] = [];
-  const fb = fits.get(bestK);
-  const bestState = fb ? fb.apply(fb.values) : { scenario: variantScenario(sc, candidates[bestK]), conditions: micrographs.map((m) => m.condition) };
+  const bestState = stateOf(bestK);
   const maxR = regOpts.maxRotation_deg ?? DEFAULT_MAX_ROTATION_DEG;
   const maxS = regOpts.maxScale ?? DEFAULT_MAX_SCALE;
   // g reversed or the image mirrored on one micrograph: flagged when the best such score beats the best score as stated
@@ -420,7 +419,7 @@ export async function identify(scStated: Scenario, micrographsStated: readonly P
     return { rotAt: Math.abs(reg.rotation_deg) >= maxR - 1e-6, scaleAt: Math.abs(reg.scale - 1) >= maxS - 1e-6 };
   });
   const limitSims = await Promise.all(
-    micrographs.map((_, i) => (!atLimit[i].rotAt && !atLimit[i].scaleAt ? null : fb ? simulateWith(bestState.scenario, bestState.conditions, i) : sims[bestK][i])),
+    micrographs.map((_, i) => (!atLimit[i].rotAt && !atLimit[i].scaleAt ? null : fbFit ? simulateWith(bestState.scenario, bestState.conditions, i) : sims[bestK][i])),
   );
   for (let i = 0; i < nC; i++) {
     const m = micrographs[i];
@@ -437,7 +436,7 @@ export async function identify(scStated: Scenario, micrographsStated: readonly P
       if (fe) flags.push(fe);
     }
   }
-  const atRangeLimit = fb ? fb.report.parameters.filter((p) => p.atLimit).map((p) => p.name) : [];
+  const atRangeLimit = fbFit ? fbFit.report.parameters.filter((p) => p.atLimit).map((p) => p.name) : [];
   const verdict = finalVerdict(verdict0, absolute, flags, atRangeLimit);
   const t5 = performance.now();
   return {
