@@ -75,7 +75,7 @@ export interface FitInputs {
   readonly spread: number;
   readonly render: Renderer;
   readonly defectIndex: number;
-  /** Micrographs sharing one field of view: groups of indices (each micrograph in at most one). */
+  /** Called with the fraction of the fit done. */
   readonly progress?: (fraction: number) => void;
 }
 

@@ -13,7 +13,7 @@ import { parseScenario } from '../scenario/parse.js';
 import { resolveCondition } from '../imaging/resolveCondition.js';
 import { excerpt, InternalError } from '../errors.js';
 import { MAX_SCENARIO_BYTES } from './readInput.js';
-import { commitShard, fingerprint, parseShard, printShard, readArray, readRecordedInput, sha256, shardItems, ShardData, type LoadedShard, type ShardManifest } from './shard.js';
+import { commitShard, parseShard, printShard, readArray, readRecordedInput, sha256, shardItems, ShardData, type LoadedShard, type ShardManifest } from './shard.js';
 import { slug } from './slug.js';
 import { printJson, sig, table } from './run.js';
 import { progressBar } from './progress.js';

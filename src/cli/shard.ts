@@ -121,7 +121,7 @@ export function commitShard(
  * The inputs' contents (not their paths: tasks may name the same files differently) and the options; merge
  * reads the inputs by the paths of the first shard.
  */
-export function fingerprint(kind: string, scenario: ShardInput, micrographs: ShardManifest['micrographs'], options: Record<string, unknown>): string {
+function fingerprint(kind: string, scenario: ShardInput, micrographs: ShardManifest['micrographs'], options: Record<string, unknown>): string {
   return sha256(
     JSON.stringify({ kind, version: PROGRAM_VERSION, scenario: scenario.sha256, micrographs: micrographs.map((m) => ({ conditionId: m.conditionId, sha256: m.sha256 })), options }),
   );
