@@ -122,7 +122,7 @@ const mul3 = (x: number[], y: number[]): number[] => {
 const tr3 = (x: number[]): number[] => [x[0], x[3], x[6], x[1], x[4], x[7], x[2], x[5], x[8]];
 
 /** Complex 3 x 3 product (row-major re/im). */
-function cmul3(ar: Float64Array, ai: Float64Array, br: Float64Array, bi: Float64Array): [Float64Array, Float64Array] {
+export function cmul3(ar: Float64Array, ai: Float64Array, br: Float64Array, bi: Float64Array): [Float64Array, Float64Array] {
   const or = new Float64Array(9);
   const oi = new Float64Array(9);
   for (let i = 0; i < 3; i++)
@@ -140,7 +140,7 @@ function cmul3(ar: Float64Array, ai: Float64Array, br: Float64Array, bi: Float64
 }
 
 /** Complex 3 x 3 inverse by Gauss-Jordan with partial pivoting. */
-function cinv3(mr: Float64Array, mi: Float64Array): [Float64Array, Float64Array] {
+export function cinv3(mr: Float64Array, mi: Float64Array): [Float64Array, Float64Array] {
   const ar = new Float64Array(18), ai = new Float64Array(18);
   for (let i = 0; i < 3; i++)
     for (let j = 0; j < 3; j++) {

@@ -25,7 +25,7 @@
 import { type Vec3, cross, dot, unit } from '../math/vec3.js';
 import type { DisplacementField } from './field.js';
 import { stiffnessTensor } from './stiffness.js';
-import { strohModes, type StrohModes } from './anisotropicDislocation.js';
+import { cinv3, cmul3, strohModes, type StrohModes } from './anisotropicDislocation.js';
 
 function modesFor(stiffness_GPa: readonly number[], line: Vec3, normal: Vec3): StrohModes {
   const u = unit(line);
@@ -36,48 +36,6 @@ function modesFor(stiffness_GPa: readonly number[], line: Vec3, normal: Vec3): S
 /** Whether the anisotropic images apply: a line parallel to the surfaces with well separated p. */
 export function strohImagesApply(stiffness_GPa: readonly number[], line: Vec3, normal: Vec3): boolean {
   return modesFor(stiffness_GPa, line, normal).diagonal;
-}
-
-/** Solves the complex 3 x 3 system M x = r (Gaussian elimination with partial pivoting; set-up only). */
-function solve3(mr: number[], mi: number[], rr: number[], ri: number[]): [number[], number[]] {
-  const a = mr.slice(), ai = mi.slice(), x = rr.slice(), xi = ri.slice();
-  for (let k = 0; k < 3; k++) {
-    let p = k;
-    for (let i = k + 1; i < 3; i++) if (Math.hypot(a[i * 3 + k], ai[i * 3 + k]) > Math.hypot(a[p * 3 + k], ai[p * 3 + k])) p = i;
-    if (p !== k) {
-      for (let j = 0; j < 3; j++) {
-        [a[k * 3 + j], a[p * 3 + j]] = [a[p * 3 + j], a[k * 3 + j]];
-        [ai[k * 3 + j], ai[p * 3 + j]] = [ai[p * 3 + j], ai[k * 3 + j]];
-      }
-      [x[k], x[p]] = [x[p], x[k]];
-      [xi[k], xi[p]] = [xi[p], xi[k]];
-    }
-    const dr = a[k * 4], di = ai[k * 4];
-    const d2 = dr * dr + di * di;
-    for (let i = k + 1; i < 3; i++) {
-      // f = a[i][k] / a[k][k]
-      const fr = (a[i * 3 + k] * dr + ai[i * 3 + k] * di) / d2;
-      const fi = (ai[i * 3 + k] * dr - a[i * 3 + k] * di) / d2;
-      for (let j = k; j < 3; j++) {
-        a[i * 3 + j] -= fr * a[k * 3 + j] - fi * ai[k * 3 + j];
-        ai[i * 3 + j] -= fr * ai[k * 3 + j] + fi * a[k * 3 + j];
-      }
-      x[i] -= fr * x[k] - fi * xi[k];
-      xi[i] -= fr * xi[k] + fi * x[k];
-    }
-  }
-  for (let k = 2; k >= 0; k--) {
-    let sr = x[k], si = xi[k];
-    for (let j = k + 1; j < 3; j++) {
-      sr -= a[k * 3 + j] * x[j] - ai[k * 3 + j] * xi[j];
-      si -= a[k * 3 + j] * xi[j] + ai[k * 3 + j] * x[j];
-    }
-    const dr = a[k * 4], di = ai[k * 4];
-    const d2 = dr * dr + di * di;
-    x[k] = (sr * dr + si * di) / d2;
-    xi[k] = (si * dr - sr * di) / d2;
-  }
-  return [x, xi];
 }
 
 export interface StrohImagesOptions {
@@ -115,17 +73,14 @@ export function strohHalfSpaceImages(o: StrohImagesOptions): DisplacementField {
       ci[i] += giRe[i * 3 + j] * lbi[j] + giIm[i * 3 + j] * lbr[j];
     }
   // C[:, beta] = B^-1 conj(B[:, beta] c_beta); Cr/Ci row-major (alpha, beta)
-  const Cr = new Float64Array(9), Ci = new Float64Array(9);
-  const Br = Array.from(lRe), Bi = Array.from(lIm);
-  for (let be = 0; be < 3; be++) {
-    const rr = [0, 1, 2].map((k) => lRe[k * 3 + be] * cr[be] - lIm[k * 3 + be] * ci[be]);
-    const ri = [0, 1, 2].map((k) => -(lRe[k * 3 + be] * ci[be] + lIm[k * 3 + be] * cr[be]));
-    const [xr, xi] = solve3(Br, Bi, rr, ri);
-    for (let al = 0; al < 3; al++) {
-      Cr[al * 3 + be] = xr[al];
-      Ci[al * 3 + be] = xi[al];
+  const Rr = new Float64Array(9), Ri = new Float64Array(9);
+  for (let k = 0; k < 3; k++)
+    for (let be = 0; be < 3; be++) {
+      Rr[k * 3 + be] = lRe[k * 3 + be] * cr[be] - lIm[k * 3 + be] * ci[be];
+      Ri[k * 3 + be] = -(lRe[k * 3 + be] * ci[be] + lIm[k * 3 + be] * cr[be]);
     }
-  }
+  const [BinvR, BinvI] = cinv3(Float64Array.from(lRe), Float64Array.from(lIm));
+  const [Cr, Ci] = cmul3(BinvR, BinvI, Rr, Ri);
   const P = o.point_nm;
   const xi0 = dot(P, m);
   const d = dot(P, n);
