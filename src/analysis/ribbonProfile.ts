@@ -138,6 +138,34 @@ export function refinePeak(x: ArrayLike<number>, y: ArrayLike<number>, sem: Arra
 }
 
 /**
+ * Gaussian smoothing of equally spaced samples, standard deviation sigmaSteps samples (kernel to 4
+ * sigma, weights renormalised at the ends and over NaN samples, which are skipped and stay NaN).
+ */
+export function gaussianSmooth1d(y: ArrayLike<number>, sigmaSteps: number): Float64Array {
+  const n = y.length;
+  const r = Math.ceil(4 * sigmaSteps);
+  const w = new Float64Array(2 * r + 1);
+  for (let j = -r; j <= r; j++) w[j + r] = Math.exp(-0.5 * (j / sigmaSteps) ** 2);
+  const out = new Float64Array(n);
+  for (let k = 0; k < n; k++) {
+    if (!Number.isFinite(y[k])) {
+      out[k] = y[k];
+      continue;
+    }
+    let s = 0, c = 0;
+    for (let j = -r; j <= r; j++) {
+      const i = k + j;
+      if (i >= 0 && i < n && Number.isFinite(y[i])) {
+        s += w[j + r] * y[i];
+        c += w[j + r];
+      }
+    }
+    out[k] = s / c;
+  }
+  return out;
+}
+
+/**
  * The profile minus its slowly varying background: a Gaussian smoothing of
  * standard deviation sigma_nm (much wider than a weak-beam peak) is
  * subtracted, so that a broad hump of the background is not taken for a
@@ -147,22 +175,8 @@ export function removeBackground(x: ArrayLike<number>, y: ArrayLike<number>, sig
   const n = y.length;
   const out = Float64Array.from(y as ArrayLike<number>);
   if (!(sigma_nm > 0) || n < 2) return out;
-  const h = x[1] - x[0];
-  const r = Math.ceil((4 * sigma_nm) / h);
-  const w = new Float64Array(2 * r + 1);
-  for (let j = -r; j <= r; j++) w[j + r] = Math.exp(-0.5 * ((j * h) / sigma_nm) ** 2);
-  for (let k = 0; k < n; k++) {
-    if (!Number.isFinite(y[k])) continue;
-    let s = 0, c = 0;
-    for (let j = -r; j <= r; j++) {
-      const i = k + j;
-      if (i >= 0 && i < n && Number.isFinite(y[i])) {
-        s += w[j + r] * y[i];
-        c += w[j + r];
-      }
-    }
-    out[k] = y[k] - s / c;
-  }
+  const bg = gaussianSmooth1d(y, sigma_nm / (x[1] - x[0]));
+  for (let k = 0; k < n; k++) if (Number.isFinite(y[k])) out[k] = y[k] - bg[k];
   return out;
 }
 

@@ -28,7 +28,7 @@ import { resolveCondition, type ResolvedCondition } from '../imaging/resolveCond
 import { renderJob } from '../imaging/renderScenario.js';
 import { columnEvaluator } from '../imaging/renderRows.js';
 import { coreGeometry } from '../imaging/cores.js';
-import { removeBackground, twoPeaks } from './ribbonProfile.js';
+import { gaussianSmooth1d, removeBackground, twoPeaks } from './ribbonProfile.js';
 
 export interface RibbonTarget {
   readonly sc: Scenario;
@@ -127,7 +127,7 @@ export function simulatedStrip(t: RibbonTarget, width_nm: number, o: StripOption
   if (raw.some((v) => !Number.isFinite(v))) throw new InternalError('simulated ribbon strip has a non-finite intensity');
   // the measured profile averages each bin over its width: a box of the bin width; then the optional blur
   let y = boxSmooth(raw, Math.max(1, Math.round(o.binWidth_nm / step)));
-  if ((o.blur_nm ?? 0) > 0) y = gaussSmooth(y, (o.blur_nm as number) / step);
+  if ((o.blur_nm ?? 0) > 0) y = gaussianSmooth1d(y, (o.blur_nm as number) / step);
   return { x_nm: x, y };
 }
 
@@ -138,22 +138,6 @@ function boxSmooth(v: Float64Array, w: number): Float64Array {
   for (let k = 0; k < v.length; k++) {
     let s = 0, c = 0;
     for (let j = Math.ceil(k - h); j <= Math.floor(k + h); j++) if (j >= 0 && j < v.length) { s += v[j]; c++; }
-    out[k] = s / c;
-  }
-  return out;
-}
-
-function gaussSmooth(v: Float64Array, sigmaSteps: number): Float64Array {
-  const r = Math.ceil(4 * sigmaSteps);
-  const w = new Float64Array(2 * r + 1);
-  for (let j = -r; j <= r; j++) w[j + r] = Math.exp(-0.5 * (j / sigmaSteps) ** 2);
-  const out = new Float64Array(v.length);
-  for (let k = 0; k < v.length; k++) {
-    let s = 0, c = 0;
-    for (let j = -r; j <= r; j++) {
-      const i = k + j;
-      if (i >= 0 && i < v.length) { s += w[j + r] * v[i]; c += w[j + r]; }
-    }
     out[k] = s / c;
   }
   return out;
