@@ -24,7 +24,7 @@
  * scores better than the stated parameters there too.
  */
 import type { PreparedMicrograph } from './identifyMicrographs.js';
-import { binImage, removePlane } from './preprocess.js';
+import { binImage, planeRemoved, removePlane } from './preprocess.js';
 import { fitAmplitudes, pairStats, type PairStats } from './ranking.js';
 import { createCorrelator, register, type Correlator, type PreparedTemplate } from './registration.js';
 import { goldenSection, nelderMead } from './boundedMinimise.js';
@@ -96,7 +96,7 @@ export async function fitCandidate(inp: FitInputs): Promise<CandidateFit> {
     const m = { ...fv.micrograph, condition: conditions[c] };
     const st = simulateView(scenario, m, inp.render, { defectIndex: inp.defectIndex }).then((sim) => {
       const reg = register(fv.cor, fv.tpl, sim, { search: false, start: inp.view[c] });
-      const w = removePlane(new Float64Array(reg.window.length), reg.window, m.width, m.height);
+      const w = planeRemoved(m, reg);
       return pairStats(m.contrast, w);
     });
     renders++;

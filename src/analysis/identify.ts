@@ -26,7 +26,7 @@ import { absoluteFit, edgeFlag, finalVerdict, flipFlag, FLIP_MARGIN, freeR2, typ
 import type { Condition } from '../scenario/types.js';
 import { viewGroups, type PreparedMicrograph } from './identifyMicrographs.js';
 import { seededRandom } from './identifyRandom.js';
-import { removePlane } from './preprocess.js';
+import { planeRemoved, removePlane } from './preprocess.js';
 import { blockResample, correlationLength, decide, DEFAULT_SIGMAS, DEFAULT_SPREAD, fitAmplitudes, pairStats, type PairStats, type Verdict } from './ranking.js';
 import { DEFAULT_MAX_ROTATION_DEG, DEFAULT_MAX_SCALE, createCorrelator, extractWindow, findPeak, register, registerGroup, type Correlator, type PreparedTemplate, type RegistrationOptions, type RegistrationResult } from './registration.js';
 import { describeElasticity } from '../elasticity/elasticityNote.js';
@@ -134,6 +134,9 @@ export interface IdentifyResult {
   readonly seconds: { readonly render: number; readonly register: number; readonly fit: number; readonly bootstrap: number; readonly checks: number };
 }
 
+/** Rotation and scale steps of a registration that starts near its optimum (a candidate already registered). */
+const FINE_STEPS = { initialRotationStep_deg: 1, initialScaleStep: 0.01 } as const;
+
 interface Pair {
   reg: RegistrationResult;
   /** Registered window with its plane removed. */
@@ -174,14 +177,14 @@ export async function identify(scStated: Scenario, micrographsStated: readonly P
   const groups = viewGroups(micrographs);
   const pairsFor = (k: number, full: boolean, start?: (i: number) => { rotation_deg: number; scale: number }, close = false): Pair[] => {
     const out: Pair[] = new Array(nC);
-    const fine = close ? { initialRotationStep_deg: 1, initialScaleStep: 0.01 } : {};
+    const fine = close ? FINE_STEPS : {};
     for (const g of groups) {
       const st = start?.(g[0]);
       const regs = registerGroup(g.map((i) => cors[i]), g.map((i) => tpls[i]), g.map((i) => sims[k][i]), { ...regOpts, ...fine, search: full, ...(st ? { start: st } : {}) });
       g.forEach((i, j) => {
         const m = micrographs[i];
         const reg = regs[j];
-        const window = removePlane(new Float64Array(reg.window.length), reg.window, m.width, m.height);
+        const window = planeRemoved(m, reg);
         out[i] = { reg, window, stats: pairStats(m.contrast, window), full };
       });
     }
@@ -226,8 +229,8 @@ export async function identify(scStated: Scenario, micrographsStated: readonly P
     simulateView(scenario, { ...micrographs[i], condition: conditions[i], ...over }, renderFull, { alongLine: false });
   const registerSim = (i: number, sim: Float64Array, start: { rotation_deg: number; scale: number }, full: boolean): Pair => {
     const m = micrographs[i];
-    const reg = register(cors[i], tpls[i], sim, { ...regOpts, ...(full ? { initialRotationStep_deg: 1, initialScaleStep: 0.01 } : {}), search: full, start });
-    const window = removePlane(new Float64Array(reg.window.length), reg.window, m.width, m.height);
+    const reg = register(cors[i], tpls[i], sim, { ...regOpts, ...(full ? FINE_STEPS : {}), search: full, start });
+    const window = planeRemoved(m, reg);
     return { reg, window, stats: pairStats(m.contrast, window), full: true };
   };
   if (fitOn) {
@@ -429,8 +432,8 @@ export async function identify(scStated: Scenario, micrographsStated: readonly P
     if (sim !== null) {
       const inner = { maxRotation_deg: 0.8 * maxR, maxScale: 0.8 * maxS };
       const start = { rotation_deg: Math.max(-inner.maxRotation_deg, Math.min(inner.maxRotation_deg, reg.rotation_deg)), scale: Math.max(1 - inner.maxScale, Math.min(1 + inner.maxScale, reg.scale)) };
-      const r2 = register(cors[i], tpls[i], sim, { ...regOpts, ...inner, start, initialRotationStep_deg: 1, initialScaleStep: 0.01 });
-      const w = removePlane(new Float64Array(r2.window.length), r2.window, m.width, m.height);
+      const r2 = register(cors[i], tpls[i], sim, { ...regOpts, ...inner, start, ...FINE_STEPS });
+      const w = planeRemoved(m, r2);
       const what = rotAt && scaleAt ? `rotation (${maxR} degrees) and scale (${100 * maxS} %)` : rotAt ? `rotation (${maxR} degrees)` : `scale (${100 * maxS} %)`;
       const fe = edgeFlag(m, m.contrast, pairs[bestK][i].window, w, bestFit.perCondition[i].amplitude, absolute.perMicrograph[i].sigma, what);
       if (fe) flags.push(fe);

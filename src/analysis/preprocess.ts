@@ -211,3 +211,8 @@ export function bilinear(data: ArrayLike<number>, w: number, h: number, x: numbe
   const k = y0 * w + x0;
   return (1 - fy) * ((1 - fx) * data[k] + fx * data[k + 1]) + fy * ((1 - fx) * data[k + w] + fx * data[k + w + 1]);
 }
+
+/** A registration's window with its best-fitting plane removed (what is compared with the micrograph's contrast). */
+export function planeRemoved(m: { readonly width: number; readonly height: number }, reg: { readonly window: Float64Array }): Float64Array {
+  return removePlane(new Float64Array(reg.window.length), reg.window, m.width, m.height);
+}
