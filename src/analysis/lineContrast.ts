@@ -1,6 +1,6 @@
 /**
- * Simulated visibility of one dislocation line under one condition: a short
- * strip of columns across the line (two-beam, the scenario's thickness, the
+ * Simulated visibility of one dislocation line (or one loop, loopContrast)
+ * under one condition: a short strip of columns across the line (two-beam, the scenario's thickness, the
  * line's depth, the condition's s), integrated with the renderer's column
  * evaluator. The verdict follows the peak contrast |I - I_reference| / I_0
  * over the strip, bright or dark field, with I_0 the perfect crystal and
@@ -18,7 +18,7 @@
  */
 import { dot } from '../math/vec3.js';
 import { coreGeometry } from '../imaging/cores.js';
-import type { DefectModel, DislocationFieldSpec } from '../imaging/fieldSpecs.js';
+import type { DefectModel, DislocationFieldSpec, LoopFieldSpec } from '../imaging/fieldSpecs.js';
 import { columnEvaluator, type RenderJob } from '../imaging/renderRows.js';
 import type { ResolvedCondition } from '../imaging/resolveCondition.js';
 import { twoBeamParams } from '../imaging/renderScenario.js';
@@ -41,7 +41,7 @@ export interface LineContrast {
   /** Smallest and largest 1 + (I - I_reference) / I_0 in bright field (I / I_0 for a perfect dislocation). */
   readonly bfRange: readonly [number, number];
   readonly verdict: SimulatedVerdict;
-  /** The strip runs from -halfWidth_nm to +halfWidth_nm across the line (in the image plane). */
+  /** The strip runs from -halfWidth_nm to +halfWidth_nm across the line (in the image plane); for a loop, the patch's half side. */
   readonly halfWidth_nm: number;
   readonly columns: number;
 }
@@ -56,17 +56,7 @@ export function verdictOf(peak: number): SimulatedVerdict {
  * the reference strip keeps the surfaces and drops every field.
  */
 export function lineContrast(c: ResolvedCondition, model: DefectModel, line: DislocationFieldSpec): LineContrast {
-  const frame = c.frame;
-  const job: RenderJob = { width: 1, height: 1, pixel_nm: 1, frame, g_cart: c.g_cart, params: twoBeamParams(c), tol: STRIP_TOLERANCE, model };
-  const full = columnEvaluator(job);
-  const ref = columnEvaluator({ ...job, model: { fields: [], surfaces: model.surfaces } });
-  const a = new Float64Array(4);
-  const b = new Float64Array(4);
-  columnEvaluator({ ...job, model: { fields: [], surfaces: [] } }).column(a, 0, 0);
-  const i0b = a[0] * a[0] + a[1] * a[1];
-  const i0d = a[2] * a[2] + a[3] * a[3];
-  const cores = coreGeometry(job);
-  const { ex, ey } = frame;
+  const { ex, ey } = c.frame;
   const p = line.point_nm;
   const u = line.line;
   // image position of the line point (ex, ey, ez orthonormal) and the strip direction across the projected line
@@ -84,22 +74,90 @@ export function lineContrast(c: ResolvedCondition, model: DefectModel, line: Dis
   dx /= dl;
   dy /= dl;
   const halfWidth = Math.max(10, 0.5 * c.xi_nm);
+  const points = new Float64Array(2 * STRIP_COLUMNS);
+  for (let k = 0; k < STRIP_COLUMNS; k++) {
+    const t = ((k + 0.5) / STRIP_COLUMNS - 0.5) * 2 * halfWidth;
+    points[2 * k] = x0 + t * dx;
+    points[2 * k + 1] = y0 + t * dy;
+  }
+  return peakContrast(c, model, model.surfaces, points, halfWidth);
+}
+
+/** Columns per side of the square patch over a loop. */
+export const PATCH_COLUMNS = 25;
+
+/**
+ * Contrast of a loop (one of model.fields, kind 'loop') under condition c: a square patch of
+ * PATCH_COLUMNS x PATCH_COLUMNS columns centred on the loop's projection, reaching max(5 nm, xi_g / 4)
+ * beyond the loop's projected outline on every side. The reference is the perfect crystal (no fields,
+ * no jump surfaces), so a fault the loop encloses counts as the loop's contrast: a microscopist calls a
+ * Frank loop visible by its fringes as much as by its strain.
+ */
+export function loopContrast(c: ResolvedCondition, model: DefectModel, loop: LoopFieldSpec): LineContrast {
+  const { ex, ey } = c.frame;
+  const v = loop.vertices_nm;
+  const m = v.length / 3;
+  let cx = 0;
+  let cy = 0;
+  for (let i = 0; i < m; i++) {
+    cx += v[3 * i] * ex[0] + v[3 * i + 1] * ex[1] + v[3 * i + 2] * ex[2];
+    cy += v[3 * i] * ey[0] + v[3 * i + 1] * ey[1] + v[3 * i + 2] * ey[2];
+  }
+  cx /= m;
+  cy /= m;
+  let reach = 0;
+  for (let i = 0; i < m; i++) {
+    const x = v[3 * i] * ex[0] + v[3 * i + 1] * ex[1] + v[3 * i + 2] * ex[2];
+    const y = v[3 * i] * ey[0] + v[3 * i + 1] * ey[1] + v[3 * i + 2] * ey[2];
+    reach = Math.max(reach, Math.abs(x - cx), Math.abs(y - cy));
+  }
+  const halfWidth = reach + Math.max(5, 0.25 * c.xi_nm);
+  const n = PATCH_COLUMNS;
+  const points = new Float64Array(2 * n * n);
+  for (let j = 0; j < n; j++) {
+    for (let i = 0; i < n; i++) {
+      points[2 * (j * n + i)] = cx + ((i + 0.5) / n - 0.5) * 2 * halfWidth;
+      points[2 * (j * n + i) + 1] = cy + ((j + 0.5) / n - 0.5) * 2 * halfWidth;
+    }
+  }
+  return peakContrast(c, model, [], points, halfWidth);
+}
+
+/**
+ * Peak contrast of `model` over the columns at image points (x, y interleaved) under condition c, against
+ * the same columns with no strain fields and only the jump surfaces `referenceSurfaces`; columns inside a
+ * modified core are left out.
+ */
+function peakContrast(c: ResolvedCondition, model: DefectModel, referenceSurfaces: DefectModel['surfaces'], points: Float64Array, halfWidth: number): LineContrast {
+  const job: RenderJob = { width: 1, height: 1, pixel_nm: 1, frame: c.frame, g_cart: c.g_cart, params: twoBeamParams(c), tol: STRIP_TOLERANCE, model };
+  const full = columnEvaluator(job);
+  // without jump surfaces every reference column is the perfect crystal
+  const ref = referenceSurfaces.length === 0 ? null : columnEvaluator({ ...job, model: { fields: [], surfaces: referenceSurfaces } });
+  const a = new Float64Array(4);
+  const b = new Float64Array(4);
+  columnEvaluator({ ...job, model: { fields: [], surfaces: [] } }).column(a, 0, 0);
+  const i0b = a[0] * a[0] + a[1] * a[1];
+  const i0d = a[2] * a[2] + a[3] * a[3];
+  const cores = coreGeometry(job);
   let bf = 0;
   let df = 0;
   let lo = Infinity;
   let hi = -Infinity;
   let columns = 0;
-  for (let k = 0; k < STRIP_COLUMNS; k++) {
-    const t = ((k + 0.5) / STRIP_COLUMNS - 0.5) * 2 * halfWidth;
-    const x = x0 + t * dx;
-    const y = y0 + t * dy;
+  for (let k = 0; k < points.length; k += 2) {
+    const x = points[k];
+    const y = points[k + 1];
     if (cores !== null && cores.near(x, y, 0)) continue;
     full.column(a, x, y);
-    ref.column(b, x, y);
     const ib = a[0] * a[0] + a[1] * a[1];
     const id = a[2] * a[2] + a[3] * a[3];
-    const rb = b[0] * b[0] + b[1] * b[1];
-    const rd = b[2] * b[2] + b[3] * b[3];
+    let rb = i0b;
+    let rd = i0d;
+    if (ref !== null) {
+      ref.column(b, x, y);
+      rb = b[0] * b[0] + b[1] * b[1];
+      rd = b[2] * b[2] + b[3] * b[3];
+    }
     const q = 1 + (ib - rb) / i0b;
     lo = Math.min(lo, q);
     hi = Math.max(hi, q);

@@ -2,16 +2,17 @@
  * The visibility table of a scenario: every defect and candidate under every
  * condition. Each entry carries the g.b / g.(b x u) rule of thumb (visibility.ts)
  * and, where the line direction is known, the verdict of a simulated strip of
- * columns across the line (lineContrast.ts); the simulated verdict is the one
- * the table shows, the rule stands beside it.
+ * columns across the line (for a loop: a patch of columns over it;
+ * lineContrast.ts); the simulated verdict is the one the table shows, the rule
+ * stands beside it.
  */
 import type { Vec3 } from '../math/vec3.js';
 import type { DefectSpec, Scenario } from '../scenario/types.js';
 import { defectTypeOf } from '../defects/registry.js';
 import { judge, type Verdict, type VisibilityEntry } from './visibility.js';
-import { defectModel, type DefectModel, type DislocationFieldSpec } from '../imaging/fieldSpecs.js';
+import { defectModel, type DefectModel, type DislocationFieldSpec, type LoopFieldSpec } from '../imaging/fieldSpecs.js';
 import { resolveCondition, type ResolvedCondition } from '../imaging/resolveCondition.js';
-import { lineContrast, type LineContrast, type SimulatedVerdict } from './lineContrast.js';
+import { lineContrast, loopContrast, type LineContrast, type SimulatedVerdict } from './lineContrast.js';
 
 export interface VisibilityTableEntry extends Omit<VisibilityEntry, 'verdict'> {
   readonly condition: string;
@@ -20,7 +21,7 @@ export interface VisibilityTableEntry extends Omit<VisibilityEntry, 'verdict'> {
   readonly ruleVerdict: Verdict;
   /** The simulated verdict when a line could be simulated, else the rule's verdict. */
   readonly verdict: SimulatedVerdict | Verdict;
-  /** The simulated strip (absent when the line direction is unknown). */
+  /** The simulated strip across the line, or patch over a loop (absent when nothing could be simulated: a candidate without a line direction). */
   readonly simulated?: LineContrast;
 }
 
@@ -32,11 +33,8 @@ export interface VisibilityRow {
   readonly entries: readonly VisibilityTableEntry[];
 }
 
-/** What to simulate for a row: a defect model and the line of it whose contrast is measured. */
-export interface Simulation {
-  readonly model: DefectModel;
-  readonly line: DislocationFieldSpec;
-}
+/** What to simulate for a row: a defect model and the line of it (strip across it) or the loop of it (patch over it) whose contrast is measured. */
+export type Simulation = { readonly model: DefectModel; readonly line: DislocationFieldSpec } | { readonly model: DefectModel; readonly loop: LoopFieldSpec };
 
 /** The defect model of one defect alone. */
 export function modelOf(sc: Scenario, d: DefectSpec): DefectModel {
@@ -54,7 +52,7 @@ export function visibilityTable(sc: Scenario, options: { simulate?: boolean } = 
   const l = sc.material.lattice;
   const conditions: ResolvedCondition[] = simulate ? sc.conditions.map((c) => resolveCondition(sc, c)) : [];
   const make = (subject: string, kind: 'defect' | 'candidate', b: Vec3, line: Vec3 | undefined, sim: (() => Simulation) | undefined): VisibilityRow => {
-    const s = simulate && line !== undefined && sim !== undefined ? sim() : undefined;
+    const s = simulate && sim !== undefined ? sim() : undefined;
     return {
       subject,
       kind,
@@ -62,7 +60,7 @@ export function visibilityTable(sc: Scenario, options: { simulate?: boolean } = 
       ...(line ? { line } : {}),
       entries: sc.conditions.map((c, i) => {
         const rule = judge(l, c.g, b, line);
-        const simulated = s === undefined ? undefined : lineContrast(conditions[i], s.model, s.line);
+        const simulated = s === undefined ? undefined : 'line' in s ? lineContrast(conditions[i], s.model, s.line) : loopContrast(conditions[i], s.model, s.loop);
         return { condition: c.id, g: c.g, ...rule, ruleVerdict: rule.verdict, verdict: simulated?.verdict ?? rule.verdict, ...(simulated ? { simulated } : {}) };
       }),
     };

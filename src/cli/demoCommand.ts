@@ -65,7 +65,7 @@ async function demoMain(sc: ReturnType<typeof parseScenario>, demo: object, set:
   const visText = formatVisibility(sc, vis);
   set.write('visibility.txt', visText);
   set.write('visibility.json', `${jsonText({ scenario: sc.name, rows: vis }, 2)}\n`);
-  process.stdout.write(`\nvisibility (simulated strip across each line, g.b rule beside it):\n${visText}`);
+  process.stdout.write(`\nvisibility (simulated strip across each line, patch over each loop, g.b rule beside it):\n${visText}`);
   for (const d of sc.defects) {
     if (d.type === 'dissociated') {
       process.stdout.write(`\n${d.label}: partial separation ${sig(dissociationWidth_nm(sc.material, d, undefined, sc.elasticity), 3)} nm (${sc.elasticity} equilibrium width for ${sc.material.stackingFaultEnergy_mJ_per_m2} mJ/m^2)\n`);

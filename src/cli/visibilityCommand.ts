@@ -22,10 +22,11 @@ export function formatVisibility(sc: Scenario, rows: readonly VisibilityRow[]): 
   return (
     table(header, body) +
     'cells: g.b (for g.b = 0 then g.(b x u) in brackets), the verdict from a simulated strip of columns across the line\n' +
+    '       (for a loop: a patch of columns over it, against the perfect crystal)\n' +
     `       (two-beam at the condition's s, the scenario's thickness, the line's depth; candidates at mid-depth),\n` +
     `       its peak contrast |I - I_ref|/I_background in bright or dark field, and the g.b rule's verdict.\n` +
     `verdict: V visible (peak >= ${Math.round(100 * VISIBLE_CONTRAST)}%), w weak (${Math.round(100 * WEAK_CONTRAST)}-${Math.round(100 * VISIBLE_CONTRAST)}%), i invisible (< ${Math.round(100 * WEAK_CONTRAST)}%); thresholds are common practice, our choice.\n` +
-    '       "rule" alone: no line direction, nothing simulated.\n' +
+    '       "rule" alone: a candidate without a line direction, nothing simulated.\n' +
     'rules: g.b = 0 and g.(b x u) = 0 invisible, unless g.b_edge != 0 (mixed line with g.u != 0: weak residual);\n' +
     '       g.b = 0 and |g.(b x u)| < 0.64 weak residual (Hirsch et al. 1965);\n' +
     '       partials |g.b| = 1/3 invisible, 2/3 visible (Howie & Whelan 1962). For partials the simulated contrast is the\n' +

@@ -38,6 +38,8 @@ import type { Candidate } from '../analysis/candidates.js';
 import { formatBurgers } from '../analysis/candidates.js';
 import { InputError } from '../errors.js';
 import { burgersNote } from './lineDefect.js';
+import { modelOf } from '../analysis/visibilityTable.js';
+import type { LoopFieldSpec } from '../imaging/fieldSpecs.js';
 
 export interface LoopSpec {
   readonly type: 'loop';
@@ -243,8 +245,13 @@ export const loop: DefectType<LoopSpec> = {
     return w;
   },
   line: () => undefined,
-  /** One row: the loop's b (g.b rule; no simulated strip, which needs a straight line). */
-  visibilityRows: (_sc, d, row) => [row(d.label, d.b, undefined, undefined)],
+  /** One row: the loop's b, its g.b rule and the simulated contrast of a patch of columns over the loop (lineContrast.ts loopContrast). */
+  visibilityRows: (sc, d, row) => [
+    row(d.label, d.b, undefined, () => {
+      const model = modelOf(sc, d);
+      return { model, loop: model.fields[0] as LoopFieldSpec };
+    }),
+  ],
   /**
    * Every Burgers vector of the scenario's "candidates" list with both signs, on the target's habit plane,
    * centre and shape: with the normal fixed, b and -b are the two natures (vacancy, interstitial) of a loop

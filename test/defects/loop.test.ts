@@ -324,14 +324,16 @@ describe('loop candidates and visibility rows', () => {
     // the variant renders as a scenario (its jump surface carries the enclosed fault)
     expect(job(variantScenario(sc, frank as NonNullable<typeof frank>)).model.surfaces).toHaveLength(1);
   });
-  it('visibility: one row for the loop with its g.b per condition (2/3 at 200, 0 at 2-20) and the rule of thumb (Howie & Whelan 1962 for |g.b| = 2/3)', () => {
+  it('visibility: one row for the loop with its g.b per condition (2/3 at 200, 0 at 2-20) and the rule of thumb (Howie & Whelan 1962 for |g.b| = 2/3), plus a simulated patch', () => {
     const rows = visibilityTable(sc).filter((r) => r.kind === 'defect');
     expect(rows).toHaveLength(1);
     const [e200, e2m20] = rows[0].entries;
     expect(e200.gb).toBeCloseTo(2 / 3, 9);
     expect(e200.ruleVerdict).toBe('visible');
     expect(e2m20.gb).toBe(0);
-    expect(e200.simulated).toBeUndefined();
+    // the simulated verdict of a patch over the loop (test/analysis/loopVisibility.test.ts checks its physics)
+    expect(e200.simulated?.verdict).toBe('visible');
+    expect(e200.verdict).toBe('visible');
   });
 });
 
