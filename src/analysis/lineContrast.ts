@@ -94,33 +94,41 @@ export const PATCH_COLUMNS = 25;
  * Frank loop visible by its fringes as much as by its strain.
  */
 export function loopContrast(c: ResolvedCondition, model: DefectModel, loop: LoopFieldSpec): LineContrast {
+  const { points, halfWidth_nm } = loopPatch(c, loop);
+  return peakContrast(c, model, [], points, halfWidth_nm);
+}
+
+/**
+ * The patch over a loop under condition c: PATCH_COLUMNS x PATCH_COLUMNS image points (x, y interleaved, nm,
+ * rows of constant y) centred on the loop's projection, reaching max(5 nm, xi_g / 4) beyond its projected
+ * outline on every side.
+ */
+export function loopPatch(c: ResolvedCondition, loop: LoopFieldSpec): { points: Float64Array; halfWidth_nm: number } {
   const { ex, ey } = c.frame;
   const v = loop.vertices_nm;
   const m = v.length / 3;
+  const xs = new Float64Array(m);
+  const ys = new Float64Array(m);
   let cx = 0;
   let cy = 0;
   for (let i = 0; i < m; i++) {
-    cx += v[3 * i] * ex[0] + v[3 * i + 1] * ex[1] + v[3 * i + 2] * ex[2];
-    cy += v[3 * i] * ey[0] + v[3 * i + 1] * ey[1] + v[3 * i + 2] * ey[2];
+    xs[i] = v[3 * i] * ex[0] + v[3 * i + 1] * ex[1] + v[3 * i + 2] * ex[2];
+    ys[i] = v[3 * i] * ey[0] + v[3 * i + 1] * ey[1] + v[3 * i + 2] * ey[2];
+    cx += xs[i] / m;
+    cy += ys[i] / m;
   }
-  cx /= m;
-  cy /= m;
   let reach = 0;
-  for (let i = 0; i < m; i++) {
-    const x = v[3 * i] * ex[0] + v[3 * i + 1] * ex[1] + v[3 * i + 2] * ex[2];
-    const y = v[3 * i] * ey[0] + v[3 * i + 1] * ey[1] + v[3 * i + 2] * ey[2];
-    reach = Math.max(reach, Math.abs(x - cx), Math.abs(y - cy));
-  }
-  const halfWidth = reach + Math.max(5, 0.25 * c.xi_nm);
+  for (let i = 0; i < m; i++) reach = Math.max(reach, Math.abs(xs[i] - cx), Math.abs(ys[i] - cy));
+  const halfWidth_nm = reach + Math.max(5, 0.25 * c.xi_nm);
   const n = PATCH_COLUMNS;
   const points = new Float64Array(2 * n * n);
   for (let j = 0; j < n; j++) {
     for (let i = 0; i < n; i++) {
-      points[2 * (j * n + i)] = cx + ((i + 0.5) / n - 0.5) * 2 * halfWidth;
-      points[2 * (j * n + i) + 1] = cy + ((j + 0.5) / n - 0.5) * 2 * halfWidth;
+      points[2 * (j * n + i)] = cx + ((i + 0.5) / n - 0.5) * 2 * halfWidth_nm;
+      points[2 * (j * n + i) + 1] = cy + ((j + 0.5) / n - 0.5) * 2 * halfWidth_nm;
     }
   }
-  return peakContrast(c, model, [], points, halfWidth);
+  return { points, halfWidth_nm };
 }
 
 /**

@@ -131,7 +131,7 @@ program
 program
   .command('plan')
   .description('which two-beam conditions to take within the holder\'s tilt ranges to identify a Burgers vector and its sign (judged on simulated images); table, JSON and a stereographic projection')
-  .argument('<scenario>', 'scenario file (JSON): material, foil, the dislocation (line, position) and its candidates')
+  .argument('<scenario>', 'scenario file (JSON): material, foil, the dislocation (line, position) or loop and its candidates')
   .option('--holder <type>', 'double (double tilt, default) or rotation (tilt and rotate)')
   .option('--primary <low,high>', 'primary tilt range, degrees (default -30,30)')
   .option('--secondary <low,high>', 'secondary tilt (double) or rotation range, degrees (default -30,30 or -180,180)')

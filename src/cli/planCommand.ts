@@ -1,7 +1,7 @@
 /**
  * `thinfoil plan <scenario>`: which two-beam conditions to take, within the
  * holder's tilt ranges, to identify the Burgers vector (and its sign) of one
- * dislocation of the scenario, judged on simulated images; table, JSON and a
+ * dislocation or loop of the scenario, judged on simulated images; table, JSON and a
  * stereographic projection (PNG, SVG).
  */
 import { join } from 'node:path';
@@ -185,7 +185,8 @@ function printPlan(r: PlanResult & { zeroTiltNormal: Vec3; zeroTiltAxis: Vec3 },
   const z = r.zeroTiltNormal;
   w.write(`beam direction at zero tilt: [${z.map((x) => sig(x, 3)).join(' ')}] (Cartesian, crystal frame); primary tilt axis along [${r.zeroTiltAxis.map((x) => sig(x, 3)).join(' ')}]\n`);
   w.write(`candidates: ${r.candidates.length} (${r.candidates.map((c) => formatBurgers(c.b!)).join(', ')}), ${r.nPairs} pairs to tell apart\n\n`);
-  w.write('reachable two-beam conditions (simulated bright-field strips across the line):\n');
+  const loop = r.candidates[0].defect.type === 'loop';
+  w.write(`reachable two-beam conditions (simulated bright-field ${loop ? 'patches over the loop' : 'strips across the line'}):\n`);
   w.write(table(
     ['g', '|g| nm^-1', 'xi_g nm', 'near zone', 'zone tilts', 'g tilts', 'pairs told apart', 'g.b of the candidates'],
     r.conditions.map((c) => [

@@ -30,6 +30,9 @@ import { background, renderJob } from '../imaging/renderScenario.js';
 import { columnEvaluator } from '../imaging/renderRows.js';
 import { referenceFrame } from '../imaging/scenarioFrame.js';
 import { InputError } from '../errors.js';
+import { coreGeometry } from '../imaging/cores.js';
+import type { LoopFieldSpec } from '../imaging/fieldSpecs.js';
+import { loopPatch } from '../analysis/lineContrast.js';
 
 export interface StripOptions {
   /** Half-width of the strip in units of xi_g (default 1). */
@@ -43,9 +46,9 @@ export interface StripOptions {
 export const DEFAULT_STRIP: StripOptions = { halfWidth_xi: 1, columns: 121, minDifference: 0.2, coreExclusion_nm: 2 };
 
 export interface Strip {
-  /** Position across the projected line, nm (0 on the line). */
+  /** Position across the projected line, nm (0 on the line); empty for a loop's patch. */
   readonly x_nm: Float64Array;
-  /** Bright-field contrast I/I_background - 1 per candidate (rows). */
+  /** Bright-field contrast I/I_background - 1 per candidate (rows): along the strip, or over a loop's patch (row by row). */
   readonly contrast: readonly Float64Array[];
   /** Largest |difference| of contrast between candidates i and j (n x n, row-major). */
   readonly difference: Float64Array;
@@ -58,8 +61,9 @@ export function candidateStrips(sc: Scenario, candidates: readonly Candidate[], 
   const n = candidates.length;
   const target = sc.defects[candidates[0].defectIndex];
   const type = defectTypeOf(target);
+  if (target.type === 'loop') return candidatePatches(sc, candidates, cond, opt);
   if (type.line(target) === undefined) {
-    throw new InputError(`defects[${candidates[0].defectIndex}] is a "${target.type}"; planning compares images across a dislocation line, so choose a dislocation, partial or dissociated dislocation with --defect`);
+    throw new InputError(`defects[${candidates[0].defectIndex}] is a "${target.type}"; planning compares images across a dislocation line or over a loop, so choose a dislocation, partial, dissociated dislocation or loop with --defect`);
   }
   const l = sc.material.lattice;
   const P = imagePointToCrystal(referenceFrame(sc), type.position(target));
@@ -118,4 +122,54 @@ export function separatedPairs(strip: Strip, n: number, minDifference: number): 
   let p = 0;
   for (let i = 0; i < n; i++) for (let j = i + 1; j < n; j++) out[p++] = strip.difference[i * n + j] >= minDifference ? 1 : 0;
   return out;
+}
+
+/**
+ * A loop target: the bright-field contrast of every candidate over the patch of the visibility table
+ * (src/analysis/lineContrast.ts loopPatch: the loop's projection plus max(5 nm, xi_g / 4) on each side),
+ * compared point by point, leaving out points within `coreExclusion_nm` of the loop's line. The patch is
+ * fixed to the loop's position, so b and -b (the two natures of a loop with a prismatic component) count
+ * as different when their images differ over it (inside-outside contrast).
+ */
+function candidatePatches(sc: Scenario, candidates: readonly Candidate[], cond: Condition, opt: StripOptions): Strip {
+  const n = candidates.length;
+  const contrast: Float64Array[] = [];
+  const out = new Float64Array(4);
+  let points: Float64Array = new Float64Array(0);
+  let keep = new Uint8Array(0);
+  for (let c = 0; c < n; c++) {
+    const v = variantScenario(sc, candidates[c]);
+    const rc = resolveCondition(v, cond);
+    const job = renderJob(v, rc);
+    if (c === 0) {
+      // the target alone: its field and core (the patch and the core mask are the same for every candidate)
+      const alone = renderJob({ ...v, defects: [v.defects[candidates[0].defectIndex]] }, rc);
+      points = loopPatch(rc, alone.model.fields[0] as LoopFieldSpec).points;
+      const cores = coreGeometry(alone);
+      keep = new Uint8Array(points.length / 2);
+      for (let q = 0; q < keep.length; q++) keep[q] = cores !== null && cores.near(points[2 * q], points[2 * q + 1], opt.coreExclusion_nm) ? 0 : 1;
+    }
+    const bg = background(job).bf;
+    const ev = columnEvaluator(job);
+    const row = new Float64Array(keep.length);
+    for (let q = 0; q < keep.length; q++) {
+      if (keep[q] === 0) continue;
+      ev.column(out, points[2 * q], points[2 * q + 1]);
+      row[q] = (out[0] * out[0] + out[1] * out[1]) / bg - 1;
+    }
+    contrast.push(row);
+  }
+  const difference = new Float64Array(n * n);
+  for (let i = 0; i < n; i++) {
+    for (let j = i + 1; j < n; j++) {
+      let d = 0;
+      for (let q = 0; q < keep.length; q++) {
+        const e = Math.abs(contrast[i][q] - contrast[j][q]);
+        if (keep[q] === 1 && e > d) d = e;
+      }
+      difference[i * n + j] = d;
+      difference[j * n + i] = d;
+    }
+  }
+  return { x_nm: new Float64Array(0), contrast, difference, endOn: false };
 }

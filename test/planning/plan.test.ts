@@ -18,6 +18,7 @@ import { orientation } from '../../src/planning/holder.js';
 import { candidateStrips } from '../../src/planning/separation.js';
 import { exactCover, greedyCover, leastTiltOrder } from '../../src/planning/chooseSet.js';
 import { gDotBCrossU } from '../../src/analysis/visibility.js';
+import { identificationCandidates } from '../../src/analysis/candidates.js';
 
 const sc = parseScenario({
   name: 'planning test (invented)',
@@ -134,5 +135,48 @@ describe('set covers and tilt order (small cases)', () => {
     const pos = [30, 10, 20];
     const order = leastTiltOrder(3, (a, b) => Math.abs((a < 0 ? 0 : pos[a]) - pos[b]));
     expect(order).toEqual([1, 2, 0]);
+  });
+});
+
+describe('planning for a loop: candidates compared over a patch of columns on the loop', () => {
+  // an invented 5 nm prismatic loop b = 1/2[1 0 1] on (1 0 1) at mid-depth of a 100 nm Cu foil
+  const loopSc = parseScenario({
+    name: 'loop planning test (invented)',
+    material: 'Cu',
+    kV: 200,
+    foil: { thickness_nm: 100, normal: [0, 0, 1] },
+    beam: [0, 0, 1],
+    imageX: [1, 0, 0],
+    image: { width_px: 32, height_px: 32, pixel_nm: 1 },
+    absorption: 0.1,
+    conditions: [{ id: 'g200', g: [2, 0, 0], w: 1 }],
+    defects: [{ type: 'loop', b: '1/2[1 0 1]', normal: [1, 0, 1], centre_nm: [0, 0, 50], radius_nm: 5 }],
+    candidates: ['1/2[1 0 1]', '1/2[1 1 0]'],
+  });
+  const cands = identificationCandidates(loopSc, 0);
+  const label = (b: string) => cands.findIndex((c) => c.label.startsWith(`b = ${b}`));
+
+  it('b and -b (vacancy and interstitial) are told apart at g.b = +-1: the image lies inside the loop for one and outside for the other (inside-outside contrast, Hirsch et al. 1965)', () => {
+    const strip = candidateStrips(loopSc, cands, loopSc.conditions[0]);
+    const n = cands.length;
+    const i = label('1/2[1 0 1]');
+    const j = label('1/2[-1 0 -1]');
+    expect(i).toBeGreaterThanOrEqual(0);
+    expect(j).toBeGreaterThanOrEqual(0);
+    expect(strip.endOn).toBe(false);
+    expect(strip.difference[i * n + j]).toBeGreaterThanOrEqual(PLAN_DEFAULTS.strip.minDifference);
+    // every candidate's patch has contrast (g.b = +-1 for all four here) and the matrix is symmetric with a zero diagonal
+    for (let a = 0; a < n; a++) {
+      expect(strip.difference[a * n + a]).toBe(0);
+      for (let b = 0; b < n; b++) expect(strip.difference[a * n + b]).toBe(strip.difference[b * n + a]);
+      expect(Math.max(...strip.contrast[a].map(Math.abs))).toBeGreaterThan(0.1);
+    }
+  });
+
+  it('plan accepts a loop target and tells its candidates apart (4 candidates: two b, both natures)', () => {
+    const r = plan(loopSc, { ...PLAN_DEFAULTS, holder, orientation: orientation([0, 0, 1], [1, 0, 0]), current: { primary_deg: 0, secondary_deg: 0 }, defectIndex: 0, gMax_per_nm: 6, zoneIndexMax: 1 });
+    expect(r.candidates).toHaveLength(4);
+    expect(r.conditions.length).toBeGreaterThan(0);
+    expect(r.complete).toBe(true);
   });
 });
