@@ -8,7 +8,8 @@
 //    c. screw normal to the foil seen with a tilted beam (the Eshelby-Stroh twist changes along the line:
 //       translationPlan declines it, so the relaxed render goes column by column);
 //    d. pure edge parallel to the surfaces, isotropic (half-space images of the edge component, shared columns);
-//    e. a spherical inclusion 12 nm deep (Mindlin & Cheng half-space corrections; column by column in both).
+//    e. a spherical inclusion 12 nm deep (Mindlin & Cheng half-space corrections; column by column in both);
+//    f. an edge normal to the foil (half-space corrections of the edge component: column by column when relaxed).
 // 2. Per-point cost of beta' = g.(grad R).k for a line alone and for each correction.
 // 3. Set-up of the inclined-line correction: building the two surface tables for a new line direction (they do
 //    not depend on the line's point or the foil thickness, so only a new direction, b or material pays this), and
@@ -92,6 +93,7 @@ for (const [label, spec] of [
   ['anisotropic, inclined mixed 1/2[101] along [112], 128 x 128, g = 200, w = 0.5, t = 100 nm', inclined],
   ['the same, infinite medium also column by column', { ...inclined, eachColumn: true }],
   ['screw 1/2[110] normal to a (110) foil, beam tilted to [551], 128 x 128, g = 1-11, w = 0.5, t = 60 nm', normal],
+  ['edge 1/2[1-10] normal to a (110) foil (twist-free: half-space corrections of the edge), the same view', { ...normal, defects: [{ type: 'dislocation', b: '1/2[1 -1 0]', line: [1, 1, 0], point_nm: [0, 0, 30] }] }],
 ]) {
   renderOnce(spec, 'infinite'); // warm-up
   renderOnce(spec, 'relaxed');

@@ -34,6 +34,8 @@ const KIND_TEXT: Readonly<Record<SurfaceCorrectionKind, string>> = {
     'lines parallel to the surfaces: the anisotropic half-space image of each surface (Stroh formalism, every Burgers vector; each surface is freed exactly on its own, but the image of one surface leaves a traction on the other, no repeated reflections: about 9-15 % of the unrelaxed traction for a line 10 nm deep in a 60 nm foil)',
   'normal-screw-twist':
     'lines normal to the surfaces: the screw component gets the Eshelby & Stroh (1951) plate twist (exact for a screw in an isotropic plate), the edge component is not corrected',
+  'normal-edge-half-space':
+    'lines normal to the surfaces with an edge component: the screw component gets the Eshelby & Stroh (1951) plate twist (exact for a screw in an isotropic plate), the edge component the isotropic half-space correction of each surface (2D Fourier solution of the surface tractions, as for inclined lines; each surface is freed on its own, the correction of one leaves a traction on the other)',
   'inclined-half-space':
     'lines inclined to the surfaces: the isotropic half-space correction of each surface where the line meets it (2D Fourier solution of the surface tractions, every Burgers vector; each surface is freed on its own, the correction of one leaves a traction on the other; tabulated over directions from the emergence point and interpolated)',
 };
@@ -72,7 +74,7 @@ export function describeSurfaces(sc: Scenario): SurfacesDescription {
     };
   }
   const approximations: string[] = [...kinds].map((k) => KIND_TEXT[k]);
-  if (sc.elasticity === 'anisotropic' && (kinds.has('parallel-screw-images') || kinds.has('parallel-edge-images') || kinds.has('normal-screw-twist') || kinds.has('inclined-half-space'))) {
+  if (sc.elasticity === 'anisotropic' && (kinds.has('parallel-screw-images') || kinds.has('parallel-edge-images') || kinds.has('normal-screw-twist') || kinds.has('normal-edge-half-space') || kinds.has('inclined-half-space'))) {
     approximations.push('the screw image series, the edge images of parallel lines, the plate twist and the half-space correction of inclined lines are isotropic (for inclined lines: the anisotropic field\'s own surface tractions, an isotropic response with the Voigt-average shear modulus), added to the anisotropic (Stroh) infinite field: the surface tractions are reduced, not exactly cancelled');
   }
   if (correctedInclusions > 0) approximations.push(INCLUSION_TEXT);
@@ -85,6 +87,7 @@ export function describeSurfaces(sc: Scenario): SurfacesDescription {
     'parallel-screw-images': ' (screw image series)',
     'parallel-edge-images': ' (screw image series and half-space images of the edge component)',
     'normal-screw-twist': ' (screw plate twist)',
+    'normal-edge-half-space': ' (screw plate twist and half-space corrections of the edge component)',
     'inclined-half-space': ' (isotropic half-space correction of each surface)',
   };
   const used = [...kinds].map((k) => KIND_TEXT[k].split(':')[0] + SHORT[k]);

@@ -101,7 +101,7 @@ function surfacePoints(c: LineCase): Vec3[] {
 }
 
 describe('surface relaxation: which lines get a correction', () => {
-  it('parallel lines with any b (a pure screw: the screw images; with an edge component: screw and edge images), normal lines with a screw component, inclined lines with any b; not pure edges normal to the surfaces', () => {
+  it('parallel lines with any b (a pure screw: the screw images; with an edge component: screw and edge images), normal lines with any b (a pure screw: the plate twist; with an edge component: twist and half-space corrections), inclined lines with any b', () => {
     expect(surfaceCorrectionFor(scale(U_PAR, BL), U_PAR, at(10, 0, 0), N, T)?.kind).toBe('parallel-screw-images');
     expect(surfaceCorrectionFor(scale(N, BL), N, at(0, 0, 0), N, T)?.kind).toBe('normal-screw-twist');
     expect(surfaceCorrectionFor(scale(N, BL), scale(N, -1), at(70, 1, 1), N, T)?.kind).toBe('normal-screw-twist');
@@ -113,7 +113,8 @@ describe('surface relaxation: which lines get a correction', () => {
     expect(surfaceCorrectionFor(scale(U_PAR, BL), U_PAR, at(-3, 0, 0), N, T)).toBeNull();
     const inclined = unit([N[0] + E1[0], N[1] + E1[1], N[2] + E1[2]]);
     expect(surfaceCorrectionFor(scale(inclined, BL), inclined, at(10, 0, 0), N, T)?.kind).toBe('inclined-half-space');
-    expect(surfaceCorrectionFor(scale(E2, BL), N, at(10, 0, 0), N, T)).toBeNull(); // pure edge normal to the surfaces
+    expect(surfaceCorrectionFor(scale(E2, BL), N, at(10, 0, 0), N, T)?.kind).toBe('normal-edge-half-space'); // pure edge normal to the surfaces
+    expect(surfaceCorrectionFor([0.1, 0.2, 0.05], N, at(10, 0, 0), N, T)?.kind).toBe('normal-edge-half-space'); // mixed normal line
     expect(correctableGeometry(inclined, N)).toBe('inclined');
   });
 });
@@ -799,6 +800,92 @@ describe('surface relaxation of the edge component of a line parallel to the sur
       }
       console.log(`edge ${depth} nm deep, 160 nm aside: relaxed / unrelaxed traction ${(tr / ti).toFixed(3)}`);
       expect(tr / ti).toBeGreaterThan(0.5);
+    }
+  });
+});
+
+describe('surface relaxation of the edge component of a line normal to the surfaces (half-space correction of each surface, as for inclined lines; screw part: the plate twist)', () => {
+  const nu = NU;
+  const Pn: Vec3 = at(25, 1, -2);
+  const edgeB = scale(E2, BL);
+  const mixedB: Vec3 = [0, 1, 2].map((i) => 0.6 * BL * E1[i] + 0.8 * BL * N[i]) as unknown as Vec3;
+  const pointsOn = (depth: number): Vec3[] => {
+    const out: Vec3[] = [];
+    for (const r of [0.4, 1, 3, 10, 30]) for (let k = 0; k < 11; k++) {
+      const ph = 0.37 + (2 * Math.PI * k) / 11;
+      out.push([0, 1, 2].map((i) => Pn[i] + (depth - 25) * N[i] + r * (Math.cos(ph) * E1[i] + Math.sin(ph) * E2[i])) as unknown as Vec3);
+    }
+    return out;
+  };
+  /** Largest r |T| on the surface at `depth` (the traction of a line meeting a surface is homogeneous of degree -1 about the emergence point). */
+  const rT = (f: DisplacementField, depth: number): number => {
+    const g = new Float64Array(9);
+    let m = 0;
+    for (const p of pointsOn(depth)) {
+      f.gradient(g, p[0], p[1], p[2]);
+      const d = [0, 1, 2].map((i) => p[i] - Pn[i] - (depth - 25) * N[i]);
+      m = Math.max(m, Math.hypot(d[0], d[1], d[2]) * norm(traction(g, N)));
+    }
+    return m;
+  };
+  const maxT = (f: DisplacementField, depth: number): number => {
+    const g = new Float64Array(9);
+    let m = 0;
+    for (const p of pointsOn(depth)) {
+      f.gradient(g, p[0], p[1], p[2]);
+      m = Math.max(m, norm(traction(g, N)));
+    }
+    return m;
+  };
+  const inf = (b: Vec3) => straightDislocation({ b_nm: b, line: N, point_nm: Pn, poissonRatio: nu, coreRadius_nm: 1e-6 });
+  for (const which of ['entrance', 'exit'] as const) {
+    it(`pure edge along the normal, ${which} surface alone (half-space): the traction vanishes to 1e-6 of the unrelaxed one (measured 2e-7)`, () => {
+      const corr = inclinedHalfSpaceCorrection({ b_nm: edgeB, line: N, point_nm: Pn, normal: N, thickness_nm: T, poissonRatio: nu, only: which });
+      const z = which === 'entrance' ? 0 : T;
+      const before = rT(inf(edgeB), z);
+      const after = rT(superpose([inf(edgeB), corr]), z);
+      expect(before).toBeGreaterThan(1e-3);
+      expect(after / before).toBeLessThan(1e-6);
+    });
+  }
+  it('plate of 60 nm, pure edge and mixed line along the normal (twist + both half-space corrections, no repeated reflections): the surface tractions drop well below the unrelaxed ones, measured (README); the relaxed Burgers circuit still closes', () => {
+    const ratios: number[] = [];
+    for (const b of [edgeB, mixedB]) {
+      const spec: DislocationFieldSpec = { kind: 'dislocation', b_nm: b, line: N, point_nm: Pn, poissonRatio: nu, cutDirection: E1, coreRadius_nm: 1e-6 };
+      const c = surfaceCorrectionFor(b, N, Pn, N, T);
+      expect(c?.kind).toBe('normal-edge-half-space');
+      const relaxed = buildField([{ ...spec, surfaceCorrection: c! }])!;
+      const infinite = buildField([spec])!;
+      // largest |T| (as for inclined lines above; r |T| would weight the far points, where the other surface's correction dominates)
+      ratios.push(Math.max(maxT(relaxed, 0), maxT(relaxed, T)) / Math.max(maxT(infinite, 0), maxT(infinite, T)));
+      const rad = 2;
+      const loop = loopIntegral(
+        relaxed,
+        (sv) => {
+          const ph = 2 * Math.PI * sv;
+          const cs = Math.cos(ph), sn = Math.sin(ph);
+          return {
+            p: [0, 1, 2].map((i) => Pn[i] + rad * (cs * E1[i] + sn * E2[i])) as unknown as Vec3,
+            t: [0, 1, 2].map((i) => 2 * Math.PI * rad * (-sn * E1[i] + cs * E2[i])) as unknown as Vec3,
+          };
+        },
+        2048,
+      );
+      // E1 x E2 = N: the circuit is right-handed about the line; the tabulated correction integrates to ~1e-6 nm
+      expect(maxAbsDiff(loop, b)).toBeLessThan(2e-5);
+    }
+    // measured when written: 0.0043 (pure edge) and 0.0026 (mixed) of the largest unrelaxed traction (which sits
+    // next to the emergence point); compared as r |T| instead (each point against the line's own 1/r traction) the
+    // residual reaches 0.32 and 0.20 at 30 nm from the emergence point, where the other surface's correction dominates
+    console.log('normal line, plate residual / unrelaxed (pure edge, mixed)', ratios.map((r) => r.toFixed(4)).join(' '), '; as r|T|:', [edgeB, mixedB].map((b) => {
+      const spec: DislocationFieldSpec = { kind: 'dislocation', b_nm: b, line: N, point_nm: Pn, poissonRatio: nu, cutDirection: E1, coreRadius_nm: 1e-6 };
+      const relaxed = buildField([{ ...spec, surfaceCorrection: surfaceCorrectionFor(b, N, Pn, N, T)! }])!;
+      const infinite = buildField([spec])!;
+      return (Math.max(rT(relaxed, 0), rT(relaxed, T)) / Math.max(rT(infinite, 0), rT(infinite, T))).toFixed(3);
+    }).join(' '));
+    for (const r of ratios) {
+      expect(r).toBeLessThan(0.02);
+      expect(r).toBeGreaterThan(1e-6);
     }
   });
 });

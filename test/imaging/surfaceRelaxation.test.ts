@@ -25,14 +25,14 @@ describe('"surfaces" scenario key', () => {
       defects: [
         { type: 'dislocation', b: '1/2[1 1 0]', line: [1, 1, 0], point_nm: [0, 0, 30] }, // screw parallel: corrected
         { type: 'dislocation', b: '1/2[1 1 0]', line: [1, 1, 2], point_nm: [0, 0, 30] }, // inclined: half-space corrections
-        { type: 'dislocation', b: '1/2[1 -1 0]', line: [0, 0, 1], point_nm: [0, 0, 30] }, // pure edge normal to the foil: not corrected
+        { type: 'dislocation', b: '1/2[1 -1 0]', line: [0, 0, 1], point_nm: [0, 0, 30] }, // pure edge normal to the foil: half-space corrections of the edge
       ],
     });
     const d = describeSurfaces(sc);
-    expect(d.correctedLines).toBe(2);
+    expect(d.correctedLines).toBe(3);
     expect(d.lines).toBe(3);
     expect(d.geometry).toEqual({ parallel: 1, normal: 1, inclined: 1 });
-    expect(d.text).toMatch(/^relaxed foil surfaces \(2 of 3 straight lines corrected: lines parallel to the surfaces \(anisotropic half-space images of each surface\); lines inclined to the surfaces \(isotropic half-space correction of each surface\)\)/);
+    expect(d.text).toMatch(/^relaxed foil surfaces \(3 of 3 straight lines corrected: lines parallel to the surfaces \(anisotropic half-space images of each surface\); lines inclined to the surfaces \(isotropic half-space correction of each surface\); lines normal to the surfaces with an edge component \(screw plate twist and half-space corrections of the edge component\)\)$/);
     expect(d.approximations.join(' ')).toMatch(/each surface is freed exactly on its own/);
     expect(d.approximations.join(' ')).toMatch(/lines inclined to the surfaces: the isotropic half-space correction of each surface/);
     expect(d.approximations.join(' ')).toMatch(/are isotropic .* added to the anisotropic \(Stroh\) infinite field/);
@@ -286,5 +286,29 @@ describe('inclusions with relaxed surfaces (Mindlin & Cheng 1950 half-space corr
     expect(shallow.c).toBeGreaterThan(0.05); // the inclusion shows contrast at all
     expect(shallow.d).toBeGreaterThan(0.01);
     expect(deep.d).toBeLessThan(0.1 * shallow.d);
+  });
+});
+
+describe('edge dislocation normal to the foil, seen end-on (half-space corrections of the edge component)', () => {
+  // Cu (isotropic), beam = foil normal = line = [0 0 1], b = 1/2[1 -1 0] (pure edge), g = 200 (g.b = 1), 60 nm foil.
+  // Before, this line got no correction; the corrections of both surfaces now change its image.
+  const make = (surfaces: string) =>
+    scenario({
+      surfaces,
+      elasticity: 'isotropic',
+      foil: { thickness_nm: 60, normal: [0, 0, 1] },
+      imageX: [1, 0, 0],
+      image: { width_px: 40, height_px: 40, pixel_nm: 1 },
+      conditions: [{ id: 'g', g: [2, 0, 0], w: 0.5, beam: [1, 0, 12] }],
+      defects: [{ type: 'dislocation', b: '1/2[1 -1 0]', line: [0, 0, 1], point_nm: [0, 0, 30] }],
+    });
+  it('is corrected, and relaxed and infinite images differ around the line', async () => {
+    expect(describeSurfaces(make('relaxed')).correctedLines).toBe(1);
+    const [a] = await render(make('infinite'));
+    const [b] = await render(make('relaxed'));
+    let d = 0;
+    for (let i = 0; i < a.bf.length; i++) d = Math.max(d, Math.abs(a.bf[i] - b.bf[i]));
+    console.log('normal edge, largest relaxed - infinite BF difference', d.toFixed(4));
+    expect(d).toBeGreaterThan(0.01);
   });
 });
