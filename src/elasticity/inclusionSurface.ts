@@ -74,6 +74,8 @@ export function inclusionSurfaceCorrection(o: InclusionSurfaceOptions): Displace
   if (o.only !== 'exit') sides.push(side(o.centre_nm, n, 0));
   if (o.only !== 'entrance') sides.push(side(o.centre_nm, [-n[0], -n[1], -n[2]], t));
   const ns = sides.length;
+  const R = new Float64Array(3);
+  const nn = new Float64Array(3);
   return {
     displacement(out, x, y, z) {
       out[0] = 0;
@@ -97,8 +99,12 @@ export function inclusionSurfaceCorrection(o: InclusionSurfaceOptions): Displace
       for (let i = 0; i < 9; i++) out[i] = 0;
       for (let q = 0; q < ns; q++) {
         const S = sides[q];
-        const R = [x - S.m0, y - S.m1, z - S.m2];
-        const nn = [S.n0, S.n1, S.n2];
+        R[0] = x - S.m0;
+        R[1] = y - S.m1;
+        R[2] = z - S.m2;
+        nn[0] = S.n0;
+        nn[1] = S.n1;
+        nn[2] = S.n2;
         const zz = x * S.n0 + y * S.n1 + z * S.n2 + S.offset;
         const s = zz + S.c;
         const r2 = R[0] * R[0] + R[1] * R[1] + R[2] * R[2];

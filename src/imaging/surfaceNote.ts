@@ -29,9 +29,9 @@ const KIND_TEXT: Readonly<Record<SurfaceCorrectionKind, string>> = {
   'parallel-screw-images':
     'lines parallel to the surfaces: the screw component gets its infinite series of image screws (closed form; exact for a screw in an isotropic plate), the edge component is not corrected',
   'parallel-edge-images':
-    'lines parallel to the surfaces: the screw component gets its infinite series of image screws (exact for a screw in an isotropic plate), the edge component the isotropic half-space image of each surface (Head 1953; each surface is freed exactly on its own, but the image of one surface leaves a traction on the other, no repeated reflections: about 10-18 % of the unrelaxed traction for an edge 7-12 nm deep in a 60 nm foil, 50 % at mid-foil)',
+    'lines parallel to the surfaces: the screw component gets its infinite series of image screws (exact for a screw in an isotropic plate), the edge component the isotropic half-space image of each surface (Head 1953; each surface is freed exactly on its own, but the image of one surface leaves a traction on the other, no repeated reflections: about 10-18 % of the unrelaxed traction within 40 nm of an edge 7-12 nm deep in a 60 nm foil, 50 % at mid-foil; beyond about two foil thicknesses from the line the images do not reduce the traction)',
   'parallel-stroh-images':
-    'lines parallel to the surfaces: the anisotropic half-space image of each surface (Stroh formalism, every Burgers vector; each surface is freed exactly on its own, but the image of one surface leaves a traction on the other, no repeated reflections: about 9-15 % of the unrelaxed traction for a line 10 nm deep in a 60 nm foil)',
+    'lines parallel to the surfaces: the anisotropic half-space image of each surface (Stroh formalism, every Burgers vector; each surface is freed exactly on its own, but the image of one surface leaves a traction on the other, no repeated reflections: about 9-15 % of the unrelaxed traction for a line 10 nm deep in a 60 nm foil; beyond about two foil thicknesses from the line the images do not reduce the traction)',
   'normal-screw-twist':
     'lines normal to the surfaces: the screw component gets the Eshelby & Stroh (1951) plate twist (exact for a screw in an isotropic plate), the edge component is not corrected',
   'normal-edge-half-space':
