@@ -6,7 +6,10 @@
 //    b. inclined mixed dislocation (the half-space corrections change along the line: column by column when
 //       relaxed, shared columns when infinite; also against the infinite medium column by column);
 //    c. screw normal to the foil seen with a tilted beam (the Eshelby-Stroh twist changes along the line:
-//       translationPlan declines it, so the relaxed render goes column by column).
+//       translationPlan declines it, so the relaxed render goes column by column);
+//    d. pure edge parallel to the surfaces, isotropic (half-space images of the edge component, shared columns);
+//    e. a spherical inclusion 12 nm deep (Mindlin & Cheng half-space corrections; column by column in both);
+//    f. an edge normal to the foil (half-space corrections of the edge component: column by column when relaxed).
 // 2. Per-point cost of beta' = g.(grad R).k for a line alone and for each correction.
 // 3. Set-up of the inclined-line correction: building the two surface tables for a new line direction (they do
 //    not depend on the line's point or the foil thickness, so only a new direction, b or material pays this), and
@@ -22,6 +25,8 @@ import { surfaceCorrection } from '../dist/elasticity/surfaceRelaxation.js';
 import { anisotropicDislocation } from '../dist/elasticity/anisotropicDislocation.js';
 import { voigtStiffness } from '../dist/elasticity/stiffness.js';
 import { inclinedHalfSpaceCorrection } from '../dist/elasticity/surfaceHalfSpaceInclined.js';
+import { sphericalInclusion } from '../dist/elasticity/inclusion.js';
+import { inclusionSurfaceCorrection } from '../dist/elasticity/inclusionSurface.js';
 import { fmt, inclinedDislocation, lcg, median, perPointNs } from './common.mjs';
 
 const parallel = {
@@ -50,6 +55,20 @@ const normal = {
   defects: [{ type: 'dislocation', b: '1/2[1 1 0]', line: [1, 1, 0], point_nm: [0, 0, 30] }],
 };
 
+const edgeParallel = { ...parallel, name: 'bench-edge-parallel', defects: [{ type: 'dislocation', b: '1/2[1 -1 0]', line: [1, 1, 0], point_nm: [0, 0, 20] }] };
+const particle = {
+  name: 'bench-inclusion',
+  material: 'Cu',
+  kV: 200,
+  elasticity: 'isotropic',
+  foil: { thickness_nm: 60, normal: [0, 0, 1] },
+  beam: [0, 0, 1],
+  imageX: [1, 0, 0],
+  image: { width_px: 128, height_px: 128, pixel_nm: 0.5 },
+  conditions: [{ id: 'g200', g: [2, 0, 0], w: 0.5 }],
+  defects: [{ type: 'inclusion', centre_nm: [0, 0, 12], radius_nm: 6, misfit: 0.02 }],
+};
+
 function renderOnce(spec, surfaces) {
   const { eachColumn, ...rest } = spec;
   const sc = parseScenario({ ...rest, surfaces });
@@ -68,10 +87,13 @@ function renderOnce(spec, surfaces) {
 for (const [label, spec] of [
   ['isotropic, mixed 1/2[101] along [110], parallel to the surfaces 20 nm deep, 256 x 256, g = 200, w = 0.5, t = 100 nm', parallel],
   ['anisotropic, the same line', { ...parallel, elasticity: 'anisotropic' }],
+  ['isotropic, pure edge 1/2[1-10] along [110], parallel to the surfaces 20 nm deep (screw-free: edge half-space images only), 256 x 256', edgeParallel],
+  ['isotropic, spherical inclusion radius 6 nm, misfit 0.02, centre 12 nm deep, 128 x 128, g = 200, w = 0.5, t = 60 nm', particle],
   ['anisotropic, the same line, 128 x 128, column by column (render --each-column; general beam sets)', { ...parallel, elasticity: 'anisotropic', image: { width_px: 128, height_px: 128, pixel_nm: 1 }, eachColumn: true }],
   ['anisotropic, inclined mixed 1/2[101] along [112], 128 x 128, g = 200, w = 0.5, t = 100 nm', inclined],
   ['the same, infinite medium also column by column', { ...inclined, eachColumn: true }],
   ['screw 1/2[110] normal to a (110) foil, beam tilted to [551], 128 x 128, g = 1-11, w = 0.5, t = 60 nm', normal],
+  ['edge 1/2[1-10] normal to a (110) foil (twist-free: half-space corrections of the edge), the same view', { ...normal, defects: [{ type: 'dislocation', b: '1/2[1 -1 0]', line: [1, 1, 0], point_nm: [0, 0, 30] }] }],
 ]) {
   renderOnce(spec, 'infinite'); // warm-up
   renderOnce(spec, 'relaxed');
@@ -109,6 +131,9 @@ const fields = {
   'anisotropic line (Cu)': anisotropicDislocation({ b_nm: [0.18, 0.18, 0], line: [1, 1, 0], point_nm: [0, 0, 20], stiffness_GPa: cu, coreRadius_nm: 0.01 }),
   'parallel: Stroh images (Cu)': surfaceCorrection({ b_nm: [0.18, 0, 0.18], line: [1, 1, 0], point_nm: [0, 0, 20], correction: { kind: 'parallel-stroh-images', normal: [0, 0, 1], thickness_nm: t }, stiffness_GPa: cu }),
   'inclined: half-space tables': inclinedHalfSpaceCorrection({ b_nm: [0.18, 0, 0.18], line: [1, 1, 2], point_nm: [0, 0, 30], normal: [0, 0, 1], thickness_nm: t, poissonRatio: 0.34 }),
+  'parallel: edge images': surfaceCorrection({ b_nm: [0.18, -0.18, 0], line: [1, 1, 0], point_nm: [0, 0, 20], correction: { kind: 'parallel-edge-images', normal: [0, 0, 1], thickness_nm: t }, poissonRatio: 0.34 }),
+  'inclusion (its own field)': sphericalInclusion({ centre_nm: [0, 0, 20], radius_nm: 3, strain: 0.01, poissonRatio: 0.34 }),
+  'inclusion: half-space corr.': inclusionSurfaceCorrection({ centre_nm: [0, 0, 20], strength_nm3: 0.27, normal: [0, 0, 1], thickness_nm: t, poissonRatio: 0.34 }),
   'normal: plate twist': surfaceCorrection({ b_nm: [0, 0, 0.25], line: [0, 0, 1], point_nm: [0, 0, 0], correction: { kind: 'normal-screw-twist', normal: [0, 0, 1], thickness_nm: t } }),
 };
 const perPoint = (f) => perPointNs(f, g, k, pts, N);

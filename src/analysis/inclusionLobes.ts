@@ -14,6 +14,12 @@ import { referenceFrame } from '../imaging/scenarioFrame.js';
 import { imagePointToCrystal } from '../geometry/frames.js';
 import { background, renderJob } from '../imaging/renderScenario.js';
 import { columnEvaluator } from '../imaging/renderRows.js';
+import { type FieldSpec, type InclusionFieldSpec, withSurfaceCorrection } from '../imaging/fieldSpecs.js';
+
+/** The sphere's field spec, with its surface correction when the scenario relaxes the surfaces (as in defectModel). */
+function sphereSpec(sc: Scenario, f: InclusionFieldSpec): FieldSpec {
+  return sc.surfaces === 'relaxed' ? withSurfaceCorrection(f, referenceFrame(sc).normal, sc.thickness_nm) : f;
+}
 
 export type Lobe = '+g side' | '-g side' | 'neither';
 
@@ -63,7 +69,7 @@ function lobes(sc: Scenario, d: InclusionSpec, c: ReturnType<typeof resolveCondi
   const step = R / half;
   const job = {
     ...renderJob(sc, c),
-    model: { fields: [{ kind: 'inclusion' as const, centre_nm: centre, radius_nm: d.radius_nm, strain, poissonRatio: sc.material.elastic.poissonRatio }], surfaces: [] },
+    model: { fields: [sphereSpec(sc, { kind: 'inclusion', centre_nm: centre, radius_nm: d.radius_nm, strain, poissonRatio: sc.material.elastic.poissonRatio })], surfaces: [] },
   };
   const ev = columnEvaluator(job);
   const a = new Float64Array(4);

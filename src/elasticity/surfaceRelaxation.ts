@@ -14,9 +14,12 @@
  *    L = 2 t, and the like for the other derivative). The correction is that
  *    sum less the real line, so it is smooth in the foil and invariant along
  *    the line. It makes sigma_nz (the antiplane traction) vanish on both
- *    surfaces; the edge component of b is not corrected (in-plane tractions
- *    of an edge component remain).
- * 2. Line normal to the surfaces (u x n = 0). The twist of Eshelby & Stroh
+ *    surfaces. The edge component of b gets the isotropic half-space image of
+ *    each surface (Head 1953, surfaceEdgeImages.ts; kind 'parallel-edge-images'):
+ *    each frees its own surface exactly, no repeated reflections.
+ * 2. Line normal to the surfaces (u x n = 0). The edge component of b gets the
+ *    half-space correction of each surface of surfaceHalfSpaceInclined.ts (kind
+ *    'normal-edge-half-space', with the twist below for the screw component). The twist of Eshelby & Stroh
  *    (1951, Phil. Mag. 42, 1401): azimuthal displacement
  *      u_theta(r, z) = -(B/2pi) int_0^inf J1(k r) sinh(k (z - t/2)) / (k cosh(k t/2)) dk,
  *    which cancels sigma_theta z = G B / (2 pi r) of the screw on z = 0 and
@@ -37,16 +40,23 @@
  * (the entrance surface passes through the origin, geometry/frames.ts).
  */
 import { type Vec3, cross, dot, norm, unit } from '../math/vec3.js';
-import type { DisplacementField } from './field.js';
+import { type DisplacementField, superpose } from './field.js';
+import { edgeHalfSpaceImages } from './surfaceEdgeImages.js';
 import { strohHalfSpaceImages, strohImagesApply } from './surfaceImagesStroh.js';
 import { inclinedHalfSpaceCorrection } from './surfaceHalfSpaceInclined.js';
 import { plateTwistScratch, plateTwistSeries, plateTwistTabulated } from './surfacePlateTwist.js';
 
-export type SurfaceCorrectionKind = 'parallel-screw-images' | 'parallel-stroh-images' | 'normal-screw-twist' | 'inclined-half-space';
+export type SurfaceCorrectionKind =
+  | 'parallel-screw-images'
+  | 'parallel-edge-images'
+  | 'parallel-stroh-images'
+  | 'normal-screw-twist'
+  | 'normal-edge-half-space'
+  | 'inclined-half-space';
 
 /** Whether a correction keeps the field invariant along the line (the shared-column method needs that). */
 export function invariantAlongLine(kind: SurfaceCorrectionKind): boolean {
-  return kind === 'parallel-screw-images' || kind === 'parallel-stroh-images';
+  return kind === 'parallel-screw-images' || kind === 'parallel-edge-images' || kind === 'parallel-stroh-images';
 }
 
 /** Plain data (worker threads rebuild the field from it). */
@@ -62,15 +72,18 @@ export const GEOMETRY_TOLERANCE = 1e-9;
 
 /**
  * The correction that applies to a line (unit `line`, through `point_nm`) with
- * Burgers vector b in the foil, or null: lines parallel to the surfaces without a
- * screw component (isotropic elasticity), lines normal to them without one, and a line parallel
+ * Burgers vector b in the foil, or null: a line parallel
  * to the surfaces that does not lie strictly inside the foil (one lying in a
  * surface, or a partial of a ribbon placed outside the foil: its images would
  * not be outside the foil). With `stiffness_GPa` (anisotropic elasticity) a
  * parallel line gets the anisotropic half-space images of both surfaces
  * (surfaceImagesStroh.ts, every Burgers vector) when its Stroh eigenvalues are
- * well separated, else the isotropic screw images. A line inclined to the
- * surfaces gets the half-space corrections of both surfaces (surfaceHalfSpaceInclined.ts).
+ * well separated, else the isotropic images: the screw image series for a pure
+ * screw ('parallel-screw-images'), that series plus the half-space images of the
+ * edge component (surfaceEdgeImages.ts) otherwise ('parallel-edge-images'). A line inclined to the
+ * surfaces gets the half-space corrections of both surfaces (surfaceHalfSpaceInclined.ts); a line
+ * normal to them the plate twist of its screw component and, with an edge component,
+ * the half-space corrections of that component ('normal-edge-half-space').
  */
 export function surfaceCorrectionFor(
   b_nm: Vec3,
@@ -88,9 +101,13 @@ export function surfaceCorrectionFor(
     const z0 = dot(point_nm, n);
     if (!(z0 > 1e-9 * thickness_nm && z0 < (1 - 1e-9) * thickness_nm)) return null;
     if (stiffness_GPa !== undefined && strohImagesApply(stiffness_GPa, u, n)) return { kind: 'parallel-stroh-images', normal: n, thickness_nm };
-    return screw ? { kind: 'parallel-screw-images', normal: n, thickness_nm } : null;
+    const edge = norm(cross(b_nm, u)) >= 1e-12 * norm(b_nm);
+    return edge ? { kind: 'parallel-edge-images', normal: n, thickness_nm } : { kind: 'parallel-screw-images', normal: n, thickness_nm };
   }
-  if (geometry === 'normal') return screw ? { kind: 'normal-screw-twist', normal: n, thickness_nm } : null;
+  if (geometry === 'normal') {
+    const edge = norm(cross(b_nm, u)) >= 1e-12 * norm(b_nm);
+    return edge ? { kind: 'normal-edge-half-space', normal: n, thickness_nm } : screw ? { kind: 'normal-screw-twist', normal: n, thickness_nm } : null;
+  }
   return { kind: 'inclined-half-space', normal: n, thickness_nm };
 }
 
@@ -132,6 +149,29 @@ export function surfaceCorrection(o: SurfaceCorrectionOptions): DisplacementFiel
       poissonRatio: o.poissonRatio,
       ...(o.stiffness_GPa === undefined ? {} : { stiffness_GPa: o.stiffness_GPa }),
     });
+  }
+  if (c.kind === 'normal-edge-half-space') {
+    // the screw part: the plate twist (exact in an isotropic plate); the edge part b - (b.u) u: the half-space
+    // correction of each surface (surfaceHalfSpaceInclined.ts, which holds for a line at any angle to the surface)
+    if (o.poissonRatio === undefined) throw new Error('internal: the half-space correction needs the Poisson ratio');
+    const u = unit(o.line);
+    const bs = dot(o.b_nm, u);
+    const be: Vec3 = [o.b_nm[0] - bs * u[0], o.b_nm[1] - bs * u[1], o.b_nm[2] - bs * u[2]];
+    const edge = inclinedHalfSpaceCorrection({
+      b_nm: be,
+      line: o.line,
+      point_nm: o.point_nm,
+      normal: c.normal,
+      thickness_nm: c.thickness_nm,
+      poissonRatio: o.poissonRatio,
+      ...(o.stiffness_GPa === undefined ? {} : { stiffness_GPa: o.stiffness_GPa }),
+    });
+    return Math.abs(bs) < 1e-12 * norm(o.b_nm) ? edge : superpose([normalScrewTwist(o), edge]);
+  }
+  if (c.kind === 'parallel-edge-images') {
+    if (o.poissonRatio === undefined) throw new Error('internal: the edge images need the Poisson ratio');
+    const edge = edgeHalfSpaceImages({ b_nm: o.b_nm, line: o.line, point_nm: o.point_nm, normal: c.normal, thickness_nm: c.thickness_nm, poissonRatio: o.poissonRatio });
+    return Math.abs(dot(o.b_nm, unit(o.line))) < 1e-12 * norm(o.b_nm) ? edge : superpose([parallelScrewImages(o), edge]);
   }
   return c.kind === 'parallel-screw-images' ? parallelScrewImages(o) : normalScrewTwist(o);
 }

@@ -5,7 +5,7 @@
  * which the integrator crosses with an exact phase step (alpha form).
  * Plain data so that worker threads can rebuild the same model.
  */
-import type { Vec3 } from '../math/vec3.js';
+import { type Vec3, unit } from '../math/vec3.js';
 import { directionToCartesian } from '../crystal/lattice.js';
 import type { Scenario } from '../scenario/types.js';
 import { referenceFrame } from './scenarioFrame.js';
@@ -13,6 +13,7 @@ import type { DisplacementField } from '../elasticity/field.js';
 import { superpose } from '../elasticity/field.js';
 import { straightDislocation } from '../elasticity/straightDislocation.js';
 import { sphericalInclusion } from '../elasticity/inclusion.js';
+import { inclusionInsideFoil, inclusionSurfaceCorrection } from '../elasticity/inclusionSurface.js';
 import { loopField } from '../elasticity/loopField.js';
 import { anisotropicDislocation } from '../elasticity/anisotropicDislocation.js';
 import { materialStiffness } from '../elasticity/stiffness.js';
@@ -49,6 +50,11 @@ export interface InclusionFieldSpec {
   readonly radius_nm: number;
   readonly strain: number;
   readonly poissonRatio: number;
+  /**
+   * Present when the foil surfaces are relaxed and the sphere lies wholly inside the foil: the
+   * Mindlin & Cheng half-space correction of each surface (elasticity/inclusionSurface.ts) is added.
+   */
+  readonly surfaceCorrection?: { readonly normal: Vec3; readonly thickness_nm: number };
 }
 
 /** A closed plane polygon loop, isotropic infinite medium (elasticity/loopField.ts). */
@@ -102,8 +108,9 @@ export function defectModel(sc: Scenario): DefectModel {
   return { fields, surfaces: out.surfaces };
 }
 
-/** A dislocation's spec with its surface correction, when one applies (the foil is 0 <= r.n <= t). */
-function withSurfaceCorrection(f: FieldSpec, normal: Vec3, thickness_nm: number): FieldSpec {
+/** A dislocation's or an inclusion's spec with its surface correction, when one applies (the foil is 0 <= r.n <= t). */
+export function withSurfaceCorrection(f: FieldSpec, normal: Vec3, thickness_nm: number): FieldSpec {
+  if (f.kind === 'inclusion') return inclusionInsideFoil(f.centre_nm, f.radius_nm, normal, thickness_nm) ? { ...f, surfaceCorrection: { normal: unit(normal), thickness_nm } } : f;
   if (f.kind !== 'dislocation') return f;
   const c = surfaceCorrectionFor(f.b_nm, f.line, f.point_nm, normal, thickness_nm, f.stiffness_GPa);
   return c === null ? f : { ...f, surfaceCorrection: c };
@@ -119,7 +126,12 @@ export function buildField(specs: readonly FieldSpec[]): DisplacementField | nul
   if (specs.length === 0) return null;
   const fields = specs.flatMap((s) => {
     if (s.kind === 'loop') return [loopField(s)];
-    if (s.kind !== 'dislocation') return [sphericalInclusion({ centre_nm: s.centre_nm, radius_nm: s.radius_nm, strain: s.strain, poissonRatio: s.poissonRatio })];
+    if (s.kind !== 'dislocation') {
+      const sphere = sphericalInclusion({ centre_nm: s.centre_nm, radius_nm: s.radius_nm, strain: s.strain, poissonRatio: s.poissonRatio });
+      if (s.surfaceCorrection === undefined) return [sphere];
+      const c = s.surfaceCorrection;
+      return [sphere, inclusionSurfaceCorrection({ centre_nm: s.centre_nm, strength_nm3: s.strain * s.radius_nm ** 3, normal: c.normal, thickness_nm: c.thickness_nm, poissonRatio: s.poissonRatio })];
+    }
     const line = s.stiffness_GPa === undefined ? straightDislocation(s) : anisotropicDislocation({ ...s, stiffness_GPa: s.stiffness_GPa });
     return s.surfaceCorrection === undefined ? [line] : [line, surfaceCorrection({ b_nm: s.b_nm, line: s.line, point_nm: s.point_nm, correction: s.surfaceCorrection, stiffness_GPa: s.stiffness_GPa, poissonRatio: s.poissonRatio })];
   });

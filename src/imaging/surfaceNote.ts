@@ -1,5 +1,5 @@
 /**
- * What the foil surfaces do to a scenario's dislocation fields, in words and as
+ * What the foil surfaces do to a scenario's dislocation and inclusion fields, in words and as
  * plain data, for render.json, reports and figure captions (beside the
  * elasticity note, src/elasticity/elasticityNote.ts).
  */
@@ -15,6 +15,9 @@ export interface SurfacesDescription {
   /** Straight lines (dislocations and partials) in the scenario, and how many of them carry a surface correction. */
   readonly lines: number;
   readonly correctedLines: number;
+  /** Inclusions in the scenario, and how many of them carry the half-space corrections (spheres wholly inside the foil). */
+  readonly inclusions: number;
+  readonly correctedInclusions: number;
   /** Lines per geometry: parallel to the surfaces, normal to them, inclined. */
   readonly geometry: { readonly parallel: number; readonly normal: number; readonly inclined: number };
   /** What is exact and what is approximated or left out. */
@@ -25,16 +28,27 @@ export interface SurfacesDescription {
 const KIND_TEXT: Readonly<Record<SurfaceCorrectionKind, string>> = {
   'parallel-screw-images':
     'lines parallel to the surfaces: the screw component gets its infinite series of image screws (closed form; exact for a screw in an isotropic plate), the edge component is not corrected',
+  'parallel-edge-images':
+    'lines parallel to the surfaces: the screw component gets its infinite series of image screws (exact for a screw in an isotropic plate), the edge component the isotropic half-space image of each surface (Head 1953; each surface is freed exactly on its own, but the image of one surface leaves a traction on the other, no repeated reflections: about 10-18 % of the unrelaxed traction within 40 nm of an edge 7-12 nm deep in a 60 nm foil, 50 % at mid-foil; beyond about two foil thicknesses from the line the images do not reduce the traction)',
   'parallel-stroh-images':
-    'lines parallel to the surfaces: the anisotropic half-space image of each surface (Stroh formalism, every Burgers vector; each surface is freed exactly on its own, but the image of one surface leaves a traction on the other, no repeated reflections: about 9-15 % of the unrelaxed traction for a line 10 nm deep in a 60 nm foil)',
+    'lines parallel to the surfaces: the anisotropic half-space image of each surface (Stroh formalism, every Burgers vector; each surface is freed exactly on its own, but the image of one surface leaves a traction on the other, no repeated reflections: about 9-15 % of the unrelaxed traction for a line 10 nm deep in a 60 nm foil; beyond about two foil thicknesses from the line the images do not reduce the traction)',
   'normal-screw-twist':
     'lines normal to the surfaces: the screw component gets the Eshelby & Stroh (1951) plate twist (exact for a screw in an isotropic plate), the edge component is not corrected',
+  'normal-edge-half-space':
+    'lines normal to the surfaces with an edge component: the screw component gets the Eshelby & Stroh (1951) plate twist (exact for a screw in an isotropic plate), the edge component the isotropic half-space correction of each surface (2D Fourier solution of the surface tractions, as for inclined lines; each surface is freed on its own, the correction of one leaves a traction on the other)',
   'inclined-half-space':
     'lines inclined to the surfaces: the isotropic half-space correction of each surface where the line meets it (2D Fourier solution of the surface tractions, every Burgers vector; each surface is freed on its own, the correction of one leaves a traction on the other; tabulated over directions from the emergence point and interpolated)',
 };
 
+/** What the inclusion correction does, in words. */
+const INCLUSION_TEXT =
+  'inclusions wholly inside the foil: the half-space correction of a centre of dilatation (Mindlin & Cheng 1950) for each surface, isotropic; each surface is freed exactly on its own, the correction of one leaves a traction on the other (no repeated reflections: about 1 % of the unrelaxed traction for a sphere 6 nm below a surface of a 50 nm foil, 19 % at mid-foil)';
+
 export function describeSurfaces(sc: Scenario): SurfacesDescription {
-  const fields = defectModel(sc).fields.flatMap((f) => (f.kind === 'dislocation' ? [f] : []));
+  const model = defectModel(sc).fields;
+  const fields = model.flatMap((f) => (f.kind === 'dislocation' ? [f] : []));
+  const spheres = model.flatMap((f) => (f.kind === 'inclusion' ? [f] : []));
+  const correctedInclusions = spheres.filter((f) => f.surfaceCorrection !== undefined).length;
   const n = fields.length;
   const geometry = { parallel: 0, normal: 0, inclined: 0 };
   const normal = directionToCartesian(sc.material.lattice, sc.foilNormal);
@@ -53,29 +67,38 @@ export function describeSurfaces(sc: Scenario): SurfacesDescription {
       text: 'infinite-medium dislocation fields (no free-surface relaxation; "surfaces": "infinite")',
       lines: n,
       correctedLines: 0,
+      inclusions: spheres.length,
+      correctedInclusions: 0,
       geometry,
       approximations: ['the foil surfaces are not traction-free: the infinite-medium field is used throughout'],
     };
   }
   const approximations: string[] = [...kinds].map((k) => KIND_TEXT[k]);
-  if (sc.elasticity === 'anisotropic' && (kinds.has('parallel-screw-images') || kinds.has('normal-screw-twist') || kinds.has('inclined-half-space'))) {
-    approximations.push('the screw image series, the plate twist and the half-space correction of inclined lines are isotropic (for inclined lines: the anisotropic field\'s own surface tractions, an isotropic response with the Voigt-average shear modulus), added to the anisotropic (Stroh) infinite field: the surface tractions are reduced, not exactly cancelled');
+  if (sc.elasticity === 'anisotropic' && (kinds.has('parallel-screw-images') || kinds.has('parallel-edge-images') || kinds.has('normal-screw-twist') || kinds.has('normal-edge-half-space') || kinds.has('inclined-half-space'))) {
+    approximations.push('the screw image series, the edge images of parallel lines, the plate twist and the half-space correction of inclined lines are isotropic (for inclined lines: the anisotropic field\'s own surface tractions, an isotropic response with the Voigt-average shear modulus), added to the anisotropic (Stroh) infinite field: the surface tractions are reduced, not exactly cancelled');
   }
-  approximations.push('inclusions are not relaxed at the surfaces');
+  if (correctedInclusions > 0) approximations.push(INCLUSION_TEXT);
+  if (correctedInclusions < spheres.length) approximations.push('an inclusion that a foil surface cuts is not relaxed at the surfaces (infinite-medium field)');
   approximations.push('dislocation loops are not relaxed at the surfaces (isotropic infinite-medium field; a loop that a surface cuts is refused)');
-  const count = n === 0 ? 'no straight lines in this scenario' : `${corrected} of ${n} straight line${n === 1 ? '' : 's'} corrected`;
+  const lineCount = n === 0 ? 'no straight lines in this scenario' : `${corrected} of ${n} straight line${n === 1 ? '' : 's'} corrected`;
+  const count = spheres.length === 0 ? lineCount : `${lineCount}, ${correctedInclusions} of ${spheres.length} inclusion${spheres.length === 1 ? '' : 's'} corrected`;
   const SHORT: Readonly<Record<SurfaceCorrectionKind, string>> = {
     'parallel-stroh-images': ' (anisotropic half-space images of each surface)',
     'parallel-screw-images': ' (screw image series)',
+    'parallel-edge-images': ' (screw image series and half-space images of the edge component)',
     'normal-screw-twist': ' (screw plate twist)',
+    'normal-edge-half-space': ' (screw plate twist and half-space corrections of the edge component)',
     'inclined-half-space': ' (isotropic half-space correction of each surface)',
   };
   const used = [...kinds].map((k) => KIND_TEXT[k].split(':')[0] + SHORT[k]);
+  if (correctedInclusions > 0) used.push('inclusions (half-space correction of a centre of dilatation for each surface)');
   return {
     setting: 'relaxed',
     text: `relaxed foil surfaces (${count}${used.length ? `: ${used.join('; ')}` : ''})`,
     lines: n,
     correctedLines: corrected,
+    inclusions: spheres.length,
+    correctedInclusions,
     geometry,
     approximations,
   };

@@ -4,7 +4,7 @@ import { type Vec3, cross, dot, norm, scale, unit } from '../../src/math/vec3.js
 import { correctableGeometry, surfaceCorrection, surfaceCorrectionFor, type SurfaceCorrectionSpec } from '../../src/elasticity/surfaceRelaxation.js';
 import { buildField, type DislocationFieldSpec } from '../../src/imaging/fieldSpecs.js';
 import type { DisplacementField } from '../../src/elasticity/field.js';
-import { fdGradient, loopIntegral, maxAbs, maxAbsDiff } from './helpers.js';
+import { fdGradient, loopIntegral, maxAbs, maxAbsDiff, rng } from './helpers.js';
 import { needPython, pythonJson } from '../python.js';
 import { getMaterial } from '../../src/crystal/materials.js';
 import { materialStiffness, stiffnessTensor } from '../../src/elasticity/stiffness.js';
@@ -12,6 +12,8 @@ import { strohHalfSpaceImages } from '../../src/elasticity/surfaceImagesStroh.js
 import { halfSpaceGradientDirect, inclinedHalfSpaceCorrection } from '../../src/elasticity/surfaceHalfSpaceInclined.js';
 import { straightDislocation } from '../../src/elasticity/straightDislocation.js';
 import { isotropicVoigt } from '../../src/elasticity/stiffness.js';
+import { edgeHalfSpaceImages } from '../../src/elasticity/surfaceEdgeImages.js';
+import { superpose } from '../../src/elasticity/field.js';
 
 // The foil: 0 <= r.n <= t with a tilted normal (any orientation must do), isotropic medium.
 const N: Vec3 = unit([1, 2, 2]);
@@ -99,18 +101,20 @@ function surfacePoints(c: LineCase): Vec3[] {
 }
 
 describe('surface relaxation: which lines get a correction', () => {
-  it('parallel and normal lines with a screw component, inclined lines with any b; not pure edges parallel or normal to the surfaces (isotropic)', () => {
+  it('parallel lines with any b (a pure screw: the screw images; with an edge component: screw and edge images), normal lines with any b (a pure screw: the plate twist; with an edge component: twist and half-space corrections), inclined lines with any b', () => {
     expect(surfaceCorrectionFor(scale(U_PAR, BL), U_PAR, at(10, 0, 0), N, T)?.kind).toBe('parallel-screw-images');
     expect(surfaceCorrectionFor(scale(N, BL), N, at(0, 0, 0), N, T)?.kind).toBe('normal-screw-twist');
     expect(surfaceCorrectionFor(scale(N, BL), scale(N, -1), at(70, 1, 1), N, T)?.kind).toBe('normal-screw-twist');
-    expect(surfaceCorrectionFor(scale(E2, BL), U_PAR, at(10, 0, 0), N, T)).toBeNull(); // pure edge parallel to the surfaces
+    expect(surfaceCorrectionFor(scale(E2, BL), U_PAR, at(10, 0, 0), N, T)?.kind).toBe('parallel-edge-images'); // pure edge parallel to the surfaces
+    expect(surfaceCorrectionFor([0.1, 0.05, 0.2], U_PAR, at(10, 0, 0), N, T)?.kind).toBe('parallel-edge-images'); // mixed
     // a parallel line in a surface or outside the foil (a ribbon's partial placed there): no images
     expect(surfaceCorrectionFor(scale(U_PAR, BL), U_PAR, at(0, 0, 0), N, T)).toBeNull();
     expect(surfaceCorrectionFor(scale(U_PAR, BL), U_PAR, at(T, 0, 0), N, T)).toBeNull();
     expect(surfaceCorrectionFor(scale(U_PAR, BL), U_PAR, at(-3, 0, 0), N, T)).toBeNull();
     const inclined = unit([N[0] + E1[0], N[1] + E1[1], N[2] + E1[2]]);
     expect(surfaceCorrectionFor(scale(inclined, BL), inclined, at(10, 0, 0), N, T)?.kind).toBe('inclined-half-space');
-    expect(surfaceCorrectionFor(scale(E2, BL), N, at(10, 0, 0), N, T)).toBeNull(); // pure edge normal to the surfaces
+    expect(surfaceCorrectionFor(scale(E2, BL), N, at(10, 0, 0), N, T)?.kind).toBe('normal-edge-half-space'); // pure edge normal to the surfaces
+    expect(surfaceCorrectionFor([0.1, 0.2, 0.05], N, at(10, 0, 0), N, T)?.kind).toBe('normal-edge-half-space'); // mixed normal line
     expect(correctableGeometry(inclined, N)).toBe('inclined');
   });
 });
@@ -142,21 +146,27 @@ describe('surface relaxation: free surfaces (isotropic Hooke law, Hirth & Lothe 
     });
   }
 
-  it('mixed line parallel to the surfaces: the antiplane traction (along u) vanishes, the in-plane traction of the edge component remains (not corrected, as documented)', () => {
+  it('mixed line parallel to the surfaces in the plate: the antiplane traction (along u) vanishes (screw image series, exact), the in-plane traction of the edge component drops but not to zero (its two half-space images, no repeated reflections)', () => {
     const b: Vec3 = [0.6 * BL * U_PAR[0] + 0.8 * BL * E2[0], 0.6 * BL * U_PAR[1] + 0.8 * BL * E2[1], 0.6 * BL * U_PAR[2] + 0.8 * BL * E2[2]];
     const c: LineCase = { name: 'mixed', b, u: U_PAR, P: at(9, 0, 0), depth: 9 };
     const relaxed = fieldOf(c, true);
+    const infinite = fieldOf(c, false);
     const g = new Float64Array(9);
     let antiplane = 0;
     let inPlane = 0;
+    let inPlaneInfinite = 0;
+    const inPlaneOf = (tr: Vec3) => Math.hypot(tr[0] - dot(tr, c.u) * c.u[0], tr[1] - dot(tr, c.u) * c.u[1], tr[2] - dot(tr, c.u) * c.u[2]);
     for (const p of surfacePoints(c)) {
       relaxed.gradient(g, p[0], p[1], p[2]);
       const tr = traction(g, N);
       antiplane = Math.max(antiplane, Math.abs(dot(tr, c.u)));
-      inPlane = Math.max(inPlane, Math.hypot(tr[0] - dot(tr, c.u) * c.u[0], tr[1] - dot(tr, c.u) * c.u[1], tr[2] - dot(tr, c.u) * c.u[2]));
+      inPlane = Math.max(inPlane, inPlaneOf(tr));
+      infinite.gradient(g, p[0], p[1], p[2]);
+      inPlaneInfinite = Math.max(inPlaneInfinite, inPlaneOf(traction(g, N)));
     }
     expect(antiplane).toBeLessThan(1e-9);
-    expect(inPlane).toBeGreaterThan(1e-3);
+    expect(inPlane / inPlaneInfinite).toBeLessThan(0.1);
+    expect(inPlane / inPlaneInfinite).toBeGreaterThan(1e-4);
   });
 });
 
@@ -657,4 +667,263 @@ describe('surface corrections on the renderer hot path (directional g.(grad R).k
       expect(worst).toBeLessThan(bound);
     });
   }
+});
+
+describe('surface relaxation of the edge component of a line parallel to the surfaces, isotropic (Head 1953 half-space image; complex potentials, Muskhelishvili ch. 5)', () => {
+  // Isotropic Hooke's law (traction() above, mu = 1, nu = NU) on the half-space r.n = 0 (material r.n > 0) and on r.n = T
+  // (material r.n < T); the infinite field is the code's Hirth & Lothe isotropic field (straightDislocation.ts).
+  const cases: [string, Vec3, Vec3, number][] = [
+    // label, Burgers vector, line, depth
+    ['pure edge, b along the foil normal', scale(N, BL), U_PAR, 7],
+    ['pure edge, b in the surface plane', scale(E2, BL), U_PAR, 12],
+    ['mixed (60 degrees), other line direction', [0.5 * BL * U_PAR2[0] + 0.866 * BL * N[0], 0.5 * BL * U_PAR2[1] + 0.866 * BL * N[1], 0.5 * BL * U_PAR2[2] + 0.866 * BL * N[2]], U_PAR2, 41],
+    ['edge with b oblique to the normal, line 2 nm deep', unit(scale(cross(U_PAR, [0.3, -0.2, 0.9]), 1)).map((v) => v * BL) as unknown as Vec3, U_PAR, 2],
+  ];
+  const infiniteOf = (b: Vec3, u: Vec3, P: Vec3) => straightDislocation({ b_nm: b, line: u, point_nm: P, poissonRatio: NU, coreRadius_nm: 1e-6 });
+  const imagesOf = (b: Vec3, u: Vec3, P: Vec3, only?: 'entrance' | 'exit') => edgeHalfSpaceImages({ b_nm: b, line: u, point_nm: P, normal: N, thickness_nm: T, poissonRatio: NU, ...(only === undefined ? {} : { only }) });
+  const NEAR = [-40, -12, -4, -1, -0.3, 0, 0.3, 1, 4, 12, 40];
+  const surfaceTractions = (f: DisplacementField, u: Vec3, P: Vec3, depth: number, offsets: readonly number[] = NEAR): number[] => {
+    const side = unit(cross(N, u));
+    const g = new Float64Array(9);
+    const out: number[] = [];
+    const p0 = dot(P, N);
+    for (const d of offsets) {
+      const p: Vec3 = [0, 1, 2].map((i) => P[i] + (depth - p0) * N[i] + d * side[i] + 5 * u[i]) as unknown as Vec3;
+      f.gradient(g, p[0], p[1], p[2]);
+      out.push(norm(traction(g, N)));
+    }
+    return out;
+  };
+  for (const [label, b, u, depth] of cases) {
+    const P = at(depth, 2, -1).map((v, i) => v + 0 * u[i]) as unknown as Vec3;
+    for (const which of ['entrance', 'exit'] as const) {
+      it(`${label}: the ${which}-surface image alone frees that surface of a half-space (< 1e-10 of the largest unrelaxed traction; < 1e-6 with the images' gradient from finite differences of their displacement), which the infinite field alone loads`, () => {
+        // the images see only the edge component b - (b.u) u: compare with that component's infinite field
+        const be = [0, 1, 2].map((i) => b[i] - dot(b, u) * u[i]) as unknown as Vec3;
+        const inf = infiniteOf(be, u, P);
+        const relaxed = superpose([inf, imagesOf(b, u, P, which)]);
+        const z = which === 'entrance' ? 0 : T;
+        // near the line and far from it (300 nm: the half-space image is exact everywhere on its surface)
+        const offsets = [...NEAR, -300, 300];
+        const ti = surfaceTractions(inf, u, P, z, offsets);
+        const tr = surfaceTractions(relaxed, u, P, z, offsets);
+        for (let q = 0; q < ti.length; q++) expect(tr[q]).toBeLessThan(1e-9 * ti[q] + 1e-12 * Math.max(...ti));
+        // the images' gradient from central finite differences of their displacement (h = 1e-3 nm) gives the same
+        const img = imagesOf(b, u, P, which);
+        const fdImg: DisplacementField = { displacement: img.displacement, gradient: (out, x, y, zz) => out.set(fdGradient(img, [x, y, zz], 1e-3)), directional: img.directional };
+        const trFd = surfaceTractions(superpose([inf, fdImg]), u, P, z, offsets);
+        expect(Math.max(...trFd) / Math.max(...ti)).toBeLessThan(1e-6);
+        const largest = Math.max(...ti);
+        expect(largest).toBeGreaterThan((0.1 * MU * norm(be)) / (2 * Math.PI * (which === 'entrance' ? depth : T - depth)));
+        expect(Math.max(...tr) / largest).toBeLessThan(1e-10);
+      });
+    }
+    it(`${label}: the images' gradient equals finite differences of their displacement (h = 1e-4 nm, to 1e-8), they are in equilibrium (Navier, finite differences of the stress) and single-valued (the relaxed Burgers circuit closes to b)`, () => {
+      const f = imagesOf(b, u, P);
+      const g = new Float64Array(9);
+      const pts: Vec3[] = [at(0.5, 3, 1), at(depth, 1, 0.2), at(30, -8, 4), at(59.5, 2, -2), at(20, 70, -30)];
+      for (const p of pts) {
+        f.gradient(g, p[0], p[1], p[2]);
+        expect(maxAbsDiff(g, fdGradient(f, p, 1e-4))).toBeLessThan(1e-8);
+        const h = 1e-3;
+        const div = [0, 0, 0];
+        for (let j = 0; j < 3; j++) {
+          const e: Vec3 = [j === 0 ? h : 0, j === 1 ? h : 0, j === 2 ? h : 0];
+          f.gradient(g, p[0] + e[0], p[1] + e[1], p[2] + e[2]);
+          const sp = [traction(g, [1, 0, 0]), traction(g, [0, 1, 0]), traction(g, [0, 0, 1])];
+          f.gradient(g, p[0] - e[0], p[1] - e[1], p[2] - e[2]);
+          const sm = [traction(g, [1, 0, 0]), traction(g, [0, 1, 0]), traction(g, [0, 0, 1])];
+          for (let i = 0; i < 3; i++) div[i] += (sp[j][i] - sm[j][i]) / (2 * h);
+        }
+        const dd = Math.min(dot(p, N) + depth, T - dot(p, N) + T - depth); // distance to the nearer image line
+        expect(maxAbs(div)).toBeLessThan((1e-6 * MU * BL) / (dd * dd));
+      }
+      const full = buildField([{ kind: 'dislocation', b_nm: b, line: u, point_nm: P, poissonRatio: NU, cutDirection: unit(cross(u, [0.3, 0.1, 0.9])), coreRadius_nm: 0.05, surfaceCorrection: { kind: 'parallel-edge-images', normal: N, thickness_nm: T } }])!;
+      const a = unit(cross(u, [0.2, 0.7, -0.4]));
+      const bb = cross(u, a);
+      const rad = Math.min(1.5, 0.5 * depth);
+      const loop = loopIntegral(
+        full,
+        (s) => {
+          const ph = 2 * Math.PI * s;
+          const cs = Math.cos(ph), sn = Math.sin(ph);
+          return {
+            p: [0, 1, 2].map((i) => P[i] + rad * (cs * a[i] + sn * bb[i])) as unknown as Vec3,
+            t: [0, 1, 2].map((i) => 2 * Math.PI * rad * (-sn * a[i] + cs * bb[i])) as unknown as Vec3,
+          };
+        },
+        2048,
+      );
+      expect(maxAbsDiff(loop, b)).toBeLessThan(1e-9);
+    });
+  }
+  it('deep in a thick foil the images vanish (far from both surfaces the field is the infinite one)', () => {
+    const b = scale(N, BL);
+    const Tbig = 1e5;
+    const P = at(Tbig / 2, 0, 0);
+    const f = edgeHalfSpaceImages({ b_nm: b, line: U_PAR, point_nm: P, normal: N, thickness_nm: Tbig, poissonRatio: NU });
+    const inf = infiniteOf(b, U_PAR, P);
+    const g = new Float64Array(9), h = new Float64Array(9);
+    const p = at(Tbig / 2 + 3, 4, 0);
+    f.gradient(g, p[0], p[1], p[2]);
+    inf.gradient(h, p[0], p[1], p[2]);
+    expect(maxAbs(g)).toBeLessThan(1e-4 * maxAbs(h)); // ~ (5 nm / 5e4 nm)
+  });
+  it('plate of 60 nm (both images, no repeated reflections): the largest surface traction drops well below the unrelaxed one but does not vanish (measured, README)', () => {
+    // measured when written: 0.123 0.097 0.332 0.033 for the four lines above, 0.125 and 0.424 for an edge with b along n
+    // 10 and 30 nm deep: the residual grows as the line nears the middle of the foil, where both images are large
+    const ratios: number[] = [];
+    const more: [string, Vec3, Vec3, number][] = [['', scale(N, BL), U_PAR, 10], ['', scale(N, BL), U_PAR, 30]];
+    for (const [, b, u, depth] of [...cases, ...more]) {
+      const P = at(depth, 2, -1);
+      const inf = infiniteOf(b, u, P);
+      // the full correction: screw image series (exact in the plate) and the two edge images
+      const relaxed = superpose([inf, surfaceCorrection({ b_nm: b, line: u, point_nm: P, correction: { kind: 'parallel-edge-images', normal: N, thickness_nm: T }, poissonRatio: NU })]);
+      const worstR = Math.max(...surfaceTractions(relaxed, u, P, 0), ...surfaceTractions(relaxed, u, P, T));
+      const worstI = Math.max(...surfaceTractions(inf, u, P, 0), ...surfaceTractions(inf, u, P, T));
+      ratios.push(worstR / worstI);
+    }
+    console.log('isotropic edge images, plate residual / unrelaxed (depths 7, 12, 41, 2, 10, 30 nm)', ratios.map((r) => r.toFixed(4)).join(' '));
+    for (const r of ratios) {
+      expect(r).toBeLessThan(0.6);
+      expect(r).toBeGreaterThan(1e-5);
+    }
+  });
+  it('far from the line (160 nm, about 3 foil thicknesses) the two half-space images leave most of the unrelaxed traction (the documented limit of adding them without repeated reflections)', () => {
+    // each half-space image tends to minus the line's own long-range field far from the line, so the sum of both
+    // does too; measured when written: 1.10 of the unrelaxed traction at 160 nm for an edge (b along n) 8 and 30 nm deep
+    const side = unit(cross(N, U_PAR));
+    const g = new Float64Array(9);
+    for (const depth of [8, 30]) {
+      const b = scale(N, BL);
+      const P = at(depth, 0, 0);
+      const inf = infiniteOf(b, U_PAR, P);
+      const rel = superpose([inf, imagesOf(b, U_PAR, P)]);
+      let ti = 0, tr = 0;
+      for (const z of [0, T]) {
+        const p: Vec3 = [0, 1, 2].map((i) => P[i] + (z - depth) * N[i] + 160 * side[i]) as unknown as Vec3;
+        inf.gradient(g, p[0], p[1], p[2]);
+        ti = Math.max(ti, norm(traction(g, N)));
+        rel.gradient(g, p[0], p[1], p[2]);
+        tr = Math.max(tr, norm(traction(g, N)));
+      }
+      console.log(`edge ${depth} nm deep, 160 nm aside: relaxed / unrelaxed traction ${(tr / ti).toFixed(3)}`);
+      expect(tr / ti).toBeGreaterThan(0.5);
+    }
+  });
+});
+
+describe('surface relaxation of the edge component of a line normal to the surfaces (half-space correction of each surface, as for inclined lines; screw part: the plate twist)', () => {
+  const nu = NU;
+  const Pn: Vec3 = at(25, 1, -2);
+  const edgeB = scale(E2, BL);
+  const mixedB: Vec3 = [0, 1, 2].map((i) => 0.6 * BL * E1[i] + 0.8 * BL * N[i]) as unknown as Vec3;
+  const pointsOn = (depth: number): Vec3[] => {
+    const out: Vec3[] = [];
+    for (const r of [0.4, 1, 3, 10, 30]) for (let k = 0; k < 11; k++) {
+      const ph = 0.37 + (2 * Math.PI * k) / 11;
+      out.push([0, 1, 2].map((i) => Pn[i] + (depth - 25) * N[i] + r * (Math.cos(ph) * E1[i] + Math.sin(ph) * E2[i])) as unknown as Vec3);
+    }
+    return out;
+  };
+  /** Largest r |T| on the surface at `depth` (the traction of a line meeting a surface is homogeneous of degree -1 about the emergence point). */
+  const rT = (f: DisplacementField, depth: number): number => {
+    const g = new Float64Array(9);
+    let m = 0;
+    for (const p of pointsOn(depth)) {
+      f.gradient(g, p[0], p[1], p[2]);
+      const d = [0, 1, 2].map((i) => p[i] - Pn[i] - (depth - 25) * N[i]);
+      m = Math.max(m, Math.hypot(d[0], d[1], d[2]) * norm(traction(g, N)));
+    }
+    return m;
+  };
+  const maxT = (f: DisplacementField, depth: number): number => {
+    const g = new Float64Array(9);
+    let m = 0;
+    for (const p of pointsOn(depth)) {
+      f.gradient(g, p[0], p[1], p[2]);
+      m = Math.max(m, norm(traction(g, N)));
+    }
+    return m;
+  };
+  const inf = (b: Vec3) => straightDislocation({ b_nm: b, line: N, point_nm: Pn, poissonRatio: nu, coreRadius_nm: 1e-6 });
+  for (const which of ['entrance', 'exit'] as const) {
+    it(`pure edge along the normal, ${which} surface alone (half-space): the traction vanishes to 1e-6 of the unrelaxed one (measured 2e-7)`, () => {
+      const corr = inclinedHalfSpaceCorrection({ b_nm: edgeB, line: N, point_nm: Pn, normal: N, thickness_nm: T, poissonRatio: nu, only: which });
+      const z = which === 'entrance' ? 0 : T;
+      const before = rT(inf(edgeB), z);
+      const after = rT(superpose([inf(edgeB), corr]), z);
+      expect(before).toBeGreaterThan(1e-3);
+      expect(after / before).toBeLessThan(1e-6);
+    });
+  }
+  it('plate of 60 nm, pure edge and mixed line along the normal (twist + both half-space corrections, no repeated reflections): the surface tractions drop well below the unrelaxed ones, measured (README); the relaxed Burgers circuit still closes', () => {
+    const ratios: number[] = [];
+    for (const b of [edgeB, mixedB]) {
+      const spec: DislocationFieldSpec = { kind: 'dislocation', b_nm: b, line: N, point_nm: Pn, poissonRatio: nu, cutDirection: E1, coreRadius_nm: 1e-6 };
+      const c = surfaceCorrectionFor(b, N, Pn, N, T);
+      expect(c?.kind).toBe('normal-edge-half-space');
+      const relaxed = buildField([{ ...spec, surfaceCorrection: c! }])!;
+      const infinite = buildField([spec])!;
+      // largest |T| (as for inclined lines above; r |T| would weight the far points, where the other surface's correction dominates)
+      ratios.push(Math.max(maxT(relaxed, 0), maxT(relaxed, T)) / Math.max(maxT(infinite, 0), maxT(infinite, T)));
+      const rad = 2;
+      const loop = loopIntegral(
+        relaxed,
+        (sv) => {
+          const ph = 2 * Math.PI * sv;
+          const cs = Math.cos(ph), sn = Math.sin(ph);
+          return {
+            p: [0, 1, 2].map((i) => Pn[i] + rad * (cs * E1[i] + sn * E2[i])) as unknown as Vec3,
+            t: [0, 1, 2].map((i) => 2 * Math.PI * rad * (-sn * E1[i] + cs * E2[i])) as unknown as Vec3,
+          };
+        },
+        2048,
+      );
+      // E1 x E2 = N: the circuit is right-handed about the line; the tabulated correction integrates to ~1e-6 nm
+      expect(maxAbsDiff(loop, b)).toBeLessThan(2e-5);
+    }
+    // measured when written: 0.0043 (pure edge) and 0.0026 (mixed) of the largest unrelaxed traction (which sits
+    // next to the emergence point); compared as r |T| instead (each point against the line's own 1/r traction) the
+    // residual reaches 0.32 and 0.20 at 30 nm from the emergence point, where the other surface's correction dominates
+    console.log('normal line, plate residual / unrelaxed (pure edge, mixed)', ratios.map((r) => r.toFixed(4)).join(' '), '; as r|T|:', [edgeB, mixedB].map((b) => {
+      const spec: DislocationFieldSpec = { kind: 'dislocation', b_nm: b, line: N, point_nm: Pn, poissonRatio: nu, cutDirection: E1, coreRadius_nm: 1e-6 };
+      const relaxed = buildField([{ ...spec, surfaceCorrection: surfaceCorrectionFor(b, N, Pn, N, T)! }])!;
+      const infinite = buildField([spec])!;
+      return (Math.max(rT(relaxed, 0), rT(relaxed, T)) / Math.max(rT(infinite, 0), rT(infinite, T))).toFixed(3);
+    }).join(' '));
+    for (const r of ratios) {
+      expect(r).toBeLessThan(0.02);
+      expect(r).toBeGreaterThan(1e-6);
+    }
+  });
+});
+
+describe('edge images of a parallel line against an independent evaluation (scripts/ref_edge_images.py: the general half-plane theorem of complex potentials applied to the infinite-medium potentials, gradient by Richardson-extrapolated finite differences)', () => {
+  const py = needPython('numpy');
+  const script = readFileSync(new URL('../../scripts/ref_edge_images.py', import.meta.url), 'utf8');
+  it('both surfaces, 30 random points of a 60 nm foil, mixed line 9 nm deep: the in-plane gradient agrees to 1e-8 relative', (ctx) => {
+    py.require(ctx);
+    const r = rng(23);
+    const b: Vec3 = [0, 1, 2].map((i) => 0.1 * U_PAR[i] + 0.2 * E2[i] - 0.12 * N[i]) as unknown as Vec3;
+    const P = at(9, 2, -1);
+    const m = cross(N, U_PAR);
+    const pts: Vec3[] = [];
+    for (let i = 0; i < 30; i++) pts.push(at(0.5 + 59 * r(), 80 * r() - 40, 80 * r() - 40));
+    const local = pts.map((p) => [dot(m, p) - dot(m, P), dot(N, p)]);
+    const ref = pythonJson<number[][]>(script, { bx: dot(b, m), by: dot(b, N), d: dot(P, N), t: T, nu: NU, points: local });
+    const f = edgeHalfSpaceImages({ b_nm: b, line: U_PAR, point_nm: P, normal: N, thickness_nm: T, poissonRatio: NU });
+    const g = new Float64Array(9);
+    const ex = [m, N];
+    pts.forEach((p, q) => {
+      f.gradient(g, p[0], p[1], p[2]);
+      const mine: number[] = [];
+      for (const a of ex) for (const c of ex) {
+        let s = 0;
+        for (let i = 0; i < 3; i++) for (let j = 0; j < 3; j++) s += a[i] * g[3 * i + j] * c[j];
+        mine.push(s);
+      }
+      expect(maxAbsDiff(mine, ref[q])).toBeLessThan(1e-8 * maxAbs(ref[q]));
+    });
+  });
 });

@@ -67,6 +67,10 @@ describe('translation method equals column-by-column integration (exact identity
     // relaxed surfaces (not the default): the image screws of a parallel line keep the field invariant along the line
     ['screw parallel to the surfaces 10 nm deep, with its surface images (relaxed)', { surfaces: 'relaxed', defects: [{ type: 'dislocation', b: '1/2[1 1 0]', line: [1, 1, 0], point_nm: [0, 0, 10] }] }],
     [
+      'isotropic mixed line parallel to the surfaces with its screw images and edge half-space images (relaxed), tilted beam [0 1 8]',
+      { surfaces: 'relaxed', elasticity: 'isotropic', beam: [0, 1, 8], defects: [{ type: 'dislocation', b: '1/2[1 0 1]', line: [1, 0, 0], point_nm: [0, -4, 12] }] },
+    ],
+    [
       'two parallel mixed lines with their surface images (relaxed), tilted beam [0 1 8]',
       {
         surfaces: 'relaxed',
