@@ -65,6 +65,28 @@ describe('thinfoil traces', () => {
   });
 
   it.each([
+    [{ a: { gAngle_deg: 400 } }, /^thinfoil: micrographs\.a\.gAngle_deg: must be at most 360 \(degrees\), got 400\n$/],
+    [{ a: { gAngle_deg: '12' } }, /^thinfoil: micrographs\.a\.gAngle_deg: must be a finite number \(degrees\)\n$/],
+    [{ a: { pixel_nm: -1, gAngle_deg: 12 } }, /^thinfoil: micrographs\.a\.pixel_nm: must be greater than 0/],
+    [{ c: { gAngle_deg: 12 } }, /^thinfoil: micrographs\.c: names no condition of the scenario; use one of a, b\n$/],
+  ])('a bad "micrographs" setting %j in the scenario: exit code 2 and one sentence naming its JSON path', (micrographs, pattern) => {
+    const dir = mkdtempSync(join(tmpdir(), 'thinfoil-traces-'));
+    const file = join(dir, 'traces.json');
+    writeFileSync(
+      file,
+      JSON.stringify({
+        name: 'traces', material: 'Cu', kV: 200, foil: { thickness_nm: 120, normal: [0, 0, 1] }, beam: [0, 0, 1],
+        conditions: [{ id: 'a', g: [2, 0, 0], w: 0.5 }, { id: 'b', g: [2, 0, 0], w: 0.5, beam: [0, 1, 1] }],
+        defects: [{ type: 'dislocation', b: '1/2[1 1 0]', line: [1, -1, 2], point_nm: [0, 0, 60] }],
+        micrographs,
+      }),
+    );
+    const r = run('traces', file, '--view', 'condition=a lineAngle=57', '--view', 'condition=b gAngle=-35 lineAngle=29.76');
+    expect(r.code).toBe(2);
+    expect(r.err).toMatch(pattern);
+  });
+
+  it.each([
     [['traces', 'Cu', '--view', 'beam=0,0,1 g=2,0,0 gAngle=0 lineAngle=45'], /--view: .*at least two views/],
     [['traces', 'Cu', '--view', 'beam=0,0,1 g=2,0,0 gAngle=0 lineAngle=45', '--view', 'beam=0,1,1 g=2,0,0 gAngle=0'], /--view 2 lineAngle: missing/],
     [['traces', 'Cu', '--view', 'beam=0,0,1 g=2,0,0 gAngle=0 lineAngle=45', '--view', 'beam=0,1,1 g=1,1,1 gAngle=0 lineAngle=3'], /--view 2: g = \(1 1 1\) .* out of the zone/],
