@@ -18,6 +18,7 @@ import type { Material } from '../crystal/material.js';
 import { directionToCartesian, usesFourIndices } from '../crystal/lattice.js';
 import { formatDirectionIn, formatPlaneIn } from '../crystal/formatIndices.js';
 import { parseFamily } from '../crystal/symmetry.js';
+import { isForbidden } from '../scattering/reflection.js';
 import { directionText } from '../geometry/conditionGeometry.js';
 import { readDirection, readPlane, readVector, parseScenario } from '../scenario/parse.js';
 import type { Scenario } from '../scenario/types.js';
@@ -97,6 +98,13 @@ function parseView(text: string, i: number, m: Material, sc: Scenario | undefine
     if (gg === undefined) throw new InputError(`${name} g: missing; give a reflection of that zone whose direction on the micrograph you know, e.g. g=2,0,0`);
     beam = readDirection(b, `${name} beam`, m);
     g = readPlane(gg, `${name} g`, m);
+    // only g's direction enters the fit, but a reflection that cannot be excited is a typo or a misread pattern
+    if (!g.every((h) => Number.isInteger(h))) throw new InputError(`${name} g: (${g.join(' ')}) is not a reflection; give whole-number indices of the reflection that was excited, e.g. g=2,0,0`);
+    if (isForbidden(m, g)) {
+      const g2: Vec3 = [2 * g[0], 2 * g[1], 2 * g[2]];
+      const hint = isForbidden(m, g2) ? '' : `, e.g. ${formatPlaneIn(m.lattice, g2)}`;
+      throw new InputError(`${name} g: ${formatPlaneIn(m.lattice, g)} is forbidden for the ${m.structure} structure of ${m.name} (its structure factor vanishes by symmetry); give the reflection that was excited${hint}`);
+    }
   }
   if (gAngle === undefined) throw new InputError(`${name} gAngle: missing; give the direction of g on the micrograph in degrees counter-clockwise from +x (+y down), e.g. gAngle=10`);
   const lineAngle = num('lineAngle', -360, 360, 'the direction of the line on the micrograph in degrees');

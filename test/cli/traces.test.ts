@@ -95,6 +95,12 @@ describe('thinfoil traces', () => {
     [['traces', 'Cu', '--view', 'beam=0,0,1 g=2,0,0 gAngle=0 lineAngle=45', '--view', 'beam=0,0,1 g=0,2,0 gAngle=90 lineAngle=3'], /--view: the beam directions/],
     [['traces', 'Cu', '--view', 'beam=0,0,1 g=2,0,0 gAngle=0 lineAngle=45 length=50', '--view', 'beam=0,1,1 g=2,0,0 gAngle=0 lineAngle=60'], /--normal/],
     [['traces', 'Cu', '--view', 'beam=0,0,1 g=2,0,0 gAngle=0 lineAngle=45', '--view', 'beam=0,1,1 g=2,0,0 gAngle=0 lineAngle=60', '--b', '{111}'], /--b 1/],
+    // extinction rules of the kinematical structure factor (textbook rules, e.g. Williams & Carter, Transmission Electron
+    // Microscopy; quoted from memory, exact for whole indices): fcc needs h, k, l all even or all odd; bcc needs h + k + l even; diamond also forbids all-even with h + k + l = 4n + 2
+    [['traces', 'Cu', '--view', 'beam=0,0,1 g=1,0,0 gAngle=0 lineAngle=45', '--view', 'beam=0,1,1 g=2,0,0 gAngle=0 lineAngle=60'], /^thinfoil: --view 1 g: \(1 0 0\) is forbidden for the fcc structure of Cu .*give the reflection that was excited, e\.g\. \(2 0 0\)\n$/],
+    [['traces', 'alpha-Fe', '--view', 'beam=0,0,1 g=2,0,0 gAngle=0 lineAngle=45', '--view', 'beam=1,-1,0 g=1,1,1 gAngle=0 lineAngle=60'], /^thinfoil: --view 2 g: \(1 1 1\) is forbidden for the bcc structure of alpha-Fe .*e\.g\. \(2 2 2\)\n$/],
+    [['traces', 'Si', '--view', 'beam=0,0,1 g=2,0,0 gAngle=0 lineAngle=45', '--view', 'beam=0,1,1 g=4,0,0 gAngle=0 lineAngle=60'], /^thinfoil: --view 1 g: \(2 0 0\) is forbidden for the diamond structure of Si .*e\.g\. \(4 0 0\)\n$/],
+    [['traces', 'Cu', '--view', 'beam=0,0,1 g=2.5,0,0 gAngle=0 lineAngle=45', '--view', 'beam=0,1,1 g=2,0,0 gAngle=0 lineAngle=60'], /^thinfoil: --view 1 g: \(2\.5 0 0\) is not a reflection; give whole-number indices/],
     [['traces', 'Unobtainium', '--view', 'beam=0,0,1 g=2,0,0 gAngle=0 lineAngle=45'], /material/],
   ])('bad input %j: exit code 2 and one sentence naming the field', (args, pattern) => {
     const r = run(...(args as string[]));
