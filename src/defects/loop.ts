@@ -160,16 +160,22 @@ function readFault(v: unknown, path: string, m: Material, b: Vec3, normal: Vec3)
   return { nature, vector };
 }
 
+export type LoopNature = 'vacancy' | 'interstitial' | 'shear';
+
 /**
- * Nature of a loop from b and its normal (loopField.ts: the line runs counterclockwise about n, so
- * b.n > 0 is a vacancy loop and b.n < 0 an interstitial loop); "shear" when b lies in the loop plane
- * (|b.n| < 1e-6 |b|).
+ * Nature of a loop from b and its unit normal n, both crystal Cartesian (loopField.ts: the line runs
+ * counterclockwise about n, so b.n > 0 is a vacancy loop and b.n < 0 an interstitial loop); "shear"
+ * when b lies in the loop plane (|b.n| < 1e-6 |b|).
  */
-export function loopNature(m: Material, d: LoopSpec): 'vacancy' | 'interstitial' | 'shear' {
-  const b = directionToCartesian(m.lattice, d.b);
-  const bn = dot(b, d.frame.n);
-  if (Math.abs(bn) < 1e-6 * norm(b)) return 'shear';
+export function natureOfBurgers(b_cart: Vec3, n: Vec3): LoopNature {
+  const bn = dot(b_cart, n);
+  if (Math.abs(bn) < 1e-6 * norm(b_cart)) return 'shear';
   return bn > 0 ? 'vacancy' : 'interstitial';
+}
+
+/** Nature of a loop as given (its b and habit-plane normal). */
+export function loopNature(m: Material, d: LoopSpec): LoopNature {
+  return natureOfBurgers(directionToCartesian(m.lattice, d.b), d.frame.n);
 }
 
 export const loop: DefectType<LoopSpec> = {
