@@ -42,7 +42,7 @@ import { background, renderJob } from '../imaging/renderScenario.js';
 import { columnEvaluator } from '../imaging/renderRows.js';
 import { directionToCartesian } from '../crystal/lattice.js';
 import { natureOfBurgers, type LoopNature } from '../defects/loop.js';
-import { formatVector } from '../scenario/parse.js';
+import { indicesWithFraction } from '../crystal/formatIndices.js';
 
 export type Side = 'inside' | 'outside' | 'unclear' | 'no contrast';
 
@@ -340,7 +340,7 @@ function pairKey(natures: readonly LoopNatureReading[]): string {
   const [a, b] = natures;
   if (a.plus.side === b.plus.side || a.minus.side === b.minus.side) return '';
   // a shear loop (b in its plane) is neither vacancy nor interstitial: the pair tells the sign of b
-  return natures.map((x) => `+g ${x.plus.side} and -g ${x.minus.side}: ${x.nature === 'shear' ? `shear loop with b = ${formatVector(x.b)}` : x.nature}`).join('; ');
+  return natures.map((x) => `+g ${x.plus.side} and -g ${x.minus.side}: ${x.nature === 'shear' ? `shear loop with b = ${indicesWithFraction(x.b)}` : x.nature}`).join('; ');
 }
 
 function none(): SideReading {

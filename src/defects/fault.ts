@@ -6,7 +6,7 @@ import type { Material } from '../crystal/material.js';
 import { fail, joinPath, onlyKeys, required, string } from '../scenario/check.js';
 import { readPlane, readVector } from '../scenario/parse.js';
 import { imagePointToCrystal } from '../geometry/frames.js';
-import { formatBurgers } from '../analysis/candidates.js';
+import { indicesWithFraction } from '../crystal/formatIndices.js';
 import type { DefectType } from './defectType.js';
 
 /** A planar fault crossing the whole foil. */
@@ -94,7 +94,7 @@ export const fault: DefectType<FaultSpec> = {
   candidates(_sc, target, defectIndex) {
     const v = target.vector;
     const minus: Vec3 = [-v[0] + 0, -v[1] + 0, -v[2] + 0];
-    const name = (nature: string, r: Vec3) => (nature === 'vector' ? `R = ${formatBurgers(r)}` : `${nature} (R = ${formatBurgers(r)})`);
+    const name = (nature: string, r: Vec3) => (nature === 'vector' ? `R = ${indicesWithFraction(r)}` : `${nature} (R = ${indicesWithFraction(r)})`);
     const other = target.nature === 'intrinsic' ? 'extrinsic' : target.nature === 'extrinsic' ? 'intrinsic' : 'vector';
     return [
       { label: name(target.nature, v), kind: 'faultNature', defectIndex, defect: target, faultVector: v },

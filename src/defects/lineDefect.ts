@@ -14,17 +14,15 @@ import { dislocationFrame } from '../elasticity/straightDislocation.js';
 import { InputError } from '../errors.js';
 import { sig } from '../format.js';
 import { fail, joinPath } from '../scenario/check.js';
-import { formatVector } from '../scenario/parse.js';
 import type { Condition, DefectSpec, Scenario } from '../scenario/types.js';
 import type { DislocationFieldSpec, JumpSurface } from '../imaging/fieldSpecs.js';
-import { formatBurgers, type Candidate, type VisibilityNote } from '../analysis/candidates.js';
+import { type Candidate, type VisibilityNote } from '../analysis/candidates.js';
 import { judge } from '../analysis/visibility.js';
 import type { RowMaker, WarningContext } from './defectType.js';
 import type { DislocationSpec } from './dislocation.js';
 import type { PartialSpec } from './partial.js';
 import { modelOf, only } from '../analysis/visibilityTable.js';
-import { formatDirectionIn } from '../crystal/formatIndices.js';
-import { usesFourIndices } from '../crystal/lattice.js';
+import { formatDirectionIn, indicesWithFraction } from '../crystal/formatIndices.js';
 
 /** A dislocation with an explicit cut: its field and the half-plane where R jumps by b. */
 export function dislocationWithCut(
@@ -145,13 +143,13 @@ export function burgersCandidates(sc: Scenario, defectIndex: number, keep: (b: V
       const b: Vec3 = [sign * spec.b[0] + 0, sign * spec.b[1] + 0, sign * spec.b[2] + 0];
       if (!keep(b)) continue;
       const line = spec.line ?? target.line;
-      const key = `${formatVector(b)} ${formatVector(line)}`;
+      const key = `${indicesWithFraction(b)} ${indicesWithFraction(line)}`;
       if (seen.has(key)) continue;
       seen.add(key);
       // hexagonal crystals: four indices (1/3[1 1 -2 0]); cubic: the usual 1/2[1 1 0]
       const l = sc.material.lattice;
-      const bText = usesFourIndices(l) ? formatDirectionIn(l, b) : formatBurgers(b);
-      const label = spec.line === undefined ? `b = ${bText}` : `b = ${bText}, u = ${usesFourIndices(l) ? formatDirectionIn(l, line) : formatVector(line)}`;
+      const bText = formatDirectionIn(l, b);
+      const label = spec.line === undefined ? `b = ${bText}` : `b = ${bText}, u = ${formatDirectionIn(l, line)}`;
       out.push({ label, kind: 'burgers', defectIndex, defect: { ...target, b, line } as DefectSpec, b, line });
     }
   }

@@ -29,13 +29,13 @@ import { cross, dot, norm, scale, unit } from '../math/vec3.js';
 import { directionToCartesian, planeNormalToCartesian } from '../crystal/lattice.js';
 import type { Material } from '../crystal/material.js';
 import { array, fail, joinPath, number, onlyKeys, required, string } from '../scenario/check.js';
-import { formatVector, readPlane, readVector } from '../scenario/parse.js';
+import { readPlane, readVector } from '../scenario/parse.js';
+import { indicesWithFraction } from '../crystal/formatIndices.js';
 import { imagePointToCrystal } from '../geometry/frames.js';
 import { circleSides, circleVertices } from '../elasticity/loopField.js';
 import { sig } from '../format.js';
 import type { DefectType } from './defectType.js';
 import type { Candidate } from '../analysis/candidates.js';
-import { formatBurgers } from '../analysis/candidates.js';
 import { InputError } from '../errors.js';
 import { burgersNote } from './lineDefect.js';
 import { modelOf } from '../analysis/visibilityTable.js';
@@ -154,7 +154,7 @@ function readFault(v: unknown, path: string, m: Material, b: Vec3, normal: Vec3)
   if (!isLatticeTranslation(m, diff)) {
     fail(
       path,
-      `names the fault vector ${formatVector(vector)}, but a loop's enclosed fault is its Burgers vector b = ${formatVector(b)} up to a lattice translation (for a Frank loop on (${normal.join(' ')}) an intrinsic fault needs b = +1/3 of the normal, a vacancy loop, and an extrinsic one -1/3); change "b" or "fault"`,
+      `names the fault vector ${indicesWithFraction(vector)}, but a loop's enclosed fault is its Burgers vector b = ${indicesWithFraction(b)} up to a lattice translation (for a Frank loop on (${normal.join(' ')}) an intrinsic fault needs b = +1/3 of the normal, a vacancy loop, and an extrinsic one -1/3); change "b" or "fault"`,
     );
   }
   return { nature, vector };
@@ -246,7 +246,7 @@ export const loop: DefectType<LoopSpec> = {
     const pixel = ctx.sc.image.pixel_nm;
     if (2 * reach < 2 * pixel) w.push(`${ctx.where}: the loop (${sig(2 * reach, 3)} nm across in the image) is smaller than two pixels of ${pixel} nm; its image is only its strain field`);
     if (d.fault === undefined && !isLatticeTranslation(ctx.sc.material, d.b)) {
-      w.push(`${ctx.where}: b = ${formatVector(d.b)} is not a lattice translation, so the loop encloses a fault with fault vector b (name it with "fault")`);
+      w.push(`${ctx.where}: b = ${indicesWithFraction(d.b)} is not a lattice translation, so the loop encloses a fault with fault vector b (name it with "fault")`);
     }
     return w;
   },
@@ -272,12 +272,12 @@ export const loop: DefectType<LoopSpec> = {
     for (const spec of sc.candidates) {
       for (const sign of [1, -1]) {
         const b: Vec3 = [sign * spec.b[0] + 0, sign * spec.b[1] + 0, sign * spec.b[2] + 0];
-        const key = formatVector(b);
+        const key = indicesWithFraction(b);
         if (seen.has(key)) continue;
         seen.add(key);
         const { fault: _fault, ...rest } = target;
         const defect: LoopSpec = { ...rest, b };
-        out.push({ label: `b = ${formatBurgers(b)} (${loopNature(sc.material, defect)})`, kind: 'burgers', defectIndex, defect, b });
+        out.push({ label: `b = ${indicesWithFraction(b)} (${loopNature(sc.material, defect)})`, kind: 'burgers', defectIndex, defect, b });
       }
     }
     return out;

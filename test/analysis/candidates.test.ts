@@ -2,7 +2,7 @@
 import { describe, expect, it } from 'vitest';
 import { parseScenario } from '../../src/scenario/parse.js';
 import type { Scenario } from '../../src/scenario/types.js';
-import { formatBurgers, identificationCandidates, variantScenario, visibilityNote } from '../../src/analysis/candidates.js';
+import { identificationCandidates, variantScenario, visibilityNote } from '../../src/analysis/candidates.js';
 import { judge } from '../../src/analysis/visibility.js';
 import { conditionView, simulatedGAngle_deg } from '../../src/analysis/identifyView.js';
 import { imageFrame, imagePointToCrystal } from '../../src/geometry/frames.js';
@@ -50,12 +50,6 @@ describe('Burgers-vector candidates', () => {
     const n = visibilityNote(s.material.lattice, c, s.conditions[1]);
     const j = judge(s.material.lattice, s.conditions[1].g, c.b!, c.line);
     expect(n).toMatchObject({ quantity: 'g.b', value: j.gb, verdict: j.verdict, rule: j.rule });
-  });
-
-  it('formatBurgers writes simple fractions', () => {
-    expect(formatBurgers([0.5, -0.5, 0])).toBe('1/2[1 -1 0]');
-    expect(formatBurgers([1 / 6, 1 / 6, -1 / 3])).toBe('1/6[1 1 -2]');
-    expect(formatBurgers([1, 0, 0])).toBe('[1 0 0]');
   });
 
   it('refuses an empty candidate list and a defect index that does not exist', () => {

@@ -27,6 +27,14 @@ describe('printed indices', () => {
     expect(formatPlaneIn(cubic, [2, 0, 0])).toBe('(2 0 0)');
     expect(indicesWithFraction([0.123, 1, 0])).toBe('[0.123 1 0]');
   });
+  it('one writer of lattice vectors: simple fractions, no negative zero, decimals (6 places) when no small denominator fits', () => {
+    expect(indicesWithFraction([0.5, -0.5, 0])).toBe('1/2[1 -1 0]');
+    expect(indicesWithFraction([1 / 6, 1 / 6, -1 / 3])).toBe('1/6[1 1 -2]');
+    expect(indicesWithFraction([1, -0, 0])).toBe('[1 0 0]');
+    expect(indicesWithFraction([-0.5, -0, 0.5])).toBe('1/2[-1 0 1]');
+    expect(indicesWithFraction([0.689898, -0.689898, 1])).toBe('[0.689898 -0.689898 1]');
+    expect(indicesWithFraction([1 / 3, 1 / 3, 1 / 3], '(', ')')).toBe('1/3(1 1 1)');
+  });
 });
 
 describe('candidate labels in the crystal notation', () => {
