@@ -36,8 +36,7 @@ import { circleSides, circleVertices } from '../elasticity/loopField.js';
 import { sig } from '../format.js';
 import type { DefectType } from './defectType.js';
 import type { Candidate } from '../analysis/candidates.js';
-import { InputError } from '../errors.js';
-import { burgersNote } from './lineDefect.js';
+import { burgersNote, signedBurgers } from './lineDefect.js';
 import { modelOf } from '../analysis/visibilityTable.js';
 import type { LoopFieldSpec } from '../imaging/fieldSpecs.js';
 
@@ -264,23 +263,11 @@ export const loop: DefectType<LoopSpec> = {
    * with a prismatic component. A candidate names no fault: its jump b across the loop is the enclosed fault.
    */
   candidates(sc, target, defectIndex) {
-    if (sc.candidates.length === 0) {
-      throw new InputError('candidates is empty; list the Burgers vectors to compare, e.g. "candidates": ["1/3<111>", "1/2<110>"]');
-    }
-    const out: Candidate[] = [];
-    const seen = new Set<string>();
-    for (const spec of sc.candidates) {
-      for (const sign of [1, -1]) {
-        const b: Vec3 = [sign * spec.b[0] + 0, sign * spec.b[1] + 0, sign * spec.b[2] + 0];
-        const key = indicesWithFraction(b);
-        if (seen.has(key)) continue;
-        seen.add(key);
-        const { fault: _fault, ...rest } = target;
-        const defect: LoopSpec = { ...rest, b };
-        out.push({ label: `b = ${indicesWithFraction(b)} (${loopNature(sc.material, defect)})`, kind: 'burgers', defectIndex, defect, b });
-      }
-    }
-    return out;
+    const { fault: _fault, ...rest } = target;
+    return signedBurgers(sc, '"1/3<111>", "1/2<110>"').map(({ b }): Candidate => {
+      const defect: LoopSpec = { ...rest, b };
+      return { label: `b = ${indicesWithFraction(b)} (${loopNature(sc.material, defect)})`, kind: 'burgers', defectIndex, defect, b };
+    });
   },
   visibilityNote: burgersNote,
 };
