@@ -30,7 +30,7 @@ import { directionToCartesian, planeNormalToCartesian } from '../crystal/lattice
 import type { Material } from '../crystal/material.js';
 import { array, fail, joinPath, number, onlyKeys, required, string } from '../scenario/check.js';
 import { readPlane, readVector } from '../scenario/parse.js';
-import { indicesWithFraction } from '../crystal/formatIndices.js';
+import { formatDirectionIn, indicesWithFraction } from '../crystal/formatIndices.js';
 import { imagePointToCrystal } from '../geometry/frames.js';
 import { circleSides, circleVertices } from '../elasticity/loopField.js';
 import { sig } from '../format.js';
@@ -266,7 +266,7 @@ export const loop: DefectType<LoopSpec> = {
     const { fault: _fault, ...rest } = target;
     return signedBurgers(sc, '"1/3<111>", "1/2<110>"').map(({ b }): Candidate => {
       const defect: LoopSpec = { ...rest, b };
-      return { label: `b = ${indicesWithFraction(b)} (${loopNature(sc.material, defect)})`, kind: 'burgers', defectIndex, defect, b };
+      return { label: `b = ${formatDirectionIn(sc.material.lattice, b)} (${loopNature(sc.material, defect)})`, kind: 'burgers', defectIndex, defect, b };
     });
   },
   visibilityNote: burgersNote,
