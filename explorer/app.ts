@@ -15,8 +15,9 @@ import { renderJob } from '../src/imaging/renderScenario.js';
 import type { RenderJob } from '../src/imaging/renderRows.js';
 import { isForbidden, reflectionParameters } from '../src/scattering/reflection.js';
 import { directionToCartesian, planeNormalToCartesian, usesFourIndices } from '../src/crystal/lattice.js';
-import { directionToFour, planeToFour } from '../src/crystal/millerBravais.js';
-import { formatBurgers, identificationCandidates } from '../src/analysis/candidates.js';
+import { planeToFour } from '../src/crystal/millerBravais.js';
+import { identificationCandidates } from '../src/analysis/candidates.js';
+import { formatDirectionIn } from '../src/crystal/formatIndices.js';
 import { defectTypeNamed, defectTypeOf } from '../src/defects/registry.js';
 import { autoStretch, stretchToBytes } from '../src/output/stretch.js';
 import { crystalToImagePoint, imagePointToCrystal, pixelX } from '../src/geometry/frames.js';
@@ -213,18 +214,9 @@ let fourIndices = false;
 const gIndices = (g: Vec3): number[] => (fourIndices ? [...planeToFour(g)] : [...g]).map((x) => Math.round(x) + 0);
 const idx = (g: Vec3) => gIndices(g).join(' ');
 
-/** A Burgers vector as text, "1/3[1 1 -2 0]" for hexagonal crystals. */
+/** A Burgers vector as text, "1/3[1 1 -2 0]" for hexagonal crystals (the notation the scenario parser reads back). */
 function burgersText(b: Vec3): string {
-  if (!fourIndices) return formatBurgers(b);
-  const v = directionToFour(b);
-  for (const d of [1, 2, 3, 6]) {
-    const k = v.map((x) => x * d);
-    if (k.every((x) => Math.abs(x - Math.round(x)) < 1e-6)) {
-      const ints = k.map((x) => Math.round(x) + 0).join(' ');
-      return d === 1 ? `[${ints}]` : `1/${d}[${ints}]`;
-    }
-  }
-  return `[${v.join(' ')}]`;
+  return formatDirectionIn(base.material.lattice, b);
 }
 
 /** Reflections within the parser's tolerance of perpendicular to the condition's beam, allowed by the structure, shortest first. */

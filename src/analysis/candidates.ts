@@ -17,7 +17,6 @@
 import type { Vec3 } from '../math/vec3.js';
 import type { Lattice } from '../crystal/lattice.js';
 import { InputError } from '../errors.js';
-import { formatVector } from '../scenario/parse.js';
 import type { Condition, DefectSpec, Scenario } from '../scenario/types.js';
 import { defectTypeOf } from '../defects/registry.js';
 
@@ -57,18 +56,6 @@ export function identificationCandidates(sc: Scenario, defectIndex = 0): Candida
     throw new InputError(`defects[${defectIndex}] is a "${target.type}", for which identification has no candidates yet; choose another defect with --defect`);
   }
   return t.candidates(sc, target, defectIndex);
-}
-
-/** "1/2[1 1 0]" style for vectors whose entries share a simple fraction; else formatVector. */
-export function formatBurgers(v: Vec3): string {
-  for (const d of [1, 2, 3, 6, 4, 5, 8, 10, 12]) {
-    const k = v.map((x) => x * d);
-    if (k.every((x) => Math.abs(x - Math.round(x)) < 1e-6)) {
-      const ints = k.map((x) => Math.round(x) + 0);
-      return d === 1 ? `[${ints.join(' ')}]` : `1/${d}[${ints.join(' ')}]`;
-    }
-  }
-  return formatVector(v);
 }
 
 export interface VisibilityNote {

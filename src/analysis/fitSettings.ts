@@ -56,3 +56,21 @@ export function parseFitSettings(raw: unknown): FitSettings {
   if (o.lineCone_deg !== undefined) s.lineCone_deg = number(o.lineCone_deg, at('lineCone_deg'), { min: 0, max: 30, unit: 'degrees' });
   return s;
 }
+
+/** The foil thickness identification fits: its centre, half-range (nm) and whether the centre is a measured thickness. */
+export interface ThicknessRange {
+  readonly nominal_nm: number;
+  readonly half_nm: number;
+  readonly measured: boolean;
+}
+
+/**
+ * Centred on the measured fit.thickness_nm when given, else on the foil's
+ * stated thickness; +- MEASURED_SIGMAS errors of a measured value with an
+ * error, else +- thicknessRange of the centre.
+ */
+export function thicknessRange(foilThickness_nm: number, fit: FitSettings): ThicknessRange {
+  const nominal_nm = fit.thickness_nm ?? foilThickness_nm;
+  const half_nm = fit.thicknessError_nm !== undefined ? MEASURED_SIGMAS * fit.thicknessError_nm : fit.thicknessRange * nominal_nm;
+  return { nominal_nm, half_nm, measured: fit.thickness_nm !== undefined };
+}

@@ -7,7 +7,8 @@
  * and it changes sign with (g.b) s (Edington 1975; Williams & Carter 2009).
  * Reversing g (or s) moves the image from outside to inside, so a +g/-g pair
  * gives the sign of b relative to the loop's normal, and with the loop's
- * inclination its nature (vacancy or interstitial). We do not apply the rule
+ * inclination its nature (vacancy or interstitial; for a shear loop, b in its
+ * plane, the sign of b: natureOfBurgers of src/defects/loop.ts). We do not apply the rule
  * blindly: for each nature, at +g and at -g, the loop alone is simulated and
  * the dark-field intensity is sampled along the outward normal of the
  * projected loop line at every point of the outline; the side of the highest
@@ -40,6 +41,8 @@ import { imagePointToCrystal } from '../geometry/frames.js';
 import { background, renderJob } from '../imaging/renderScenario.js';
 import { columnEvaluator } from '../imaging/renderRows.js';
 import { directionToCartesian } from '../crystal/lattice.js';
+import { natureOfBurgers, type LoopNature } from '../defects/loop.js';
+import { indicesWithFraction } from '../crystal/formatIndices.js';
 
 export type Side = 'inside' | 'outside' | 'unclear' | 'no contrast';
 
@@ -61,7 +64,7 @@ export interface BlackWhite {
 }
 
 export interface LoopNatureReading {
-  readonly nature: 'vacancy' | 'interstitial';
+  readonly nature: LoopNature;
   /** The Burgers vector of this nature (lattice units): b or -b of the scenario's loop. */
   readonly b: Vec3;
   /** g . b at +g. */
@@ -132,11 +135,6 @@ function outline(d: LoopSpec): Vec3[] {
     for (let j = 0; j < k; j++) out.push([a[0] + ((b[0] - a[0]) * j) / k, a[1] + ((b[1] - a[1]) * j) / k]);
   }
   return out.map(([a1, a2]) => add(scale(e1, a1), scale(e2, a2)));
-}
-
-/** b . n > 0 is a vacancy loop (src/defects/loop.ts); both in crystal Cartesian. */
-function natureOf(b: Vec3, n: Vec3): 'vacancy' | 'interstitial' {
-  return dot(b, n) > 0 ? 'vacancy' : 'interstitial';
 }
 
 function reversed(c: Condition): Condition {
@@ -301,7 +299,7 @@ export function analyseLoops(sc: Scenario, onStep?: (label: string) => void, set
             : 'a beam set cannot be reversed with g: -g not simulated';
       const natures: LoopNatureReading[] = [];
       for (const b of [d.b, [-d.b[0], -d.b[1], -d.b[2]] as Vec3]) {
-        const nature = natureOf(directionToCartesian(sc.material.lattice, b), n);
+        const nature = natureOfBurgers(directionToCartesian(sc.material.lattice, b), n);
         const gb = dot(c.g, b);
         const rulePlus = insideOutsideRule(gb, rc.s_per_nm, nB);
         if (small) {
@@ -341,7 +339,8 @@ function pairKey(natures: readonly LoopNatureReading[]): string {
   if (natures.length !== 2 || !natures.every((x) => clear(x.plus) && clear(x.minus))) return '';
   const [a, b] = natures;
   if (a.plus.side === b.plus.side || a.minus.side === b.minus.side) return '';
-  return natures.map((x) => `+g ${x.plus.side} and -g ${x.minus.side}: ${x.nature}`).join('; ');
+  // a shear loop (b in its plane) is neither vacancy nor interstitial: the pair tells the sign of b
+  return natures.map((x) => `+g ${x.plus.side} and -g ${x.minus.side}: ${x.nature === 'shear' ? `shear loop with b = ${indicesWithFraction(x.b)}` : x.nature}`).join('; ');
 }
 
 function none(): SideReading {

@@ -16,7 +16,7 @@ import { cartesianToDirection, directionToCartesian } from '../crystal/lattice.j
 import type { Condition, DefectSpec, Scenario } from '../scenario/types.js';
 import type { Candidate } from './candidates.js';
 import type { PreparedMicrograph } from './identifyMicrographs.js';
-import { DEFAULT_FIT, MEASURED_SIGMAS, type FitSettings } from './fitSettings.js';
+import { DEFAULT_FIT, MEASURED_SIGMAS, thicknessRange, type FitSettings } from './fitSettings.js';
 import { moveDefect } from './identifyView.js';
 import { defectTypeOf } from '../defects/registry.js';
 
@@ -47,9 +47,7 @@ export function nuisanceModel(sc: Scenario, cand: Candidate, micrographs: readon
   const params: NuisanceParameter[] = [];
   const d0 = cand.defect;
   // thickness
-  const tMeasured = fit.thickness_nm !== undefined;
-  const t0 = fit.thickness_nm ?? sc.thickness_nm;
-  const tHalf = fit.thicknessError_nm !== undefined ? MEASURED_SIGMAS * fit.thicknessError_nm : fit.thicknessRange * t0;
+  const { nominal_nm: t0, half_nm: tHalf, measured: tMeasured } = thicknessRange(sc.thickness_nm, fit);
   params.push({ name: 'thickness', unit: 'nm', nominal: t0, lo: t0 - tHalf, hi: t0 + tHalf, scope: 'shared', from: tMeasured ? 'measured' : fit.thicknessRange === DEFAULT_FIT.thicknessRange ? 'default range' : 'scenario range' });
   // depth of the defect's point (every defect type has one)
   const point = defectTypeOf(d0).position(d0);

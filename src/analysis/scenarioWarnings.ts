@@ -10,6 +10,7 @@ import type { Scenario } from '../scenario/types.js';
 import { referenceFrame } from '../imaging/scenarioFrame.js';
 import { defectTypeOf } from '../defects/registry.js';
 import { sig } from '../format.js';
+import { MEASURED_SIGMAS, thicknessRange, type FitSettings } from './fitSettings.js';
 
 /**
  * Plausible ranges (common practice for diffraction-contrast work): foils
@@ -50,5 +51,26 @@ export function scenarioWarnings(sc: Scenario): string[] {
     // each defect type judges its own (src/defects/<type>.ts)
     out.push(...defectTypeOf(d).warnings(d, { ...ctx, where: `defects[${i}] (${d.label})` }));
   });
+  return out;
+}
+
+/**
+ * Warnings about identify's "fit" settings against the rest of the scenario: a
+ * measured thickness (fit.thickness_nm) whose range leaves out the foil's stated
+ * thickness. Identification then simulates the measured thickness, while the
+ * defect's depth was placed for the stated one; a thickness measured on another
+ * area or typed in another unit makes every candidate's contrast wrong.
+ */
+export function fitWarnings(sc: Scenario, fit: FitSettings): string[] {
+  const out: string[] = [];
+  const r = thicknessRange(sc.thickness_nm, fit);
+  const t = sc.thickness_nm;
+  if (r.measured && (t < r.nominal_nm - r.half_nm || t > r.nominal_nm + r.half_nm)) {
+    const measured = fit.thicknessError_nm === undefined ? `${sig(r.nominal_nm, 4)} nm` : `${sig(r.nominal_nm, 4)} +- ${sig(fit.thicknessError_nm, 3)} nm`;
+    const range = r.half_nm > 0 ? `outside ${sig(r.nominal_nm - r.half_nm, 4)}-${sig(r.nominal_nm + r.half_nm, 4)} nm, ${fit.thicknessError_nm === undefined ? 'the range fit.thicknessRange gives it' : `${MEASURED_SIGMAS} standard errors of it`}` : 'which is used exactly (fit.thicknessRange 0)';
+    out.push(
+      `fit.thickness_nm: the measured foil thickness ${measured} is far from the scenario's foil.thickness_nm ${sig(t, 4)} nm (${range}); identify simulates the measured thickness, with the defect at the depth given for the stated foil: check both (measured on another area of the foil? a unit slip?) and the defect's depth`,
+    );
+  }
   return out;
 }

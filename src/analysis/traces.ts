@@ -33,7 +33,6 @@ import { cartesianToDirection, directBasis, directionToCartesian, planeNormalToC
 import { primitiveDirections } from '../crystal/formatIndices.js';
 import { crystalDirection, nearestZone, type ZoneAxis } from '../geometry/conditionGeometry.js';
 import { InputError } from '../errors.js';
-import type { Scenario } from '../scenario/types.js';
 
 const DEG = Math.PI / 180;
 
@@ -388,17 +387,4 @@ export function propagate(fit: TraceFit, f: (u: Vec3) => number): number {
 export function startingLine(fit: TraceFit): { readonly line: Vec3; readonly cone_deg: number } {
   const r = (x: number) => Math.round(x * 1e4) / 1e4 + 0;
   return { line: [r(fit.u_lattice[0]), r(fit.u_lattice[1]), r(fit.u_lattice[2])], cone_deg: Math.max(1, 2 * fit.cone_deg) };
-}
-
-/**
- * The scenario with the line direction of defect `defectIndex` replaced by `line` (lattice units), e.g.
- * startingLine(fit).line: the hook by which identification can start from a trace analysis.
- * InputError when that defect has no line direction.
- */
-export function scenarioWithLine(sc: Scenario, defectIndex: number, line: Vec3): Scenario {
-  const d = sc.defects[defectIndex];
-  if (d === undefined || !('line' in d)) {
-    throw new InputError(`defects[${defectIndex}] has no line direction to set from the traces; choose a dislocation, partial or dissociated defect`);
-  }
-  return { ...sc, defects: sc.defects.map((x, i) => (i === defectIndex ? ({ ...x, line } as typeof x) : x)) };
 }

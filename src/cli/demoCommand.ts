@@ -2,7 +2,8 @@
 import { jsonText } from '../output/json.js';
 import { join } from 'node:path';
 import { DEMO_SCENARIO } from '../scenario/demo.js';
-import { formatVector, parseScenario } from '../scenario/parse.js';
+import { parseScenario } from '../scenario/parse.js';
+import { indicesWithFraction } from '../crystal/formatIndices.js';
 import { visibilityTable } from '../analysis/visibilityTable.js';
 import { OutputSet } from '../output/outputSet.js';
 import { DEFAULT_IMAGE_OPTIONS, renderAndWrite } from './renderCommand.js';
@@ -73,7 +74,7 @@ async function demoMain(sc: ReturnType<typeof parseScenario>, demo: object, set:
     if (d.type === 'loop') {
       const gb = sc.conditions.map((c) => `${c.id} ${sig(c.g[0] * d.b[0] + c.g[1] * d.b[1] + c.g[2] * d.b[2], 3)}`).join(', ');
       const fault = d.fault === undefined ? 'no fault' : `encloses a fault with R = b (${d.fault.nature})`;
-      process.stdout.write(`\n${d.label}: ${loopNature(sc.material, d)} loop, b = ${formatVector(d.b)}, ${fault}; g.b: ${gb} (isotropic infinite-medium field)\n`);
+      process.stdout.write(`\n${d.label}: ${loopNature(sc.material, d)} loop, b = ${indicesWithFraction(d.b)}, ${fault}; g.b: ${gb} (isotropic infinite-medium field)\n`);
     }
   }
   // loop read-outs render every loop several times per condition: `thinfoil nature` gives them

@@ -2,7 +2,7 @@
 import { analyseFaults, type FaultConditionAnalysis } from '../analysis/faultFringes.js';
 import { analyseInclusions, type InclusionConditionAnalysis } from '../analysis/inclusionLobes.js';
 import { analyseLoops, type LoopConditionReading } from '../analysis/loopReadout.js';
-import { formatVector } from '../scenario/parse.js';
+import { indicesWithFraction } from '../crystal/formatIndices.js';
 import type { Scenario } from '../scenario/types.js';
 import { loadScenario, warnAbout } from './loadScenario.js';
 import { printJson, sig, table } from './run.js';
@@ -28,7 +28,7 @@ export function formatFaults(rows: readonly FaultConditionAnalysis[]): string {
         r.condition,
         `(${r.g.join(' ')})`,
         x.reading,
-        formatVector(x.vector),
+        indicesWithFraction(x.vector),
         `${sig(x.alpha_deg, 4)}`,
         x.bf.top,
         x.bf.bottom,
@@ -71,7 +71,7 @@ export function formatLoops(rows: readonly LoopConditionReading[]): string {
     for (const x of r.natures) {
       const side = (y: { side: string; offset_nm: number }) => (r.small ? '-' : y.side === 'inside' || y.side === 'outside' ? `${y.side} (${sig(y.offset_nm, 2)} nm)` : y.side);
       const bw = x.blackWhite === undefined ? '-' : x.blackWhite.sign === 0 ? 'no lobes' : `${x.blackWhite.sign > 0 ? 'along +g' : 'along -g'} (${sig(Math.hypot(...x.blackWhite.l_nm), 2)} nm)`;
-      body.push([r.loop, r.condition, `(${r.g.join(' ')})`, sig(r.w, 3), x.nature, formatVector(x.b), sig(x.gb, 3), r.small ? '-' : x.rulePlus, side(x.plus), side(x.minus), bw]);
+      body.push([r.loop, r.condition, `(${r.g.join(' ')})`, sig(r.w, 3), x.nature, indicesWithFraction(x.b), sig(x.gb, 3), r.small ? '-' : x.rulePlus, side(x.plus), side(x.minus), bw]);
       if (x.depthSeries !== undefined) {
         small.push(`  ${r.loop}, ${r.condition}, ${x.nature}: sign of l.g with depth ${x.depthSeries.map((q) => `${Math.round(q.depth_nm)} nm ${q.sign > 0 ? '+' : q.sign < 0 ? '-' : '0'}`).join(', ')}`);
       }

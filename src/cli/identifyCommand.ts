@@ -26,7 +26,8 @@ import { OutputSet } from '../output/outputSet.js';
 import { progressBar } from './progress.js';
 import { printJson, sig, table } from './run.js';
 import { slug } from './slug.js';
-import { readScenarioBytes, scenarioJsonOf } from './loadScenario.js';
+import { printWarnings, readScenarioBytes, scenarioJsonOf } from './loadScenario.js';
+import { fitWarnings } from '../analysis/scenarioWarnings.js';
 import { identificationCandidates } from '../analysis/candidates.js';
 import { measuredInputs, simulateCandidates } from '../analysis/identify.js';
 import { InternalError } from '../errors.js';
@@ -126,6 +127,8 @@ function prepareIdentify(scenarioFile: string, opts: IdentifyCommandOptions, bas
   const { [MICROGRAPHS_KEY]: micrographsRaw, [FIT_KEY]: fitRaw, ...rest } = raw;
   const sc = parseScenario(rest);
   const fit = parseFitSettings(fitRaw);
+  // before the long work: a measured thickness far from the stated one (the scenario's other warnings concern the rendered view, not identify's)
+  printWarnings(fitWarnings(sc, fit));
   const settings = parseMicrographSettings(micrographsRaw, sc.conditions.map((c) => c.id));
   const args = opts.micrograph === undefined ? [] : Array.isArray(opts.micrograph) ? opts.micrograph : [opts.micrograph];
   const defectIndex = intOption('--defect', opts.defect, 0, Math.max(0, sc.defects.length - 1), 0);

@@ -43,6 +43,11 @@ export function loadScenario(path: string): Scenario {
 /** The scenario's warnings (implausible values, defects outside the view ...) and any `extra` ones, each printed as one line on stderr. */
 export function warnAbout(sc: Scenario, extra: readonly string[] = []): string[] {
   const warnings = [...scenarioWarnings(sc), ...extra];
-  for (const w of warnings) process.stderr.write(`thinfoil: warning: ${w}\n`);
+  printWarnings(warnings);
   return warnings;
+}
+
+/** Each warning as one line on stderr. */
+export function printWarnings(warnings: readonly string[]): void {
+  for (const w of warnings) process.stderr.write(`thinfoil: warning: ${w}\n`);
 }

@@ -6,13 +6,13 @@
  */
 import { join } from 'node:path';
 import type { Vec3 } from '../math/vec3.js';
-import { directionToCartesian, usesFourIndices } from '../crystal/lattice.js';
+import { directionToCartesian, usesFourIndices, type Lattice } from '../crystal/lattice.js';
 import { directionToFour, planeToFour } from '../crystal/millerBravais.js';
 import { readDirection } from '../scenario/parse.js';
 import { InputError } from '../errors.js';
 import { OutputSet } from '../output/outputSet.js';
 import { stereogramFigure } from '../output/stereogram.js';
-import { formatBurgers } from '../analysis/candidates.js';
+import { formatDirectionIn } from '../crystal/formatIndices.js';
 import { beamInSpecimenFrame, checkRange, orientation, orientationFromBeam, withinRange, type Holder, type HolderKind, type Orientation } from '../planning/holder.js';
 import { plan, PLAN_DEFAULTS, type PlanResult } from '../planning/plan.js';
 import { numberOption } from './options.js';
@@ -145,7 +145,7 @@ export async function planCommand(scenarioPath: string, opts: PlanCommandOptions
     printJson(json);
     return;
   }
-  printPlan({ ...result, zeroTiltNormal: o.Z, zeroTiltAxis: o.X }, files);
+  printPlan({ ...result, zeroTiltNormal: o.Z, zeroTiltAxis: o.X }, files, sc.material.lattice);
 }
 
 function planJson(name: string, holder: Holder, r: PlanResult, files: string[]) {
@@ -180,11 +180,12 @@ function planJson(name: string, holder: Holder, r: PlanResult, files: string[]) 
   };
 }
 
-function printPlan(r: PlanResult & { zeroTiltNormal: Vec3; zeroTiltAxis: Vec3 }, files: string[]): void {
+function printPlan(r: PlanResult & { zeroTiltNormal: Vec3; zeroTiltAxis: Vec3 }, files: string[], lattice: Lattice): void {
   const w = process.stdout;
+  const bText = (b: Vec3) => formatDirectionIn(lattice, b);
   const z = r.zeroTiltNormal;
   w.write(`beam direction at zero tilt: [${z.map((x) => sig(x, 3)).join(' ')}] (Cartesian, crystal frame); primary tilt axis along [${r.zeroTiltAxis.map((x) => sig(x, 3)).join(' ')}]\n`);
-  w.write(`candidates: ${r.candidates.length} (${r.candidates.map((c) => formatBurgers(c.b!)).join(', ')}), ${r.nPairs} pairs to tell apart\n\n`);
+  w.write(`candidates: ${r.candidates.length} (${r.candidates.map((c) => bText(c.b!)).join(', ')}), ${r.nPairs} pairs to tell apart\n\n`);
   const loop = r.candidates[0].defect.type === 'loop';
   w.write(`reachable two-beam conditions (simulated bright-field ${loop ? 'patches over the loop' : 'strips across the line'}):\n`);
   w.write(table(
@@ -211,6 +212,6 @@ function printPlan(r: PlanResult & { zeroTiltNormal: Vec3; zeroTiltAxis: Vec3 },
   } else {
     w.write(`no reachable condition tells these apart: ${r.unseparated.map(([a, b]) => `${a} / ${b}`).join('; ')}; widen the tilt ranges or raise --g-max\n`);
   }
-  w.write(`g.b column, candidates in order: ${r.candidates.map((c) => formatBurgers(c.b!)).join(', ')}\n`);
+  w.write(`g.b column, candidates in order: ${r.candidates.map((c) => bText(c.b!)).join(', ')}\n`);
   w.write(`figure and JSON: ${files.join(', ')}\n`);
 }

@@ -19,6 +19,7 @@ import { dissociationPair } from '../defects/dissociated.js';
 import { formatDirectionIn } from '../crystal/formatIndices.js';
 import { checkProfileOptions, lineProfile, removeBackground, twoPeaks } from '../analysis/ribbonProfile.js';
 import { profileAgreement, ribbonDefect, ribbonStripGeometry, scenarioRibbonWidth_nm, widthFromSeparation, type RibbonTarget } from '../analysis/ribbonWidth.js';
+import { parseMicrographSettings, usableTagPixel } from '../analysis/identifySettings.js';
 import { readScenarioJson } from './loadScenario.js';
 import { readInputFile } from './readInput.js';
 import { numberOption, parseBlurNm } from './options.js';
@@ -54,6 +55,8 @@ function pair(text: string, name: string): [number, number] {
 export function ribbonCommand(scenarioPath: string, opts: RibbonOptions): void {
   const raw = readScenarioJson(scenarioPath);
   const sc = parseScenario(raw);
+  // the scenario's "micrographs" settings, validated as identify validates them (a bad value names its JSON path)
+  const micrographs = parseMicrographSettings(raw.micrographs, sc.conditions.map((c) => c.id));
   if (opts.micrograph === undefined) throw new InputError('--micrograph is missing; give the weak-beam micrograph (PNG or TIFF) of the dissociated dislocation');
   // the condition: --condition, else the only weak-beam (or the only) condition
   let ci: number;
@@ -73,13 +76,14 @@ export function ribbonCommand(scenarioPath: string, opts: RibbonOptions): void {
   const target: RibbonTarget = { sc, conditionIndex: ci, defectIndex };
   const d = ribbonDefect(target);
 
-  const settings = ((raw.micrographs as Record<string, Record<string, unknown>> | undefined) ?? {})[cond.id] ?? {};
+  const settings = micrographs.get(cond.id);
   const bytes = readInputFile(opts.micrograph, 'micrograph file', MAX_FILE_BYTES);
   const img = decodeImage(bytes, opts.micrograph);
-  const fromSettings = (key: string) => (typeof settings[key] === 'number' && Number.isFinite(settings[key]) ? (settings[key] as number) : undefined);
   const pixel_nm =
-    opts.pixelNm !== undefined ? numberOption('--pixel-nm', 0.001, 1000, 'the pixel size in nm')(opts.pixelNm) : fromSettings('pixel_nm') ?? img.pixel_nm;
-  if (pixel_nm === undefined) throw new InputError('--pixel-nm is missing; give the pixel size of the micrograph in nm (the file carries none)');
+    opts.pixelNm !== undefined ? numberOption('--pixel-nm', 0.001, 1000, 'the pixel size in nm')(opts.pixelNm) : settings?.pixel_nm ?? usableTagPixel(img.pixel_nm);
+  if (pixel_nm === undefined) {
+    throw new InputError(`--pixel-nm is missing; give the pixel size of the micrograph in nm (the file carries none, or a 72/96 dpi placeholder), or set "micrographs": {"${cond.id}": {"pixel_nm": ...}} in the scenario`);
+  }
 
   const geo = ribbonStripGeometry(target);
   const simGAngle = screenAngle_deg(geo.c.frame, geo.c.g_cart);
@@ -90,7 +94,7 @@ export function ribbonCommand(scenarioPath: string, opts: RibbonOptions): void {
     lineAngle = numberOption('--line-angle', -360, 360, 'the direction of the line on the micrograph in degrees')(opts.lineAngle);
     lineAngleFrom = '--line-angle';
   } else {
-    const gA = opts.gAngle !== undefined ? numberOption('--g-angle', -360, 360, 'the direction of g on the micrograph in degrees')(opts.gAngle) : fromSettings('gAngle_deg');
+    const gA = opts.gAngle !== undefined ? numberOption('--g-angle', -360, 360, 'the direction of g on the micrograph in degrees')(opts.gAngle) : settings?.gAngle_deg;
     if (gA === undefined) throw new InputError('--line-angle is missing; give the direction of the line on the micrograph (degrees counter-clockwise from +x, +y down), or --g-angle for the direction of g');
     lineAngle = gA + (geo.lineAngle_deg - simGAngle);
     lineAngleFrom = `g at ${sig(gA, 4)} degrees and the scenario's line`;

@@ -18,6 +18,7 @@ import type { Material } from '../crystal/material.js';
 import { directionToCartesian, usesFourIndices } from '../crystal/lattice.js';
 import { formatDirectionIn, formatPlaneIn } from '../crystal/formatIndices.js';
 import { parseFamily } from '../crystal/symmetry.js';
+import { isForbidden } from '../scattering/reflection.js';
 import { directionText } from '../geometry/conditionGeometry.js';
 import { readDirection, readPlane, readVector, parseScenario } from '../scenario/parse.js';
 import type { Scenario } from '../scenario/types.js';
@@ -26,6 +27,7 @@ import { fitLineDirection, planesContaining, startingLine, type TraceFit, type T
 import { glidePlane, slipFamilies } from '../analysis/traceGlide.js';
 import { lengthCheck, type LengthCheck } from '../analysis/traceLength.js';
 import { chiSquareSurvival } from '../analysis/chiSquare.js';
+import { parseMicrographSettings, type MicrographSettings } from '../analysis/identifySettings.js';
 import { readScenarioJson } from './loadScenario.js';
 import { numberOption } from './options.js';
 import { printJson, sig, table } from './run.js';
@@ -70,7 +72,7 @@ function viewPairs(text: string, name: string): Map<string, string> {
   return out;
 }
 
-function parseView(text: string, i: number, m: Material, sc: Scenario | undefined, raw: Record<string, unknown> | undefined, defaultError: number): ParsedView {
+function parseView(text: string, i: number, m: Material, sc: Scenario | undefined, micrographs: ReadonlyMap<string, MicrographSettings>, defaultError: number): ParsedView {
   const name = `--view ${i + 1}`;
   const kv = viewPairs(text, name);
   const num = (key: string, lo: number, hi: number, what: string) => {
@@ -88,11 +90,7 @@ function parseView(text: string, i: number, m: Material, sc: Scenario | undefine
     if (kv.has('beam') || kv.has('g')) throw new InputError(`${name}: give either condition= or beam= and g=, not both`);
     beam = c.beam;
     g = c.g;
-    if (gAngle === undefined) {
-      const mic = raw?.micrographs as Record<string, Record<string, unknown>> | undefined;
-      const a = mic?.[cond]?.gAngle_deg;
-      if (typeof a === 'number' && Number.isFinite(a)) gAngle = a;
-    }
+    if (gAngle === undefined) gAngle = micrographs.get(cond)?.gAngle_deg;
   } else {
     const b = kv.get('beam');
     const gg = kv.get('g');
@@ -100,6 +98,13 @@ function parseView(text: string, i: number, m: Material, sc: Scenario | undefine
     if (gg === undefined) throw new InputError(`${name} g: missing; give a reflection of that zone whose direction on the micrograph you know, e.g. g=2,0,0`);
     beam = readDirection(b, `${name} beam`, m);
     g = readPlane(gg, `${name} g`, m);
+    // only g's direction enters the fit, but a reflection that cannot be excited is a typo or a misread pattern
+    if (!g.every((h) => Number.isInteger(h))) throw new InputError(`${name} g: (${g.join(' ')}) is not a reflection; give whole-number indices of the reflection that was excited, e.g. g=2,0,0`);
+    if (isForbidden(m, g)) {
+      const g2: Vec3 = [2 * g[0], 2 * g[1], 2 * g[2]];
+      const hint = isForbidden(m, g2) ? '' : `, e.g. ${formatPlaneIn(m.lattice, g2)}`;
+      throw new InputError(`${name} g: ${formatPlaneIn(m.lattice, g)} is forbidden for the ${m.structure} structure of ${m.name} (its structure factor vanishes by symmetry); give the reflection that was excited${hint}`);
+    }
   }
   if (gAngle === undefined) throw new InputError(`${name} gAngle: missing; give the direction of g on the micrograph in degrees counter-clockwise from +x (+y down), e.g. gAngle=10`);
   const lineAngle = num('lineAngle', -360, 360, 'the direction of the line on the micrograph in degrees');
@@ -142,11 +147,13 @@ export function tracesCommand(subject: string, given: TracesOptions): void {
   const opts = { ...given, view: given.view ?? [], b: given.b ?? [] };
   let m: Material;
   let sc: Scenario | undefined;
-  let raw: Record<string, unknown> | undefined;
+  // the scenario's "micrographs" settings, validated as identify validates them (a bad value names its JSON path)
+  let micrographs: ReadonlyMap<string, MicrographSettings> = new Map();
   if (/\.json$/i.test(subject) || (existsSync(subject) && !/^[A-Za-z][A-Za-z0-9_-]*$/.test(subject))) {
-    raw = readScenarioJson(subject);
+    const raw = readScenarioJson(subject);
     sc = parseScenario(raw);
     m = sc.material;
+    micrographs = parseMicrographSettings(raw.micrographs, sc.conditions.map((c) => c.id));
   } else {
     m = getMaterial(subject, 'material');
   }
@@ -154,7 +161,7 @@ export function tracesCommand(subject: string, given: TracesOptions): void {
   const defaultError = opts.angleError === undefined ? 1 : numberOption('--angle-error', 0.01, 45, 'the one-sigma error of the measured angles in degrees')(opts.angleError);
   if (opts.view.length < 2) throw new InputError('--view: trace analysis needs at least two views taken in different beam directions; give --view once per micrograph, e.g. --view "beam=0,0,1 g=2,0,0 gAngle=0 lineAngle=45"');
   if (opts.view.length > 24) throw new InputError(`--view: ${opts.view.length} views given; give at most 24`);
-  const views = opts.view.map((t, i) => parseView(t, i, m, sc, raw, defaultError));
+  const views = opts.view.map((t, i) => parseView(t, i, m, sc, micrographs, defaultError));
   const fit = fitLineDirection(l, views.map((v) => v.view));
   const bs = candidateVectors(opts, m, sc);
 

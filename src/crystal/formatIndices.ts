@@ -14,7 +14,10 @@ export function clean(x: number): number {
   return r === 0 ? 0 : r;
 }
 
-/** "[1 1 0]", "1/2[1 1 0]", "1/3[1 1 -2 0]" or decimals when no small denominator fits. */
+/**
+ * "[1 1 0]", "1/2[1 1 0]", "1/3[1 1 -2 0]" or decimals (6 places) when no small denominator fits: the one
+ * writer of lattice vectors (Burgers vectors, fault vectors, line directions) in labels, tables and messages.
+ */
 export function indicesWithFraction(v: readonly number[], open = '[', close = ']'): string {
   for (const d of [1, 2, 3, 4, 6, 8, 12]) {
     const k = v.map((x) => x * d);

@@ -6,7 +6,7 @@ import type { Material } from '../crystal/material.js';
 import { fail, joinPath, onlyKeys, required, string } from '../scenario/check.js';
 import { readPlane, readVector } from '../scenario/parse.js';
 import { imagePointToCrystal } from '../geometry/frames.js';
-import { formatBurgers } from '../analysis/candidates.js';
+import { formatDirectionIn } from '../crystal/formatIndices.js';
 import type { DefectType } from './defectType.js';
 
 /** A planar fault crossing the whole foil. */
@@ -91,10 +91,11 @@ export const fault: DefectType<FaultSpec> = {
   line: () => undefined,
   visibilityRows: () => [],
   /** The given fault vector and its negative, i.e. intrinsic versus extrinsic for a {111} fault in fcc. */
-  candidates(_sc, target, defectIndex) {
+  candidates(sc, target, defectIndex) {
     const v = target.vector;
     const minus: Vec3 = [-v[0] + 0, -v[1] + 0, -v[2] + 0];
-    const name = (nature: string, r: Vec3) => (nature === 'vector' ? `R = ${formatBurgers(r)}` : `${nature} (R = ${formatBurgers(r)})`);
+    const text = (r: Vec3) => formatDirectionIn(sc.material.lattice, r);
+    const name = (nature: string, r: Vec3) => (nature === 'vector' ? `R = ${text(r)}` : `${nature} (R = ${text(r)})`);
     const other = target.nature === 'intrinsic' ? 'extrinsic' : target.nature === 'extrinsic' ? 'intrinsic' : 'vector';
     return [
       { label: name(target.nature, v), kind: 'faultNature', defectIndex, defect: target, faultVector: v },

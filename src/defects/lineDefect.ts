@@ -14,17 +14,15 @@ import { dislocationFrame } from '../elasticity/straightDislocation.js';
 import { InputError } from '../errors.js';
 import { sig } from '../format.js';
 import { fail, joinPath } from '../scenario/check.js';
-import { formatVector } from '../scenario/parse.js';
 import type { Condition, DefectSpec, Scenario } from '../scenario/types.js';
 import type { DislocationFieldSpec, JumpSurface } from '../imaging/fieldSpecs.js';
-import { formatBurgers, type Candidate, type VisibilityNote } from '../analysis/candidates.js';
+import { type Candidate, type VisibilityNote } from '../analysis/candidates.js';
 import { judge } from '../analysis/visibility.js';
 import type { RowMaker, WarningContext } from './defectType.js';
 import type { DislocationSpec } from './dislocation.js';
 import type { PartialSpec } from './partial.js';
 import { modelOf, only } from '../analysis/visibilityTable.js';
-import { formatDirectionIn } from '../crystal/formatIndices.js';
-import { usesFourIndices } from '../crystal/lattice.js';
+import { formatDirectionIn, indicesWithFraction } from '../crystal/formatIndices.js';
 
 /** A dislocation with an explicit cut: its field and the half-plane where R jumps by b. */
 export function dislocationWithCut(
@@ -130,30 +128,43 @@ export function lineWarnings(d: LineLike, ctx: WarningContext): string[] {
 /**
  * Every Burgers vector of the scenario's "candidates" list with BOTH signs
  * (b and -b are different hypotheses: the image moves to the other side of
- * the core, Hirsch et al. 1965), those failing `keep` left out.
+ * the core, Hirsch et al. 1965), in list order, repeats left out. With
+ * `targetLine` (straight-line defects) each comes with its line: the entry's
+ * own (ownLine) or the target's, and a repeat is the same b with the same line;
+ * without it (loops) lines play no part. `example`: the list the message for an
+ * empty "candidates" suggests.
  */
-export function burgersCandidates(sc: Scenario, defectIndex: number, keep: (b: Vec3) => boolean): Candidate[] {
-  const target = sc.defects[defectIndex];
-  if (!('b' in target) || !('line' in target)) throw new RangeError('burgersCandidates: target has no Burgers vector');
+export function signedBurgers(sc: Scenario, example: string, targetLine?: Vec3): { readonly b: Vec3; readonly line?: Vec3; readonly ownLine: boolean }[] {
   if (sc.candidates.length === 0) {
-    throw new InputError('candidates is empty; list the Burgers vectors to compare, e.g. "candidates": ["1/2<110>"]');
+    throw new InputError(`candidates is empty; list the Burgers vectors to compare, e.g. "candidates": [${example}]`);
   }
-  const out: Candidate[] = [];
+  const out: { b: Vec3; line?: Vec3; ownLine: boolean }[] = [];
   const seen = new Set<string>();
   for (const spec of sc.candidates) {
     for (const sign of [1, -1]) {
       const b: Vec3 = [sign * spec.b[0] + 0, sign * spec.b[1] + 0, sign * spec.b[2] + 0];
-      if (!keep(b)) continue;
-      const line = spec.line ?? target.line;
-      const key = `${formatVector(b)} ${formatVector(line)}`;
+      const line = targetLine === undefined ? undefined : spec.line ?? targetLine;
+      const key = line === undefined ? indicesWithFraction(b) : `${indicesWithFraction(b)} ${indicesWithFraction(line)}`;
       if (seen.has(key)) continue;
       seen.add(key);
-      // hexagonal crystals: four indices (1/3[1 1 -2 0]); cubic: the usual 1/2[1 1 0]
-      const l = sc.material.lattice;
-      const bText = usesFourIndices(l) ? formatDirectionIn(l, b) : formatBurgers(b);
-      const label = spec.line === undefined ? `b = ${bText}` : `b = ${bText}, u = ${usesFourIndices(l) ? formatDirectionIn(l, line) : formatVector(line)}`;
-      out.push({ label, kind: 'burgers', defectIndex, defect: { ...target, b, line } as DefectSpec, b, line });
+      out.push({ b, ...(line === undefined ? {} : { line }), ownLine: targetLine !== undefined && spec.line !== undefined });
     }
+  }
+  return out;
+}
+
+/** The Burgers-vector candidates of a straight-line defect (signedBurgers), those failing `keep` left out. */
+export function burgersCandidates(sc: Scenario, defectIndex: number, keep: (b: Vec3) => boolean): Candidate[] {
+  const target = sc.defects[defectIndex];
+  if (!('b' in target) || !('line' in target)) throw new RangeError('burgersCandidates: target has no Burgers vector');
+  const l = sc.material.lattice;
+  const out: Candidate[] = [];
+  for (const { b, line, ownLine } of signedBurgers(sc, '"1/2<110>"', target.line)) {
+    if (!keep(b) || line === undefined) continue;
+    // hexagonal crystals: four indices (1/3[1 1 -2 0]); cubic: the usual 1/2[1 1 0]
+    const bText = formatDirectionIn(l, b);
+    const label = ownLine ? `b = ${bText}, u = ${formatDirectionIn(l, line)}` : `b = ${bText}`;
+    out.push({ label, kind: 'burgers', defectIndex, defect: { ...target, b, line } as DefectSpec, b, line });
   }
   if (out.length === 0) {
     throw new InputError(`candidates holds no Burgers vector that fits defects[${defectIndex}] (a dissociated dislocation needs b in its glide plane); add suitable candidates`);

@@ -29,15 +29,14 @@ import { cross, dot, norm, scale, unit } from '../math/vec3.js';
 import { directionToCartesian, planeNormalToCartesian } from '../crystal/lattice.js';
 import type { Material } from '../crystal/material.js';
 import { array, fail, joinPath, number, onlyKeys, required, string } from '../scenario/check.js';
-import { formatVector, readPlane, readVector } from '../scenario/parse.js';
+import { readPlane, readVector } from '../scenario/parse.js';
+import { formatDirectionIn, indicesWithFraction } from '../crystal/formatIndices.js';
 import { imagePointToCrystal } from '../geometry/frames.js';
 import { circleSides, circleVertices } from '../elasticity/loopField.js';
 import { sig } from '../format.js';
 import type { DefectType } from './defectType.js';
 import type { Candidate } from '../analysis/candidates.js';
-import { formatBurgers } from '../analysis/candidates.js';
-import { InputError } from '../errors.js';
-import { burgersNote } from './lineDefect.js';
+import { burgersNote, signedBurgers } from './lineDefect.js';
 import { modelOf } from '../analysis/visibilityTable.js';
 import type { LoopFieldSpec } from '../imaging/fieldSpecs.js';
 
@@ -154,22 +153,28 @@ function readFault(v: unknown, path: string, m: Material, b: Vec3, normal: Vec3)
   if (!isLatticeTranslation(m, diff)) {
     fail(
       path,
-      `names the fault vector ${formatVector(vector)}, but a loop's enclosed fault is its Burgers vector b = ${formatVector(b)} up to a lattice translation (for a Frank loop on (${normal.join(' ')}) an intrinsic fault needs b = +1/3 of the normal, a vacancy loop, and an extrinsic one -1/3); change "b" or "fault"`,
+      `names the fault vector ${indicesWithFraction(vector)}, but a loop's enclosed fault is its Burgers vector b = ${indicesWithFraction(b)} up to a lattice translation (for a Frank loop on (${normal.join(' ')}) an intrinsic fault needs b = +1/3 of the normal, a vacancy loop, and an extrinsic one -1/3); change "b" or "fault"`,
     );
   }
   return { nature, vector };
 }
 
+export type LoopNature = 'vacancy' | 'interstitial' | 'shear';
+
 /**
- * Nature of a loop from b and its normal (loopField.ts: the line runs counterclockwise about n, so
- * b.n > 0 is a vacancy loop and b.n < 0 an interstitial loop); "shear" when b lies in the loop plane
- * (|b.n| < 1e-6 |b|).
+ * Nature of a loop from b and its unit normal n, both crystal Cartesian (loopField.ts: the line runs
+ * counterclockwise about n, so b.n > 0 is a vacancy loop and b.n < 0 an interstitial loop); "shear"
+ * when b lies in the loop plane (|b.n| < 1e-6 |b|).
  */
-export function loopNature(m: Material, d: LoopSpec): 'vacancy' | 'interstitial' | 'shear' {
-  const b = directionToCartesian(m.lattice, d.b);
-  const bn = dot(b, d.frame.n);
-  if (Math.abs(bn) < 1e-6 * norm(b)) return 'shear';
+export function natureOfBurgers(b_cart: Vec3, n: Vec3): LoopNature {
+  const bn = dot(b_cart, n);
+  if (Math.abs(bn) < 1e-6 * norm(b_cart)) return 'shear';
   return bn > 0 ? 'vacancy' : 'interstitial';
+}
+
+/** Nature of a loop as given (its b and habit-plane normal). */
+export function loopNature(m: Material, d: LoopSpec): LoopNature {
+  return natureOfBurgers(directionToCartesian(m.lattice, d.b), d.frame.n);
 }
 
 export const loop: DefectType<LoopSpec> = {
@@ -240,7 +245,7 @@ export const loop: DefectType<LoopSpec> = {
     const pixel = ctx.sc.image.pixel_nm;
     if (2 * reach < 2 * pixel) w.push(`${ctx.where}: the loop (${sig(2 * reach, 3)} nm across in the image) is smaller than two pixels of ${pixel} nm; its image is only its strain field`);
     if (d.fault === undefined && !isLatticeTranslation(ctx.sc.material, d.b)) {
-      w.push(`${ctx.where}: b = ${formatVector(d.b)} is not a lattice translation, so the loop encloses a fault with fault vector b (name it with "fault")`);
+      w.push(`${ctx.where}: b = ${indicesWithFraction(d.b)} is not a lattice translation, so the loop encloses a fault with fault vector b (name it with "fault")`);
     }
     return w;
   },
@@ -258,23 +263,11 @@ export const loop: DefectType<LoopSpec> = {
    * with a prismatic component. A candidate names no fault: its jump b across the loop is the enclosed fault.
    */
   candidates(sc, target, defectIndex) {
-    if (sc.candidates.length === 0) {
-      throw new InputError('candidates is empty; list the Burgers vectors to compare, e.g. "candidates": ["1/3<111>", "1/2<110>"]');
-    }
-    const out: Candidate[] = [];
-    const seen = new Set<string>();
-    for (const spec of sc.candidates) {
-      for (const sign of [1, -1]) {
-        const b: Vec3 = [sign * spec.b[0] + 0, sign * spec.b[1] + 0, sign * spec.b[2] + 0];
-        const key = formatVector(b);
-        if (seen.has(key)) continue;
-        seen.add(key);
-        const { fault: _fault, ...rest } = target;
-        const defect: LoopSpec = { ...rest, b };
-        out.push({ label: `b = ${formatBurgers(b)} (${loopNature(sc.material, defect)})`, kind: 'burgers', defectIndex, defect, b });
-      }
-    }
-    return out;
+    const { fault: _fault, ...rest } = target;
+    return signedBurgers(sc, '"1/3<111>", "1/2<110>"').map(({ b }): Candidate => {
+      const defect: LoopSpec = { ...rest, b };
+      return { label: `b = ${formatDirectionIn(sc.material.lattice, b)} (${loopNature(sc.material, defect)})`, kind: 'burgers', defectIndex, defect, b };
+    });
   },
   visibilityNote: burgersNote,
 };

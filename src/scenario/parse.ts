@@ -374,9 +374,9 @@ function refuseFamily(v: unknown, path: string, kind: 'vector' | 'plane'): void 
   );
 }
 
-/** A candidate Burgers vector as text: four indices for hexagonal crystals (1/3[1 1 -2 0]), else formatVector. */
+/** A candidate Burgers vector as text: four indices for hexagonal crystals (1/3[1 1 -2 0]), else 1/2[1 1 0]. */
 function candidateText(m: Material, b: Vec3): string {
-  return usesFourIndices(m.lattice) ? formatDirectionIn(m.lattice, b) : formatVector(b);
+  return formatDirectionIn(m.lattice, b);
 }
 
 /** A direction, 3 or 4 (hexagonal) indices, returned in 3-index lattice units. */
@@ -431,20 +431,4 @@ function cosCart(m: Material, a: Vec3, b: Vec3): number {
 
 function deg(rad: number): number {
   return (rad * 180) / Math.PI;
-}
-
-/** A vector in lattice units as text: "[1 -1 0]", "1/2[1 1 0]", "1/6[1 2 1]", or decimals when no small denominator fits. */
-export function formatVector(v: Vec3): string {
-  for (const d of [1, 2, 3, 4, 6]) {
-    const n = v.map((x) => Math.round(x * d));
-    if (n.every((k, i) => Math.abs(k - v[i] * d) < 1e-6)) {
-      const body = `[${n.map((k) => (Object.is(k, -0) ? 0 : k)).join(' ')}]`;
-      return d === 1 ? body : `1/${d}${body}`;
-    }
-  }
-  const f = (x: number) => {
-    const r = Math.round(x * 1e6) / 1e6;
-    return Number.isInteger(r) ? String(r) : r.toFixed(4).replace(/0+$/, '');
-  };
-  return `[${f(v[0])} ${f(v[1])} ${f(v[2])}]`;
 }

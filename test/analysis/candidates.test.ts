@@ -2,7 +2,7 @@
 import { describe, expect, it } from 'vitest';
 import { parseScenario } from '../../src/scenario/parse.js';
 import type { Scenario } from '../../src/scenario/types.js';
-import { formatBurgers, identificationCandidates, variantScenario, visibilityNote } from '../../src/analysis/candidates.js';
+import { identificationCandidates, variantScenario, visibilityNote } from '../../src/analysis/candidates.js';
 import { judge } from '../../src/analysis/visibility.js';
 import { conditionView, simulatedGAngle_deg } from '../../src/analysis/identifyView.js';
 import { imageFrame, imagePointToCrystal } from '../../src/geometry/frames.js';
@@ -52,18 +52,25 @@ describe('Burgers-vector candidates', () => {
     expect(n).toMatchObject({ quantity: 'g.b', value: j.gb, verdict: j.verdict, rule: j.rule });
   });
 
-  it('formatBurgers writes simple fractions', () => {
-    expect(formatBurgers([0.5, -0.5, 0])).toBe('1/2[1 -1 0]');
-    expect(formatBurgers([1 / 6, 1 / 6, -1 / 3])).toBe('1/6[1 1 -2]');
-    expect(formatBurgers([1, 0, 0])).toBe('[1 0 0]');
-  });
-
   it('refuses an empty candidate list and a defect index that does not exist', () => {
     const bare = sc({ defects: [{ type: 'dislocation', b: '1/2[1 1 0]', line: [1, -1, 2] }] });
     expect(() => identificationCandidates(bare)).toThrow(InputError);
     expect(() => identificationCandidates(bare)).toThrow(/candidates/);
     expect(() => identificationCandidates(s, 3)).toThrow(/--defect 3/);
     expect(() => identificationCandidates(sc({ candidates: ['1/2<110>'] }))).toThrow(/defects is empty/);
+  });
+
+  it('a loop takes the same signed list, without repeats, each labelled with its nature (b.n > 0 vacancy, loop.ts)', () => {
+    const loop = { type: 'loop', b: '1/2[1 0 1]', normal: [1, 0, 1], centre_nm: [0, 0, 40], radius_nm: 10 };
+    // the family 1/2<110> already holds 1/2[1 0 1]: 12 candidates, not 14
+    const c = identificationCandidates(sc({ defects: [loop], candidates: ['1/2<110>', '1/2[1 0 1]'] }));
+    expect(c.length).toBe(12);
+    expect(new Set(c.map((x) => x.label)).size).toBe(12);
+    // by hand: n = (1 0 1)/sqrt2; [1 0 1].n > 0 vacancy, [-1 0 -1].n < 0 interstitial, [1 0 -1].n = 0 shear
+    expect(c.map((x) => x.label)).toEqual(expect.arrayContaining(['b = 1/2[1 0 1] (vacancy)', 'b = 1/2[-1 0 -1] (interstitial)', 'b = 1/2[1 0 -1] (shear)']));
+    for (const x of c) expect(x.defect).toMatchObject({ type: 'loop', b: x.b, radius_nm: 10 });
+    const empty = sc({ defects: [loop] });
+    expect(() => identificationCandidates(empty)).toThrow(/^candidates is empty; list the Burgers vectors to compare, e\.g\. "candidates": \["1\/3<111>", "1\/2<110>"\]$/);
   });
 
   it('a dissociated dislocation keeps only candidates in its glide plane', () => {

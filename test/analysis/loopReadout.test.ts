@@ -130,3 +130,19 @@ describe('black-white contrast of a small loop (radius 2 nm, Cu 200, w = 0)', ()
     a.depthSeries!.forEach((q, i) => expect(q.sign).toBe(-b.depthSeries![i].sign));
   });
 });
+
+describe('a shear loop (b = 1/2[1 -1 0] in its (1 1 1) plane, Cu 200, w = 1)', () => {
+  it('is called a shear loop for both signs of b (neither vacancy nor interstitial), and its image side still follows (g.b) s (n.B)', () => {
+    // b.n = 0: no prismatic component, so no vacancy/interstitial nature (Hull & Bacon, Introduction to Dislocations: a
+    // shear loop glides in its plane); the inside-outside side of any dislocation line flips with the sign of (g.b) s
+    // (Edington 1975), so a +g/-g pair still tells the sign of b
+    const [r] = analyseLoops(scenario({ b: '1/2[1 -1 0]', normal: [1, 1, 1], centre_nm: [0, 0, 60], radius_nm: 25 }, [{ id: 'a', g: [2, 0, 0], w: 1 }]));
+    expect(r.natures.map((x) => x.nature)).toEqual(['shear', 'shear']);
+    for (const x of r.natures) {
+      expect(['inside', 'outside']).toContain(x.plus.side);
+      expect(x.plus.side).toBe(x.rulePlus);
+      expect(x.minus.side).not.toBe(x.plus.side);
+    }
+    expect(r.pair).toMatch(/^\+g (inside|outside) and -g (inside|outside): shear loop with b = 1\/2\[1 -1 0\]; \+g (inside|outside) and -g (inside|outside): shear loop with b = 1\/2\[-1 1 0\]$/);
+  });
+});

@@ -12,6 +12,7 @@ import { parseMicrographSettings } from '../../src/analysis/identifySettings.js'
 import { DEFAULT_FIT, parseFitSettings } from '../../src/analysis/fitSettings.js';
 import { directionAngle_deg, nuisanceModel } from '../../src/analysis/nuisance.js';
 import { InputError } from '../../src/errors.js';
+import { fitWarnings } from '../../src/analysis/scenarioWarnings.js';
 
 const sc = parseScenario({
   name: 'n',
@@ -93,5 +94,21 @@ describe('nuisance parameters and their ranges', () => {
     expect(() => model(undefined, { thickness_nm: 30, thicknessError_nm: 1 })).toThrow(/^fit\.thickness_nm: the measured thickness 30 nm \(at most 32 nm .*\) leaves the depth 40 nm of the defect's point below the foil; /);
     const ok = Object.fromEntries(model(undefined, { thickness_nm: 38, thicknessError_nm: 2 }).parameters.map((x) => [x.name, x]));
     expect(ok.depth.lo).toBeLessThan(ok.depth.hi);
+  });
+  it('a measured thickness whose range leaves out the stated foil thickness (80 nm) is warned about, naming both fields', () => {
+    const w = (fit: unknown) => fitWarnings(sc, parseFitSettings(fit));
+    expect(w(undefined)).toEqual([]);
+    // ranges worked out by hand: 84 +- 2 x 3 = 78-90 holds 80; 84 +- 2 x 1 = 82-86 does not
+    expect(w({ thickness_nm: 84, thicknessError_nm: 3 })).toEqual([]);
+    const far = w({ thickness_nm: 84, thicknessError_nm: 1 });
+    expect(far).toHaveLength(1);
+    expect(far[0]).toMatch(/^fit\.thickness_nm: the measured foil thickness 84 \+- 1 nm is far from the scenario's foil\.thickness_nm 80 nm \(outside 82-86 nm, 2 standard errors of it\); .*check both/);
+    // without an error: +- 15 % of the measured value (default fit.thicknessRange): 90 -> 76.5-103.5 holds 80; 100 -> 85-115 does not
+    expect(w({ thickness_nm: 90 })).toEqual([]);
+    expect(w({ thickness_nm: 100 })[0]).toMatch(/\(outside 85-115 nm, the range fit\.thicknessRange gives it\)/);
+    // a thickness in Angstrom (800 for 80 nm)
+    expect(w({ thickness_nm: 800, thicknessError_nm: 20 })[0]).toMatch(/measured foil thickness 800 \+- 20 nm .*a unit slip\?/);
+    expect(w({ thickness_nm: 80, thicknessRange: 0 })).toEqual([]);
+    expect(w({ thickness_nm: 81, thicknessRange: 0 })[0]).toMatch(/\(which is used exactly \(fit\.thicknessRange 0\)\)/);
   });
 });

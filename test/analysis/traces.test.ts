@@ -7,8 +7,7 @@ import { getMaterial } from '../../src/crystal/materials.js';
 import { directionToCartesian, planeNormalToCartesian } from '../../src/crystal/lattice.js';
 import { imageFrame } from '../../src/geometry/frames.js';
 import { screenAngle_deg } from '../../src/geometry/conditionGeometry.js';
-import { fitLineDirection, planesContaining, scenarioWithLine, startingLine, symmetricEigen3, type TraceView } from '../../src/analysis/traces.js';
-import { parseScenario } from '../../src/scenario/parse.js';
+import { fitLineDirection, planesContaining, startingLine, symmetricEigen3, type TraceView } from '../../src/analysis/traces.js';
 import { glidePlane, slipFamilyOf } from '../../src/analysis/traceGlide.js';
 import { lengthCheck } from '../../src/analysis/traceLength.js';
 import { InputError } from '../../src/errors.js';
@@ -135,19 +134,10 @@ describe('trace analysis, worked example by hand (the construction of Edington 1
     expect(bad.consistent).toBe(false);
   });
 
-  it('startingLine gives a scenario line (lattice units, largest index 1) and a search cone of at least 1 degree; scenarioWithLine sets it', () => {
+  it('startingLine gives a scenario line (lattice units, largest index 1) and a search cone of at least 1 degree', () => {
     const s = startingLine(fit);
     expect(s.line).toEqual([0.5, -0.5, 1]);
     expect(s.cone_deg).toBeGreaterThanOrEqual(1);
-    const sc = parseScenario({
-      name: 'x', material: 'Cu', kV: 200, foil: { thickness_nm: 80, normal: [0, 0, 1] }, beam: [0, 0, 1],
-      conditions: [{ id: 'a', g: [2, 0, 0], w: 0.5 }],
-      defects: [{ type: 'dislocation', b: '1/2[1 1 0]', line: [1, 0, 0], point_nm: [0, 0, 40] }, { type: 'inclusion', centre_nm: [0, 0, 40], radius_nm: 3, misfit: 0.01 }],
-    });
-    const v = scenarioWithLine(sc, 0, s.line);
-    expect(v.defects[0]).toMatchObject({ line: [0.5, -0.5, 1] });
-    expect(sc.defects[0]).toMatchObject({ line: [1, 0, 0] });
-    expect(() => scenarioWithLine(sc, 1, s.line)).toThrow(/defects\[1\] has no line/);
   });
 });
 

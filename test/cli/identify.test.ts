@@ -263,6 +263,20 @@ describe('thinfoil identify: bad input gives exit code 2 and one sentence', () =
     expect(r.err).toMatch(pattern);
     expect(r.err.trim().split('\n').length).toBe(1);
   });
+  it('warns (before the work) when the measured thickness in "fit" leaves out foil.thickness_nm, and not when it holds it', async () => {
+    const f = join(dir, 'fit-thickness.json');
+    // 600 +- 10 nm against the stated 60 nm: a thickness in Angstrom
+    writeFileSync(f, JSON.stringify({ ...RAW, fit: { thickness_nm: 600, thicknessError_nm: 10 } }));
+    const r = await runAction(f, {});
+    expect(r.thrown).toBe('exit 2');
+    const lines = r.err.trim().split('\n');
+    expect(lines).toHaveLength(2);
+    expect(lines[0]).toMatch(/^thinfoil: warning: fit\.thickness_nm: the measured foil thickness 600 \+- 10 nm is far from the scenario's foil\.thickness_nm 60 nm \(outside 580-620 nm/);
+    expect(lines[1]).toMatch(/no micrograph given/);
+    writeFileSync(f, JSON.stringify({ ...RAW, fit: { thickness_nm: 62, thicknessError_nm: 2 } }));
+    const ok = await runAction(f, {});
+    expect(ok.err.trim().split('\n')).toHaveLength(1);
+  });
   it('--help of identify states each default once and never "(default: [])"', () => {
     // the compiled CLI, as a user calls it
     const r = spawnSync(process.execPath, [join(import.meta.dirname, '..', '..', 'dist', 'cli', 'main.js'), 'identify', '--help'], { encoding: 'utf8' });

@@ -5,7 +5,7 @@
  */
 import { describe, expect, it } from 'vitest';
 import { spawnSync } from 'node:child_process';
-import { mkdtempSync } from 'node:fs';
+import { mkdtempSync, readFileSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 
@@ -56,5 +56,33 @@ describe('thinfoil ribbon', () => {
     expect(r.err).toMatch(pattern);
     expect(r.err.trim().split('\n').length).toBe(1);
     expect(r.err).not.toMatch(/\n\s+at /);
+  });
+
+  // the scenario's "micrographs".wb settings go through the validation identify uses (src/analysis/identifySettings.ts)
+  const withSettings = (name: string, wb: Record<string, unknown>) => {
+    const file = join(dir, `${name}.json`);
+    writeFileSync(file, JSON.stringify({ ...JSON.parse(readFileSync(join(ROOT, SC), 'utf8')), micrographs: { wb } }));
+    return file;
+  };
+
+  it('takes the pixel size and the direction of g from the scenario\'s "micrographs" settings', () => {
+    const file = withSettings('good', { pixel_nm: 0.25, gAngle_deg: 90 });
+    const r = run('ribbon', file, '--micrograph', join(out, 'wb-df.tif'), '--json');
+    expect(r.code, r.err).toBe(0);
+    const j = JSON.parse(r.out);
+    expect(j.pixel_nm).toBe(0.25);
+    expect(Math.abs(j.width_nm - 6)).toBeLessThan(0.25);
+  });
+
+  it.each([
+    [{ pixel_nm: '0.25', gAngle_deg: 90 }, /^thinfoil: micrographs\.wb\.pixel_nm: must be a finite number \(nm\)\n$/],
+    [{ pixel_nm: -0.25, gAngle_deg: 90 }, /^thinfoil: micrographs\.wb\.pixel_nm: must be greater than 0 \(nm\), got -0\.25\n$/],
+    [{ gAngle_deg: 400 }, /^thinfoil: micrographs\.wb\.gAngle_deg: must be at most 360 \(degrees\), got 400\n$/],
+    [{ gAngle_deg: '90' }, /^thinfoil: micrographs\.wb\.gAngle_deg: must be a finite number \(degrees\)\n$/],
+  ])('a bad "micrographs" setting %j: exit code 2 and one sentence naming its JSON path', (wb, pattern) => {
+    const file = withSettings('bad', wb);
+    const r = run('ribbon', file, '--micrograph', join(out, 'wb-df.tif'));
+    expect(r.code).toBe(2);
+    expect(r.err).toMatch(pattern);
   });
 });

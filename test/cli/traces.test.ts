@@ -65,6 +65,28 @@ describe('thinfoil traces', () => {
   });
 
   it.each([
+    [{ a: { gAngle_deg: 400 } }, /^thinfoil: micrographs\.a\.gAngle_deg: must be at most 360 \(degrees\), got 400\n$/],
+    [{ a: { gAngle_deg: '12' } }, /^thinfoil: micrographs\.a\.gAngle_deg: must be a finite number \(degrees\)\n$/],
+    [{ a: { pixel_nm: -1, gAngle_deg: 12 } }, /^thinfoil: micrographs\.a\.pixel_nm: must be greater than 0/],
+    [{ c: { gAngle_deg: 12 } }, /^thinfoil: micrographs\.c: names no condition of the scenario; use one of a, b\n$/],
+  ])('a bad "micrographs" setting %j in the scenario: exit code 2 and one sentence naming its JSON path', (micrographs, pattern) => {
+    const dir = mkdtempSync(join(tmpdir(), 'thinfoil-traces-'));
+    const file = join(dir, 'traces.json');
+    writeFileSync(
+      file,
+      JSON.stringify({
+        name: 'traces', material: 'Cu', kV: 200, foil: { thickness_nm: 120, normal: [0, 0, 1] }, beam: [0, 0, 1],
+        conditions: [{ id: 'a', g: [2, 0, 0], w: 0.5 }, { id: 'b', g: [2, 0, 0], w: 0.5, beam: [0, 1, 1] }],
+        defects: [{ type: 'dislocation', b: '1/2[1 1 0]', line: [1, -1, 2], point_nm: [0, 0, 60] }],
+        micrographs,
+      }),
+    );
+    const r = run('traces', file, '--view', 'condition=a lineAngle=57', '--view', 'condition=b gAngle=-35 lineAngle=29.76');
+    expect(r.code).toBe(2);
+    expect(r.err).toMatch(pattern);
+  });
+
+  it.each([
     [['traces', 'Cu', '--view', 'beam=0,0,1 g=2,0,0 gAngle=0 lineAngle=45'], /--view: .*at least two views/],
     [['traces', 'Cu', '--view', 'beam=0,0,1 g=2,0,0 gAngle=0 lineAngle=45', '--view', 'beam=0,1,1 g=2,0,0 gAngle=0'], /--view 2 lineAngle: missing/],
     [['traces', 'Cu', '--view', 'beam=0,0,1 g=2,0,0 gAngle=0 lineAngle=45', '--view', 'beam=0,1,1 g=1,1,1 gAngle=0 lineAngle=3'], /--view 2: g = \(1 1 1\) .* out of the zone/],
@@ -73,6 +95,12 @@ describe('thinfoil traces', () => {
     [['traces', 'Cu', '--view', 'beam=0,0,1 g=2,0,0 gAngle=0 lineAngle=45', '--view', 'beam=0,0,1 g=0,2,0 gAngle=90 lineAngle=3'], /--view: the beam directions/],
     [['traces', 'Cu', '--view', 'beam=0,0,1 g=2,0,0 gAngle=0 lineAngle=45 length=50', '--view', 'beam=0,1,1 g=2,0,0 gAngle=0 lineAngle=60'], /--normal/],
     [['traces', 'Cu', '--view', 'beam=0,0,1 g=2,0,0 gAngle=0 lineAngle=45', '--view', 'beam=0,1,1 g=2,0,0 gAngle=0 lineAngle=60', '--b', '{111}'], /--b 1/],
+    // extinction rules of the kinematical structure factor (textbook rules, e.g. Williams & Carter, Transmission Electron
+    // Microscopy; quoted from memory, exact for whole indices): fcc needs h, k, l all even or all odd; bcc needs h + k + l even; diamond also forbids all-even with h + k + l = 4n + 2
+    [['traces', 'Cu', '--view', 'beam=0,0,1 g=1,0,0 gAngle=0 lineAngle=45', '--view', 'beam=0,1,1 g=2,0,0 gAngle=0 lineAngle=60'], /^thinfoil: --view 1 g: \(1 0 0\) is forbidden for the fcc structure of Cu .*give the reflection that was excited, e\.g\. \(2 0 0\)\n$/],
+    [['traces', 'alpha-Fe', '--view', 'beam=0,0,1 g=2,0,0 gAngle=0 lineAngle=45', '--view', 'beam=1,-1,0 g=1,1,1 gAngle=0 lineAngle=60'], /^thinfoil: --view 2 g: \(1 1 1\) is forbidden for the bcc structure of alpha-Fe .*e\.g\. \(2 2 2\)\n$/],
+    [['traces', 'Si', '--view', 'beam=0,0,1 g=2,0,0 gAngle=0 lineAngle=45', '--view', 'beam=0,1,1 g=4,0,0 gAngle=0 lineAngle=60'], /^thinfoil: --view 1 g: \(2 0 0\) is forbidden for the diamond structure of Si .*e\.g\. \(4 0 0\)\n$/],
+    [['traces', 'Cu', '--view', 'beam=0,0,1 g=2.5,0,0 gAngle=0 lineAngle=45', '--view', 'beam=0,1,1 g=2,0,0 gAngle=0 lineAngle=60'], /^thinfoil: --view 1 g: \(2\.5 0 0\) is not a reflection; give whole-number indices/],
     [['traces', 'Unobtainium', '--view', 'beam=0,0,1 g=2,0,0 gAngle=0 lineAngle=45'], /material/],
   ])('bad input %j: exit code 2 and one sentence naming the field', (args, pattern) => {
     const r = run(...(args as string[]));
