@@ -21,7 +21,7 @@ import { coreGeometry } from '../imaging/cores.js';
 import type { DefectModel, DislocationFieldSpec, LoopFieldSpec } from '../imaging/fieldSpecs.js';
 import { columnEvaluator, type RenderJob } from '../imaging/renderRows.js';
 import type { ResolvedCondition } from '../imaging/resolveCondition.js';
-import { twoBeamParams } from '../imaging/renderScenario.js';
+import { background, twoBeamParams } from '../imaging/renderScenario.js';
 
 export type SimulatedVerdict = 'visible' | 'weak' | 'invisible';
 
@@ -143,9 +143,7 @@ function peakContrast(c: ResolvedCondition, model: DefectModel, referenceSurface
   const ref = referenceSurfaces.length === 0 ? null : columnEvaluator({ ...job, model: { fields: [], surfaces: referenceSurfaces } });
   const a = new Float64Array(4);
   const b = new Float64Array(4);
-  columnEvaluator({ ...job, model: { fields: [], surfaces: [] } }).column(a, 0, 0);
-  const i0b = a[0] * a[0] + a[1] * a[1];
-  const i0d = a[2] * a[2] + a[3] * a[3];
+  const { bf: i0b, df: i0d } = background(job);
   const cores = coreGeometry(job);
   let bf = 0;
   let df = 0;

@@ -75,10 +75,22 @@ export function visibilityTable(sc: Scenario, options: { simulate?: boolean } = 
   }
   const soleLine = lines.length === 1 ? lines[0] : undefined;
   const mid = sc.thickness_nm / 2;
+  // without a line, a scenario whose one loop is the target: candidates are simulated as that loop with their b
+  const loops = sc.defects.filter((d) => d.type === 'loop');
+  const soleLoop = lines.length === 0 && loops.length === 1 ? loops[0] : undefined;
   for (const c of sc.candidates) {
     const line = c.line ?? soleLine;
     // a candidate is simulated as a straight dislocation through the image centre at mid-depth
-    const sim = line === undefined ? undefined : () => only(modelOf(sc, { type: 'dislocation', label: c.label, b: c.b, line, point_nm: [0, 0, mid] }), 0);
+    let sim: (() => Simulation) | undefined =
+      line === undefined ? undefined : () => only(modelOf(sc, { type: 'dislocation', label: c.label, b: c.b, line, point_nm: [0, 0, mid] }), 0);
+    if (line === undefined && soleLoop !== undefined) {
+      // the loop's shape, place and plane; a b that is no lattice translation encloses a fault of fault vector b
+      const { fault: _fault, ...shape } = soleLoop;
+      sim = () => {
+        const model = modelOf(sc, { ...shape, label: c.label, b: c.b });
+        return { model, loop: model.fields[0] as LoopFieldSpec };
+      };
+    }
     rows.push(make(c.label, 'candidate', c.b, line, sim));
   }
   return rows;

@@ -196,10 +196,12 @@ export function conditionSummary(ci: ConditionImages) {
 /**
  * Cost of a render in column-defect pairs (pixels x conditions x defects).
  * Measured here: 100 straight dislocations on 32 x 32 pixels, one condition
- * (102,400 pairs) took 52 s on 2 busy cores, about 2,000 pairs per second:
- * the slowest case (the field of every line at every point). The demo's 5.7e5
- * pairs (7 defects, column by column because of its loops) took 19 CPU s,
- * about 30,000 pairs per CPU second; the warning therefore states an upper bound.
+ * (102,400 pairs) took 52 s on 2 busy cores, about 2,000 pairs per second.
+ * The rate depends on much more than the pair count: the demo scenario's 5.7e5
+ * pairs (7 defects, two-beam, column by column because of its loops) took
+ * 19 CPU s in one run here (about 30,000 pairs per CPU second), while 10
+ * inclined lines with relaxed surfaces, a 9-beam row and a 300 nm foil ran at
+ * about 1,000 pairs per second on 2 cores. The warning names the rate it assumes.
  */
 export const PAIRS_PER_SECOND = 2000;
 /** Above this a warning with an estimate is printed before starting; above MAX_PAIRS the render is refused. */
@@ -213,7 +215,7 @@ export function costWarning(sc: Scenario): string | undefined {
   if (pairs > MAX_PAIRS) {
     throw new InputError(`the scenario asks for ${text}, about ${Math.round(minutes / 60)} hours here (limit ${MAX_PAIRS.toExponential(0)}); use fewer pixels, conditions or defects`);
   }
-  if (pairs > WARN_PAIRS) return `${text}; it may take up to about ${minutes < 2 ? `${Math.round(minutes * 60)} s` : `${Math.round(minutes)} min`} (the slowest rate measured here, ${PAIRS_PER_SECOND} pairs per second on 2 cores, many lines column by column; a few defects or shared columns run 10x faster)`;
+  if (pairs > WARN_PAIRS) return `${text}; at ${PAIRS_PER_SECOND} pairs per second (two-beam, many lines column by column, 2 cores) that is about ${minutes < 2 ? `${Math.round(minutes * 60)} s` : `${Math.round(minutes)} min`}; many beams, relaxed surfaces and thick foils are slower, a few defects or shared columns faster`;
   return undefined;
 }
 

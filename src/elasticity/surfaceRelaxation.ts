@@ -1,8 +1,10 @@
 /**
  * Free-surface relaxation of a straight dislocation in a foil: the correction
  * field that, added to the infinite-medium field, makes the surfaces
- * r.n = 0 and r.n = t of the foil free of traction. Isotropic elasticity,
- * screw component B = b.u only; two geometries, both exact for a screw in an
+ * r.n = 0 and r.n = t of the foil free of traction. Here: isotropic
+ * elasticity, the screw component B = b.u (the whole correction of a pure
+ * screw; edge components get surfaceEdgeImages.ts or the half-space correction
+ * of surfaceHalfSpaceInclined.ts); two geometries, both exact for a screw in an
  * isotropic plate:
  *
  * 1. Line parallel to the surfaces (u.n = 0), at depth z0. The antiplane

@@ -27,13 +27,13 @@ export interface SurfacesDescription {
 /** What each correction does, in words. */
 const KIND_TEXT: Readonly<Record<SurfaceCorrectionKind, string>> = {
   'parallel-screw-images':
-    'lines parallel to the surfaces: the screw component gets its infinite series of image screws (closed form; exact for a screw in an isotropic plate), the edge component is not corrected',
+    'lines parallel to the surfaces: the screw component gets its infinite series of image screws (closed form; exact for a screw in an isotropic plate); chosen for pure screws, so nothing else is left to correct',
   'parallel-edge-images':
-    'lines parallel to the surfaces: the screw component gets its infinite series of image screws (exact for a screw in an isotropic plate), the edge component the isotropic half-space image of each surface (Head 1953; each surface is freed exactly on its own, but the image of one surface leaves a traction on the other, no repeated reflections: about 10-18 % of the unrelaxed traction within 40 nm of an edge 7-12 nm deep in a 60 nm foil, 50 % at mid-foil; beyond about two foil thicknesses from the line the images do not reduce the traction)',
+    'lines parallel to the surfaces: the screw component gets its infinite series of image screws (exact for a screw in an isotropic plate), the edge component the isotropic half-space image of each surface (Head 1953; each surface is freed exactly on its own, but the image of one surface leaves a traction on the other, no repeated reflections: the largest residual is about 10-18 % of the largest unrelaxed traction for an edge 7-12 nm deep in a 60 nm foil, 50 % at mid-foil, but point by point the relief fades within about one foil thickness of the line and beyond about two the images do not reduce the traction)',
   'parallel-stroh-images':
     'lines parallel to the surfaces: the anisotropic half-space image of each surface (Stroh formalism, every Burgers vector; each surface is freed exactly on its own, but the image of one surface leaves a traction on the other, no repeated reflections: about 9-15 % of the unrelaxed traction for a line 10 nm deep in a 60 nm foil; beyond about two foil thicknesses from the line the images do not reduce the traction)',
   'normal-screw-twist':
-    'lines normal to the surfaces: the screw component gets the Eshelby & Stroh (1951) plate twist (exact for a screw in an isotropic plate), the edge component is not corrected',
+    'lines normal to the surfaces: the Eshelby & Stroh (1951) plate twist (exact for a screw in an isotropic plate); chosen for pure screws, so nothing else is left to correct',
   'normal-edge-half-space':
     'lines normal to the surfaces with an edge component: the screw component gets the Eshelby & Stroh (1951) plate twist (exact for a screw in an isotropic plate), the edge component the isotropic half-space correction of each surface (2D Fourier solution of the surface tractions, as for inclined lines; each surface is freed on its own, the correction of one leaves a traction on the other)',
   'inclined-half-space':

@@ -27,7 +27,8 @@ import { defectTypeOf } from '../defects/registry.js';
 import type { Condition, Scenario } from '../scenario/types.js';
 import { resolveCondition } from '../imaging/resolveCondition.js';
 import { background, renderJob } from '../imaging/renderScenario.js';
-import { columnEvaluator } from '../imaging/renderRows.js';
+import { columnEvaluator, type RenderJob } from '../imaging/renderRows.js';
+import { modelOf } from '../analysis/visibilityTable.js';
 import { referenceFrame } from '../imaging/scenarioFrame.js';
 import { InputError } from '../errors.js';
 import { coreGeometry } from '../imaging/cores.js';
@@ -35,9 +36,9 @@ import type { LoopFieldSpec } from '../imaging/fieldSpecs.js';
 import { loopPatch } from '../analysis/lineContrast.js';
 
 export interface StripOptions {
-  /** Half-width of the strip in units of xi_g (default 1). */
+  /** Half-width of the strip in units of xi_g (default 1; a loop's patch has its own size, lineContrast.ts loopPatch). */
   readonly halfWidth_xi: number;
-  /** Number of columns in the strip. */
+  /** Number of columns in the strip (a loop's patch: PATCH_COLUMNS squared). */
   readonly columns: number;
   readonly minDifference: number;
   readonly coreExclusion_nm: number;
@@ -133,24 +134,22 @@ export function separatedPairs(strip: Strip, n: number, minDifference: number): 
  */
 function candidatePatches(sc: Scenario, candidates: readonly Candidate[], cond: Condition, opt: StripOptions): Strip {
   const n = candidates.length;
+  const k = candidates[0].defectIndex;
+  // the patch, the core mask and the background depend on the loop's shape and the condition, not on b
+  // (the core radius is 2 |b|: candidates of another |b| differ by far less than the 2 nm margin)
+  const first = variantScenario(sc, candidates[0]);
+  const rc = resolveCondition(first, cond);
+  const alone: RenderJob = { ...renderJob(first, rc), model: modelOf(first, first.defects[k]) };
+  const points = loopPatch(rc, alone.model.fields[0] as LoopFieldSpec).points;
+  const cores = coreGeometry(alone);
+  const keep = new Uint8Array(points.length / 2);
+  for (let q = 0; q < keep.length; q++) keep[q] = cores !== null && cores.near(points[2 * q], points[2 * q + 1], opt.coreExclusion_nm) ? 0 : 1;
+  const bg = background(alone).bf;
   const contrast: Float64Array[] = [];
   const out = new Float64Array(4);
-  let points: Float64Array = new Float64Array(0);
-  let keep = new Uint8Array(0);
   for (let c = 0; c < n; c++) {
-    const v = variantScenario(sc, candidates[c]);
-    const rc = resolveCondition(v, cond);
-    const job = renderJob(v, rc);
-    if (c === 0) {
-      // the target alone: its field and core (the patch and the core mask are the same for every candidate)
-      const alone = renderJob({ ...v, defects: [v.defects[candidates[0].defectIndex]] }, rc);
-      points = loopPatch(rc, alone.model.fields[0] as LoopFieldSpec).points;
-      const cores = coreGeometry(alone);
-      keep = new Uint8Array(points.length / 2);
-      for (let q = 0; q < keep.length; q++) keep[q] = cores !== null && cores.near(points[2 * q], points[2 * q + 1], opt.coreExclusion_nm) ? 0 : 1;
-    }
-    const bg = background(job).bf;
-    const ev = columnEvaluator(job);
+    const v = c === 0 ? first : variantScenario(sc, candidates[c]);
+    const ev = columnEvaluator(renderJob(v, resolveCondition(v, cond)));
     const row = new Float64Array(keep.length);
     for (let q = 0; q < keep.length; q++) {
       if (keep[q] === 0) continue;

@@ -69,3 +69,32 @@ describe('loops in the visibility table: a simulated patch beside the g.b rule',
     expect(r.bfRange[1]).toBeGreaterThan(1);
   });
 });
+
+describe('candidates of a loop scenario are simulated as the loop with their b', () => {
+  const sc = scenario({
+    image: { width_px: 32, height_px: 32, pixel_nm: 1 },
+    conditions: CONDITIONS.slice(0, 2),
+    defects: [PRISMATIC],
+    candidates: ['1/2[1 0 1]', '1/2[1 1 0]'],
+  });
+  const rows = visibilityTable(sc);
+  const defectRow = rows.find((r) => r.kind === 'defect')!;
+  const cand = rows.filter((r) => r.kind === 'candidate');
+
+  it('every candidate row has a simulated patch; the candidate equal to the loop\'s own b reproduces the loop\'s row', () => {
+    expect(cand).toHaveLength(2);
+    for (const r of cand) for (const e of r.entries) expect(e.simulated).toBeDefined();
+    const same = cand.find((r) => r.b.join() === defectRow.b.join())!;
+    same.entries.forEach((e, i) => {
+      expect(e.simulated!.bf).toBe(defectRow.entries[i].simulated!.bf);
+      expect(e.simulated!.df).toBe(defectRow.entries[i].simulated!.df);
+    });
+  });
+
+  it('1/2[1 1 0] on the (1 0 1) loop under g 020 has g.b = 1 and is visible; 1/2[1 0 1] there has g.b = 0 and is weaker (g.b rule, Hirsch et al. 1965)', () => {
+    const other = cand.find((r) => r.b.join() !== defectRow.b.join())!;
+    expect(other.entries[1].gb).toBe(1);
+    expect(other.entries[1].verdict).toBe('visible');
+    expect(defectRow.entries[1].simulated!.bf).toBeLessThan(other.entries[1].simulated!.bf);
+  });
+});
