@@ -14,12 +14,6 @@ import { referenceFrame } from '../imaging/scenarioFrame.js';
 import { imagePointToCrystal } from '../geometry/frames.js';
 import { background, renderJob } from '../imaging/renderScenario.js';
 import { columnEvaluator } from '../imaging/renderRows.js';
-import { type FieldSpec, type InclusionFieldSpec, withSurfaceCorrection } from '../imaging/fieldSpecs.js';
-
-/** The sphere's field spec, with its surface correction when the scenario relaxes the surfaces (as in defectModel). */
-function sphereSpec(sc: Scenario, f: InclusionFieldSpec): FieldSpec {
-  return sc.surfaces === 'relaxed' ? withSurfaceCorrection(f, referenceFrame(sc).normal, sc.thickness_nm) : f;
-}
 
 export type Lobe = '+g side' | '-g side' | 'neither';
 
@@ -67,10 +61,9 @@ function lobes(sc: Scenario, d: InclusionSpec, c: ReturnType<typeof resolveCondi
   // window: a few radii, and at least a third of the extinction distance
   const R = Math.max(3 * d.radius_nm, c.xi_nm / 3);
   const step = R / half;
-  const job = {
-    ...renderJob(sc, c),
-    model: { fields: [sphereSpec(sc, { kind: 'inclusion', centre_nm: centre, radius_nm: d.radius_nm, strain, poissonRatio: sc.material.elastic.poissonRatio })], surfaces: [] },
-  };
+  // the scenario with this sphere alone at this misfit: its field as every render builds it (with the surface
+  // correction when the scenario relaxes the surfaces)
+  const job = renderJob({ ...sc, defects: [{ ...d, strain }] }, c);
   const ev = columnEvaluator(job);
   const a = new Float64Array(4);
   const { bf: bg0, df: bgg } = background(job);

@@ -109,7 +109,7 @@ export function defectModel(sc: Scenario): DefectModel {
 }
 
 /** A dislocation's or an inclusion's spec with its surface correction, when one applies (the foil is 0 <= r.n <= t). */
-export function withSurfaceCorrection(f: FieldSpec, normal: Vec3, thickness_nm: number): FieldSpec {
+function withSurfaceCorrection(f: FieldSpec, normal: Vec3, thickness_nm: number): FieldSpec {
   if (f.kind === 'inclusion') return inclusionInsideFoil(f.centre_nm, f.radius_nm, normal, thickness_nm) ? { ...f, surfaceCorrection: { normal: unit(normal), thickness_nm } } : f;
   if (f.kind !== 'dislocation') return f;
   const c = surfaceCorrectionFor(f.b_nm, f.line, f.point_nm, normal, thickness_nm, f.stiffness_GPa);
