@@ -413,6 +413,30 @@ describe('surface relaxation with the anisotropic (Stroh) field: half-space imag
       expect(r).toBeGreaterThan(1e-4);
     }
   });
+  it('far from the line (160 and 320 nm aside in a 60 nm foil) the two half-space images leave a large part (> 30 %) of the unrelaxed traction (the documented limit of adding them without repeated reflections, README)', () => {
+    // each image tends to minus the line's own long-range field far from the line, so the sum of both does too
+    for (const [label, mat, nrm, line, bdir] of [geometries[0], geometries[3]]) {
+      const s = setUp(mat, nrm, line, bdir, 10, 60);
+      const relaxed = buildField([{ ...s.base, surfaceCorrection: s.corr! }])!;
+      const infinite = buildField([s.base])!;
+      const side = unit(cross(s.n, s.u));
+      const g = new Float64Array(9);
+      const out: string[] = [];
+      for (const d of [160, 320]) {
+        let tr = 0, ti = 0;
+        for (const depth of [0, 60]) {
+          const p: Vec3 = [depth * s.n[0] + d * side[0], depth * s.n[1] + d * side[1], depth * s.n[2] + d * side[2]];
+          relaxed.gradient(g, p[0], p[1], p[2]);
+          tr = Math.max(tr, norm(tractionC(s.C, g, s.n)));
+          infinite.gradient(g, p[0], p[1], p[2]);
+          ti = Math.max(ti, norm(tractionC(s.C, g, s.n)));
+        }
+        out.push(`${d} nm: ${(tr / ti).toFixed(3)}`);
+        expect(tr / ti).toBeGreaterThan(0.3);
+      }
+      console.log(`Stroh images far from the line, ${label}, 10 nm deep: relaxed / unrelaxed traction ${out.join(', ')}`);
+    }
+  });
 });
 
 describe('surface relaxation of inclined lines: isotropic half-space correction by 2D Fourier transform of the surface tractions', () => {
