@@ -857,29 +857,36 @@ function rhsMatrix(sys: ColumnSystem, b: number, rot: Float64Array, s: number, y
     o = 2 * nn * s;
     oi = o + nn;
   }
+  // K_ij = i scale sum_k R_ik Y_kj, two columns j at a time (each R_ik read once for both)
   for (let i = 0; i < n; i++) {
     const row = i * n;
-    {
-      // k = 0 sets the row; i scale R_ik = (-scale Im R, scale Re R)
-      const cr = -scale * ri[oi + row];
-      const ci = scale * rr[o + row];
-      for (let j = 0; j < n; j++) {
-        const a = yr[j];
-        const c = yi[j];
-        kr[row + j] = cr * a - ci * c;
-        ki[row + j] = cr * c + ci * a;
+    let j = 0;
+    for (; j + 1 < n; j += 2) {
+      let re0 = 0, im0 = 0, re1 = 0, im1 = 0;
+      for (let k = 0, kj = j; k < n; k++, kj += n) {
+        const ar = rr[o + row + k];
+        const ai = ri[oi + row + k];
+        const br0 = yr[kj], bi0 = yi[kj], br1 = yr[kj + 1], bi1 = yi[kj + 1];
+        re0 += ar * br0 - ai * bi0;
+        im0 += ar * bi0 + ai * br0;
+        re1 += ar * br1 - ai * bi1;
+        im1 += ar * bi1 + ai * br1;
       }
+      kr[row + j] = -scale * im0;
+      ki[row + j] = scale * re0;
+      kr[row + j + 1] = -scale * im1;
+      ki[row + j + 1] = scale * re1;
     }
-    for (let k = 1; k < n; k++) {
-      const cr = -scale * ri[oi + row + k];
-      const ci = scale * rr[o + row + k];
-      const yrow = k * n;
-      for (let j = 0; j < n; j++) {
-        const a = yr[yrow + j];
-        const c = yi[yrow + j];
-        kr[row + j] += cr * a - ci * c;
-        ki[row + j] += cr * c + ci * a;
+    if (j < n) {
+      let re = 0, im = 0;
+      for (let k = 0, kj = j; k < n; k++, kj += n) {
+        const ar = rr[o + row + k];
+        const ai = ri[oi + row + k];
+        re += ar * yr[kj] - ai * yi[kj];
+        im += ar * yi[kj] + ai * yr[kj];
       }
+      kr[row + j] = -scale * im;
+      ki[row + j] = scale * re;
     }
   }
 }
@@ -1007,6 +1014,7 @@ export function stretchMatrixN(T: Float64Array, to: number, sys: ColumnSystem, a
   let accepted = 0;
   let fsalValid = false;
   let beta0 = 0; // beta' at the start of the step (for the words of a first step)
+  let written = false; // T holds the result (the last step wrote it)
   while (z < b) {
     if (!fsalValid) {
       const b0 = betaPrime(z);
@@ -1108,17 +1116,32 @@ export function stretchMatrixN(T: Float64Array, to: number, sys: ColumnSystem, a
     const err = Math.sqrt(err2 / tol2);
     if (!Number.isFinite(err)) throw strainError(z);
     if (err <= 1 || level >= LEVELS) {
-      for (let i = 0; i < n; i++) {
-        const er = tab[off + i];
-        const ei = tab[offIm + i];
-        for (let j = 0; j < n; j++) {
-          const q = i * n + j;
-          const p = yr[q], r = yi[q];
-          ur[q] = er * p - ei * r;
-          ui[q] = er * r + ei * p;
-          const c = k7r[q], e = k7i[q];
-          k1r[q] = er * c - ei * e;
-          k1i[q] = er * e + ei * c;
+      if (lastStep) {
+        // the end of the stretch: E(h) u(h) straight into T (no derivative for a next step)
+        for (let i = 0; i < n; i++) {
+          const er = tab[off + i];
+          const ei = tab[offIm + i];
+          for (let j = 0; j < n; j++) {
+            const q = i * n + j;
+            const p = yr[q], r = yi[q];
+            T[to + 2 * q] = er * p - ei * r;
+            T[to + 2 * q + 1] = er * r + ei * p;
+          }
+        }
+        written = true;
+      } else {
+        for (let i = 0; i < n; i++) {
+          const er = tab[off + i];
+          const ei = tab[offIm + i];
+          for (let j = 0; j < n; j++) {
+            const q = i * n + j;
+            const p = yr[q], r = yi[q];
+            ur[q] = er * p - ei * r;
+            ui[q] = er * r + ei * p;
+            const c = k7r[q], e = k7i[q];
+            k1r[q] = er * c - ei * e;
+            k1i[q] = er * e + ei * c;
+          }
         }
       }
       accepted++;
@@ -1132,9 +1155,12 @@ export function stretchMatrixN(T: Float64Array, to: number, sys: ColumnSystem, a
     }
   }
   wk.lastLevel = level;
-  for (let q = 0; q < nn; q++) {
-    T[to + 2 * q] = ur[q];
-    T[to + 2 * q + 1] = ui[q];
+  if (!written) {
+    // an empty stretch: the identity
+    for (let q = 0; q < nn; q++) {
+      T[to + 2 * q] = ur[q];
+      T[to + 2 * q + 1] = ui[q];
+    }
   }
   return accepted;
 }
