@@ -136,6 +136,8 @@ interface Work {
   lastLevel: number;
   /** step length whose phase table `custom` holds (NaN: none) */
   customH: number;
+  /** work arrays of stretchMatrixN (made on first use) */
+  matrix: MatrixWork | null;
 }
 
 const DEFAULT_MAX_STEP_NM = 5;
@@ -224,6 +226,7 @@ function prepare(input: ManyBeamInput, factors: Float64Array, strainDim: 1 | 3, 
     stats: { accepted: 0, rejected: 0, evaluations: 0 },
     lastLevel: -1,
     customH: NaN,
+    matrix: null,
   };
   return {
     n,
@@ -791,6 +794,11 @@ interface MatrixWork {
   readonly yi: Float64Array;
   readonly kr: Float64Array[];
   readonly ki: Float64Array[];
+  /** the error sum of stages 1 .. 6 of a step */
+  readonly sr: Float64Array;
+  readonly si: Float64Array;
+  /** beta' at the 6 distinct stage depths of a step, and the step length (index 6) */
+  readonly beta: Float64Array;
   /**
    * Phase tables and rotated matrices of the last two step lengths off the ladder: the stretches of the
    * translation method alternate between two lengths (window starts and ends D apart).
@@ -805,20 +813,25 @@ interface MatrixWork {
   /** the coefficients of the words in one first step */
   readonly coef: Float64Array;
 }
-const matrixWorks = new WeakMap<ColumnSystem, MatrixWork>();
-
+/** The stretch work arrays of sys (the making apart, so that a call allocates nothing). */
 function matrixWork(sys: ColumnSystem): MatrixWork {
-  let w = matrixWorks.get(sys);
-  if (w === undefined) {
+  return sys.work.matrix ?? newMatrixWork(sys);
+}
+
+function newMatrixWork(sys: ColumnSystem): MatrixWork {
+  {
     const f = (): Float64Array => new Float64Array(sys.n * sys.n);
     const n = sys.n;
-    w = {
+    const w: MatrixWork = {
       ur: f(),
       ui: f(),
       yr: f(),
       yi: f(),
       kr: Array.from({ length: 7 }, f),
       ki: Array.from({ length: 7 }, f),
+      sr: f(),
+      si: f(),
+      beta: new Float64Array(7),
       slotH: Float64Array.of(NaN, NaN),
       slotTab: [new Float64Array(20 * n), new Float64Array(20 * n)],
       slotRot: [new Float64Array(10 * n * n), new Float64Array(10 * n * n)],
@@ -827,18 +840,20 @@ function matrixWork(sys: ColumnSystem): MatrixWork {
       levelWords: new Array<Float64Array | null>(LEVELS + 1).fill(null),
       coef: new Float64Array(WORDS),
     };
-    matrixWorks.set(sys, w);
+    sys.work.matrix = w;
+    return w;
   }
-  return w;
 }
 
 /**
  * K = i 2 pi beta' R Y for an N x N matrix Y (re/im apart), R = M (s = -1) or the rotated matrix of
- * stage s in rot. beta' = 0 gives K = 0.
+ * stage s in rot, beta' = beta[at] (numbers pass through typed arrays in the stepper: no boxing per call).
+ * beta' = 0 gives K = 0.
  */
-function rhsMatrix(sys: ColumnSystem, b: number, rot: Float64Array, s: number, yr: Float64Array, yi: Float64Array, kr: Float64Array, ki: Float64Array): void {
+function rhsMatrix(sys: ColumnSystem, beta: Float64Array, at: number, rot: Float64Array, s: number, yr: Float64Array, yi: Float64Array, kr: Float64Array, ki: Float64Array): void {
   const n = sys.n;
   const nn = n * n;
+  const b = beta[at];
   if (b === 0) {
     kr.fill(0);
     ki.fill(0);
@@ -950,9 +965,11 @@ function buildWords(sys: ColumnSystem, rot: Float64Array): Float64Array {
 
 /**
  * K_s of a first step from the identity for stage s (2 .. WORD_STAGES) into kr, ki: the coefficients of the
- * stages below s are in coef (filled here for stage s), beta' of stage s is b.
+ * stages below s are in coef (filled here for stage s), beta' of stage s is beta[s - 1], the step beta[6].
  */
-function wordStage(words: Float64Array, coef: Float64Array, nn: number, s: number, b: number, h: number, kr: Float64Array, ki: Float64Array): void {
+function wordStage(words: Float64Array, coef: Float64Array, beta: Float64Array, nn: number, s: number, kr: Float64Array, ki: Float64Array): void {
+  const b = beta[s - 1];
+  const h = beta[6];
   const base = (1 << (s - 1)) - 1;
   const a = A_WORDS[s];
   const sb = TWO_PI * b;
@@ -982,6 +999,18 @@ function wordStage(words: Float64Array, coef: Float64Array, nn: number, s: numbe
   }
 }
 
+/** y += u for the state u of the step (u = I on a first step: only the diagonal). */
+function addState(yr: Float64Array, yi: Float64Array, ur: Float64Array, ui: Float64Array, n: number, identity: boolean): void {
+  if (identity) {
+    for (let i = 0; i < n; i++) yr[i * n + i] += 1;
+    return;
+  }
+  for (let q = 0; q < n * n; q++) {
+    yr[q] = ur[q] + yr[q];
+    yi[q] = ui[q] + yi[q];
+  }
+}
+
 /**
  * The transfer matrix T(b, a) of a systematic row from depth a to depth b > a through beta'(z), in the
  * Bloch-wave basis, into T at offset to (N x N, interleaved [re, im], row-major): column j is the unit
@@ -999,7 +1028,7 @@ export function stretchMatrixN(T: Float64Array, to: number, sys: ColumnSystem, a
   if (T.length < to + 2 * nn) throw new InternalError(`T has ${T.length} numbers: give 2 N^2 = ${2 * nn} from offset ${to}.`);
   const mw = matrixWork(sys);
   const wk = sys.work;
-  const { ur, ui, yr, yi, kr, ki } = mw;
+  const { ur, ui, yr, yi, kr, ki, sr, si, beta } = mw;
   // the state starts as the identity
   ur.fill(0);
   ui.fill(0);
@@ -1013,24 +1042,22 @@ export function stretchMatrixN(T: Float64Array, to: number, sys: ColumnSystem, a
   let level = startLevel;
   let accepted = 0;
   let fsalValid = false;
-  let beta0 = 0; // beta' at the start of the step (for the words of a first step)
   let written = false; // T holds the result (the last step wrote it)
   while (z < b) {
     if (!fsalValid) {
-      const b0 = betaPrime(z);
-      beta0 = b0;
-      if (!Number.isFinite(b0)) throw strainError(z);
+      beta[0] = betaPrime(z);
+      if (!Number.isFinite(beta[0])) throw strainError(z);
       if (identity) {
         // K1 = i 2 pi beta' M I: no product
-        const scale = TWO_PI * b0;
+        const scale = TWO_PI * beta[0];
         for (let q = 0; q < nn; q++) {
           k1r[q] = -scale * sys.mIm[q];
           k1i[q] = scale * sys.mRe[q];
         }
-      } else rhsMatrix(sys, b0, mw.slotRot[0], -1, ur, ui, k1r, k1i);
+      } else rhsMatrix(sys, beta, 0, mw.slotRot[0], -1, ur, ui, k1r, k1i);
       if (level < 0) {
         let dmax = 0;
-        for (let j = 0; j < n; j++) dmax = Math.max(dmax, Math.abs(sys.factors[j] * b0));
+        for (let j = 0; j < n; j++) dmax = Math.max(dmax, Math.abs(sys.factors[j] * beta[0]));
         level = levelFor(hmax, 0.05 / (TWO_PI * dmax + 1e-300));
       }
       fsalValid = true;
@@ -1060,46 +1087,58 @@ export function stretchMatrixN(T: Float64Array, to: number, sys: ColumnSystem, a
       rot = levelRotated(sys, level, tab);
       if (identity) words = mw.levelWords[level] ??= buildWords(sys, rot);
     }
+    beta[1] = betaPrime(z + C2 * h);
+    beta[2] = betaPrime(z + C3 * h);
+    beta[3] = betaPrime(z + C4 * h);
     if (words !== null) {
       // a first step from the identity: K_2 .. K_4 from the words of this step length
-      mw.coef[0] = TWO_PI * beta0;
-      wordStage(words, mw.coef, nn, 2, betaPrime(z + C2 * h), h, k2r, k2i);
-      wordStage(words, mw.coef, nn, 3, betaPrime(z + C3 * h), h, k3r, k3i);
-      wordStage(words, mw.coef, nn, 4, betaPrime(z + C4 * h), h, k4r, k4i);
+      mw.coef[0] = TWO_PI * beta[0];
+      beta[6] = h;
+      wordStage(words, mw.coef, beta, nn, 2, k2r, k2i);
+      wordStage(words, mw.coef, beta, nn, 3, k3r, k3i);
+      wordStage(words, mw.coef, beta, nn, 4, k4r, k4i);
     } else {
       for (let q = 0; q < nn; q++) {
         yr[q] = ur[q] + h * A21 * k1r[q];
         yi[q] = ui[q] + h * A21 * k1i[q];
       }
-      rhsMatrix(sys, betaPrime(z + C2 * h), rot, 0, yr, yi, k2r, k2i);
+      rhsMatrix(sys, beta, 1, rot, 0, yr, yi, k2r, k2i);
       for (let q = 0; q < nn; q++) {
         yr[q] = ur[q] + h * (A31 * k1r[q] + A32 * k2r[q]);
         yi[q] = ui[q] + h * (A31 * k1i[q] + A32 * k2i[q]);
       }
-      rhsMatrix(sys, betaPrime(z + C3 * h), rot, 1, yr, yi, k3r, k3i);
+      rhsMatrix(sys, beta, 2, rot, 1, yr, yi, k3r, k3i);
       for (let q = 0; q < nn; q++) {
         yr[q] = ur[q] + h * (A41 * k1r[q] + A42 * k2r[q] + A43 * k3r[q]);
         yi[q] = ui[q] + h * (A41 * k1i[q] + A42 * k2i[q] + A43 * k3i[q]);
       }
-      rhsMatrix(sys, betaPrime(z + C4 * h), rot, 2, yr, yi, k4r, k4i);
+      rhsMatrix(sys, beta, 3, rot, 2, yr, yi, k4r, k4i);
     }
+    // y = u + h sum a K (u = I on a first step: only its diagonal is read)
     for (let q = 0; q < nn; q++) {
-      yr[q] = ur[q] + h * (A51 * k1r[q] + A52 * k2r[q] + A53 * k3r[q] + A54 * k4r[q]);
-      yi[q] = ui[q] + h * (A51 * k1i[q] + A52 * k2i[q] + A53 * k3i[q] + A54 * k4i[q]);
+      yr[q] = h * (A51 * k1r[q] + A52 * k2r[q] + A53 * k3r[q] + A54 * k4r[q]);
+      yi[q] = h * (A51 * k1i[q] + A52 * k2i[q] + A53 * k3i[q] + A54 * k4i[q]);
     }
-    rhsMatrix(sys, betaPrime(z + C5 * h), rot, 3, yr, yi, k5r, k5i);
+    addState(yr, yi, ur, ui, n, identity);
+    beta[4] = betaPrime(z + C5 * h);
+    rhsMatrix(sys, beta, 4, rot, 3, yr, yi, k5r, k5i);
     for (let q = 0; q < nn; q++) {
-      yr[q] = ur[q] + h * (A61 * k1r[q] + A62 * k2r[q] + A63 * k3r[q] + A64 * k4r[q] + A65 * k5r[q]);
-      yi[q] = ui[q] + h * (A61 * k1i[q] + A62 * k2i[q] + A63 * k3i[q] + A64 * k4i[q] + A65 * k5i[q]);
+      yr[q] = h * (A61 * k1r[q] + A62 * k2r[q] + A63 * k3r[q] + A64 * k4r[q] + A65 * k5r[q]);
+      yi[q] = h * (A61 * k1i[q] + A62 * k2i[q] + A63 * k3i[q] + A64 * k4i[q] + A65 * k5i[q]);
     }
+    addState(yr, yi, ur, ui, n, identity);
     const zNext = lastStep ? b : z + h;
-    const b6 = betaPrime(zNext);
-    rhsMatrix(sys, b6, rot, 4, yr, yi, k6r, k6i);
+    beta[5] = betaPrime(zNext);
+    rhsMatrix(sys, beta, 5, rot, 4, yr, yi, k6r, k6i);
+    // y7, and the error sum of the stages before K7 (the same terms in the same order)
     for (let q = 0; q < nn; q++) {
-      yr[q] = ur[q] + h * (A71 * k1r[q] + A73 * k3r[q] + A74 * k4r[q] + A75 * k5r[q] + A76 * k6r[q]);
-      yi[q] = ui[q] + h * (A71 * k1i[q] + A73 * k3i[q] + A74 * k4i[q] + A75 * k5i[q] + A76 * k6i[q]);
+      yr[q] = h * (A71 * k1r[q] + A73 * k3r[q] + A74 * k4r[q] + A75 * k5r[q] + A76 * k6r[q]);
+      yi[q] = h * (A71 * k1i[q] + A73 * k3i[q] + A74 * k4i[q] + A75 * k5i[q] + A76 * k6i[q]);
+      sr[q] = E1 * k1r[q] + E3 * k3r[q] + E4 * k4r[q] + E5 * k5r[q] + E6 * k6r[q];
+      si[q] = E1 * k1i[q] + E3 * k3i[q] + E4 * k4i[q] + E5 * k5i[q] + E6 * k6i[q];
     }
-    rhsMatrix(sys, b6, rot, 4, yr, yi, k7r, k7i);
+    addState(yr, yi, ur, ui, n, identity);
+    rhsMatrix(sys, beta, 5, rot, 4, yr, yi, k7r, k7i);
     // local error of every column, weighted by |E(h)| of its row (the Bloch amplitudes at z + h)
     let err2 = 0;
     const off = 4 * n;
@@ -1108,8 +1147,8 @@ export function stretchMatrixN(T: Float64Array, to: number, sys: ColumnSystem, a
       const w2 = tab[off + i] * tab[off + i] + tab[offIm + i] * tab[offIm + i];
       for (let j = 0; j < n; j++) {
         const q = i * n + j;
-        const xr = h * (E1 * k1r[q] + E3 * k3r[q] + E4 * k4r[q] + E5 * k5r[q] + E6 * k6r[q] + E7 * k7r[q]);
-        const xi = h * (E1 * k1i[q] + E3 * k3i[q] + E4 * k4i[q] + E5 * k5i[q] + E6 * k6i[q] + E7 * k7i[q]);
+        const xr = h * (sr[q] + E7 * k7r[q]);
+        const xi = h * (si[q] + E7 * k7i[q]);
         err2 = Math.max(err2, (xr * xr + xi * xi) * w2); // propagates NaN
       }
     }
