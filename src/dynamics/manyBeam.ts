@@ -921,42 +921,71 @@ const WORDS = (1 << WORD_STAGES) - 1;
 /** Dormand-Prince a_sm of the stages expanded into words (row s, column m; 1-based, 0 unused). */
 const A_WORDS = [[], [], [0, A21], [0, A31, A32], [0, A41, A42, A43]];
 
-/** The words P_{s,W} of the first step, s = 1 .. WORD_STAGES, for the rotated matrices rot: layout [word][re (n^2), im (n^2)]. */
+/** Offsets of the packed words of stages 2 .. WORD_STAGES in units of n^2 (see buildWords), and their total. */
+const PACKED_AT = [0, 0, 0, 4, 12];
+const PACKED = 28;
+
+/**
+ * The words P_{s,W} of the first step for the rotated matrices rot, packed for wordStage: for stage s
+ * (2 .. WORD_STAGES) with nw = 2^(s-1) words, from n^2 PACKED_AT[s], the part of every word that lands in
+ * the real part of K_s with the sign of i^(|W|+1) folded in, element-major ([t][w], n^2 x nw), then the same
+ * for the imaginary part.
+ */
 function buildWords(sys: ColumnSystem, rot: Float64Array): Float64Array {
   const n = sys.n;
   const nn = n * n;
-  const out = new Float64Array(WORDS * 2 * nn);
-  // G_s: stage 1 M, stage s >= 2 the rotated matrix of stage offset index s - 2
-  const gCopy = (s: number, o: number): void => {
-    if (s === 1) {
-      out.set(sys.mRe, o);
-      out.set(sys.mIm, o + nn);
-    } else out.set(rot.subarray(2 * nn * (s - 2), 2 * nn * (s - 1)), o);
-  };
+  // raw words, [word][re (n^2), im (n^2)], stage s from index 2^(s-1) - 1
+  const raw = new Float64Array(WORDS * 2 * nn);
   for (let s = 1; s <= WORD_STAGES; s++) {
     const base = (1 << (s - 1)) - 1;
-    gCopy(s, 2 * nn * base);
+    const g = 2 * nn * base;
+    // G_s: stage 1 M, stage s >= 2 the rotated matrix of stage offset index s - 2
+    if (s === 1) {
+      raw.set(sys.mRe, g);
+      raw.set(sys.mIm, g + nn);
+    } else raw.set(rot.subarray(2 * nn * (s - 2), 2 * nn * (s - 1)), g);
     for (let w = 1; w < 1 << (s - 1); w++) {
       const m = 32 - Math.clz32(w);
       const rest = w & ~(1 << (m - 1));
       const o = 2 * nn * (base + w);
-      const g = 2 * nn * base; // G_s, copied above
       const p = 2 * nn * ((1 << (m - 1)) - 1 + rest);
       for (let i = 0; i < n; i++) {
         for (let j = 0; j < n; j++) {
           let re = 0;
           let im = 0;
           for (let k = 0; k < n; k++) {
-            const ar = out[g + i * n + k];
-            const ai = out[g + nn + i * n + k];
-            const br = out[p + k * n + j];
-            const bi = out[p + nn + k * n + j];
+            const ar = raw[g + i * n + k];
+            const ai = raw[g + nn + i * n + k];
+            const br = raw[p + k * n + j];
+            const bi = raw[p + nn + k * n + j];
             re += ar * br - ai * bi;
             im += ar * bi + ai * br;
           }
-          out[o + i * n + j] = re;
-          out[o + nn + i * n + j] = im;
+          raw[o + i * n + j] = re;
+          raw[o + nn + i * n + j] = im;
         }
+      }
+    }
+  }
+  const out = new Float64Array(PACKED * nn);
+  for (let s = 2; s <= WORD_STAGES; s++) {
+    const nw = 1 << (s - 1);
+    const base = nw - 1;
+    const x = PACKED_AT[s] * nn;
+    const y = x + nw * nn;
+    for (let w = 0; w < nw; w++) {
+      let pow = 1;
+      for (let v = w; v !== 0; v &= v - 1) pow++;
+      // r i^pow (P_re + i P_im): real part +-r P_re or +-r P_im, imaginary part the other
+      const q = pow & 3;
+      const o = 2 * nn * (base + w);
+      const xo = q === 1 || q === 3 ? o + nn : o;
+      const yo = q === 1 || q === 3 ? o : o + nn;
+      const xs = q === 0 || q === 3 ? 1 : -1;
+      const ys = q === 0 || q === 1 ? 1 : -1;
+      for (let t = 0; t < nn; t++) {
+        out[x + t * nw + w] = xs * raw[xo + t];
+        out[y + t * nw + w] = ys * raw[yo + t];
       }
     }
   }
@@ -964,37 +993,40 @@ function buildWords(sys: ColumnSystem, rot: Float64Array): Float64Array {
 }
 
 /**
- * K_s of a first step from the identity for stage s (2 .. WORD_STAGES) into kr, ki: the coefficients of the
- * stages below s are in coef (filled here for stage s), beta' of stage s is beta[s - 1], the step beta[6].
+ * K_s of a first step from the identity for stage s (2 .. WORD_STAGES) into kr, ki from the packed words
+ * (buildWords): the coefficients r of the stages below s are in coef (filled here for stage s), beta' of
+ * stage s is beta[s - 1], the step beta[6].
  */
 function wordStage(words: Float64Array, coef: Float64Array, beta: Float64Array, nn: number, s: number, kr: Float64Array, ki: Float64Array): void {
-  const b = beta[s - 1];
+  const sb = TWO_PI * beta[s - 1];
   const h = beta[6];
-  const base = (1 << (s - 1)) - 1;
+  const nw = 1 << (s - 1);
+  const base = nw - 1;
   const a = A_WORDS[s];
-  const sb = TWO_PI * b;
-  kr.fill(0);
-  ki.fill(0);
-  for (let w = 0; w < 1 << (s - 1); w++) {
-    let r = sb;
-    let pow = 1;
-    if (w !== 0) {
-      const m = 32 - Math.clz32(w);
-      const rest = w & ~(1 << (m - 1));
-      r = sb * h * a[m] * coef[(1 << (m - 1)) - 1 + rest];
-      for (let v = w; v !== 0; v &= v - 1) pow++;
+  coef[base] = sb;
+  for (let w = 1; w < nw; w++) {
+    const m = 32 - Math.clz32(w);
+    coef[base + w] = sb * h * a[m] * coef[(1 << (m - 1)) - 1 + (w & ~(1 << (m - 1)))];
+  }
+  const x = PACKED_AT[s] * nn;
+  const y = x + nw * nn;
+  if (s === 2) {
+    const r0 = coef[1], r1 = coef[2];
+    for (let t = 0, u = x, v = y; t < nn; t++, u += 2, v += 2) {
+      kr[t] = r0 * words[u] + r1 * words[u + 1];
+      ki[t] = r0 * words[v] + r1 * words[v + 1];
     }
-    coef[base + w] = r;
-    // r i^pow (P_re + i P_im)
-    const o = 2 * nn * (base + w);
-    const q = pow & 3;
-    const xr = q === 1 || q === 3 ? o + nn : o; // the part that lands in the real part
-    const xi = q === 1 || q === 3 ? o : o + nn;
-    const fr = q === 0 || q === 3 ? r : -r;
-    const fi = q === 0 || q === 1 ? r : -r;
-    for (let t = 0; t < nn; t++) {
-      kr[t] += fr * words[xr + t];
-      ki[t] += fi * words[xi + t];
+  } else if (s === 3) {
+    const r0 = coef[3], r1 = coef[4], r2 = coef[5], r3 = coef[6];
+    for (let t = 0, u = x, v = y; t < nn; t++, u += 4, v += 4) {
+      kr[t] = r0 * words[u] + r1 * words[u + 1] + r2 * words[u + 2] + r3 * words[u + 3];
+      ki[t] = r0 * words[v] + r1 * words[v + 1] + r2 * words[v + 2] + r3 * words[v + 3];
+    }
+  } else {
+    const r0 = coef[7], r1 = coef[8], r2 = coef[9], r3 = coef[10], r4 = coef[11], r5 = coef[12], r6 = coef[13], r7 = coef[14];
+    for (let t = 0, u = x, v = y; t < nn; t++, u += 8, v += 8) {
+      kr[t] = r0 * words[u] + r1 * words[u + 1] + r2 * words[u + 2] + r3 * words[u + 3] + r4 * words[u + 4] + r5 * words[u + 5] + r6 * words[u + 6] + r7 * words[u + 7];
+      ki[t] = r0 * words[v] + r1 * words[v + 1] + r2 * words[v + 2] + r3 * words[v + 3] + r4 * words[v + 4] + r5 * words[v + 5] + r6 * words[v + 6] + r7 * words[v + 7];
     }
   }
 }
