@@ -1,7 +1,9 @@
 // Allocation of the many-beam engine, measured with V8's heap sampling (inspector HeapProfiler,
 // sampling interval 128 bytes) around renders on the calling thread, after a warm-up render:
 // bytes allocated per integrator step and per column (set-up included), and the functions that
-// allocate most. One Float64 heap number per step would be >= 16 bytes/step.
+// allocate most. One boxed number per step would be 12-16 bytes/step. The sampler is asked to keep the
+// samples of objects that a minor or major GC has already collected: by default it reports only what is
+// still alive when sampling stops, which hides short-lived garbage (boxed numbers) entirely.
 // Run: node bench/heapSampling.mjs (after npm run build). Prints figures; never a timed test.
 import { Session } from 'node:inspector/promises';
 import { parseScenario } from '../dist/scenario/parse.js';
@@ -20,7 +22,7 @@ const session = new Session();
 session.connect();
 async function measure(label, f) {
   f(); // warm-up (JIT)
-  await session.post('HeapProfiler.startSampling', { samplingInterval: 128 });
+  await session.post('HeapProfiler.startSampling', { samplingInterval: 128, includeObjectsCollectedByMinorGC: true, includeObjectsCollectedByMajorGC: true });
   const st = f();
   const { profile } = await session.post('HeapProfiler.stopSampling');
   // every sample is an allocation (size scaled to the interval), whether or not it is still alive

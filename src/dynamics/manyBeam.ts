@@ -136,6 +136,8 @@ interface Work {
   lastLevel: number;
   /** step length whose phase table `custom` holds (NaN: none) */
   customH: number;
+  /** work arrays of stretchMatrixN (made on first use) */
+  matrix: MatrixWork | null;
 }
 
 const DEFAULT_MAX_STEP_NM = 5;
@@ -224,6 +226,7 @@ function prepare(input: ManyBeamInput, factors: Float64Array, strainDim: 1 | 3, 
     stats: { accepted: 0, rejected: 0, evaluations: 0 },
     lastLevel: -1,
     customH: NaN,
+    matrix: null,
   };
   return {
     n,
@@ -791,6 +794,11 @@ interface MatrixWork {
   readonly yi: Float64Array;
   readonly kr: Float64Array[];
   readonly ki: Float64Array[];
+  /** the error sum of stages 1 .. 6 of a step */
+  readonly sr: Float64Array;
+  readonly si: Float64Array;
+  /** beta' at the 6 distinct stage depths of a step, and the step length (index 6) */
+  readonly beta: Float64Array;
   /**
    * Phase tables and rotated matrices of the last two step lengths off the ladder: the stretches of the
    * translation method alternate between two lengths (window starts and ends D apart).
@@ -799,38 +807,53 @@ interface MatrixWork {
   readonly slotTab: Float64Array[];
   readonly slotRot: Float64Array[];
   nextSlot: number;
+  /** the first-step words (see buildWords) of the two slots (null: not built for the slot's length yet) and of the ladder levels */
+  readonly slotWords: Array<Float64Array | null>;
+  readonly levelWords: Array<Float64Array | null>;
+  /** the coefficients of the words in one first step */
+  readonly coef: Float64Array;
 }
-const matrixWorks = new WeakMap<ColumnSystem, MatrixWork>();
-
+/** The stretch work arrays of sys (the making apart, so that a call allocates nothing). */
 function matrixWork(sys: ColumnSystem): MatrixWork {
-  let w = matrixWorks.get(sys);
-  if (w === undefined) {
+  return sys.work.matrix ?? newMatrixWork(sys);
+}
+
+function newMatrixWork(sys: ColumnSystem): MatrixWork {
+  {
     const f = (): Float64Array => new Float64Array(sys.n * sys.n);
     const n = sys.n;
-    w = {
+    const w: MatrixWork = {
       ur: f(),
       ui: f(),
       yr: f(),
       yi: f(),
       kr: Array.from({ length: 7 }, f),
       ki: Array.from({ length: 7 }, f),
+      sr: f(),
+      si: f(),
+      beta: new Float64Array(7),
       slotH: Float64Array.of(NaN, NaN),
       slotTab: [new Float64Array(20 * n), new Float64Array(20 * n)],
       slotRot: [new Float64Array(10 * n * n), new Float64Array(10 * n * n)],
       nextSlot: 0,
+      slotWords: [null, null],
+      levelWords: new Array<Float64Array | null>(LEVELS + 1).fill(null),
+      coef: new Float64Array(WORDS),
     };
-    matrixWorks.set(sys, w);
+    sys.work.matrix = w;
+    return w;
   }
-  return w;
 }
 
 /**
  * K = i 2 pi beta' R Y for an N x N matrix Y (re/im apart), R = M (s = -1) or the rotated matrix of
- * stage s in rot. beta' = 0 gives K = 0.
+ * stage s in rot, beta' = beta[at] (numbers pass through typed arrays in the stepper: no boxing per call).
+ * beta' = 0 gives K = 0.
  */
-function rhsMatrix(sys: ColumnSystem, b: number, rot: Float64Array, s: number, yr: Float64Array, yi: Float64Array, kr: Float64Array, ki: Float64Array): void {
+function rhsMatrix(sys: ColumnSystem, beta: Float64Array, at: number, rot: Float64Array, s: number, yr: Float64Array, yi: Float64Array, kr: Float64Array, ki: Float64Array): void {
   const n = sys.n;
   const nn = n * n;
+  const b = beta[at];
   if (b === 0) {
     kr.fill(0);
     ki.fill(0);
@@ -849,30 +872,174 @@ function rhsMatrix(sys: ColumnSystem, b: number, rot: Float64Array, s: number, y
     o = 2 * nn * s;
     oi = o + nn;
   }
+  // K_ij = i scale sum_k R_ik Y_kj, two columns j at a time (each R_ik read once for both)
   for (let i = 0; i < n; i++) {
     const row = i * n;
-    {
-      // k = 0 sets the row; i scale R_ik = (-scale Im R, scale Re R)
-      const cr = -scale * ri[oi + row];
-      const ci = scale * rr[o + row];
-      for (let j = 0; j < n; j++) {
-        const a = yr[j];
-        const c = yi[j];
-        kr[row + j] = cr * a - ci * c;
-        ki[row + j] = cr * c + ci * a;
+    let j = 0;
+    for (; j + 1 < n; j += 2) {
+      let re0 = 0, im0 = 0, re1 = 0, im1 = 0;
+      for (let k = 0, kj = j; k < n; k++, kj += n) {
+        const ar = rr[o + row + k];
+        const ai = ri[oi + row + k];
+        const br0 = yr[kj], bi0 = yi[kj], br1 = yr[kj + 1], bi1 = yi[kj + 1];
+        re0 += ar * br0 - ai * bi0;
+        im0 += ar * bi0 + ai * br0;
+        re1 += ar * br1 - ai * bi1;
+        im1 += ar * bi1 + ai * br1;
+      }
+      kr[row + j] = -scale * im0;
+      ki[row + j] = scale * re0;
+      kr[row + j + 1] = -scale * im1;
+      ki[row + j + 1] = scale * re1;
+    }
+    if (j < n) {
+      let re = 0, im = 0;
+      for (let k = 0, kj = j; k < n; k++, kj += n) {
+        const ar = rr[o + row + k];
+        const ai = ri[oi + row + k];
+        re += ar * yr[kj] - ai * yi[kj];
+        im += ar * yi[kj] + ai * yr[kj];
+      }
+      kr[row + j] = -scale * im;
+      ki[row + j] = scale * re;
+    }
+  }
+}
+
+/**
+ * First step of a stretch from the identity, by words. With the state I at the start of a step, the stage
+ * derivatives of the stepper are K_1 = sigma_1 G_1 and K_s = sigma_s G_s (I + h sum_{j<s} a_sj K_j), with
+ * sigma_s = 2 pi i beta'(z + c_s h), G_1 = M and G_s the rotated matrix of stage s. Expanded, K_s is a sum over
+ * the subsets W of {1 .. s-1} of fixed products ("words") P_{s,W} = G_s P_{m, W \ m} (m the largest member of
+ * W, P_{s,{}} = G_s) with scalar coefficients r_{s,W} i^(|W|+1), r_{s,{}} = 2 pi beta'_s and
+ * r_{s,W} = 2 pi beta'_s h a_sm r_{m, W \ m}. The words depend only on the step length, so K_2 .. K_4 cost 2, 4
+ * and 8 scaled sums of N x N matrices instead of an N x N product each (the same numbers up to rounding).
+ */
+const WORD_STAGES = 4;
+/** Words of stages 1 .. WORD_STAGES: stage s holds 2^(s-1) of them from index 2^(s-1) - 1. */
+const WORDS = (1 << WORD_STAGES) - 1;
+/** Dormand-Prince a_sm of the stages expanded into words (row s, column m; 1-based, 0 unused). */
+const A_WORDS = [[], [], [0, A21], [0, A31, A32], [0, A41, A42, A43]];
+
+/** Offsets of the packed words of stages 2 .. WORD_STAGES in units of n^2 (see buildWords), and their total. */
+const PACKED_AT = [0, 0, 0, 4, 12];
+const PACKED = 28;
+
+/**
+ * The words P_{s,W} of the first step for the rotated matrices rot, packed for wordStage: for stage s
+ * (2 .. WORD_STAGES) with nw = 2^(s-1) words, from n^2 PACKED_AT[s], the part of every word that lands in
+ * the real part of K_s with the sign of i^(|W|+1) folded in, element-major ([t][w], n^2 x nw), then the same
+ * for the imaginary part.
+ */
+function buildWords(sys: ColumnSystem, rot: Float64Array): Float64Array {
+  const n = sys.n;
+  const nn = n * n;
+  // raw words, [word][re (n^2), im (n^2)], stage s from index 2^(s-1) - 1
+  const raw = new Float64Array(WORDS * 2 * nn);
+  for (let s = 1; s <= WORD_STAGES; s++) {
+    const base = (1 << (s - 1)) - 1;
+    const g = 2 * nn * base;
+    // G_s: stage 1 M, stage s >= 2 the rotated matrix of stage offset index s - 2
+    if (s === 1) {
+      raw.set(sys.mRe, g);
+      raw.set(sys.mIm, g + nn);
+    } else raw.set(rot.subarray(2 * nn * (s - 2), 2 * nn * (s - 1)), g);
+    for (let w = 1; w < 1 << (s - 1); w++) {
+      const m = 32 - Math.clz32(w);
+      const rest = w & ~(1 << (m - 1));
+      const o = 2 * nn * (base + w);
+      const p = 2 * nn * ((1 << (m - 1)) - 1 + rest);
+      for (let i = 0; i < n; i++) {
+        for (let j = 0; j < n; j++) {
+          let re = 0;
+          let im = 0;
+          for (let k = 0; k < n; k++) {
+            const ar = raw[g + i * n + k];
+            const ai = raw[g + nn + i * n + k];
+            const br = raw[p + k * n + j];
+            const bi = raw[p + nn + k * n + j];
+            re += ar * br - ai * bi;
+            im += ar * bi + ai * br;
+          }
+          raw[o + i * n + j] = re;
+          raw[o + nn + i * n + j] = im;
+        }
       }
     }
-    for (let k = 1; k < n; k++) {
-      const cr = -scale * ri[oi + row + k];
-      const ci = scale * rr[o + row + k];
-      const yrow = k * n;
-      for (let j = 0; j < n; j++) {
-        const a = yr[yrow + j];
-        const c = yi[yrow + j];
-        kr[row + j] += cr * a - ci * c;
-        ki[row + j] += cr * c + ci * a;
+  }
+  const out = new Float64Array(PACKED * nn);
+  for (let s = 2; s <= WORD_STAGES; s++) {
+    const nw = 1 << (s - 1);
+    const base = nw - 1;
+    const x = PACKED_AT[s] * nn;
+    const y = x + nw * nn;
+    for (let w = 0; w < nw; w++) {
+      let pow = 1;
+      for (let v = w; v !== 0; v &= v - 1) pow++;
+      // r i^pow (P_re + i P_im): real part +-r P_re or +-r P_im, imaginary part the other
+      const q = pow & 3;
+      const o = 2 * nn * (base + w);
+      const xo = q === 1 || q === 3 ? o + nn : o;
+      const yo = q === 1 || q === 3 ? o : o + nn;
+      const xs = q === 0 || q === 3 ? 1 : -1;
+      const ys = q === 0 || q === 1 ? 1 : -1;
+      for (let t = 0; t < nn; t++) {
+        out[x + t * nw + w] = xs * raw[xo + t];
+        out[y + t * nw + w] = ys * raw[yo + t];
       }
     }
+  }
+  return out;
+}
+
+/**
+ * K_s of a first step from the identity for stage s (2 .. WORD_STAGES) into kr, ki from the packed words
+ * (buildWords): the coefficients r of the stages below s are in coef (filled here for stage s), beta' of
+ * stage s is beta[s - 1], the step beta[6].
+ */
+function wordStage(words: Float64Array, coef: Float64Array, beta: Float64Array, nn: number, s: number, kr: Float64Array, ki: Float64Array): void {
+  const sb = TWO_PI * beta[s - 1];
+  const h = beta[6];
+  const nw = 1 << (s - 1);
+  const base = nw - 1;
+  const a = A_WORDS[s];
+  coef[base] = sb;
+  for (let w = 1; w < nw; w++) {
+    const m = 32 - Math.clz32(w);
+    coef[base + w] = sb * h * a[m] * coef[(1 << (m - 1)) - 1 + (w & ~(1 << (m - 1)))];
+  }
+  const x = PACKED_AT[s] * nn;
+  const y = x + nw * nn;
+  if (s === 2) {
+    const r0 = coef[1], r1 = coef[2];
+    for (let t = 0, u = x, v = y; t < nn; t++, u += 2, v += 2) {
+      kr[t] = r0 * words[u] + r1 * words[u + 1];
+      ki[t] = r0 * words[v] + r1 * words[v + 1];
+    }
+  } else if (s === 3) {
+    const r0 = coef[3], r1 = coef[4], r2 = coef[5], r3 = coef[6];
+    for (let t = 0, u = x, v = y; t < nn; t++, u += 4, v += 4) {
+      kr[t] = r0 * words[u] + r1 * words[u + 1] + r2 * words[u + 2] + r3 * words[u + 3];
+      ki[t] = r0 * words[v] + r1 * words[v + 1] + r2 * words[v + 2] + r3 * words[v + 3];
+    }
+  } else {
+    const r0 = coef[7], r1 = coef[8], r2 = coef[9], r3 = coef[10], r4 = coef[11], r5 = coef[12], r6 = coef[13], r7 = coef[14];
+    for (let t = 0, u = x, v = y; t < nn; t++, u += 8, v += 8) {
+      kr[t] = r0 * words[u] + r1 * words[u + 1] + r2 * words[u + 2] + r3 * words[u + 3] + r4 * words[u + 4] + r5 * words[u + 5] + r6 * words[u + 6] + r7 * words[u + 7];
+      ki[t] = r0 * words[v] + r1 * words[v + 1] + r2 * words[v + 2] + r3 * words[v + 3] + r4 * words[v + 4] + r5 * words[v + 5] + r6 * words[v + 6] + r7 * words[v + 7];
+    }
+  }
+}
+
+/** y += u for the state u of the step (u = I on a first step: only the diagonal). */
+function addState(yr: Float64Array, yi: Float64Array, ur: Float64Array, ui: Float64Array, n: number, identity: boolean): void {
+  if (identity) {
+    for (let i = 0; i < n; i++) yr[i * n + i] += 1;
+    return;
+  }
+  for (let q = 0; q < n * n; q++) {
+    yr[q] = ur[q] + yr[q];
+    yi[q] = ui[q] + yi[q];
   }
 }
 
@@ -893,7 +1060,7 @@ export function stretchMatrixN(T: Float64Array, to: number, sys: ColumnSystem, a
   if (T.length < to + 2 * nn) throw new InternalError(`T has ${T.length} numbers: give 2 N^2 = ${2 * nn} from offset ${to}.`);
   const mw = matrixWork(sys);
   const wk = sys.work;
-  const { ur, ui, yr, yi, kr, ki } = mw;
+  const { ur, ui, yr, yi, kr, ki, sr, si, beta } = mw;
   // the state starts as the identity
   ur.fill(0);
   ui.fill(0);
@@ -907,21 +1074,22 @@ export function stretchMatrixN(T: Float64Array, to: number, sys: ColumnSystem, a
   let level = startLevel;
   let accepted = 0;
   let fsalValid = false;
+  let written = false; // T holds the result (the last step wrote it)
   while (z < b) {
     if (!fsalValid) {
-      const b0 = betaPrime(z);
-      if (!Number.isFinite(b0)) throw strainError(z);
+      beta[0] = betaPrime(z);
+      if (!Number.isFinite(beta[0])) throw strainError(z);
       if (identity) {
         // K1 = i 2 pi beta' M I: no product
-        const scale = TWO_PI * b0;
+        const scale = TWO_PI * beta[0];
         for (let q = 0; q < nn; q++) {
           k1r[q] = -scale * sys.mIm[q];
           k1i[q] = scale * sys.mRe[q];
         }
-      } else rhsMatrix(sys, b0, mw.slotRot[0], -1, ur, ui, k1r, k1i);
+      } else rhsMatrix(sys, beta, 0, mw.slotRot[0], -1, ur, ui, k1r, k1i);
       if (level < 0) {
         let dmax = 0;
-        for (let j = 0; j < n; j++) dmax = Math.max(dmax, Math.abs(sys.factors[j] * b0));
+        for (let j = 0; j < n; j++) dmax = Math.max(dmax, Math.abs(sys.factors[j] * beta[0]));
         level = levelFor(hmax, 0.05 / (TWO_PI * dmax + 1e-300));
       }
       fsalValid = true;
@@ -930,6 +1098,7 @@ export function stretchMatrixN(T: Float64Array, to: number, sys: ColumnSystem, a
     let lastStep = false;
     let tab: Float64Array;
     let rot: Float64Array;
+    let words: Float64Array | null = null;
     if (z + h >= b || b - (z + h) < 1e-12 * Math.max(1, b)) {
       h = b - z;
       lastStep = true;
@@ -940,45 +1109,68 @@ export function stretchMatrixN(T: Float64Array, to: number, sys: ColumnSystem, a
         mw.slotH[slot] = h;
         tabulateE(sys, h, mw.slotTab[slot]);
         rotate(sys, mw.slotTab[slot], mw.slotRot[slot]);
+        mw.slotWords[slot] = null;
       }
       tab = mw.slotTab[slot];
       rot = mw.slotRot[slot];
+      if (identity) words = mw.slotWords[slot] ??= buildWords(sys, rot);
     } else {
       tab = levelTable(sys, level);
       rot = levelRotated(sys, level, tab);
+      if (identity) words = mw.levelWords[level] ??= buildWords(sys, rot);
     }
+    beta[1] = betaPrime(z + C2 * h);
+    beta[2] = betaPrime(z + C3 * h);
+    beta[3] = betaPrime(z + C4 * h);
+    if (words !== null) {
+      // a first step from the identity: K_2 .. K_4 from the words of this step length
+      mw.coef[0] = TWO_PI * beta[0];
+      beta[6] = h;
+      wordStage(words, mw.coef, beta, nn, 2, k2r, k2i);
+      wordStage(words, mw.coef, beta, nn, 3, k3r, k3i);
+      wordStage(words, mw.coef, beta, nn, 4, k4r, k4i);
+    } else {
+      for (let q = 0; q < nn; q++) {
+        yr[q] = ur[q] + h * A21 * k1r[q];
+        yi[q] = ui[q] + h * A21 * k1i[q];
+      }
+      rhsMatrix(sys, beta, 1, rot, 0, yr, yi, k2r, k2i);
+      for (let q = 0; q < nn; q++) {
+        yr[q] = ur[q] + h * (A31 * k1r[q] + A32 * k2r[q]);
+        yi[q] = ui[q] + h * (A31 * k1i[q] + A32 * k2i[q]);
+      }
+      rhsMatrix(sys, beta, 2, rot, 1, yr, yi, k3r, k3i);
+      for (let q = 0; q < nn; q++) {
+        yr[q] = ur[q] + h * (A41 * k1r[q] + A42 * k2r[q] + A43 * k3r[q]);
+        yi[q] = ui[q] + h * (A41 * k1i[q] + A42 * k2i[q] + A43 * k3i[q]);
+      }
+      rhsMatrix(sys, beta, 3, rot, 2, yr, yi, k4r, k4i);
+    }
+    // y = u + h sum a K (u = I on a first step: only its diagonal is read)
     for (let q = 0; q < nn; q++) {
-      yr[q] = ur[q] + h * A21 * k1r[q];
-      yi[q] = ui[q] + h * A21 * k1i[q];
+      yr[q] = h * (A51 * k1r[q] + A52 * k2r[q] + A53 * k3r[q] + A54 * k4r[q]);
+      yi[q] = h * (A51 * k1i[q] + A52 * k2i[q] + A53 * k3i[q] + A54 * k4i[q]);
     }
-    rhsMatrix(sys, betaPrime(z + C2 * h), rot, 0, yr, yi, k2r, k2i);
+    addState(yr, yi, ur, ui, n, identity);
+    beta[4] = betaPrime(z + C5 * h);
+    rhsMatrix(sys, beta, 4, rot, 3, yr, yi, k5r, k5i);
     for (let q = 0; q < nn; q++) {
-      yr[q] = ur[q] + h * (A31 * k1r[q] + A32 * k2r[q]);
-      yi[q] = ui[q] + h * (A31 * k1i[q] + A32 * k2i[q]);
+      yr[q] = h * (A61 * k1r[q] + A62 * k2r[q] + A63 * k3r[q] + A64 * k4r[q] + A65 * k5r[q]);
+      yi[q] = h * (A61 * k1i[q] + A62 * k2i[q] + A63 * k3i[q] + A64 * k4i[q] + A65 * k5i[q]);
     }
-    rhsMatrix(sys, betaPrime(z + C3 * h), rot, 1, yr, yi, k3r, k3i);
-    for (let q = 0; q < nn; q++) {
-      yr[q] = ur[q] + h * (A41 * k1r[q] + A42 * k2r[q] + A43 * k3r[q]);
-      yi[q] = ui[q] + h * (A41 * k1i[q] + A42 * k2i[q] + A43 * k3i[q]);
-    }
-    rhsMatrix(sys, betaPrime(z + C4 * h), rot, 2, yr, yi, k4r, k4i);
-    for (let q = 0; q < nn; q++) {
-      yr[q] = ur[q] + h * (A51 * k1r[q] + A52 * k2r[q] + A53 * k3r[q] + A54 * k4r[q]);
-      yi[q] = ui[q] + h * (A51 * k1i[q] + A52 * k2i[q] + A53 * k3i[q] + A54 * k4i[q]);
-    }
-    rhsMatrix(sys, betaPrime(z + C5 * h), rot, 3, yr, yi, k5r, k5i);
-    for (let q = 0; q < nn; q++) {
-      yr[q] = ur[q] + h * (A61 * k1r[q] + A62 * k2r[q] + A63 * k3r[q] + A64 * k4r[q] + A65 * k5r[q]);
-      yi[q] = ui[q] + h * (A61 * k1i[q] + A62 * k2i[q] + A63 * k3i[q] + A64 * k4i[q] + A65 * k5i[q]);
-    }
+    addState(yr, yi, ur, ui, n, identity);
     const zNext = lastStep ? b : z + h;
-    const b6 = betaPrime(zNext);
-    rhsMatrix(sys, b6, rot, 4, yr, yi, k6r, k6i);
+    beta[5] = betaPrime(zNext);
+    rhsMatrix(sys, beta, 5, rot, 4, yr, yi, k6r, k6i);
+    // y7, and the error sum of the stages before K7 (the same terms in the same order)
     for (let q = 0; q < nn; q++) {
-      yr[q] = ur[q] + h * (A71 * k1r[q] + A73 * k3r[q] + A74 * k4r[q] + A75 * k5r[q] + A76 * k6r[q]);
-      yi[q] = ui[q] + h * (A71 * k1i[q] + A73 * k3i[q] + A74 * k4i[q] + A75 * k5i[q] + A76 * k6i[q]);
+      yr[q] = h * (A71 * k1r[q] + A73 * k3r[q] + A74 * k4r[q] + A75 * k5r[q] + A76 * k6r[q]);
+      yi[q] = h * (A71 * k1i[q] + A73 * k3i[q] + A74 * k4i[q] + A75 * k5i[q] + A76 * k6i[q]);
+      sr[q] = E1 * k1r[q] + E3 * k3r[q] + E4 * k4r[q] + E5 * k5r[q] + E6 * k6r[q];
+      si[q] = E1 * k1i[q] + E3 * k3i[q] + E4 * k4i[q] + E5 * k5i[q] + E6 * k6i[q];
     }
-    rhsMatrix(sys, b6, rot, 4, yr, yi, k7r, k7i);
+    addState(yr, yi, ur, ui, n, identity);
+    rhsMatrix(sys, beta, 5, rot, 4, yr, yi, k7r, k7i);
     // local error of every column, weighted by |E(h)| of its row (the Bloch amplitudes at z + h)
     let err2 = 0;
     const off = 4 * n;
@@ -987,25 +1179,40 @@ export function stretchMatrixN(T: Float64Array, to: number, sys: ColumnSystem, a
       const w2 = tab[off + i] * tab[off + i] + tab[offIm + i] * tab[offIm + i];
       for (let j = 0; j < n; j++) {
         const q = i * n + j;
-        const xr = h * (E1 * k1r[q] + E3 * k3r[q] + E4 * k4r[q] + E5 * k5r[q] + E6 * k6r[q] + E7 * k7r[q]);
-        const xi = h * (E1 * k1i[q] + E3 * k3i[q] + E4 * k4i[q] + E5 * k5i[q] + E6 * k6i[q] + E7 * k7i[q]);
+        const xr = h * (sr[q] + E7 * k7r[q]);
+        const xi = h * (si[q] + E7 * k7i[q]);
         err2 = Math.max(err2, (xr * xr + xi * xi) * w2); // propagates NaN
       }
     }
     const err = Math.sqrt(err2 / tol2);
     if (!Number.isFinite(err)) throw strainError(z);
     if (err <= 1 || level >= LEVELS) {
-      for (let i = 0; i < n; i++) {
-        const er = tab[off + i];
-        const ei = tab[offIm + i];
-        for (let j = 0; j < n; j++) {
-          const q = i * n + j;
-          const p = yr[q], r = yi[q];
-          ur[q] = er * p - ei * r;
-          ui[q] = er * r + ei * p;
-          const c = k7r[q], e = k7i[q];
-          k1r[q] = er * c - ei * e;
-          k1i[q] = er * e + ei * c;
+      if (lastStep) {
+        // the end of the stretch: E(h) u(h) straight into T (no derivative for a next step)
+        for (let i = 0; i < n; i++) {
+          const er = tab[off + i];
+          const ei = tab[offIm + i];
+          for (let j = 0; j < n; j++) {
+            const q = i * n + j;
+            const p = yr[q], r = yi[q];
+            T[to + 2 * q] = er * p - ei * r;
+            T[to + 2 * q + 1] = er * r + ei * p;
+          }
+        }
+        written = true;
+      } else {
+        for (let i = 0; i < n; i++) {
+          const er = tab[off + i];
+          const ei = tab[offIm + i];
+          for (let j = 0; j < n; j++) {
+            const q = i * n + j;
+            const p = yr[q], r = yi[q];
+            ur[q] = er * p - ei * r;
+            ui[q] = er * r + ei * p;
+            const c = k7r[q], e = k7i[q];
+            k1r[q] = er * c - ei * e;
+            k1i[q] = er * e + ei * c;
+          }
         }
       }
       accepted++;
@@ -1019,9 +1226,12 @@ export function stretchMatrixN(T: Float64Array, to: number, sys: ColumnSystem, a
     }
   }
   wk.lastLevel = level;
-  for (let q = 0; q < nn; q++) {
-    T[to + 2 * q] = ur[q];
-    T[to + 2 * q + 1] = ui[q];
+  if (!written) {
+    // an empty stretch: the identity
+    for (let q = 0; q < nn; q++) {
+      T[to + 2 * q] = ur[q];
+      T[to + 2 * q + 1] = ui[q];
+    }
   }
   return accepted;
 }

@@ -167,6 +167,18 @@ export function translationPlan(job: RenderJob, options: { readonly ignoreGain?:
   return { di, dj, D, starts: Int32Array.from(starts), pathLength_nm: pathLength };
 }
 
+/**
+ * Whether the escape points esc (image nm) of the pixel centred at (x, y) are the offsets off (from a pixel
+ * centre) of the class's escape long columns, in either order (the two sides swap when the line passes
+ * through the pixel centres), to 1e-9 pixel.
+ */
+function sameEscape(esc: Float64Array, off: Float64Array, x: number, y: number, pixel_nm: number): boolean {
+  const eps = 1e-9 * pixel_nm;
+  const close = (e: number, o: number): boolean =>
+    Math.abs(esc[e] - x - off[o]) <= eps && Math.abs(esc[e + 1] - y - off[o + 1]) <= eps;
+  return (close(0, 0) && close(2, 2)) || (close(0, 2) && close(2, 0));
+}
+
 function gcd(a: number, b: number): number {
   while (b !== 0) [a, b] = [b, a % b];
   return a;
@@ -189,11 +201,18 @@ export function renderTranslated(job: RenderJob, plan: TranslationPlan, part: nu
   const count = new Float64Array(maxK);
   const S = CORE_SUBSAMPLES;
   const { di, dj } = plan;
-  // pixels wholly inside a core take columns just outside it (cores.ts), off the translation lattice:
+  // pixels wholly inside a core take columns just outside it (cores.ts): two long columns of their own, or
   // the column-by-column evaluator, made on first need
   let single: ColumnEvaluator | null = null;
   const esc = new Float64Array(4);
   const one = new Float64Array(4);
+  // which pixels of a class use each sub-column offset; escape offsets and the two escape long columns
+  const uses = new Uint8Array(S * S * maxK);
+  const esc0 = new Float64Array(4);
+  const ampEsc1 = new Float64Array(4 * maxK);
+  const ampEsc2 = new Float64Array(4 * maxK);
+  const L = job.frame.columnLength_nm;
+  const beams = job.manyBeam?.input.excitationErrors_per_nm.length ?? 2;
   let columns = 0;
   for (let c = part; c < plan.starts.length; c += parts) {
     const s0 = plan.starts[c];
@@ -221,48 +240,92 @@ export function renderTranslated(job: RenderJob, plan: TranslationPlan, part: nu
     }
     // pixels reaching a core: the S x S sub-columns over the pixel's area that lie outside every core
     // (as renderRows does), each offset a class of its own; the centre sub-column (S odd) is the pixel
-    // centre, used alone by the other pixels
-    sumB.fill(0, 0, K);
-    sumD.fill(0, 0, K);
+    // centre, used alone by the other pixels. A sub-column's long column is integrated only when some
+    // pixel of the class uses it (a class running inside a core uses none).
+    const near = cores as NonNullable<typeof cores>;
     count.fill(0, 0, K);
     for (let q = 0; q < S; q++) {
       for (let r = 0; r < S; r++) {
         const ox = ((r + 0.5) / S - 0.5) * pixel_nm;
         const oy = ((q + 0.5) / S - 0.5) * pixel_nm;
         const centre = 2 * r + 1 === S && 2 * q + 1 === S;
-        windows(amp, x0 + ox, y0 + oy, K);
+        const o = (q * S + r) * maxK;
         for (let k = 0; k < K; k++) {
-          const ib = amp[4 * k] * amp[4 * k] + amp[4 * k + 1] * amp[4 * k + 1];
-          const id = amp[4 * k + 2] * amp[4 * k + 2] + amp[4 * k + 3] * amp[4 * k + 3];
+          let use = false;
           if (isNear[k] === 1) {
-            const xs = pixelX(i0 + k * di, width, pixel_nm) + ox;
-            const ys = pixelX(j0 + k * dj, height, pixel_nm) + oy;
-            if ((cores as NonNullable<typeof cores>).near(xs, ys, 0)) continue;
-            sumB[k] += ib;
-            sumD[k] += id;
-            count[k]++;
+            use = !near.near(pixelX(i0 + k * di, width, pixel_nm) + ox, pixelX(j0 + k * dj, height, pixel_nm) + oy, 0);
+            if (use) count[k]++;
           } else if (centre) {
-            sumB[k] = ib;
-            sumD[k] = id;
+            use = true;
             count[k] = 1;
           }
+          uses[o + k] = use ? 1 : 0;
         }
       }
     }
+    sumB.fill(0, 0, K);
+    sumD.fill(0, 0, K);
+    for (let q = 0; q < S; q++) {
+      for (let r = 0; r < S; r++) {
+        const o = (q * S + r) * maxK;
+        if (uses.subarray(o, o + K).indexOf(1) < 0) continue;
+        windows(amp, x0 + ((r + 0.5) / S - 0.5) * pixel_nm, y0 + ((q + 0.5) / S - 0.5) * pixel_nm, K);
+        for (let k = 0; k < K; k++) {
+          if (uses[o + k] === 0) continue;
+          sumB[k] += amp[4 * k] * amp[4 * k] + amp[4 * k + 1] * amp[4 * k + 1];
+          sumD[k] += amp[4 * k + 2] * amp[4 * k + 2] + amp[4 * k + 3] * amp[4 * k + 3];
+        }
+      }
+    }
+    // pixels wholly inside a core: the mean of the two columns just outside it on either side of the line.
+    // Those of a class are translates of each other (the line runs along the class), so when there are many
+    // they come from two long columns of their own (a core's steep strain is then integrated once per
+    // side, not once per pixel); otherwise, and for a pixel whose escape points are not the translates,
+    // column by column
+    let inCore = 0;
+    let firstInCore = -1;
     for (let k = 0; k < K; k++) {
-      const pixel = (j0 + k * dj) * width + (i0 + k * di);
       if (count[k] === 0) {
-        // the whole pixel lies in a core: the mean of the columns just outside it on either side of the line
+        inCore++;
+        if (firstInCore < 0) firstInCore = k;
+      }
+    }
+    let shared = false;
+    if (inCore * L > 2 * beams * ((K - 1) * plan.D + L)) {
+      const xf = pixelX(i0 + firstInCore * di, width, pixel_nm);
+      const yf = pixelX(j0 + firstInCore * dj, height, pixel_nm);
+      near.escape(esc0, xf, yf);
+      for (let e = 0; e < 4; e += 2) {
+        esc0[e] -= xf;
+        esc0[e + 1] -= yf;
+      }
+      windows(ampEsc1, x0 + esc0[0], y0 + esc0[1], K);
+      windows(ampEsc2, x0 + esc0[2], y0 + esc0[3], K);
+      shared = true;
+    }
+    for (let k = 0; k < K; k++) {
+      if (count[k] !== 0) continue;
+      const xk = pixelX(i0 + k * di, width, pixel_nm);
+      const yk = pixelX(j0 + k * dj, height, pixel_nm);
+      near.escape(esc, xk, yk);
+      if (shared && sameEscape(esc, esc0, xk, yk, pixel_nm)) {
+        for (const a of [ampEsc1, ampEsc2]) {
+          sumB[k] += a[4 * k] * a[4 * k] + a[4 * k + 1] * a[4 * k + 1];
+          sumD[k] += a[4 * k + 2] * a[4 * k + 2] + a[4 * k + 3] * a[4 * k + 3];
+        }
+      } else {
         single ??= columnEvaluator(job);
-        (cores as NonNullable<typeof cores>).escape(esc, pixelX(i0 + k * di, width, pixel_nm), pixelX(j0 + k * dj, height, pixel_nm));
         for (let e = 0; e < 4; e += 2) {
           single.column(one, esc[e], esc[e + 1]);
           sumB[k] += one[0] * one[0] + one[1] * one[1];
           sumD[k] += one[2] * one[2] + one[3] * one[3];
-          count[k]++;
         }
         columns += 2;
       }
+      count[k] = 2;
+    }
+    for (let k = 0; k < K; k++) {
+      const pixel = (j0 + k * dj) * width + (i0 + k * di);
       bf[pixel] = sumB[k] / count[k];
       df[pixel] = sumD[k] / count[k];
     }

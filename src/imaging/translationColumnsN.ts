@@ -20,20 +20,37 @@ import { FAULT, longColumnEvents, WINDOW_END, WINDOW_START } from './longColumnE
 
 /** out[o..] = a[ao..] x b[bo..], N x N complex, interleaved [re, im], row-major. out may not alias a or b. */
 function mulN(out: Float64Array, o: number, a: Float64Array, ao: number, b: Float64Array, bo: number, n: number): void {
+  // two columns j at a time: each a_ik read once for both
   for (let i = 0; i < n; i++) {
-    for (let j = 0; j < n; j++) {
-      let re = 0;
-      let im = 0;
-      for (let k = 0; k < n; k++) {
-        const ar = a[ao + 2 * (i * n + k)];
-        const ai = a[ao + 2 * (i * n + k) + 1];
-        const br = b[bo + 2 * (k * n + j)];
-        const bi = b[bo + 2 * (k * n + j) + 1];
-        re += ar * br - ai * bi;
-        im += ar * bi + ai * br;
+    const ar0 = ao + 2 * i * n;
+    const or0 = o + 2 * i * n;
+    let j = 0;
+    for (; j + 1 < n; j += 2) {
+      let re0 = 0, im0 = 0, re1 = 0, im1 = 0;
+      for (let k = 0, bk = bo + 2 * j; k < n; k++, bk += 2 * n) {
+        const xr = a[ar0 + 2 * k];
+        const xi = a[ar0 + 2 * k + 1];
+        const br0 = b[bk], bi0 = b[bk + 1], br1 = b[bk + 2], bi1 = b[bk + 3];
+        re0 += xr * br0 - xi * bi0;
+        im0 += xr * bi0 + xi * br0;
+        re1 += xr * br1 - xi * bi1;
+        im1 += xr * bi1 + xi * br1;
       }
-      out[o + 2 * (i * n + j)] = re;
-      out[o + 2 * (i * n + j) + 1] = im;
+      out[or0 + 2 * j] = re0;
+      out[or0 + 2 * j + 1] = im0;
+      out[or0 + 2 * j + 2] = re1;
+      out[or0 + 2 * j + 3] = im1;
+    }
+    if (j < n) {
+      let re = 0, im = 0;
+      for (let k = 0, bk = bo + 2 * j; k < n; k++, bk += 2 * n) {
+        const xr = a[ar0 + 2 * k];
+        const xi = a[ar0 + 2 * k + 1];
+        re += xr * b[bk] - xi * b[bk + 1];
+        im += xr * b[bk + 1] + xi * b[bk];
+      }
+      out[or0 + 2 * j] = re;
+      out[or0 + 2 * j + 1] = im;
     }
   }
 }

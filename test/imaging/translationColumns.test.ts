@@ -18,6 +18,8 @@ import { renderJob } from '../../src/imaging/renderScenario.js';
 import { renderRows, type RenderJob } from '../../src/imaging/renderRows.js';
 import { renderTranslated, translationPlan } from '../../src/imaging/translationColumns.js';
 import { createRenderPool } from '../../src/imaging/workerPool.js';
+import { CORE_SUBSAMPLES, coreGeometry } from '../../src/imaging/cores.js';
+import { pixelX } from '../../src/geometry/frames.js';
 
 const TIGHT = 1e-7;
 
@@ -135,6 +137,43 @@ describe('translation method equals column-by-column integration (exact identity
     const { diff } = bothPaths({ ...j, coreSupersample: true });
     expect(diff).toBeLessThan(1e-6);
   });
+
+  for (const [name, over] of [
+    ['two beams', {}],
+    ['5-beam row', { conditions: [{ id: 'wb', g: [2, 2, 0], weakBeam: 2, beams: { row: [-1, 3] } }] }],
+  ] as const) {
+    it(`pixels wholly inside a core (the escape columns of a class as two long columns) agree too: ${name}`, () => {
+      // pixels of 0.1 nm along a line through the pixel centres: whole diagonals of pixels lie within 2 core radii
+      const j = job({
+        image: { width_px: 20, height_px: 20, pixel_nm: 0.1 },
+        defects: [{ type: 'dislocation', b: '1/2[1 1 0]', line: [1, -1, 2], point_nm: [0, 0, 50] }],
+        ...over,
+      });
+      const cores = coreGeometry(j)!;
+      let near = 0;
+      let whole = 0;
+      for (let q = 0; q < j.width * j.height; q++) {
+        const x = pixelX(q % j.width, j.width, j.pixel_nm);
+        const y = pixelX(Math.floor(q / j.width), j.height, j.pixel_nm);
+        if (!cores.near(x, y, Math.SQRT1_2 * j.pixel_nm)) continue;
+        near++;
+        let outside = 0;
+        for (let a = 0; a < CORE_SUBSAMPLES; a++) {
+          for (let b = 0; b < CORE_SUBSAMPLES; b++) {
+            if (!cores.near(x + ((a + 0.5) / CORE_SUBSAMPLES - 0.5) * j.pixel_nm, y + ((b + 0.5) / CORE_SUBSAMPLES - 0.5) * j.pixel_nm, 0)) outside++;
+          }
+        }
+        if (outside === 0) whole++;
+      }
+      expect(whole, 'pixels wholly inside the core').toBeGreaterThan(20);
+      const { diff } = bothPaths(j);
+      expect(diff).toBeLessThan(1e-6);
+      // no pixel fell back to its own escape columns (each would add 2 to the column count)
+      const n = j.width * j.height;
+      const st = renderTranslated(j, translationPlan(j, { ignoreGain: true })!, 0, 1, new Float32Array(n), new Float32Array(n));
+      expect(st.columns).toBe(n + (CORE_SUBSAMPLES * CORE_SUBSAMPLES - 1) * near);
+    });
+  }
 
   it('the worker pool and the in-thread path use it and give the column-by-column image at tol 1e-7', async () => {
     const j = job({ defects: [{ type: 'dislocation', b: '1/2[1 0 1]', line: [1, 1, 2], point_nm: [0, 0, 50] }] });
