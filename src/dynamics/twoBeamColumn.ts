@@ -2,9 +2,8 @@
  * Adaptive integration of one column through a strained foil with planar
  * faults (two-beam Howie-Whelan equations, "beta form", physics.md section 3).
  *
- * Slicing. Each trial slice of length h (at most maxSlice_nm) is propagated
- * once with the fourth-order Magnus step of twoBeamKernel.ts (s_e = s +
- * Gauss-Legendre mean of beta', plus the commutator term) and once as two
+ * Slicing. Each trial slice [a, a + h] (h at most maxSlice_nm) is propagated
+ * once with the fourth-order Magnus step of twoBeamKernel.ts and once as two
  * half slices (step doubling, Hairer, Norsett & Wanner, Solving ODEs I,
  * section II.4). For a method of order 4 the error of the two-half result is
  * |two halves - one step| / (2^4 - 1). A slice is accepted when that error is
@@ -16,19 +15,35 @@
  * single-step trial. The accepted result is the product of the two half-slice
  * matrices (no extrapolation), so without absorption every slice is unitary.
  *
- * A slice whose six samples of beta' are identical is treated as a slab of
+ * Samples of beta' (Simpson nodes). The Magnus step needs the mean of beta'
+ * over the slice and its first moment int beta'(z) (h - 2 (z - a)) dz (the
+ * commutator term); both are taken by Simpson's rule (exact for beta' of
+ * degree 3 and 2, so the step keeps order 4; twoBeamKernel.ts). A trial then
+ * samples beta' at a, a + h/4, a + h/2, a + 3h/4 and a + h: the value at a is
+ * the previous slice's end, and after a rejection the new trial's middle and
+ * end are the old first quarter and middle, so a trial costs 4 new samples and
+ * a rejection 2 (the Gauss-Legendre nodes used before cost 6 and 4:
+ * twoBeamColumnGauss.ts keeps that integrator as a baseline). Because the
+ * ends of a slice are sampled, a jump of beta' inside a slice is always seen;
+ * the error estimate of a slice holding a jump stays above the tolerance down
+ * to MIN_SLICE_NM, so jumps should be breakpoints (the renderer makes them
+ * faults with a zero phase). The samples at the two ends of a stretch between
+ * breakpoints sit END_NUDGE_NM inside it, so each side of a jump at a
+ * breakpoint is sampled on its own side.
+ *
+ * A slice whose five samples of beta' are identical is treated as a slab of
  * constant s_e and propagated exactly in one piece, so a column far from any
  * defect (beta' = 0) costs ceil(t / maxSlice_nm) slab matrices.
  *
  * Guards: no slice is shorter than MIN_SLICE_NM (a slice at that length is
  * accepted whatever its error, counted in stats.forced); after MAX_SLICES
  * slices the rest of each segment is one forced slice. Forced slices are
- * plain slabs with the Gauss-Legendre mean of beta' (no commutator term,
+ * plain slabs with the Simpson mean of beta' (no commutator term,
  * which can overflow with absorption on an unresolved slice). So a near-singular
  * beta' (a column through a dislocation core) returns finite values in
  * bounded time.
  *
- * What the integrator sees of beta' are its values at the Gauss nodes of the
+ * What the integrator sees of beta' are its values at the nodes of the
  * trial slices: a feature much narrower than the node spacing whose tails
  * stay below the tolerance is not seen. Elastic fields of defects have
  * algebraic tails and are found when the slices are not too long (see
@@ -84,12 +99,13 @@ export const MIN_SLICE_NM = 1e-4;
 export const MAX_SLICES = 4000;
 /**
  * Default longest slice (nm). It bounds the spacing of the beta' samples
- * (Gauss nodes of the half slices <= 6 nm apart), so that the tail of a
+ * (quarter points, 5 nm apart; the Gauss nodes of the half slices used
+ * before were <= 5.8 nm apart), so that the tail of a
  * narrow peak of beta' (a column passing within ~0.1 nm of a dislocation
  * line) is seen and refined. In trials with random sums of Lorentzian peaks
  * (widths 0.01-20 nm, 450 columns against RK4) no column missed its
- * tolerance (1e-6 to 1e-3) with 20 nm, while 14 missed it with an unbounded
- * first slice; 20 nm also costs fewer rejected trial slices than starting
+ * tolerance (1e-6 to 1e-3) with 20 nm (Gauss-Legendre sampling), while 14
+ * missed it with an unbounded first slice; 20 nm also costs fewer rejected trial slices than starting
  * from the whole column (test/dynamics/twoBeamAdaptive.test.ts repeats a
  * smaller version against scipy).
  */
@@ -100,11 +116,15 @@ const PI = Math.PI;
 export const G1 = 0.5 - Math.sqrt(3) / 6;
 export const G2 = 0.5 + Math.sqrt(3) / 6;
 export const EPS_K = -(Math.sqrt(3) / 6) * PI;
+/** The commutator coefficient of the fourth-order Magnus step with Simpson nodes: eps = SIMPSON_EPS_K h (beta'(a + h) - beta'(a)). */
+export const SIMPSON_EPS_K = -PI / 6;
 
-// Scratch: [0..3] state, [4..7] one-step trial, [8..11] two-half trial,
-// [12..15] state after the first half. Not re-entrant (beta' must not call
-// integrateColumn).
-const W = new Float64Array(16);
+/**
+ * Scratch of the column integrators: [0..3] state, [4..7] one-step trial,
+ * [8..11] two-half trial, [12..15] state after the first half. Not
+ * re-entrant (beta' must not call integrateColumn).
+ */
+export const W = new Float64Array(16);
 
 /**
  * Integrates the column 0 <= z <= t_nm from phi0 = 1, phig = 0 and writes the
@@ -125,6 +145,43 @@ export function integrateColumn(
   tol: number,
   stats?: ColumnStats,
   maxSlice_nm: number = DEFAULT_MAX_SLICE_NM,
+): void {
+  driveColumn(out, p, t_nm, betaPrime, faults, tol, stats, maxSlice_nm, segment);
+}
+
+/**
+ * Advances W[0..3] over [a, end] adaptively and returns the suggested length
+ * of the next slice; counts into counters. Arguments: the first trial slice,
+ * q = qr + i qi, s, 1/xi'_0, beta', the error per unit length, the longest slice.
+ */
+export type SegmentStepper = (
+  a: number,
+  end: number,
+  hStart: number,
+  qr: number,
+  qi: number,
+  s: number,
+  invXi0: number,
+  f: (z: number) => number,
+  tolLen: number,
+  hMax: number,
+) => number;
+
+/**
+ * The column walk shared by integrateColumn and the previous integrator kept
+ * as a reference (twoBeamColumnGauss.ts): checks the input, integrates each
+ * stretch between faults with `step`, applies the fault phases.
+ */
+export function driveColumn(
+  out: Float64Array,
+  p: TwoBeamParams,
+  t_nm: number,
+  betaPrime: (z_nm: number) => number,
+  faults: Float64Array,
+  tol: number,
+  stats: ColumnStats | undefined,
+  maxSlice_nm: number,
+  step: SegmentStepper,
 ): void {
   checkTwoBeamParams(p);
   checkThickness(t_nm);
@@ -167,12 +224,12 @@ export function integrateColumn(
     const zf = faults[k];
     if (zf < 0) continue;
     if (zf > t_nm) break;
-    if (zf > z) hCarry = segment(z, zf, hCarry, qr, qi, s, invXi0, betaPrime, tolLen, maxSlice_nm);
+    if (zf > z) hCarry = step(z, zf, hCarry, qr, qi, s, invXi0, betaPrime, tolLen, maxSlice_nm);
     z = zf;
     // F(alpha) = diag(1, e^{+i alpha}) on (phi0, phig): see the header.
     applyFaultPhase(W, faults[k + 1]);
   }
-  if (t_nm > z) segment(z, t_nm, hCarry, qr, qi, s, invXi0, betaPrime, tolLen, maxSlice_nm);
+  if (t_nm > z) step(z, t_nm, hCarry, qr, qi, s, invXi0, betaPrime, tolLen, maxSlice_nm);
 
   out[0] = W[0];
   out[1] = W[1];
@@ -189,18 +246,27 @@ export function integrateColumn(
   }
 }
 
-const counters = { slices: 0, rejected: 0, betaCalls: 0, forced: 0 };
+/** Counters of the column being integrated (reset by driveColumn, added to the caller's stats at the end). */
+export const counters = { slices: 0, rejected: 0, betaCalls: 0, forced: 0 };
 
-function copy4(from: number, to: number): void {
+/** W[to..to+3] = W[from..from+3]. */
+export function copy4(from: number, to: number): void {
   W[to] = W[from];
   W[to + 1] = W[from + 1];
   W[to + 2] = W[from + 2];
   W[to + 3] = W[from + 3];
 }
 
+/** One-sided samples at a stretch's ends: beta' may jump there (an inclusion's surface), so the end samples sit this far inside (nm; at most 1e-3 of the stretch). */
+const END_NUDGE_NM = 1e-7;
+
 /**
  * Integrates W[0..3] over [a, end] adaptively; returns the suggested length
- * of the next slice.
+ * of the next slice. Simpson nodes: a trial slice [a, a + h] samples beta' at
+ * a, a + h/4, a + h/2, a + 3h/4, a + h; the value at a is the previous
+ * trial's end, and after a rejection the new trial's end and middle are the
+ * old middle and first quarter, so a trial costs 4 new samples and a
+ * rejection 2.
  */
 function segment(
   a: number,
@@ -214,50 +280,52 @@ function segment(
   tolLen: number,
   hMax: number,
 ): number {
+  const nudge = Math.min(END_NUDGE_NM, 1e-3 * (end - a));
+  let fa = f(a + nudge);
+  counters.betaCalls += 1;
   let h = hStart;
   while (a < end) {
     const rest = end - a;
     if (h > rest || rest - h < MIN_SLICE_NM) h = rest;
+    let last = h === rest; // this trial ends the segment: its end sample is one-sided
     if (counters.slices + 2 > MAX_SLICES) {
-      // out of budget: the rest of the segment as one forced plain slab
-      const b1 = f(a + G1 * rest);
-      const b2 = f(a + G2 * rest);
+      // out of budget: the rest of the segment as one forced plain slab (Simpson mean of beta')
+      const bm = f(a + 0.5 * rest);
+      const be = f(end - nudge);
       counters.betaCalls += 2;
-      checkFinite(b1 + b2, a);
-      stepSlice(W, 0, qr, qi, s + 0.5 * (b1 + b2), 0, rest, invXi0);
+      checkFinite(fa + bm + be, a);
+      stepSlice(W, 0, qr, qi, s + (fa + 4 * bm + be) / 6, 0, rest, invXi0);
       counters.slices += 1;
       counters.forced += 1;
       return hStart;
     }
-    let b1 = f(a + G1 * h);
-    let b2 = f(a + G2 * h);
-    counters.betaCalls += 2;
+    let fq1 = f(a + 0.25 * h);
+    let fm = f(a + 0.5 * h);
+    let fq3 = f(a + 0.75 * h);
+    let fe = f(last ? end - nudge : a + h);
+    counters.betaCalls += 4;
     let haveFull = false; // W[4..7] holds the one-step trial already
     for (;;) {
       const hh = 0.5 * h;
-      const b3 = f(a + G1 * hh);
-      const b4 = f(a + G2 * hh);
-      const b5 = f(a + hh + G1 * hh);
-      const b6 = f(a + hh + G2 * hh);
-      counters.betaCalls += 4;
-      checkFinite(b1 + b2 + b3 + b4 + b5 + b6, a);
-      if (b1 === b2 && b1 === b3 && b1 === b4 && b1 === b5 && b1 === b6) {
+      checkFinite(fq1 + fm + fq3 + fe, a);
+      if (fa === fq1 && fa === fm && fa === fq3 && fa === fe) {
         // constant beta' over the slice: the slab matrix is exact
         if (haveFull) copy4(4, 0);
-        else stepSlice(W, 0, qr, qi, s + b1, 0, h, invXi0);
-        a += h;
+        else stepSlice(W, 0, qr, qi, s + fa, 0, h, invXi0);
+        a = last ? end : a + h;
+        fa = fe;
         counters.slices += 1;
         h = Math.min(4 * h, hMax);
         break;
       }
       if (!haveFull) {
         copy4(0, 4);
-        stepSlice(W, 4, qr, qi, s + 0.5 * (b1 + b2), EPS_K * h * (b2 - b1), h, invXi0);
+        stepSlice(W, 4, qr, qi, s + (fa + 4 * fm + fe) / 6, SIMPSON_EPS_K * h * (fe - fa), h, invXi0);
       }
       copy4(0, 8);
-      stepSlice(W, 8, qr, qi, s + 0.5 * (b3 + b4), EPS_K * hh * (b4 - b3), hh, invXi0);
+      stepSlice(W, 8, qr, qi, s + (fa + 4 * fq1 + fm) / 6, SIMPSON_EPS_K * hh * (fm - fa), hh, invXi0);
       copy4(8, 12);
-      stepSlice(W, 8, qr, qi, s + 0.5 * (b5 + b6), EPS_K * hh * (b6 - b5), hh, invXi0);
+      stepSlice(W, 8, qr, qi, s + (fm + 4 * fq3 + fe) / 6, SIMPSON_EPS_K * hh * (fe - fm), hh, invXi0);
       const d0 = W[8] - W[4];
       const d1 = W[9] - W[5];
       const d2 = W[10] - W[6];
@@ -266,7 +334,8 @@ function segment(
       const tolLocal = tolLen * h;
       if (err <= tolLocal) {
         copy4(8, 0);
-        a += h;
+        a = last ? end : a + h;
+        fa = fe;
         counters.slices += 2;
         let fac = err > 0 ? 0.9 * Math.sqrt(Math.sqrt(tolLocal / err)) : 4;
         if (fac > 4) fac = 4;
@@ -275,13 +344,14 @@ function segment(
         break;
       }
       if (hh < MIN_SLICE_NM || counters.slices + 4 > MAX_SLICES) {
-        // cannot refine further: accept two plain half slabs (Gauss-Legendre
-        // mean of beta', no commutator term). The plain slab stays bounded
-        // even where the Magnus correction of an unresolved slice would
-        // overflow (err may then be NaN).
-        stepSlice(W, 0, qr, qi, s + 0.5 * (b3 + b4), 0, hh, invXi0);
-        stepSlice(W, 0, qr, qi, s + 0.5 * (b5 + b6), 0, hh, invXi0);
-        a += h;
+        // cannot refine further: accept two plain half slabs (Simpson mean of
+        // beta', no commutator term). The plain slab stays bounded even where
+        // the Magnus correction of an unresolved slice would overflow (err
+        // may then be NaN).
+        stepSlice(W, 0, qr, qi, s + (fa + 4 * fq1 + fm) / 6, 0, hh, invXi0);
+        stepSlice(W, 0, qr, qi, s + (fm + 4 * fq3 + fe) / 6, 0, hh, invXi0);
+        a = last ? end : a + h;
+        fa = fe;
         counters.slices += 2;
         counters.forced += 1;
         h = Math.min(Math.max(h, MIN_SLICE_NM), hMax);
@@ -290,8 +360,12 @@ function segment(
       // reject (also when err is NaN): halve, the first half becomes the one-step trial
       counters.rejected += 1;
       h = hh;
-      b1 = b3;
-      b2 = b4;
+      last = false;
+      fe = fm;
+      fm = fq1;
+      fq1 = f(a + 0.25 * h);
+      fq3 = f(a + 0.75 * h);
+      counters.betaCalls += 2;
       copy4(12, 4);
       haveFull = true;
     }
@@ -299,7 +373,7 @@ function segment(
   return h;
 }
 
-function checkFinite(v: number, z: number): void {
+export function checkFinite(v: number, z: number): void {
   if (v - v !== 0) {
     throw new RangeError(`integrateColumn: beta'(z) is not finite near z = ${z} nm`);
   }

@@ -112,7 +112,7 @@ function invariantDirection(job: RenderJob): Vec3 | null {
  */
 export function translationPlan(job: RenderJob, options: { readonly ignoreGain?: boolean } = {}): TranslationPlan | null {
   // two beams, or a systematic row (translationColumnsN.ts); general beam sets go column by column
-  if (job.manyBeam?.beamVectors !== undefined || job.rk4Steps !== undefined || job.shareColumns === false) return null;
+  if (job.manyBeam?.beamVectors !== undefined || job.rk4Steps !== undefined || job.gaussNodes === true || job.shareColumns === false) return null;
   // N beams: a stretch matrix costs N propagations and a window product N^3; beyond 15 beams columns are cheaper
   const beams = job.manyBeam?.input.excitationErrors_per_nm.length ?? 1;
   if (beams > MAX_SHARED_BEAMS) return null;
