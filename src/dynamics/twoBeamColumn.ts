@@ -78,7 +78,7 @@
  */
 
 import { checkThickness, checkTwoBeamParams, type TwoBeamParams } from './twoBeamParams.js';
-import { applyFaultPhase, stepSlice } from './twoBeamKernel.js';
+import { applyFaultPhase, stepSlice, stepSliceNoScalar } from './twoBeamKernel.js';
 
 /** Counters added to (not reset) by integrateColumn. */
 export interface ColumnStats {
@@ -219,6 +219,7 @@ export function driveColumn(
   counters.rejected = 0;
   counters.betaCalls = 0;
   counters.forced = 0;
+  counters.phase = 0;
 
   let z = 0;
   let hCarry = maxSlice_nm;
@@ -233,10 +234,13 @@ export function driveColumn(
   }
   if (t_nm > z) step(z, t_nm, hCarry, qr, qi, s, invXi0, betaPrime, tolLen, maxSlice_nm);
 
-  out[0] = W[0];
-  out[1] = W[1];
-  out[2] = W[2];
-  out[3] = W[3];
+  // the phases e^{i pi h s_e} of the slices that left them out (a common factor of both amplitudes)
+  const cp = Math.cos(counters.phase);
+  const sp = Math.sin(counters.phase);
+  out[0] = cp * W[0] - sp * W[1];
+  out[1] = cp * W[1] + sp * W[0];
+  out[2] = cp * W[2] - sp * W[3];
+  out[3] = cp * W[3] + sp * W[2];
   if (!(Number.isFinite(out[0] + out[1] + out[2] + out[3]))) {
     throw new RangeError('integrateColumn: the amplitudes are not finite (check the reflection parameters)');
   }
@@ -249,7 +253,10 @@ export function driveColumn(
 }
 
 /** Counters of the column being integrated (reset by driveColumn, added to the caller's stats at the end). */
-export const counters = { slices: 0, rejected: 0, betaCalls: 0, forced: 0 };
+export const counters = { slices: 0, rejected: 0, betaCalls: 0, forced: 0, phase: 0 };
+
+/** Parameter block of stepSliceNoScalar: [qr, qi, se, eps, h]. */
+const P = new Float64Array(5);
 
 /** W[to..to+3] = W[from..from+3]. */
 export function copy4(from: number, to: number): void {
@@ -288,6 +295,8 @@ function segment(
   const nudge = Math.min(END_NUDGE_NM, 1e-3 * (end - a));
   let fa = f(a + nudge);
   counters.betaCalls += 1;
+  P[0] = qr;
+  P[1] = qi;
   let h = hStart;
   while (a < end) {
     const rest = end - a;
@@ -309,13 +318,17 @@ function segment(
     let fq3 = f(a + 0.75 * h);
     let fe = f(last ? end - nudge : a + h);
     counters.betaCalls += 4;
-    let haveFull = false; // W[4..7] holds the one-step trial already
+    // W[4..7]: the one-step trial without its scalar factor (twoBeamKernel.ts stepSliceNoScalar), mFull its mean beta'
+    let haveFull = false;
+    let mFull = 0;
     for (;;) {
       const hh = 0.5 * h;
       checkFinite(fq1 + fm + fq3 + fe, a);
+      // the damping e^{-pi h/xi'0} of this trial slice, applied once to the accepted result
+      const damp = Math.exp(-PI * h * invXi0);
       if (fa === fq1 && fa === fm && fa === fq3 && fa === fe) {
         // constant beta' over the slice: the slab matrix is exact
-        if (haveFull) copy4(4, 0);
+        if (haveFull) acceptScaled(4, damp, h * (s + mFull));
         else stepSlice(W, 0, qr, qi, s + fa, 0, h, invXi0);
         a = last ? end : a + h;
         fa = fe;
@@ -324,21 +337,36 @@ function segment(
         break;
       }
       if (!haveFull) {
+        mFull = (fa + 4 * fm + fe) / 6;
         copy4(0, 4);
-        stepSlice(W, 4, qr, qi, s + (fa + 4 * fm + fe) / 6, SIMPSON_EPS_K * h * (fe - fa), h, invXi0);
+        P[2] = s + mFull;
+        P[3] = SIMPSON_EPS_K * h * (fe - fa);
+        P[4] = h;
+        stepSliceNoScalar(W, 4, P);
       }
+      const m1 = (fa + 4 * fq1 + fm) / 6;
+      const m2 = (fm + 4 * fq3 + fe) / 6;
       copy4(0, 8);
-      stepSlice(W, 8, qr, qi, s + (fa + 4 * fq1 + fm) / 6, SIMPSON_EPS_K * hh * (fm - fa), hh, invXi0);
+      P[2] = s + m1;
+      P[3] = SIMPSON_EPS_K * hh * (fm - fa);
+      P[4] = hh;
+      stepSliceNoScalar(W, 8, P);
       copy4(8, 12);
-      stepSlice(W, 8, qr, qi, s + (fm + 4 * fq3 + fe) / 6, SIMPSON_EPS_K * hh * (fe - fm), hh, invXi0);
-      const d0 = W[8] - W[4];
-      const d1 = W[9] - W[5];
-      const d2 = W[10] - W[6];
-      const d3 = W[11] - W[7];
-      const err = Math.sqrt(d0 * d0 + d1 * d1 + d2 * d2 + d3 * d3) / 15;
+      P[2] = s + m2;
+      P[3] = SIMPSON_EPS_K * hh * (fe - fm);
+      stepSliceNoScalar(W, 8, P);
+      // the two results differ also in their phases e^{i pi h se}: the one step's minus the halves' is pi h (mFull - (m1 + m2)/2)
+      const dth = PI * h * (mFull - 0.5 * (m1 + m2));
+      const c = Math.cos(dth);
+      const sn = Math.sin(dth);
+      const d0 = W[8] - (c * W[4] - sn * W[5]);
+      const d1 = W[9] - (c * W[5] + sn * W[4]);
+      const d2 = W[10] - (c * W[6] - sn * W[7]);
+      const d3 = W[11] - (c * W[7] + sn * W[6]);
+      const err = (damp * Math.sqrt(d0 * d0 + d1 * d1 + d2 * d2 + d3 * d3)) / 15;
       const tolLocal = tolLen * h;
       if (err <= tolLocal) {
-        copy4(8, 0);
+        acceptScaled(8, damp, hh * (2 * s + m1 + m2));
         a = last ? end : a + h;
         fa = fe;
         counters.slices += 2;
@@ -353,8 +381,8 @@ function segment(
         // beta', no commutator term). The plain slab stays bounded even where
         // the Magnus correction of an unresolved slice would overflow (err
         // may then be NaN).
-        stepSlice(W, 0, qr, qi, s + (fa + 4 * fq1 + fm) / 6, 0, hh, invXi0);
-        stepSlice(W, 0, qr, qi, s + (fm + 4 * fq3 + fe) / 6, 0, hh, invXi0);
+        stepSlice(W, 0, qr, qi, s + m1, 0, hh, invXi0);
+        stepSlice(W, 0, qr, qi, s + m2, 0, hh, invXi0);
         a = last ? end : a + h;
         fa = fe;
         counters.slices += 2;
@@ -372,10 +400,24 @@ function segment(
       fq3 = f(a + 0.75 * h);
       counters.betaCalls += 2;
       copy4(12, 4);
+      mFull = m1;
       haveFull = true;
     }
   }
   return h;
+}
+
+/**
+ * W[0..3] = damp * W[from..from+3] (the damping of the accepted slice), and
+ * the slice's phase pi * hse (hse = the integral of s_e over it) is added to
+ * the column's deferred phase (applied by driveColumn at the exit surface).
+ */
+function acceptScaled(from: number, damp: number, hse: number): void {
+  W[0] = damp * W[from];
+  W[1] = damp * W[from + 1];
+  W[2] = damp * W[from + 2];
+  W[3] = damp * W[from + 3];
+  counters.phase += PI * hse;
 }
 
 export function checkFinite(v: number, z: number): void {
