@@ -114,7 +114,7 @@ export const MAX_SLICES = 4000;
 export const DEFAULT_MAX_SLICE_NM = 20;
 
 const PI = Math.PI;
-/** Two-point Gauss-Legendre nodes on [0, 1] and the commutator coefficient of the fourth-order Magnus step (shared with twoBeamMatrix.ts). */
+/** Two-point Gauss-Legendre nodes on [0, 1] and the commutator coefficient of the fourth-order Magnus step with them (twoBeamColumnGauss.ts). */
 export const G1 = 0.5 - Math.sqrt(3) / 6;
 export const G2 = 0.5 + Math.sqrt(3) / 6;
 export const EPS_K = -(Math.sqrt(3) / 6) * PI;
@@ -266,11 +266,11 @@ export function copy4(from: number, to: number): void {
   W[to + 3] = W[from + 3];
 }
 
-/** Safety factor of the step controller. */
-const SAFETY = 0.8;
+/** Safety factor of the step controller (shared with twoBeamMatrix.ts). */
+export const CONTROLLER_SAFETY = 0.8;
 
 /** One-sided samples at a stretch's ends: beta' may jump there (an inclusion's surface), so the end samples sit this far inside (nm; at most 1e-3 of the stretch). */
-const END_NUDGE_NM = 1e-7;
+export const END_NUDGE_NM = 1e-7;
 
 /**
  * Integrates W[0..3] over [a, end] adaptively; returns the suggested length
@@ -370,7 +370,7 @@ function segment(
         a = last ? end : a + h;
         fa = fe;
         counters.slices += 2;
-        let fac = err > 0 ? SAFETY * Math.sqrt(Math.sqrt(tolLocal / err)) : 4;
+        let fac = err > 0 ? CONTROLLER_SAFETY * Math.sqrt(Math.sqrt(tolLocal / err)) : 4;
         if (fac > 4) fac = 4;
         else if (fac < 0.25) fac = 0.25;
         h = Math.min(Math.max(h * fac, MIN_SLICE_NM), hMax);
