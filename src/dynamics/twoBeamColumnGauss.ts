@@ -1,11 +1,12 @@
 /**
  * The previous column integrator of twoBeamColumn.ts, kept as a baseline for
- * tests and benchmarks (test/dynamics/twoBeamNodes.test.ts,
- * test/imaging/columnIntegrator.test.ts, bench/columns.mjs); the renderer uses it only when a
- * job asks for it (RenderJob.gaussNodes).
+ * tests and benchmarks (test/imaging/columnIntegrator.test.ts,
+ * test/imaging/inclusionColumns.test.ts, bench/columns.mjs); the renderer
+ * uses it only when a job asks for it (RenderJob.gaussNodes).
  *
- * Same fourth-order Magnus step, step doubling, controller and guards as
- * integrateColumn, but every trial slice samples beta' at the two
+ * Same fourth-order Magnus step, step doubling and guards as integrateColumn
+ * (controller safety factor 0.9, every slice matrix with its scalar factor),
+ * but every trial slice samples beta' at the two
  * Gauss-Legendre nodes of the whole slice and of each half (Iserles &
  * Norsett 1999): six samples per trial, four new ones after a rejection, no
  * sample shared with a neighbouring trial. It never samples the end of a

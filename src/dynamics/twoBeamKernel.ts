@@ -27,6 +27,14 @@
  * off-diagonal elements q(1 + i eps), q(1 - i eps) and
  *   sigma^2 = s_e^2 + q^2 (1 + eps^2).
  * eps = 0 (constant beta') gives the exact slab matrix.
+ *
+ * Only the mean of beta' over the slice and its first moment
+ *   I = int_0^D beta'(z) (D - 2 z) dz
+ * enter: eps = pi I / D. The Gauss-Legendre nodes give I = (sqrt(3)/6) D^2
+ * (b1 - b2); Simpson's rule on the slice's ends and middle gives the mean
+ * (b_0 + 4 b_mid + b_D)/6 and I = D^2 (b_0 - b_D)/6, eps = -(pi/6) D (b_D -
+ * b_0) (exact for beta' of degree 3 and 2, so the step keeps order 4;
+ * twoBeamColumn.ts uses these).
  */
 
 const PI = Math.PI;
