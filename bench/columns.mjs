@@ -1,6 +1,6 @@
 // Benchmark: the two-beam column-by-column ("general") path, integrator against the previous one in the same run.
 // Each row renders one image column by column in one thread (renderRows, shareColumns false) twice, interleaved,
-// median of 3 CPU times each: with integrateColumn (Simpson samples of beta', twoBeamColumn.ts) and with the
+// median of 5 CPU times each after two warm-up renders: with integrateColumn (Simpson samples of beta', twoBeamColumn.ts) and with the
 // previous integrator as the baseline (Gauss-Legendre samples, twoBeamColumnGauss.ts, RenderJob.gaussNodes).
 // Prints CPU seconds, the ratio baseline / now, slices and beta' samples per column, and the largest intensity
 // difference between the two images (both at the renderer's tolerance 1e-4).
@@ -62,15 +62,17 @@ function samplesPerColumn(job) {
   return ev.stats.betaCalls / (job.width * job.height);
 }
 
-console.log('two-beam column by column, one thread, CPU seconds (median of 3, interleaved); baseline = previous integrator (Gauss-Legendre samples)');
+console.log('two-beam column by column, one thread, CPU seconds (median of 5, interleaved, after 2 warm-ups); baseline = previous integrator (Gauss-Legendre samples)');
 for (const [label, spec, ci] of rows) {
   const now = prepare(spec, ci);
   const base = { ...now, gaussNodes: true };
-  renderOnce(now); // warm-up
-  renderOnce(base);
+  for (let r = 0; r < 2; r++) {
+    renderOnce(now); // warm-up (JIT)
+    renderOnce(base);
+  }
   const tN = [], tB = [];
   let a, b;
-  for (let r = 0; r < 3; r++) {
+  for (let r = 0; r < 5; r++) {
     b = renderOnce(base);
     a = renderOnce(now);
     tB.push(b.seconds);

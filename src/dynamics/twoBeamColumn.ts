@@ -148,7 +148,7 @@ export function integrateColumn(
   stats?: ColumnStats,
   maxSlice_nm: number = DEFAULT_MAX_SLICE_NM,
 ): void {
-  driveColumn(out, p, t_nm, betaPrime, faults, tol, stats, maxSlice_nm, segment);
+  driveColumn(out, p, t_nm, betaPrime, faults, tol, stats, maxSlice_nm, FIRST_SLICE_FRACTION * maxSlice_nm, segment);
 }
 
 /**
@@ -172,7 +172,8 @@ export type SegmentStepper = (
 /**
  * The column walk shared by integrateColumn and the previous integrator kept
  * as a reference (twoBeamColumnGauss.ts): checks the input, integrates each
- * stretch between faults with `step`, applies the fault phases.
+ * stretch between faults with `step` (the first trial slice firstSlice_nm),
+ * applies the fault phases.
  */
 export function driveColumn(
   out: Float64Array,
@@ -183,6 +184,7 @@ export function driveColumn(
   tol: number,
   stats: ColumnStats | undefined,
   maxSlice_nm: number,
+  firstSlice_nm: number,
   step: SegmentStepper,
 ): void {
   checkTwoBeamParams(p);
@@ -222,7 +224,7 @@ export function driveColumn(
   counters.phase = 0;
 
   let z = 0;
-  let hCarry = maxSlice_nm;
+  let hCarry = firstSlice_nm;
   for (let k = 0; k < faults.length; k += 2) {
     const zf = faults[k];
     if (zf < 0) continue;
@@ -265,6 +267,13 @@ export function copy4(from: number, to: number): void {
   W[to + 2] = W[from + 2];
   W[to + 3] = W[from + 3];
 }
+
+/**
+ * The first trial slice of a column, as a fraction of the longest slice: starting
+ * at half of it halves the rejections at the top of the columns of the benchmark
+ * images (inclined line 1.9 -> 1.0 per column) at the same number of slices.
+ */
+const FIRST_SLICE_FRACTION = 0.5;
 
 /** Safety factor of the step controller (shared with twoBeamMatrix.ts). */
 export const CONTROLLER_SAFETY = 0.8;
