@@ -332,7 +332,7 @@ function segment(
     let mFull = 0;
     for (;;) {
       const hh = 0.5 * h;
-      checkFinite(fq1 + fm + fq3 + fe, a);
+      checkFinite(fa + fq1 + fm + fq3 + fe, a);
       // the damping e^{-pi h/xi'0} of this trial slice, applied once to the accepted result
       const damp = Math.exp(-PI * h * invXi0);
       if (fa === fq1 && fa === fm && fa === fq3 && fa === fe) {

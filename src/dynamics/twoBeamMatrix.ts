@@ -101,7 +101,7 @@ export function stretchMatrix(
     let haveFull = false;
     for (;;) {
       const hh = 0.5 * h;
-      if ((fq1 + fm + fq3 + fe) - (fq1 + fm + fq3 + fe) !== 0) {
+      if ((fa + fq1 + fm + fq3 + fe) - (fa + fq1 + fm + fq3 + fe) !== 0) {
         throw new RangeError(`stretchMatrix: beta'(z) is not finite near z = ${a} nm`);
       }
       if (fa === fq1 && fa === fm && fa === fq3 && fa === fe) {
