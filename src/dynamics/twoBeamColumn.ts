@@ -33,6 +33,17 @@
  * breakpoints sit END_NUDGE_NM inside it, so each side of a jump at a
  * breakpoint is sampled on its own side.
  *
+ * Scalar factor. exp(Omega) of a slice is e^{-pi h/xi'0} e^{i pi h s_e}
+ * times a matrix (twoBeamKernel.ts); the factor is the same for both
+ * amplitudes, so the trial slices leave it out (stepSliceNoScalar): the
+ * damping multiplies the state once per accepted slice (and the error
+ * estimate), the phases are summed and applied at the exit surface, and the
+ * one step and the two halves are compared with their phase difference
+ * pi h (mean beta' of the one step - mean of the halves).
+ *
+ * A column's first trial slice is half the longest slice; the next stretch
+ * after a fault starts with the length the controller suggested.
+ *
  * A slice whose five samples of beta' are identical is treated as a slab of
  * constant s_e and propagated exactly in one piece, so a column far from any
  * defect (beta' = 0) costs ceil(t / maxSlice_nm) slab matrices.
@@ -112,6 +123,19 @@ export const MAX_SLICES = 4000;
  * smaller version against scipy).
  */
 export const DEFAULT_MAX_SLICE_NM = 20;
+
+/**
+ * The first trial slice of a column, as a fraction of the longest slice: starting
+ * at half of it halves the rejections at the top of the columns of the benchmark
+ * images (inclined line 1.9 -> 1.0 per column) at the same number of slices.
+ */
+const FIRST_SLICE_FRACTION = 0.5;
+
+/** Safety factor of the step controller (shared with twoBeamMatrix.ts). */
+export const CONTROLLER_SAFETY = 0.8;
+
+/** One-sided samples at a stretch's ends: beta' may jump there (an inclusion's surface), so the end samples sit this far inside (nm; at most 1e-3 of the stretch). */
+export const END_NUDGE_NM = 1e-7;
 
 const PI = Math.PI;
 /** Two-point Gauss-Legendre nodes on [0, 1] and the commutator coefficient of the fourth-order Magnus step with them (twoBeamColumnGauss.ts). */
@@ -267,19 +291,6 @@ export function copy4(from: number, to: number): void {
   W[to + 2] = W[from + 2];
   W[to + 3] = W[from + 3];
 }
-
-/**
- * The first trial slice of a column, as a fraction of the longest slice: starting
- * at half of it halves the rejections at the top of the columns of the benchmark
- * images (inclined line 1.9 -> 1.0 per column) at the same number of slices.
- */
-const FIRST_SLICE_FRACTION = 0.5;
-
-/** Safety factor of the step controller (shared with twoBeamMatrix.ts). */
-export const CONTROLLER_SAFETY = 0.8;
-
-/** One-sided samples at a stretch's ends: beta' may jump there (an inclusion's surface), so the end samples sit this far inside (nm; at most 1e-3 of the stretch). */
-export const END_NUDGE_NM = 1e-7;
 
 /**
  * Integrates W[0..3] over [a, end] adaptively; returns the suggested length
