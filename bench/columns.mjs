@@ -4,6 +4,10 @@
 // previous integrator as the baseline (Gauss-Legendre samples, twoBeamColumnGauss.ts, RenderJob.gaussNodes).
 // Prints CPU seconds, the ratio baseline / now, slices and beta' samples per column, and the largest intensity
 // difference between the two images (both at the renderer's tolerance 1e-4).
+// Then, for accuracy rather than speed: 450 random columns of 1-3 Lorentzian peaks of beta' (widths from 0.01 or
+// from 0.1 nm up to 20 nm) integrated at tolerances 1e-3 .. 1e-6 by both integrators against fixed-step RK4
+// (rk4Reference.ts, at least 40 steps per width of the narrowest peak): how many column-tolerance pairs miss the
+// tolerance (peaks narrower than the sample spacing can fall between samples; see DEFAULT_MAX_SLICE_NM).
 // Run: node bench/columns.mjs after building dist/ (npx tsc -p tsconfig.build.json). Never a timed test.
 import { parseScenario } from '../dist/scenario/parse.js';
 import { renderJob } from '../dist/imaging/renderScenario.js';
@@ -11,8 +15,11 @@ import { resolveCondition } from '../dist/imaging/resolveCondition.js';
 import { columnEvaluator, renderRows } from '../dist/imaging/renderRows.js';
 import { pixelX } from '../dist/geometry/frames.js';
 import { DEMO_SCENARIO } from '../dist/scenario/demo.js';
+import { integrateColumn, RENDER_MAX_SLICE_NM } from '../dist/dynamics/twoBeamColumn.js';
+import { integrateColumnGaussNodes } from '../dist/dynamics/twoBeamColumnGauss.js';
+import { rk4Column } from '../dist/dynamics/rk4Reference.js';
 import { DEMO_IDENTIFY_SCENARIO } from '../dist/scenario/demoIdentify.js';
-import { fmt, inclinedDislocation, median } from './common.mjs';
+import { fmt, inclinedDislocation, lcg, median } from './common.mjs';
 
 const inclined = inclinedDislocation({ name: 'bench-inclined', size: 128, pixel_nm: 1 });
 const normal = {
@@ -84,4 +91,48 @@ for (const [label, spec, ci] of rows) {
   console.log(`  baseline ${fmt(median(tB))} s (${fmt(b.slices / b.columns)} slices, ${fmt(samplesPerColumn(base))} beta' samples per column)`);
   console.log(`  now      ${fmt(median(tN))} s (${fmt(a.slices / a.columns)} slices, ${fmt(samplesPerColumn(now))} beta' samples per column)`);
   console.log(`  ratio baseline / now ${fmt(median(tB) / median(tN))}x; largest |I_now - I_baseline| ${diff.toExponential(2)}`);
+}
+
+/** Column-tolerance pairs over the tolerance, for both integrators, on 450 random columns with peak widths from wMin. */
+function misses(wMin, seed) {
+  const rnd = lcg(seed);
+  const none = new Float64Array(0), out = new Float64Array(4), ref = new Float64Array(4);
+  const inten = (a) => [a[0] ** 2 + a[1] ** 2, a[2] ** 2 + a[3] ** 2];
+  const count = { now: 0, baseline: 0 };
+  for (let c = 0; c < 450; c++) {
+    const t = 40 + 160 * rnd();
+    const xiAbs = rnd() < 0.3 ? Infinity : 200 + 600 * rnd();
+    const p = { xi_nm: 20 + 60 * rnd(), xiAbs_nm: xiAbs, xiAbs0_nm: xiAbs, s_per_nm: 0.02 * (rnd() - 0.5) };
+    const n = 1 + Math.floor(3 * rnd());
+    const peaks = Array.from({ length: n }, () => {
+      const sign = rnd() - 0.5;
+      const w = Math.exp(Math.log(wMin) + (Math.log(20) - Math.log(wMin)) * rnd());
+      return { A: (0.2 * sign) / Math.max(w, 0.05), w, z0: t * rnd() };
+    });
+    const f = (z) => {
+      let v = 0;
+      for (const q of peaks) {
+        const u = (z - q.z0) / q.w;
+        v += q.A / (1 + u * u);
+      }
+      return v;
+    };
+    const narrowest = Math.min(...peaks.map((q) => q.w));
+    rk4Column(ref, p, t, f, Math.min(400000, Math.max(4000, Math.ceil((t / narrowest) * 40))));
+    const [r0, rg] = inten(ref);
+    for (const tol of [1e-3, 1e-4, 1e-5, 1e-6]) {
+      // each with the longest slice the renderer gives it (13 nm now, 20 nm before)
+      for (const [name, integrate, hMax] of [['now', integrateColumn, RENDER_MAX_SLICE_NM], ['baseline', integrateColumnGaussNodes, 20]]) {
+        integrate(out, p, t, f, none, tol, undefined, hMax);
+        const [a, b] = inten(out);
+        if (Math.max(Math.abs(a - r0), Math.abs(b - rg)) > tol) count[name]++;
+      }
+    }
+  }
+  return count;
+}
+console.log('random columns of 1-3 Lorentzian peaks against RK4: column-tolerance pairs (of 1800) over the tolerance');
+for (const wMin of [0.01, 0.1]) {
+  const c = misses(wMin, 20261202);
+  console.log(`  widths ${wMin}-20 nm: now ${c.now}, baseline ${c.baseline}`);
 }

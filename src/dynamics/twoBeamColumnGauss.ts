@@ -5,8 +5,7 @@
  * uses it only when a job asks for it (RenderJob.gaussNodes).
  *
  * Same fourth-order Magnus step, step doubling and guards as integrateColumn
- * (controller safety factor 0.9, first trial slice maxSlice_nm, every slice
- * matrix with its scalar factor),
+ * (controller safety factor 0.9, every slice matrix with its scalar factor),
  * but every trial slice samples beta' at the two
  * Gauss-Legendre nodes of the whole slice and of each half (Iserles &
  * Norsett 1999): six samples per trial, four new ones after a rejection, no
@@ -41,7 +40,7 @@ export function integrateColumnGaussNodes(
   stats?: ColumnStats,
   maxSlice_nm: number = DEFAULT_MAX_SLICE_NM,
 ): void {
-  driveColumn(out, p, t_nm, betaPrime, faults, tol, stats, maxSlice_nm, maxSlice_nm, gaussSegment);
+  driveColumn(out, p, t_nm, betaPrime, faults, tol, stats, maxSlice_nm, gaussSegment);
 }
 
 function gaussSegment(
