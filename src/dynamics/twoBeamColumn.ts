@@ -2,33 +2,58 @@
  * Adaptive integration of one column through a strained foil with planar
  * faults (two-beam Howie-Whelan equations, "beta form", physics.md section 3).
  *
- * Slicing. Each trial slice of length h (at most maxSlice_nm) is propagated
- * once with the fourth-order Magnus step of twoBeamKernel.ts (s_e = s +
- * Gauss-Legendre mean of beta', plus the commutator term) and once as two
+ * Slicing. Each trial slice [a, a + h] (h at most maxSlice_nm) is propagated
+ * once with the fourth-order Magnus step of twoBeamKernel.ts and once as two
  * half slices (step doubling, Hairer, Norsett & Wanner, Solving ODEs I,
  * section II.4). For a method of order 4 the error of the two-half result is
  * |two halves - one step| / (2^4 - 1). A slice is accepted when that error is
  * below (tol / 2) * h / t (error per unit length, so the sum over the column
  * stays below tol / 2 in amplitude, i.e. about tol in intensity since
  * |d|phi|^2| <= 2 |phi| |d phi|). The next trial length follows the usual
- * controller h * 0.9 (tolLocal / err)^(1/4), clamped to [h/4, 4h]. A rejected
+ * controller h * 0.8 (tolLocal / err)^(1/4), clamped to [h/4, 4h] (0.8:
+ * half the rejections of 0.9 at the same number of slices, measured on the
+ * benchmark images). A rejected
  * slice is halved and its first half, already computed, becomes the new
  * single-step trial. The accepted result is the product of the two half-slice
  * matrices (no extrapolation), so without absorption every slice is unitary.
  *
- * A slice whose six samples of beta' are identical is treated as a slab of
+ * Samples of beta' (Simpson nodes). The Magnus step needs the mean of beta'
+ * over the slice and its first moment int beta'(z) (h - 2 (z - a)) dz (the
+ * commutator term); both are taken by Simpson's rule (exact for beta' of
+ * degree 3 and 2, so the step keeps order 4; twoBeamKernel.ts). A trial then
+ * samples beta' at a, a + h/4, a + h/2, a + 3h/4 and a + h: the value at a is
+ * the previous slice's end, and after a rejection the new trial's middle and
+ * end are the old first quarter and middle, so a trial costs 4 new samples and
+ * a rejection 2 (the Gauss-Legendre nodes used before cost 6 and 4:
+ * twoBeamColumnGauss.ts keeps that integrator as a baseline). Because the
+ * ends of a slice are sampled, a jump of beta' inside a slice is always seen;
+ * the error estimate of a slice holding a jump stays above the tolerance down
+ * to MIN_SLICE_NM, so jumps should be breakpoints (the renderer makes them
+ * faults with a zero phase). The samples at the two ends of a stretch between
+ * breakpoints sit END_NUDGE_NM inside it, so each side of a jump at a
+ * breakpoint is sampled on its own side.
+ *
+ * Scalar factor. exp(Omega) of a slice is e^{-pi h/xi'0} e^{i pi h s_e}
+ * times a matrix (twoBeamKernel.ts); the factor is the same for both
+ * amplitudes, so the trial slices leave it out (stepSliceNoScalar): the
+ * damping multiplies the state once per accepted slice (and the error
+ * estimate), the phases are summed and applied at the exit surface, and the
+ * one step and the two halves are compared with their phase difference
+ * pi h (mean beta' of the one step - mean of the halves).
+ *
+ * A slice whose five samples of beta' are identical is treated as a slab of
  * constant s_e and propagated exactly in one piece, so a column far from any
  * defect (beta' = 0) costs ceil(t / maxSlice_nm) slab matrices.
  *
  * Guards: no slice is shorter than MIN_SLICE_NM (a slice at that length is
  * accepted whatever its error, counted in stats.forced); after MAX_SLICES
  * slices the rest of each segment is one forced slice. Forced slices are
- * plain slabs with the Gauss-Legendre mean of beta' (no commutator term,
+ * plain slabs with the Simpson mean of beta' (no commutator term,
  * which can overflow with absorption on an unresolved slice). So a near-singular
  * beta' (a column through a dislocation core) returns finite values in
  * bounded time.
  *
- * What the integrator sees of beta' are its values at the Gauss nodes of the
+ * What the integrator sees of beta' are its values at the nodes of the
  * trial slices: a feature much narrower than the node spacing whose tails
  * stay below the tolerance is not seen. Elastic fields of defects have
  * algebraic tails and are found when the slices are not too long (see
@@ -61,7 +86,7 @@
  */
 
 import { checkThickness, checkTwoBeamParams, type TwoBeamParams } from './twoBeamParams.js';
-import { applyFaultPhase, stepSlice } from './twoBeamKernel.js';
+import { applyFaultPhase, stepSlice, stepSliceNoScalar } from './twoBeamKernel.js';
 
 /** Counters added to (not reset) by integrateColumn. */
 export interface ColumnStats {
@@ -83,28 +108,53 @@ export const MIN_SLICE_NM = 1e-4;
  */
 export const MAX_SLICES = 4000;
 /**
- * Default longest slice (nm). It bounds the spacing of the beta' samples
- * (Gauss nodes of the half slices <= 6 nm apart), so that the tail of a
- * narrow peak of beta' (a column passing within ~0.1 nm of a dislocation
- * line) is seen and refined. In trials with random sums of Lorentzian peaks
- * (widths 0.01-20 nm, 450 columns against RK4) no column missed its
- * tolerance (1e-6 to 1e-3) with 20 nm, while 14 missed it with an unbounded
- * first slice; 20 nm also costs fewer rejected trial slices than starting
- * from the whole column (test/dynamics/twoBeamAdaptive.test.ts repeats a
- * smaller version against scipy).
+ * Default longest slice (nm). It bounds the spacing of the beta' samples, so
+ * that the tail of a narrow peak of beta' (a column passing within ~0.1 nm
+ * of a dislocation line) is seen and refined. In trials with random sums of
+ * Lorentzian peaks (widths 0.01-20 nm, 450 columns against RK4) the
+ * Gauss-node integrator (twoBeamColumnGauss.ts) missed its tolerance on no
+ * column with 20 nm, while 14 missed it with an unbounded first slice; 20 nm
+ * also costs fewer rejected trial slices than starting from the whole column
+ * (test/dynamics/twoBeamAdaptive.test.ts repeats a smaller version against
+ * scipy). The renderer uses RENDER_MAX_SLICE_NM.
  */
 export const DEFAULT_MAX_SLICE_NM = 20;
 
+/**
+ * Longest slice of the renderer's columns and shared long columns (nm): 4 new
+ * samples per 13 nm, the density of the Gauss-node integrator's 6 per 20 nm.
+ * A peak of beta' much narrower than the sample spacing with a small area can
+ * fall between samples: on random sums of 1-3 Lorentzian peaks (bench/columns.mjs,
+ * 450 columns x 4 tolerances against fixed-step RK4) this integrator with
+ * 13 nm and the Gauss-node one with 20 nm both miss the tolerance on about
+ * 2 % of the column-tolerance pairs when widths go down to 0.01 nm and on
+ * 0-0.2 % from 0.1 nm up (the renderer never integrates through a modified
+ * core, cores.ts, so its peaks are wider); with 20 nm this integrator missed
+ * 1.6x as often. 13 instead of 20 nm costs no measurable time on the benchmark
+ * images (few slices reach the bound; fewer rejections at the top of a column).
+ */
+export const RENDER_MAX_SLICE_NM = 13;
+
+/** Safety factor of the step controller (shared with twoBeamMatrix.ts). */
+export const CONTROLLER_SAFETY = 0.8;
+
+/** One-sided samples at a stretch's ends: beta' may jump there (an inclusion's surface), so the end samples sit this far inside (nm; at most 1e-3 of the stretch). */
+export const END_NUDGE_NM = 1e-7;
+
 const PI = Math.PI;
-/** Two-point Gauss-Legendre nodes on [0, 1] and the commutator coefficient of the fourth-order Magnus step (shared with twoBeamMatrix.ts). */
+/** Two-point Gauss-Legendre nodes on [0, 1] and the commutator coefficient of the fourth-order Magnus step with them (twoBeamColumnGauss.ts). */
 export const G1 = 0.5 - Math.sqrt(3) / 6;
 export const G2 = 0.5 + Math.sqrt(3) / 6;
 export const EPS_K = -(Math.sqrt(3) / 6) * PI;
+/** The commutator coefficient of the fourth-order Magnus step with Simpson nodes: eps = SIMPSON_EPS_K h (beta'(a + h) - beta'(a)). */
+export const SIMPSON_EPS_K = -PI / 6;
 
-// Scratch: [0..3] state, [4..7] one-step trial, [8..11] two-half trial,
-// [12..15] state after the first half. Not re-entrant (beta' must not call
-// integrateColumn).
-const W = new Float64Array(16);
+/**
+ * Scratch of the column integrators: [0..3] state, [4..7] one-step trial,
+ * [8..11] two-half trial, [12..15] state after the first half. Not
+ * re-entrant (beta' must not call integrateColumn).
+ */
+export const W = new Float64Array(16);
 
 /**
  * Integrates the column 0 <= z <= t_nm from phi0 = 1, phig = 0 and writes the
@@ -125,6 +175,43 @@ export function integrateColumn(
   tol: number,
   stats?: ColumnStats,
   maxSlice_nm: number = DEFAULT_MAX_SLICE_NM,
+): void {
+  driveColumn(out, p, t_nm, betaPrime, faults, tol, stats, maxSlice_nm, segment);
+}
+
+/**
+ * Advances W[0..3] over [a, end] adaptively and returns the suggested length
+ * of the next slice; counts into counters. Arguments: the first trial slice,
+ * q = qr + i qi, s, 1/xi'_0, beta', the error per unit length, the longest slice.
+ */
+export type SegmentStepper = (
+  a: number,
+  end: number,
+  hStart: number,
+  qr: number,
+  qi: number,
+  s: number,
+  invXi0: number,
+  f: (z: number) => number,
+  tolLen: number,
+  hMax: number,
+) => number;
+
+/**
+ * The column walk shared by integrateColumn and the previous integrator kept
+ * as a reference (twoBeamColumnGauss.ts): checks the input, integrates each
+ * stretch between faults with `step`, applies the fault phases.
+ */
+export function driveColumn(
+  out: Float64Array,
+  p: TwoBeamParams,
+  t_nm: number,
+  betaPrime: (z_nm: number) => number,
+  faults: Float64Array,
+  tol: number,
+  stats: ColumnStats | undefined,
+  maxSlice_nm: number,
+  step: SegmentStepper,
 ): void {
   checkTwoBeamParams(p);
   checkThickness(t_nm);
@@ -160,6 +247,7 @@ export function integrateColumn(
   counters.rejected = 0;
   counters.betaCalls = 0;
   counters.forced = 0;
+  counters.phase = 0;
 
   let z = 0;
   let hCarry = maxSlice_nm;
@@ -167,17 +255,20 @@ export function integrateColumn(
     const zf = faults[k];
     if (zf < 0) continue;
     if (zf > t_nm) break;
-    if (zf > z) hCarry = segment(z, zf, hCarry, qr, qi, s, invXi0, betaPrime, tolLen, maxSlice_nm);
+    if (zf > z) hCarry = step(z, zf, hCarry, qr, qi, s, invXi0, betaPrime, tolLen, maxSlice_nm);
     z = zf;
     // F(alpha) = diag(1, e^{+i alpha}) on (phi0, phig): see the header.
     applyFaultPhase(W, faults[k + 1]);
   }
-  if (t_nm > z) segment(z, t_nm, hCarry, qr, qi, s, invXi0, betaPrime, tolLen, maxSlice_nm);
+  if (t_nm > z) step(z, t_nm, hCarry, qr, qi, s, invXi0, betaPrime, tolLen, maxSlice_nm);
 
-  out[0] = W[0];
-  out[1] = W[1];
-  out[2] = W[2];
-  out[3] = W[3];
+  // the phases e^{i pi h s_e} of the slices that left them out (a common factor of both amplitudes)
+  const cp = Math.cos(counters.phase);
+  const sp = Math.sin(counters.phase);
+  out[0] = cp * W[0] - sp * W[1];
+  out[1] = cp * W[1] + sp * W[0];
+  out[2] = cp * W[2] - sp * W[3];
+  out[3] = cp * W[3] + sp * W[2];
   if (!(Number.isFinite(out[0] + out[1] + out[2] + out[3]))) {
     throw new RangeError('integrateColumn: the amplitudes are not finite (check the reflection parameters)');
   }
@@ -189,9 +280,14 @@ export function integrateColumn(
   }
 }
 
-const counters = { slices: 0, rejected: 0, betaCalls: 0, forced: 0 };
+/** Counters of the column being integrated (reset by driveColumn, added to the caller's stats at the end). */
+export const counters = { slices: 0, rejected: 0, betaCalls: 0, forced: 0, phase: 0 };
 
-function copy4(from: number, to: number): void {
+/** Parameter block of stepSliceNoScalar: [qr, qi, se, eps, h]. */
+const P = new Float64Array(5);
+
+/** W[to..to+3] = W[from..from+3]. */
+export function copy4(from: number, to: number): void {
   W[to] = W[from];
   W[to + 1] = W[from + 1];
   W[to + 2] = W[from + 2];
@@ -200,7 +296,11 @@ function copy4(from: number, to: number): void {
 
 /**
  * Integrates W[0..3] over [a, end] adaptively; returns the suggested length
- * of the next slice.
+ * of the next slice. Simpson nodes: a trial slice [a, a + h] samples beta' at
+ * a, a + h/4, a + h/2, a + 3h/4, a + h; the value at a is the previous
+ * trial's end, and after a rejection the new trial's end and middle are the
+ * old middle and first quarter, so a trial costs 4 new samples and a
+ * rejection 2.
  */
 function segment(
   a: number,
@@ -214,74 +314,99 @@ function segment(
   tolLen: number,
   hMax: number,
 ): number {
+  const nudge = Math.min(END_NUDGE_NM, 1e-3 * (end - a));
+  let fa = f(a + nudge);
+  counters.betaCalls += 1;
+  P[0] = qr;
+  P[1] = qi;
   let h = hStart;
   while (a < end) {
     const rest = end - a;
     if (h > rest || rest - h < MIN_SLICE_NM) h = rest;
+    let last = h === rest; // this trial ends the segment: its end sample is one-sided
     if (counters.slices + 2 > MAX_SLICES) {
-      // out of budget: the rest of the segment as one forced plain slab
-      const b1 = f(a + G1 * rest);
-      const b2 = f(a + G2 * rest);
+      // out of budget: the rest of the segment as one forced plain slab (Simpson mean of beta')
+      const bm = f(a + 0.5 * rest);
+      const be = f(end - nudge);
       counters.betaCalls += 2;
-      checkFinite(b1 + b2, a);
-      stepSlice(W, 0, qr, qi, s + 0.5 * (b1 + b2), 0, rest, invXi0);
+      checkFinite(fa + bm + be, a);
+      stepSlice(W, 0, qr, qi, s + (fa + 4 * bm + be) / 6, 0, rest, invXi0);
       counters.slices += 1;
       counters.forced += 1;
       return hStart;
     }
-    let b1 = f(a + G1 * h);
-    let b2 = f(a + G2 * h);
-    counters.betaCalls += 2;
-    let haveFull = false; // W[4..7] holds the one-step trial already
+    let fq1 = f(a + 0.25 * h);
+    let fm = f(a + 0.5 * h);
+    let fq3 = f(a + 0.75 * h);
+    let fe = f(last ? end - nudge : a + h);
+    counters.betaCalls += 4;
+    // W[4..7]: the one-step trial without its scalar factor (twoBeamKernel.ts stepSliceNoScalar), mFull its mean beta'
+    let haveFull = false;
+    let mFull = 0;
     for (;;) {
       const hh = 0.5 * h;
-      const b3 = f(a + G1 * hh);
-      const b4 = f(a + G2 * hh);
-      const b5 = f(a + hh + G1 * hh);
-      const b6 = f(a + hh + G2 * hh);
-      counters.betaCalls += 4;
-      checkFinite(b1 + b2 + b3 + b4 + b5 + b6, a);
-      if (b1 === b2 && b1 === b3 && b1 === b4 && b1 === b5 && b1 === b6) {
+      checkFinite(fa + fq1 + fm + fq3 + fe, a);
+      // the damping e^{-pi h/xi'0} of this trial slice, applied once to the accepted result
+      const damp = Math.exp(-PI * h * invXi0);
+      if (fa === fq1 && fa === fm && fa === fq3 && fa === fe) {
         // constant beta' over the slice: the slab matrix is exact
-        if (haveFull) copy4(4, 0);
-        else stepSlice(W, 0, qr, qi, s + b1, 0, h, invXi0);
-        a += h;
+        if (haveFull) acceptScaled(4, damp, h * (s + mFull));
+        else stepSlice(W, 0, qr, qi, s + fa, 0, h, invXi0);
+        a = last ? end : a + h;
+        fa = fe;
         counters.slices += 1;
         h = Math.min(4 * h, hMax);
         break;
       }
       if (!haveFull) {
+        mFull = (fa + 4 * fm + fe) / 6;
         copy4(0, 4);
-        stepSlice(W, 4, qr, qi, s + 0.5 * (b1 + b2), EPS_K * h * (b2 - b1), h, invXi0);
+        P[2] = s + mFull;
+        P[3] = SIMPSON_EPS_K * h * (fe - fa);
+        P[4] = h;
+        stepSliceNoScalar(W, 4, P);
       }
+      const m1 = (fa + 4 * fq1 + fm) / 6;
+      const m2 = (fm + 4 * fq3 + fe) / 6;
       copy4(0, 8);
-      stepSlice(W, 8, qr, qi, s + 0.5 * (b3 + b4), EPS_K * hh * (b4 - b3), hh, invXi0);
+      P[2] = s + m1;
+      P[3] = SIMPSON_EPS_K * hh * (fm - fa);
+      P[4] = hh;
+      stepSliceNoScalar(W, 8, P);
       copy4(8, 12);
-      stepSlice(W, 8, qr, qi, s + 0.5 * (b5 + b6), EPS_K * hh * (b6 - b5), hh, invXi0);
-      const d0 = W[8] - W[4];
-      const d1 = W[9] - W[5];
-      const d2 = W[10] - W[6];
-      const d3 = W[11] - W[7];
-      const err = Math.sqrt(d0 * d0 + d1 * d1 + d2 * d2 + d3 * d3) / 15;
+      P[2] = s + m2;
+      P[3] = SIMPSON_EPS_K * hh * (fe - fm);
+      stepSliceNoScalar(W, 8, P);
+      // the two results differ also in their phases e^{i pi h se}: the one step's minus the halves' is pi h (mFull - (m1 + m2)/2)
+      const dth = PI * h * (mFull - 0.5 * (m1 + m2));
+      const c = Math.cos(dth);
+      const sn = Math.sin(dth);
+      const d0 = W[8] - (c * W[4] - sn * W[5]);
+      const d1 = W[9] - (c * W[5] + sn * W[4]);
+      const d2 = W[10] - (c * W[6] - sn * W[7]);
+      const d3 = W[11] - (c * W[7] + sn * W[6]);
+      const err = (damp * Math.sqrt(d0 * d0 + d1 * d1 + d2 * d2 + d3 * d3)) / 15;
       const tolLocal = tolLen * h;
       if (err <= tolLocal) {
-        copy4(8, 0);
-        a += h;
+        acceptScaled(8, damp, hh * (2 * s + m1 + m2));
+        a = last ? end : a + h;
+        fa = fe;
         counters.slices += 2;
-        let fac = err > 0 ? 0.9 * Math.sqrt(Math.sqrt(tolLocal / err)) : 4;
+        let fac = err > 0 ? CONTROLLER_SAFETY * Math.sqrt(Math.sqrt(tolLocal / err)) : 4;
         if (fac > 4) fac = 4;
         else if (fac < 0.25) fac = 0.25;
         h = Math.min(Math.max(h * fac, MIN_SLICE_NM), hMax);
         break;
       }
       if (hh < MIN_SLICE_NM || counters.slices + 4 > MAX_SLICES) {
-        // cannot refine further: accept two plain half slabs (Gauss-Legendre
-        // mean of beta', no commutator term). The plain slab stays bounded
-        // even where the Magnus correction of an unresolved slice would
-        // overflow (err may then be NaN).
-        stepSlice(W, 0, qr, qi, s + 0.5 * (b3 + b4), 0, hh, invXi0);
-        stepSlice(W, 0, qr, qi, s + 0.5 * (b5 + b6), 0, hh, invXi0);
-        a += h;
+        // cannot refine further: accept two plain half slabs (Simpson mean of
+        // beta', no commutator term). The plain slab stays bounded even where
+        // the Magnus correction of an unresolved slice would overflow (err
+        // may then be NaN).
+        stepSlice(W, 0, qr, qi, s + m1, 0, hh, invXi0);
+        stepSlice(W, 0, qr, qi, s + m2, 0, hh, invXi0);
+        a = last ? end : a + h;
+        fa = fe;
         counters.slices += 2;
         counters.forced += 1;
         h = Math.min(Math.max(h, MIN_SLICE_NM), hMax);
@@ -290,16 +415,34 @@ function segment(
       // reject (also when err is NaN): halve, the first half becomes the one-step trial
       counters.rejected += 1;
       h = hh;
-      b1 = b3;
-      b2 = b4;
+      last = false;
+      fe = fm;
+      fm = fq1;
+      fq1 = f(a + 0.25 * h);
+      fq3 = f(a + 0.75 * h);
+      counters.betaCalls += 2;
       copy4(12, 4);
+      mFull = m1;
       haveFull = true;
     }
   }
   return h;
 }
 
-function checkFinite(v: number, z: number): void {
+/**
+ * W[0..3] = damp * W[from..from+3] (the damping of the accepted slice), and
+ * the slice's phase pi * hse (hse = the integral of s_e over it) is added to
+ * the column's deferred phase (applied by driveColumn at the exit surface).
+ */
+function acceptScaled(from: number, damp: number, hse: number): void {
+  W[0] = damp * W[from];
+  W[1] = damp * W[from + 1];
+  W[2] = damp * W[from + 2];
+  W[3] = damp * W[from + 3];
+  counters.phase += PI * hse;
+}
+
+export function checkFinite(v: number, z: number): void {
   if (v - v !== 0) {
     throw new RangeError(`integrateColumn: beta'(z) is not finite near z = ${z} nm`);
   }

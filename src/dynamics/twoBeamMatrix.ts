@@ -1,8 +1,9 @@
 /**
  * Transfer matrices of stretches of a two-beam column (the 2 x 2 complex
  * matrix that takes (phi0, phig) at depth a to depth b), by the same adaptive
- * fourth-order Magnus slicing as twoBeamColumn.ts, applied to the matrix
- * instead of one amplitude vector. Used by the translation method
+ * fourth-order Magnus slicing as twoBeamColumn.ts (Simpson samples of beta'
+ * shared between a trial, its halves and the next slice; step doubling),
+ * applied to the matrix instead of one amplitude vector. Used by the translation method
  * (src/imaging/translationColumns.ts), where one long column serves many
  * image columns and the matrix of every stretch between window ends is kept.
  *
@@ -15,7 +16,7 @@
  * absorption), the same bound as the column integrator's.
  */
 import { slabMatrix } from './twoBeamKernel.js';
-import { EPS_K, G1, G2, MIN_SLICE_NM, MAX_SLICES } from './twoBeamColumn.js';
+import { CONTROLLER_SAFETY, END_NUDGE_NM, MIN_SLICE_NM, MAX_SLICES, SIMPSON_EPS_K } from './twoBeamColumn.js';
 
 /** out[o..o+7] = a[ao..] x b[bo..] (2 x 2 complex). out may not alias a or b. */
 export function mulMatrix(out: Float64Array, o: number, a: Float64Array, ao: number, b: Float64Array, bo: number): void {
@@ -77,42 +78,47 @@ export function stretchMatrix(
   setIdentity(S, 0);
   let h = Math.min(hStart, hMax);
   let used = 0;
+  // Simpson samples as in twoBeamColumn.ts: the value at a is the previous slice's end; the stretch's two ends are sampled just inside
+  const nudge = Math.min(END_NUDGE_NM, 1e-3 * (b - a));
+  let fa = f(a + nudge);
   while (a < b) {
     const rest = b - a;
     if (h > rest || rest - h < MIN_SLICE_NM) h = rest;
+    let last = h === rest;
     if (used + 2 > MAX_SLICES) {
-      const c1 = f(a + G1 * rest);
-      const c2 = f(a + G2 * rest);
-      slabMatrix(S, 8, qr, qi, s + 0.5 * (c1 + c2), 0, rest, invXi0);
+      const cm = f(a + 0.5 * rest);
+      const ce = f(b - nudge);
+      slabMatrix(S, 8, qr, qi, s + (fa + 4 * cm + ce) / 6, 0, rest, invXi0);
       accept(8);
       counters.slices += 1;
       counters.forced += 1;
       break;
     }
-    let b1 = f(a + G1 * h);
-    let b2 = f(a + G2 * h);
+    let fq1 = f(a + 0.25 * h);
+    let fm = f(a + 0.5 * h);
+    let fq3 = f(a + 0.75 * h);
+    let fe = f(last ? b - nudge : a + h);
     let haveFull = false;
     for (;;) {
       const hh = 0.5 * h;
-      const b3 = f(a + G1 * hh);
-      const b4 = f(a + G2 * hh);
-      const b5 = f(a + hh + G1 * hh);
-      const b6 = f(a + hh + G2 * hh);
-      if ((b1 + b2 + b3 + b4 + b5 + b6) - (b1 + b2 + b3 + b4 + b5 + b6) !== 0) {
+      if ((fa + fq1 + fm + fq3 + fe) - (fa + fq1 + fm + fq3 + fe) !== 0) {
         throw new RangeError(`stretchMatrix: beta'(z) is not finite near z = ${a} nm`);
       }
-      if (b1 === b2 && b1 === b3 && b1 === b4 && b1 === b5 && b1 === b6) {
-        if (!haveFull) slabMatrix(S, 8, qr, qi, s + b1, 0, h, invXi0);
+      if (fa === fq1 && fa === fm && fa === fq3 && fa === fe) {
+        if (!haveFull) slabMatrix(S, 8, qr, qi, s + fa, 0, h, invXi0);
         accept(8);
-        a += h;
+        a = last ? b : a + h;
+        fa = fe;
         used += 1;
         counters.slices += 1;
         h = Math.min(4 * h, hMax);
         break;
       }
-      if (!haveFull) slabMatrix(S, 8, qr, qi, s + 0.5 * (b1 + b2), EPS_K * h * (b2 - b1), h, invXi0);
-      slabMatrix(S, 16, qr, qi, s + 0.5 * (b3 + b4), EPS_K * hh * (b4 - b3), hh, invXi0);
-      slabMatrix(S, 24, qr, qi, s + 0.5 * (b5 + b6), EPS_K * hh * (b6 - b5), hh, invXi0);
+      const m1 = (fa + 4 * fq1 + fm) / 6;
+      const m2 = (fm + 4 * fq3 + fe) / 6;
+      if (!haveFull) slabMatrix(S, 8, qr, qi, s + (fa + 4 * fm + fe) / 6, SIMPSON_EPS_K * h * (fe - fa), h, invXi0);
+      slabMatrix(S, 16, qr, qi, s + m1, SIMPSON_EPS_K * hh * (fm - fa), hh, invXi0);
+      slabMatrix(S, 24, qr, qi, s + m2, SIMPSON_EPS_K * hh * (fe - fm), hh, invXi0);
       mulMatrix(S, 32, S, 24, S, 16);
       let e2 = 0;
       for (let k = 0; k < 8; k++) {
@@ -123,21 +129,23 @@ export function stretchMatrix(
       const tolLocal = tolLen * h;
       if (err <= tolLocal) {
         accept(32);
-        a += h;
+        a = last ? b : a + h;
+        fa = fe;
         used += 2;
         counters.slices += 2;
-        let fac = err > 0 ? 0.9 * Math.sqrt(Math.sqrt(tolLocal / err)) : 4;
+        let fac = err > 0 ? CONTROLLER_SAFETY * Math.sqrt(Math.sqrt(tolLocal / err)) : 4;
         if (fac > 4) fac = 4;
         else if (fac < 0.25) fac = 0.25;
         h = Math.min(Math.max(h * fac, MIN_SLICE_NM), hMax);
         break;
       }
       if (hh < MIN_SLICE_NM || used + 4 > MAX_SLICES) {
-        slabMatrix(S, 16, qr, qi, s + 0.5 * (b3 + b4), 0, hh, invXi0);
-        slabMatrix(S, 24, qr, qi, s + 0.5 * (b5 + b6), 0, hh, invXi0);
+        slabMatrix(S, 16, qr, qi, s + m1, 0, hh, invXi0);
+        slabMatrix(S, 24, qr, qi, s + m2, 0, hh, invXi0);
         mulMatrix(S, 32, S, 24, S, 16);
         accept(32);
-        a += h;
+        a = last ? b : a + h;
+        fa = fe;
         used += 2;
         counters.slices += 2;
         counters.forced += 1;
@@ -146,8 +154,11 @@ export function stretchMatrix(
       }
       // reject: halve, the first half becomes the one-step trial
       h = hh;
-      b1 = b3;
-      b2 = b4;
+      last = false;
+      fe = fm;
+      fm = fq1;
+      fq1 = f(a + 0.25 * h);
+      fq3 = f(a + 0.75 * h);
       for (let k = 0; k < 8; k++) S[8 + k] = S[16 + k];
       haveFull = true;
     }

@@ -11,6 +11,8 @@ import type { ImageFrame } from '../geometry/frames.js';
 import { columnEntryPoint, pixelX } from '../geometry/frames.js';
 import { integrateColumn, perfectCrystal, type TwoBeamParams } from '../dynamics/twoBeam.js';
 import { rk4Column } from '../dynamics/rk4Reference.js';
+import { RENDER_MAX_SLICE_NM } from '../dynamics/twoBeamColumn.js';
+import { integrateColumnGaussNodes } from '../dynamics/twoBeamColumnGauss.js';
 import type { ManyBeamInput } from '../dynamics/manyBeamStructureMatrix.js';
 import { integrateColumnN, integrateColumnNVector, prepareColumnSystem, prepareColumnSystemVector } from '../dynamics/manyBeam.js';
 import { buildField, type DefectModel } from './fieldSpecs.js';
@@ -29,6 +31,8 @@ export interface RenderJob {
   readonly model: DefectModel;
   /** Baseline for benchmarks only: plain fixed-step RK4 with this many steps per column. */
   readonly rk4Steps?: number;
+  /** Baseline for tests and benchmarks only: the previous two-beam column integrator (Gauss-Legendre samples, twoBeamColumnGauss.ts). */
+  readonly gaussNodes?: boolean;
   /** Average pixels that reach a dislocation core over their area outside the core (default true; cores.ts). */
   readonly coreSupersample?: boolean;
   /** Present for a systematic row of more than two beams: the many-beam engine is used instead of the two-beam one. */
@@ -220,7 +224,8 @@ export function columnEvaluator(job: RenderJob): ColumnEvaluator {
   const lines = mb === null ? [] : job.model.fields.flatMap((f) => (f.kind === 'dislocation' ? [{ p: f.point_nm, u: f.line }] : []));
   // Both engines: beta' jumps where a column enters and leaves an inclusion sphere (the strain inside is
   // uniform, outside it is the Ashby-Brown 1/r^3 field), so both depths are breakpoints (zero phase steps).
-  // A step error estimate of 4th order does not see a jump inside a slice (a first-order error).
+  // A jump inside a slice is a first-order error: a step error estimate of 4th order misses it (many-beam) or
+  // refines down to its shortest slice to meet the tolerance (two-beam, which samples the ends of its slices).
   const spheres = job.model.fields.flatMap((f) => (f.kind === 'inclusion' ? [{ c: f.centre_nm, r2: f.radius_nm * f.radius_nm }] : []));
   // Both engines: the plane of each loop is a breakpoint (a zero phase step) where a column crosses it, so that
   // the stepper restarts with a small step where the loop's strain peaks (the crossing inside the polygon is
@@ -295,7 +300,8 @@ export function columnEvaluator(job: RenderJob): ColumnEvaluator {
         }
       }
       if (mb !== null) stats.slices += mb.integrate(out, L, betaPrime, dRdz, faults);
-      else if (job.rk4Steps === undefined) integrateColumn(out, params, L, betaPrime, faults, tol, stats);
+      else if (job.gaussNodes === true) integrateColumnGaussNodes(out, params, L, betaPrime, faults, tol, stats);
+      else if (job.rk4Steps === undefined) integrateColumn(out, params, L, betaPrime, faults, tol, stats, RENDER_MAX_SLICE_NM);
       else {
         rk4Column(out, params, L, betaPrime, job.rk4Steps);
         stats.slices += job.rk4Steps;

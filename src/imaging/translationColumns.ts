@@ -30,7 +30,7 @@ import type { Vec3 } from '../math/vec3.js';
 import { cross, dot } from '../math/vec3.js';
 import { columnEntryOffset, columnEntryPoint, pixelX } from '../geometry/frames.js';
 import { mulMatrix, setIdentity, stretchMatrix, type MatrixParams, type StretchCounters } from '../dynamics/twoBeamMatrix.js';
-import { DEFAULT_MAX_SLICE_NM } from '../dynamics/twoBeamColumn.js';
+import { RENDER_MAX_SLICE_NM } from '../dynamics/twoBeamColumn.js';
 import { activeSurfaces, columnEvaluator, type ColumnEvaluator, type RenderJob, type RowStats } from './renderRows.js';
 import { CORE_SUBSAMPLES, coreGeometry } from './cores.js';
 import { longColumnEvents, WINDOW_END, WINDOW_START } from './longColumnEvents.js';
@@ -112,7 +112,7 @@ function invariantDirection(job: RenderJob): Vec3 | null {
  */
 export function translationPlan(job: RenderJob, options: { readonly ignoreGain?: boolean } = {}): TranslationPlan | null {
   // two beams, or a systematic row (translationColumnsN.ts); general beam sets go column by column
-  if (job.manyBeam?.beamVectors !== undefined || job.rk4Steps !== undefined || job.shareColumns === false) return null;
+  if (job.manyBeam?.beamVectors !== undefined || job.rk4Steps !== undefined || job.gaussNodes === true || job.shareColumns === false) return null;
   // N beams: a stretch matrix costs N propagations and a window product N^3; beyond 15 beams columns are cheaper
   const beams = job.manyBeam?.input.excitationErrors_per_nm.length ?? 1;
   if (beams > MAX_SHARED_BEAMS) return null;
@@ -373,12 +373,12 @@ function classWindows(job: RenderJob, plan: TranslationPlan): ClassWindows {
     // elements: stretches between consecutive events, and fault phases
     let m = 0;
     let zPrev = 0;
-    let h = DEFAULT_MAX_SLICE_NM;
+    let h = RENDER_MAX_SLICE_NM;
     for (let e = 0; e < n; e++) {
       const ev0 = order[e];
       const z = evPos[ev0];
       if (z > zPrev) {
-        h = stretchMatrix(E, 8 * m, mp, zPrev, z, betaPrime, tolLen, h, DEFAULT_MAX_SLICE_NM, counters);
+        h = stretchMatrix(E, 8 * m, mp, zPrev, z, betaPrime, tolLen, h, RENDER_MAX_SLICE_NM, counters);
         m++;
         zPrev = z;
       }

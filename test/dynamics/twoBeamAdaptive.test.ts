@@ -222,4 +222,8 @@ describe('bad input', () => {
     expect(() => integrateColumn(out, { ...p, xi_nm: -1 }, 100, () => 0, none, 1e-4)).toThrow(InternalError);
     expect(() => rk4Column(out, p, 100, () => 0, 0)).toThrow(/nSteps/);
   });
+
+  it('names beta\' also when it is not finite only at the start of the column (the first sample of a stretch)', () => {
+    expect(() => integrateColumn(out, p, 100, (z) => (z < 1e-6 ? NaN : 0.01), none, 1e-4)).toThrow(/beta'\(z\) is not finite near z = 0 nm/);
+  });
 });
