@@ -7,7 +7,7 @@
 // Then, for accuracy rather than speed: 450 random columns of 1-3 Lorentzian peaks of beta' (widths from 0.01 or
 // from 0.1 nm up to 20 nm) integrated at tolerances 1e-3 .. 1e-6 by both integrators against fixed-step RK4
 // (rk4Reference.ts, at least 40 steps per width of the narrowest peak): how many column-tolerance pairs miss the
-// tolerance (peaks narrower than the sample spacing can fall between samples; see DEFAULT_MAX_SLICE_NM).
+// tolerance (peaks narrower than the sample spacing can fall between samples; see DEFAULT_MAX_SLICE_NM of twoBeamColumn.ts).
 // Run: node bench/columns.mjs after building dist/ (npx tsc -p tsconfig.build.json). Never a timed test.
 import { parseScenario } from '../dist/scenario/parse.js';
 import { renderJob } from '../dist/imaging/renderScenario.js';
@@ -15,7 +15,7 @@ import { resolveCondition } from '../dist/imaging/resolveCondition.js';
 import { columnEvaluator, renderRows } from '../dist/imaging/renderRows.js';
 import { pixelX } from '../dist/geometry/frames.js';
 import { DEMO_SCENARIO } from '../dist/scenario/demo.js';
-import { integrateColumn, RENDER_MAX_SLICE_NM } from '../dist/dynamics/twoBeamColumn.js';
+import { integrateColumn, DEFAULT_MAX_SLICE_NM } from '../dist/dynamics/twoBeamColumn.js';
 import { integrateColumnGaussNodes } from '../dist/dynamics/twoBeamColumnGauss.js';
 import { rk4Column } from '../dist/dynamics/rk4Reference.js';
 import { DEMO_IDENTIFY_SCENARIO } from '../dist/scenario/demoIdentify.js';
@@ -122,7 +122,7 @@ function misses(wMin, seed) {
     const [r0, rg] = inten(ref);
     for (const tol of [1e-3, 1e-4, 1e-5, 1e-6]) {
       // each with the longest slice the renderer gives it (13 nm now, 20 nm before)
-      for (const [name, integrate, hMax] of [['now', integrateColumn, RENDER_MAX_SLICE_NM], ['baseline', integrateColumnGaussNodes, 20]]) {
+      for (const [name, integrate, hMax] of [['now', integrateColumn, DEFAULT_MAX_SLICE_NM], ['baseline', integrateColumnGaussNodes, 20]]) {
         integrate(out, p, t, f, none, tol, undefined, hMax);
         const [a, b] = inten(out);
         if (Math.max(Math.abs(a - r0), Math.abs(b - rg)) > tol) count[name]++;

@@ -108,32 +108,22 @@ export const MIN_SLICE_NM = 1e-4;
  */
 export const MAX_SLICES = 4000;
 /**
- * Default longest slice (nm). It bounds the spacing of the beta' samples, so
- * that the tail of a narrow peak of beta' (a column passing within ~0.1 nm
- * of a dislocation line) is seen and refined. In trials with random sums of
- * Lorentzian peaks (widths 0.01-20 nm, 450 columns against RK4) the
- * Gauss-node integrator (twoBeamColumnGauss.ts) missed its tolerance on no
- * column with 20 nm, while 14 missed it with an unbounded first slice; 20 nm
- * also costs fewer rejected trial slices than starting from the whole column
- * (test/dynamics/twoBeamAdaptive.test.ts repeats a smaller version against
- * scipy). The renderer uses RENDER_MAX_SLICE_NM.
- */
-export const DEFAULT_MAX_SLICE_NM = 20;
-
-/**
- * Longest slice of the renderer's columns and shared long columns (nm): 4 new
- * samples per 13 nm, the density of the Gauss-node integrator's 6 per 20 nm.
- * A peak of beta' much narrower than the sample spacing with a small area can
- * fall between samples: on random sums of 1-3 Lorentzian peaks (bench/columns.mjs,
- * 450 columns x 4 tolerances against fixed-step RK4) this integrator with
- * 13 nm and the Gauss-node one with 20 nm both miss the tolerance on about
- * 2 % of the column-tolerance pairs when widths go down to 0.01 nm and on
- * 0-0.2 % from 0.1 nm up (the renderer never integrates through a modified
+ * Longest slice (nm), the default of integrateColumn and what the renderer's
+ * columns and shared long columns use. It bounds the spacing of the beta'
+ * samples, so that the tail of a narrow peak of beta' (a column passing within
+ * ~0.1 nm of a dislocation line) is seen and refined: 4 new samples per 13 nm,
+ * the density of the Gauss-node integrator's 6 per 20 nm (twoBeamColumnGauss.ts,
+ * which keeps 20 nm). A peak much narrower than the sample spacing with a small
+ * area can still fall between samples: on random sums of 1-3 Lorentzian peaks
+ * (bench/columns.mjs, 450 columns x 4 tolerances against fixed-step RK4) this
+ * integrator with 13 nm missed the tolerance on 32 and the Gauss-node one with
+ * 20 nm on 27 of the 1800 column-tolerance pairs with widths down to 0.01 nm,
+ * 1 and 1 from 0.1 nm up (the renderer never integrates through a modified
  * core, cores.ts, so its peaks are wider); with 20 nm this integrator missed
  * 1.6x as often. 13 instead of 20 nm costs no measurable time on the benchmark
  * images (few slices reach the bound; fewer rejections at the top of a column).
  */
-export const RENDER_MAX_SLICE_NM = 13;
+export const DEFAULT_MAX_SLICE_NM = 13;
 
 /** Safety factor of the step controller (shared with twoBeamMatrix.ts). */
 export const CONTROLLER_SAFETY = 0.8;

@@ -18,7 +18,6 @@ import {
   checkFinite,
   copy4,
   counters,
-  DEFAULT_MAX_SLICE_NM,
   driveColumn,
   EPS_K,
   G1,
@@ -29,6 +28,9 @@ import {
   type ColumnStats,
 } from './twoBeamColumn.js';
 
+/** The Gauss-node integrator's longest slice (nm): 6 samples per 20 nm (see DEFAULT_MAX_SLICE_NM of twoBeamColumn.ts). */
+export const GAUSS_MAX_SLICE_NM = 20;
+
 /** integrateColumn with Gauss-Legendre sampling (same arguments and result contract). */
 export function integrateColumnGaussNodes(
   out: Float64Array,
@@ -38,7 +40,7 @@ export function integrateColumnGaussNodes(
   faults: Float64Array,
   tol: number,
   stats?: ColumnStats,
-  maxSlice_nm: number = DEFAULT_MAX_SLICE_NM,
+  maxSlice_nm: number = GAUSS_MAX_SLICE_NM,
 ): void {
   driveColumn(out, p, t_nm, betaPrime, faults, tol, stats, maxSlice_nm, gaussSegment);
 }

@@ -11,7 +11,7 @@ import type { ImageFrame } from '../geometry/frames.js';
 import { columnEntryPoint, pixelX } from '../geometry/frames.js';
 import { integrateColumn, perfectCrystal, type TwoBeamParams } from '../dynamics/twoBeam.js';
 import { rk4Column } from '../dynamics/rk4Reference.js';
-import { RENDER_MAX_SLICE_NM } from '../dynamics/twoBeamColumn.js';
+import { DEFAULT_MAX_SLICE_NM } from '../dynamics/twoBeamColumn.js';
 import { integrateColumnGaussNodes } from '../dynamics/twoBeamColumnGauss.js';
 import type { ManyBeamInput } from '../dynamics/manyBeamStructureMatrix.js';
 import { integrateColumnN, integrateColumnNVector, prepareColumnSystem, prepareColumnSystemVector } from '../dynamics/manyBeam.js';
@@ -301,7 +301,7 @@ export function columnEvaluator(job: RenderJob): ColumnEvaluator {
       }
       if (mb !== null) stats.slices += mb.integrate(out, L, betaPrime, dRdz, faults);
       else if (job.gaussNodes === true) integrateColumnGaussNodes(out, params, L, betaPrime, faults, tol, stats);
-      else if (job.rk4Steps === undefined) integrateColumn(out, params, L, betaPrime, faults, tol, stats, RENDER_MAX_SLICE_NM);
+      else if (job.rk4Steps === undefined) integrateColumn(out, params, L, betaPrime, faults, tol, stats, DEFAULT_MAX_SLICE_NM);
       else {
         rk4Column(out, params, L, betaPrime, job.rk4Steps);
         stats.slices += job.rk4Steps;

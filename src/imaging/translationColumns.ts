@@ -30,7 +30,7 @@ import type { Vec3 } from '../math/vec3.js';
 import { cross, dot } from '../math/vec3.js';
 import { columnEntryOffset, columnEntryPoint, pixelX } from '../geometry/frames.js';
 import { mulMatrix, setIdentity, stretchMatrix, type MatrixParams, type StretchCounters } from '../dynamics/twoBeamMatrix.js';
-import { RENDER_MAX_SLICE_NM } from '../dynamics/twoBeamColumn.js';
+import { DEFAULT_MAX_SLICE_NM } from '../dynamics/twoBeamColumn.js';
 import { activeSurfaces, columnEvaluator, type ColumnEvaluator, type RenderJob, type RowStats } from './renderRows.js';
 import { CORE_SUBSAMPLES, coreGeometry } from './cores.js';
 import { longColumnEvents, WINDOW_END, WINDOW_START } from './longColumnEvents.js';
@@ -373,12 +373,12 @@ function classWindows(job: RenderJob, plan: TranslationPlan): ClassWindows {
     // elements: stretches between consecutive events, and fault phases
     let m = 0;
     let zPrev = 0;
-    let h = RENDER_MAX_SLICE_NM;
+    let h = DEFAULT_MAX_SLICE_NM;
     for (let e = 0; e < n; e++) {
       const ev0 = order[e];
       const z = evPos[ev0];
       if (z > zPrev) {
-        h = stretchMatrix(E, 8 * m, mp, zPrev, z, betaPrime, tolLen, h, RENDER_MAX_SLICE_NM, counters);
+        h = stretchMatrix(E, 8 * m, mp, zPrev, z, betaPrime, tolLen, h, DEFAULT_MAX_SLICE_NM, counters);
         m++;
         zPrev = z;
       }

@@ -68,8 +68,8 @@ describe('perfect crystal without absorption', () => {
     integrateColumn(out, p, 100, () => 0, new Float64Array(0), 1e-4, stats);
     // a product of exact slabs of constant s equals one slab (exp(A a) exp(A b) = exp(A (a+b)))
     expect(maxAbsDiff(out, a)).toBeLessThan(1e-13);
-    // default longest slice 20 nm: five exact slabs for 100 nm
-    expect(stats.slices).toBe(5);
+    // default longest slice 13 nm: ceil(100 / 13) = 8 exact slabs for 100 nm
+    expect(stats.slices).toBe(8);
     const one = { slices: 0 };
     integrateColumn(out, p, 100, () => 0, new Float64Array(0), 1e-4, one, Infinity);
     expect(one.slices).toBe(1);
