@@ -12,7 +12,8 @@ import { columnEntryPoint, pixelX } from '../geometry/frames.js';
 import { integrateColumn, perfectCrystal, type TwoBeamParams } from '../dynamics/twoBeam.js';
 import { rk4Column } from '../dynamics/rk4Reference.js';
 import type { ManyBeamInput } from '../dynamics/manyBeamStructureMatrix.js';
-import { integrateColumnN, integrateColumnNVector, prepareColumnSystem, prepareColumnSystemVector } from '../dynamics/manyBeam.js';
+import { integrateColumnNProbe, integrateColumnNVectorProbe, prepareColumnSystem, prepareColumnSystemVector } from '../dynamics/manyBeam.js';
+import { columnStrain, type ColumnStrain } from './columnStrain.js';
 import { buildField, type DefectModel } from './fieldSpecs.js';
 import { CORE_SUBSAMPLES, coreGeometry } from './cores.js';
 
@@ -188,7 +189,7 @@ export function columnEvaluator(job: RenderJob): ColumnEvaluator {
   if (field === null && surfaces.length === 0) {
     const p = new Float64Array(4);
     if (mb === null) perfectCrystal(p, params, L);
-    else mb.integrate(p, L, () => 0, NO_STRAIN, new Float64Array(0));
+    else mb.integrate(p, L, columnStrain(null, g_cart, frame.ez), new Float64Array(0));
     return {
       perfect: true,
       stats,
@@ -198,23 +199,11 @@ export function columnEvaluator(job: RenderJob): ColumnEvaluator {
       },
     };
   }
-  // beta'(z) = g . (grad R) . ez along the column r(z) = c + z ez
+  // beta'(z) = g . (grad R) . ez along the column r(z) = c0 + z ez (and dR/dz for general beam sets);
+  // the column entry point lives in strain.c0 (a typed array: mutable closure variables would be boxed)
   const [kx, ky, kz] = frame.ez;
-  const dir = field === null ? null : field.directional(g_cart, frame.ez);
-  // column entry point in a typed array: mutable closure variables would be boxed doubles (an allocation each)
-  const c0 = new Float64Array(3);
-  const betaPrime = dir === null ? () => 0 : (z: number): number => dir(c0[0] + z * kx, c0[1] + z * ky, c0[2] + z * kz);
-  // general beam sets need the vector dR/dz = (grad R) . ez
-  const grad = new Float64Array(9);
-  const dRdz =
-    field === null
-      ? NO_STRAIN
-      : (z: number, o: Float64Array): void => {
-          field.gradient(grad, c0[0] + z * kx, c0[1] + z * ky, c0[2] + z * kz);
-          o[0] = grad[0] * kx + grad[1] * ky + grad[2] * kz;
-          o[1] = grad[3] * kx + grad[4] * ky + grad[5] * kz;
-          o[2] = grad[6] * kx + grad[7] * ky + grad[8] * kz;
-        };
+  const strain = columnStrain(field, g_cart, frame.ez);
+  const { c0, betaPrime } = strain;
   // Many-beam only: each dislocation line's depth of closest approach is a breakpoint (a zero phase step),
   // so that the stepper restarts with a small step where the strain peaks.
   const lines = mb === null ? [] : job.model.fields.flatMap((f) => (f.kind === 'dislocation' ? [{ p: f.point_nm, u: f.line }] : []));
@@ -294,7 +283,7 @@ export function columnEvaluator(job: RenderJob): ColumnEvaluator {
           faults[4 * q + 3] = sign * jump[2];
         }
       }
-      if (mb !== null) stats.slices += mb.integrate(out, L, betaPrime, dRdz, faults);
+      if (mb !== null) stats.slices += mb.integrate(out, L, strain, faults);
       else if (job.rk4Steps === undefined) integrateColumn(out, params, L, betaPrime, faults, tol, stats);
       else {
         rk4Column(out, params, L, betaPrime, job.rk4Steps);
@@ -332,11 +321,6 @@ export const MANY_BEAM_TOL_FACTOR = 0.1;
 
 /** A many-beam column integrator for one job: writes the transmitted and g amplitudes into out[0..3]. */
 const ZERO3: Vec3 = [0, 0, 0];
-const NO_STRAIN = (_z: number, o: Float64Array): void => {
-  o[0] = 0;
-  o[1] = 0;
-  o[2] = 0;
-};
 
 function manyBeamColumn(mb: ManyBeamJob, tol: number) {
   const vector = mb.beamVectors !== undefined;
@@ -350,13 +334,12 @@ function manyBeamColumn(mb: ManyBeamJob, tol: number) {
     integrate(
       out: Float64Array,
       L: number,
-      betaPrime: (z: number) => number,
-      dRdz: (z: number, o: Float64Array) => void,
+      strain: ColumnStrain,
       faults: Float64Array,
     ): number {
       const steps = vector
-        ? integrateColumnNVector(amp, sys, L, dRdz, tol * MANY_BEAM_TOL_FACTOR, faults)
-        : integrateColumnN(amp, sys, L, betaPrime, tol * MANY_BEAM_TOL_FACTOR, faults);
+        ? integrateColumnNVectorProbe(amp, sys, L, strain.dRdzProbe, tol * MANY_BEAM_TOL_FACTOR, faults)
+        : integrateColumnNProbe(amp, sys, L, strain.betaProbe, tol * MANY_BEAM_TOL_FACTOR, faults);
       out[0] = amp[t0];
       out[1] = amp[t0 + 1];
       out[2] = amp[tg];
