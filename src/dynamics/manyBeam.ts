@@ -105,6 +105,10 @@ interface Work {
    * return values: a double crossing a call that V8 does not inline is boxed (a heap allocation).
    */
   readonly io: Float64Array;
+  /** a step length handed to levelFor */
+  readonly arg: Float64Array;
+  /** the step lengths of the ladder, ladderStep(maxStep_nm, k) for k = 0..LEVELS */
+  readonly ladder: Float64Array;
   readonly vr: Float64Array;
   readonly vi: Float64Array;
   readonly pr: Float64Array;
@@ -212,6 +216,8 @@ function prepare(input: ManyBeamInput, factors: Float64Array, strainDim: 1 | 3, 
     ki: Array.from({ length: 7 }, f),
     d: f(),
     io: new Float64Array(4),
+    arg: new Float64Array(1),
+    ladder: Float64Array.from({ length: LEVELS + 1 }, (_, k) => ladderStep(maxStep, k)),
     vr: f(),
     vi: f(),
     pr: f(),
@@ -351,7 +357,13 @@ const E1 = 71 / 57600, E3 = -71 / 16695, E4 = 71 / 1920, E5 = -17253 / 339200, E
 
 const TWO_PI = 2 * Math.PI;
 
-function strainError(z: number): InternalError {
+/**
+ * The error for a non-finite strain near the depth at[0]. The depth comes in an array: the stepper's depth
+ * variable passed as an argument, even on this throwing branch, would make the optimiser keep it boxed
+ * (a heap number allocated every step).
+ */
+function strainError(at: Float64Array): InternalError {
+  const z = at[0];
   return new InternalError(
     `the strain term (beta' or dR/dz) is not finite near depth ${z.toPrecision(6)} nm: check the displacement field of the defects.`,
   );
@@ -387,10 +399,15 @@ function ladderStep(hmax: number, k: number): number {
   return hmax * Math.pow(2, -k / 4);
 }
 
-/** Ladder level of the largest ladder step not longer than h. */
-function levelFor(hmax: number, h: number): number {
+/**
+ * Ladder level of the largest ladder step not longer than h = at[0] (handed over in an array: a double
+ * argument of a call V8 does not inline is boxed, and this one runs every step).
+ */
+function levelFor(hmax: number, at: Float64Array): number {
+  const h = at[0];
   if (!(h < hmax)) return 0;
-  const k = Math.ceil(-4 * Math.log2(h / hmax) - 1e-9);
+  // an integer in [0, LEVELS]; `| 0` keeps it a small integer for the optimiser (a double level would be boxed)
+  const k = Math.ceil(-4 * Math.log2(h / hmax) - 1e-9) | 0;
   return k > LEVELS ? LEVELS : k;
 }
 
@@ -400,7 +417,7 @@ function levelTable(sys: ColumnSystem, k: number): Float64Array {
   let t = levels[k];
   if (t === null) {
     t = new Float64Array(20 * sys.n);
-    tabulateE(sys, ladderStep(sys.maxStep_nm, k), t);
+    tabulateE(sys, sys.work.ladder[k], t);
     levels[k] = t;
   }
   return t;
@@ -655,15 +672,17 @@ function integrate(
 function march(sys: ColumnSystem, zStart: number, zStop: number, jumps: Float64Array, nJumps: number, stride: 2 | 4, tol: number, startLevel = -1): number {
   const n = sys.n;
   const wk = sys.work;
-  const { ur, ui, yr, yi, kr, ki, io } = wk;
+  const { ur, ui, yr, yi, kr, ki, io, arg, ladder } = wk;
   const hmax = sys.maxStep_nm;
-  let z = zStart;
+  // `+`: the optimiser does not know a parameter is a number; a loop variable mixing it with doubles would
+  // stay boxed, a heap number allocated every step (measured with bench/heapSampling.mjs)
+  let z = +zStart;
+  const stop = +zStop;
   let jumpIdx = 0;
   let accepted = 0;
   let rejected = 0;
   let fsalValid = false;
   let level = startLevel; // ladder level of the next step; -1: choose a fresh first step
-  let h = 0;
   const k1r = kr[0], k1i = ki[0], k2r = kr[1], k2i = ki[1], k3r = kr[2], k3i = ki[2];
   const k4r = kr[3], k4i = ki[3], k5r = kr[4], k5i = ki[4], k6r = kr[5], k6i = ki[5], k7r = kr[6], k7i = ki[6];
   const tol2 = tol * tol;
@@ -676,8 +695,8 @@ function march(sys: ColumnSystem, zStart: number, zStop: number, jumps: Float64A
       fsalValid = false;
       level = -1;
     }
-    if (z >= zStop) break;
-    const zEnd = jumpIdx < nJumps ? jumps[jumpIdx * stride] : zStop;
+    if (z >= stop) break;
+    const zEnd = jumpIdx < nJumps ? jumps[jumpIdx * stride] : stop;
 
     if (!fsalValid) {
       io[0] = z;
@@ -690,12 +709,16 @@ function march(sys: ColumnSystem, zStart: number, zStop: number, jumps: Float64A
         } else {
           for (let j = 0; j < n; j++) dmax = Math.max(dmax, Math.abs(wk.d[j]));
         }
-        if (!Number.isFinite(dmax)) throw strainError(z);
-        level = levelFor(hmax, 0.05 / (TWO_PI * dmax + 1e-300));
+        if (!Number.isFinite(dmax)) {
+          arg[0] = z;
+          throw strainError(arg);
+        }
+        arg[0] = 0.05 / (TWO_PI * dmax + 1e-300);
+        level = levelFor(hmax, arg);
       }
       fsalValid = true;
     }
-    h = ladderStep(hmax, level);
+    let h = ladder[level];
     let lastStep = false;
     if (z + h >= zEnd || zEnd - (z + h) < 1e-12 * Math.max(1, zEnd)) {
       h = zEnd - z;
@@ -767,7 +790,10 @@ function march(sys: ColumnSystem, zStart: number, zStop: number, jumps: Float64A
       err2 = Math.max(err2, e2); // propagates NaN
     }
     const err = Math.sqrt(err2 / tol2);
-    if (!Number.isFinite(err)) throw strainError(z);
+    if (!Number.isFinite(err)) {
+      arg[0] = z;
+      throw strainError(arg);
+    }
     if (err <= 1 || level >= LEVELS) {
       // accept: re-anchor, psi(z + h) = E(h) u(h); FSAL derivative k7 -> E(h) k7
       for (let j = 0; j < n; j++) {
@@ -783,10 +809,12 @@ function march(sys: ColumnSystem, zStart: number, zStop: number, jumps: Float64A
       accepted++;
       z = zNext;
       const fac = err < 3e-4 ? 5 : Math.min(5, 0.9 * Math.pow(err, -0.2));
-      level = levelFor(hmax, h * fac);
+      arg[0] = h * fac;
+      level = levelFor(hmax, arg);
     } else {
       rejected++;
-      level = Math.max(level + 1, levelFor(hmax, h * Math.max(0.2, 0.9 * Math.pow(err, -0.2))));
+      arg[0] = h * Math.max(0.2, 0.9 * Math.pow(err, -0.2));
+      level = Math.max(level + 1, levelFor(hmax, arg));
       if (level > LEVELS) level = LEVELS;
     }
   }
@@ -1121,7 +1149,7 @@ export function stretchMatrixNProbe(T: Float64Array, to: number, sys: ColumnSyst
   const mw = matrixWork(sys);
   const wk = sys.work;
   const { ur, ui, yr, yi, kr, ki, sr, si, beta } = mw;
-  const io = wk.io;
+  const { io, arg, ladder } = wk;
   // the state starts as the identity
   ur.fill(0);
   ui.fill(0);
@@ -1131,7 +1159,9 @@ export function stretchMatrixNProbe(T: Float64Array, to: number, sys: ColumnSyst
   const k1r = kr[0], k1i = ki[0], k2r = kr[1], k2i = ki[1], k3r = kr[2], k3i = ki[2];
   const k4r = kr[3], k4i = ki[3], k5r = kr[4], k5i = ki[4], k6r = kr[5], k6i = ki[5], k7r = kr[6], k7i = ki[6];
   const tol2 = tol * tol;
-  let z = a;
+  // `+`: keeps the depth loop variables unboxed (see march)
+  let z = +a;
+  b = +b;
   let level = startLevel;
   let accepted = 0;
   let fsalValid = false;
@@ -1141,7 +1171,10 @@ export function stretchMatrixNProbe(T: Float64Array, to: number, sys: ColumnSyst
       io[0] = z;
       probe(io);
       beta[0] = io[1];
-      if (!Number.isFinite(beta[0])) throw strainError(z);
+      if (!Number.isFinite(beta[0])) {
+        arg[0] = z;
+        throw strainError(arg);
+      }
       if (identity) {
         // K1 = i 2 pi beta' M I: no product
         const scale = TWO_PI * beta[0];
@@ -1153,11 +1186,12 @@ export function stretchMatrixNProbe(T: Float64Array, to: number, sys: ColumnSyst
       if (level < 0) {
         let dmax = 0;
         for (let j = 0; j < n; j++) dmax = Math.max(dmax, Math.abs(sys.factors[j] * beta[0]));
-        level = levelFor(hmax, 0.05 / (TWO_PI * dmax + 1e-300));
+        arg[0] = 0.05 / (TWO_PI * dmax + 1e-300);
+        level = levelFor(hmax, arg);
       }
       fsalValid = true;
     }
-    let h = ladderStep(hmax, level);
+    let h = ladder[level];
     let lastStep = false;
     let tab: Float64Array;
     let rot: Float64Array;
@@ -1258,7 +1292,10 @@ export function stretchMatrixNProbe(T: Float64Array, to: number, sys: ColumnSyst
       }
     }
     const err = Math.sqrt(err2 / tol2);
-    if (!Number.isFinite(err)) throw strainError(z);
+    if (!Number.isFinite(err)) {
+      arg[0] = z;
+      throw strainError(arg);
+    }
     if (err <= 1 || level >= LEVELS) {
       if (lastStep) {
         // the end of the stretch: E(h) u(h) straight into T (no derivative for a next step)
@@ -1292,9 +1329,11 @@ export function stretchMatrixNProbe(T: Float64Array, to: number, sys: ColumnSyst
       identity = false;
       z = zNext;
       const fac = err < 3e-4 ? 5 : Math.min(5, 0.9 * Math.pow(err, -0.2));
-      level = levelFor(hmax, h * fac);
+      arg[0] = h * fac;
+      level = levelFor(hmax, arg);
     } else {
-      level = Math.max(level + 1, levelFor(hmax, h * Math.max(0.2, 0.9 * Math.pow(err, -0.2))));
+      arg[0] = h * Math.max(0.2, 0.9 * Math.pow(err, -0.2));
+      level = Math.max(level + 1, levelFor(hmax, arg));
       if (level > LEVELS) level = LEVELS;
     }
   }
