@@ -105,6 +105,8 @@ interface Work {
    * return values: a double crossing a call that V8 does not inline is boxed (a heap allocation).
    */
   readonly io: Float64Array;
+  /** the depth of the stepper between steps, and where it stops */
+  readonly depth: Float64Array;
   /** a step length handed to levelFor */
   readonly arg: Float64Array;
   /** the step lengths of the ladder, ladderStep(maxStep_nm, k) for k = 0..LEVELS */
@@ -217,6 +219,7 @@ function prepare(input: ManyBeamInput, factors: Float64Array, strainDim: 1 | 3, 
     d: f(),
     io: new Float64Array(4),
     arg: new Float64Array(1),
+    depth: new Float64Array(2),
     ladder: Float64Array.from({ length: LEVELS + 1 }, (_, k) => ladderStep(maxStep, k)),
     vr: f(),
     vi: f(),
@@ -674,20 +677,23 @@ function march(sys: ColumnSystem, zStart: number, zStop: number, jumps: Float64A
   const wk = sys.work;
   const { ur, ui, yr, yi, kr, ki, io, arg, ladder } = wk;
   const hmax = sys.maxStep_nm;
-  // `+`: the optimiser does not know a parameter is a number; a loop variable mixing it with doubles would
-  // stay boxed, a heap number allocated every step (measured with bench/heapSampling.mjs)
-  let z = +zStart;
-  const stop = +zStop;
+  // The depth lives in an array between steps, not in a loop variable: TurboFan kept that variable (a phi
+  // mixing the untyped parameter with doubles) boxed and allocated a heap number for it every step
+  // (seen with --print-opt-code, measured with bench/heapSampling.mjs).
+  const depth = wk.depth;
+  depth[0] = zStart;
+  depth[1] = zStop;
   let jumpIdx = 0;
   let accepted = 0;
   let rejected = 0;
   let fsalValid = false;
-  let level = startLevel; // ladder level of the next step; -1: choose a fresh first step
+  let level = startLevel | 0; // ladder level of the next step; -1: choose a fresh first step
   const k1r = kr[0], k1i = ki[0], k2r = kr[1], k2i = ki[1], k3r = kr[2], k3i = ki[2];
   const k4r = kr[3], k4i = ki[3], k5r = kr[4], k5i = ki[4], k6r = kr[5], k6i = ki[5], k7r = kr[6], k7i = ki[6];
   const tol2 = tol * tol;
 
   for (;;) {
+    const z = depth[0];
     // apply the jumps sitting at the current depth
     while (jumpIdx < nJumps && jumps[jumpIdx * stride] <= z) {
       applyJump(sys, jumps, jumpIdx * stride);
@@ -695,6 +701,7 @@ function march(sys: ColumnSystem, zStart: number, zStop: number, jumps: Float64A
       fsalValid = false;
       level = -1;
     }
+    const stop = depth[1];
     if (z >= stop) break;
     const zEnd = jumpIdx < nJumps ? jumps[jumpIdx * stride] : stop;
 
@@ -807,7 +814,7 @@ function march(sys: ColumnSystem, zStart: number, zStop: number, jumps: Float64A
         k1i[j] = er * e + ei * c;
       }
       accepted++;
-      z = zNext;
+      depth[0] = zNext;
       const fac = err < 3e-4 ? 5 : Math.min(5, 0.9 * Math.pow(err, -0.2));
       arg[0] = h * fac;
       level = levelFor(hmax, arg);
@@ -1159,14 +1166,18 @@ export function stretchMatrixNProbe(T: Float64Array, to: number, sys: ColumnSyst
   const k1r = kr[0], k1i = ki[0], k2r = kr[1], k2i = ki[1], k3r = kr[2], k3i = ki[2];
   const k4r = kr[3], k4i = ki[3], k5r = kr[4], k5i = ki[4], k6r = kr[5], k6i = ki[5], k7r = kr[6], k7i = ki[6];
   const tol2 = tol * tol;
-  // `+`: keeps the depth loop variables unboxed (see march)
-  let z = +a;
-  b = +b;
-  let level = startLevel;
+  // the depth in an array between steps (see march)
+  const depth = wk.depth;
+  depth[0] = a;
+  depth[1] = b;
+  let level = startLevel | 0;
   let accepted = 0;
   let fsalValid = false;
   let written = false; // T holds the result (the last step wrote it)
-  while (z < b) {
+  for (;;) {
+    const z = depth[0];
+    const end = depth[1];
+    if (!(z < end)) break;
     if (!fsalValid) {
       io[0] = z;
       probe(io);
@@ -1196,8 +1207,8 @@ export function stretchMatrixNProbe(T: Float64Array, to: number, sys: ColumnSyst
     let tab: Float64Array;
     let rot: Float64Array;
     let words: Float64Array | null = null;
-    if (z + h >= b || b - (z + h) < 1e-12 * Math.max(1, b)) {
-      h = b - z;
+    if (z + h >= end || end - (z + h) < 1e-12 * Math.max(1, end)) {
+      h = end - z;
       lastStep = true;
       let slot = h === mw.slotH[0] ? 0 : h === mw.slotH[1] ? 1 : -1;
       if (slot < 0) {
@@ -1264,7 +1275,7 @@ export function stretchMatrixNProbe(T: Float64Array, to: number, sys: ColumnSyst
       yi[q] = h * (A61 * k1i[q] + A62 * k2i[q] + A63 * k3i[q] + A64 * k4i[q] + A65 * k5i[q]);
     }
     addState(yr, yi, ur, ui, n, identity);
-    const zNext = lastStep ? b : z + h;
+    const zNext = lastStep ? end : z + h;
     io[0] = zNext;
     probe(io);
     beta[5] = io[1];
@@ -1327,7 +1338,7 @@ export function stretchMatrixNProbe(T: Float64Array, to: number, sys: ColumnSyst
       }
       accepted++;
       identity = false;
-      z = zNext;
+      depth[0] = zNext;
       const fac = err < 3e-4 ? 5 : Math.min(5, 0.9 * Math.pow(err, -0.2));
       arg[0] = h * fac;
       level = levelFor(hmax, arg);
