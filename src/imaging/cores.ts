@@ -38,6 +38,8 @@ interface CoreLine {
 export interface CoreGeometry {
   /** True when the column through image point (x, y) passes within `margin` nm of a modified core inside the foil. */
   near(x: number, y: number, margin: number): boolean;
+  /** near(p[0], p[1], p[2]) with the numbers in an array (nothing boxed per call; the renderer's per-pixel form). */
+  nearAt(p: Float64Array): boolean;
   /**
    * For a column inside a core: writes into out the image points (x1, y1, x2, y2) of the two columns just
    * outside the core of the nearest line, on either side of it.
@@ -93,11 +95,11 @@ export function coreGeometry(job: RenderJob): CoreGeometry | null {
   const reach = (l: CoreLine): void => {
     offset(l);
     const d = Math.abs(res[0]);
-    const m = l.r + q[2];
     if (l.len !== Infinity) {
-      segmentReach(l, m);
+      segmentReach(l);
       return;
     }
+    const m = l.r + q[2];
     // depth of closest approach of the column to the line (the column runs along k from the entrance surface)
     let z = L / 2;
     if (l.n !== null) {
@@ -107,7 +109,8 @@ export function coreGeometry(job: RenderJob): CoreGeometry | null {
     res[0] = d < m && z > -m && z < L + m ? d : Infinity;
   };
   // a finite segment (w = c0 - p left by offset): res[0] = distance of the column from the nearest point of the segment
-  const segmentReach = (l: CoreLine, m: number): void => {
+  const segmentReach = (l: CoreLine): void => {
+    const m = l.r + q[2];
     const b = k[0] * l.u[0] + k[1] * l.u[1] + k[2] * l.u[2];
     const wu = w[0] * l.u[0] + w[1] * l.u[1] + w[2] * l.u[2];
     const wk = w[0] * k[0] + w[1] * k[1] + w[2] * k[2];
@@ -125,16 +128,26 @@ export function coreGeometry(job: RenderJob): CoreGeometry | null {
     const d = Math.sqrt(ax * ax + ay * ay + az * az);
     res[0] = d < m && z > -m && z < L + m ? d : Infinity;
   };
+  // whether the query in q reaches a core
+  const nearQ = (): boolean => {
+    for (let i = 0; i < lines.length; i++) {
+      reach(lines[i]);
+      if (res[0] < Infinity) return true;
+    }
+    return false;
+  };
   return {
     near(x, y, margin) {
       q[0] = x;
       q[1] = y;
       q[2] = margin;
-      for (let i = 0; i < lines.length; i++) {
-        reach(lines[i]);
-        if (res[0] < Infinity) return true;
-      }
-      return false;
+      return nearQ();
+    },
+    nearAt(p) {
+      q[0] = p[0];
+      q[1] = p[1];
+      q[2] = p[2];
+      return nearQ();
     },
     escape(out, x, y) {
       q[0] = x;

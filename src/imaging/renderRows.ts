@@ -173,6 +173,11 @@ export function closestApproachDepth(p: Vec3, u: Vec3, cx: number, cy: number, c
 export interface ColumnEvaluator {
   /** Writes (re phi0, im phi0, re phig, im phig) into out; returns nothing. */
   column(out: Float64Array, x: number, y: number): void;
+  /**
+   * The same for the image point (out[0], out[1]), read before out is written: nothing is boxed per call
+   * (V8 boxes the double arguments of a call it does not inline). The renderer's per-pixel form.
+   */
+  columnAt(out: Float64Array): void;
   /** True when the job has no defect at all (every column is the perfect crystal). */
   readonly perfect: boolean;
   readonly stats: { slices: number };
@@ -190,14 +195,11 @@ export function columnEvaluator(job: RenderJob): ColumnEvaluator {
     const p = new Float64Array(4);
     if (mb === null) perfectCrystal(p, params, L);
     else mb.integrate(p, L, columnStrain(null, g_cart, frame.ez), new Float64Array(0));
-    return {
-      perfect: true,
-      stats,
-      column(out) {
-        out.set(p);
-        stats.slices++;
-      },
+    const columnAt = (out: Float64Array): void => {
+      out.set(p);
+      stats.slices++;
     };
+    return { perfect: true, stats, column: columnAt, columnAt };
   }
   // beta'(z) = g . (grad R) . ez along the column r(z) = c0 + z ez (and dR/dz for general beam sets);
   // the column entry point lives in strain.c0 (a typed array: mutable closure variables would be boxed)
@@ -223,73 +225,97 @@ export function columnEvaluator(job: RenderJob): ColumnEvaluator {
   const none = new Float64Array(0);
   const zs = new Float64Array(nMax);
   const as = new Float64Array(nMax);
+  const columnAt = (out: Float64Array): void => {
+    columnEntryPoint(c0, frame, out[0], out[1]);
+    const cx = c0[0];
+    const cy = c0[1];
+    const cz = c0[2];
+    let count = 0;
+    for (let s = 0; s < surfaces.length; s++) {
+      const f = surfaces[s];
+      const zc = crossingDepth(f, cx, cy, cz, kx, ky, kz, L);
+      if (zc !== zc) continue; // NaN: no crossing
+      // vector mode keeps the signed surface number (its jump is looked up below), else the phase
+      zs[count] = zc;
+      as[count] = vector ? (f.kn > 0 ? s + 1 : -(s + 1)) : f.kn > 0 ? f.alpha : -f.alpha;
+      count = insertByDepth(zs, as, count);
+    }
+    for (let d = 0; d < lines.length; d++) {
+      const zc = closestApproachDepth(lines[d].p, lines[d].u, cx, cy, cz, kx, ky, kz, L);
+      if (zc === zc) {
+        zs[count] = zc;
+        as[count] = 0;
+        count = insertByDepth(zs, as, count);
+      }
+    }
+    for (let d = 0; d < spheres.length; d++) {
+      // |c0 + z k - centre|^2 = r0^2  ->  z = -w.k +- sqrt((w.k)^2 - |w|^2 + r0^2), w = c0 - centre
+      const { c, r2 } = spheres[d];
+      const wx = cx - c[0], wy = cy - c[1], wz = cz - c[2];
+      const wk = wx * kx + wy * ky + wz * kz;
+      const disc = wk * wk - (wx * wx + wy * wy + wz * wz) + r2;
+      if (!(disc > 0)) continue; // the column misses the sphere (or touches it)
+      const root = Math.sqrt(disc);
+      const z1 = -wk - root;
+      const z2 = -wk + root;
+      if (z1 > 0 && z1 < L) {
+        zs[count] = z1;
+        as[count] = 0;
+        count = insertByDepth(zs, as, count);
+      }
+      if (z2 > 0 && z2 < L) {
+        zs[count] = z2;
+        as[count] = 0;
+        count = insertByDepth(zs, as, count);
+      }
+    }
+    for (let d = 0; d < loopPlanes.length; d++) {
+      const { p, n, reach2 } = loopPlanes[d];
+      const kn = kx * n[0] + ky * n[1] + kz * n[2];
+      if (Math.abs(kn) < 1e-12) continue;
+      const zc = ((p[0] - cx) * n[0] + (p[1] - cy) * n[1] + (p[2] - cz) * n[2]) / kn;
+      if (!(zc > 0 && zc < L)) continue;
+      const hx = cx + zc * kx - p[0], hy = cy + zc * ky - p[1], hz = cz + zc * kz - p[2];
+      if (hx * hx + hy * hy + hz * hz < reach2) {
+        zs[count] = zc;
+        as[count] = 0;
+        count = insertByDepth(zs, as, count);
+      }
+    }
+    let faults = none;
+    if (count > 0) {
+      faults = crossings[count - 1];
+      for (let q = 0; q < count; q++) {
+        if (!vector) {
+          faults[2 * q] = zs[q];
+          faults[2 * q + 1] = as[q];
+          continue;
+        }
+        const code = as[q];
+        const jump = code === 0 ? ZERO3 : surfaces[Math.abs(code) - 1].jump;
+        const sign = code < 0 ? -1 : 1;
+        faults[4 * q] = zs[q];
+        faults[4 * q + 1] = sign * jump[0];
+        faults[4 * q + 2] = sign * jump[1];
+        faults[4 * q + 3] = sign * jump[2];
+      }
+    }
+    if (mb !== null) stats.slices += mb.integrate(out, L, strain, faults);
+    else if (job.rk4Steps === undefined) integrateColumn(out, params, L, betaPrime, faults, tol, stats);
+    else {
+      rk4Column(out, params, L, betaPrime, job.rk4Steps);
+      stats.slices += job.rk4Steps;
+    }
+  };
   return {
     perfect: false,
     stats,
     column(out, x, y) {
-      columnEntryPoint(c0, frame, x, y);
-      const cx = c0[0];
-      const cy = c0[1];
-      const cz = c0[2];
-      let count = 0;
-      for (let s = 0; s < surfaces.length; s++) {
-        const f = surfaces[s];
-        const zc = crossingDepth(f, cx, cy, cz, kx, ky, kz, L);
-        if (zc !== zc) continue; // NaN: no crossing
-        // vector mode keeps the signed surface number (its jump is looked up below), else the phase
-        count = insertByDepth(zs, as, count, zc, vector ? (f.kn > 0 ? s + 1 : -(s + 1)) : f.kn > 0 ? f.alpha : -f.alpha);
-      }
-      for (let d = 0; d < lines.length; d++) {
-        const zc = closestApproachDepth(lines[d].p, lines[d].u, cx, cy, cz, kx, ky, kz, L);
-        if (zc === zc) count = insertByDepth(zs, as, count, zc, 0);
-      }
-      for (let d = 0; d < spheres.length; d++) {
-        // |c0 + z k - centre|^2 = r0^2  ->  z = -w.k +- sqrt((w.k)^2 - |w|^2 + r0^2), w = c0 - centre
-        const { c, r2 } = spheres[d];
-        const wx = cx - c[0], wy = cy - c[1], wz = cz - c[2];
-        const wk = wx * kx + wy * ky + wz * kz;
-        const disc = wk * wk - (wx * wx + wy * wy + wz * wz) + r2;
-        if (!(disc > 0)) continue; // the column misses the sphere (or touches it)
-        const root = Math.sqrt(disc);
-        const z1 = -wk - root;
-        const z2 = -wk + root;
-        if (z1 > 0 && z1 < L) count = insertByDepth(zs, as, count, z1, 0);
-        if (z2 > 0 && z2 < L) count = insertByDepth(zs, as, count, z2, 0);
-      }
-      for (let d = 0; d < loopPlanes.length; d++) {
-        const { p, n, reach2 } = loopPlanes[d];
-        const kn = kx * n[0] + ky * n[1] + kz * n[2];
-        if (Math.abs(kn) < 1e-12) continue;
-        const zc = ((p[0] - cx) * n[0] + (p[1] - cy) * n[1] + (p[2] - cz) * n[2]) / kn;
-        if (!(zc > 0 && zc < L)) continue;
-        const hx = cx + zc * kx - p[0], hy = cy + zc * ky - p[1], hz = cz + zc * kz - p[2];
-        if (hx * hx + hy * hy + hz * hz < reach2) count = insertByDepth(zs, as, count, zc, 0);
-      }
-      let faults = none;
-      if (count > 0) {
-        faults = crossings[count - 1];
-        for (let q = 0; q < count; q++) {
-          if (!vector) {
-            faults[2 * q] = zs[q];
-            faults[2 * q + 1] = as[q];
-            continue;
-          }
-          const code = as[q];
-          const jump = code === 0 ? ZERO3 : surfaces[Math.abs(code) - 1].jump;
-          const sign = code < 0 ? -1 : 1;
-          faults[4 * q] = zs[q];
-          faults[4 * q + 1] = sign * jump[0];
-          faults[4 * q + 2] = sign * jump[1];
-          faults[4 * q + 3] = sign * jump[2];
-        }
-      }
-      if (mb !== null) stats.slices += mb.integrate(out, L, strain, faults);
-      else if (job.rk4Steps === undefined) integrateColumn(out, params, L, betaPrime, faults, tol, stats);
-      else {
-        rk4Column(out, params, L, betaPrime, job.rk4Steps);
-        stats.slices += job.rk4Steps;
-      }
+      out[0] = x;
+      out[1] = y;
+      columnAt(out);
     },
+    columnAt,
   };
 }
 
@@ -303,8 +329,14 @@ function loopReach2(p: Vec3, v: readonly number[]): number {
   return LOOP_BREAK_RADII * LOOP_BREAK_RADII * r2;
 }
 
-/** Insert (z, alpha) into the first `count` entries of zs/as kept sorted by z; returns the new count. */
-function insertByDepth(zs: Float64Array, as: Float64Array, count: number, z: number, alpha: number): number {
+/**
+ * Insert the entry (z, alpha) that the caller wrote at index `count` of zs/as into the first `count`
+ * entries kept sorted by z; returns the new count. (Written there rather than passed: a double argument
+ * is boxed when V8 does not inline the call, once per crossing of every column.)
+ */
+function insertByDepth(zs: Float64Array, as: Float64Array, count: number): number {
+  const z = zs[count];
+  const alpha = as[count];
   let q = count;
   while (q > 0 && zs[q - 1] > z) {
     zs[q] = zs[q - 1];
@@ -369,13 +401,18 @@ export function renderRows(job: RenderJob, row0: number, row1: number, bf: Float
   const margin = Math.SQRT1_2 * pixel_nm;
   const S = CORE_SUBSAMPLES;
   const esc = new Float64Array(4);
+  // the query of cores.nearAt: image point and margin (numbers go through arrays, see columnAt)
+  const at = new Float64Array(3);
   let columns = 0;
   let k = 0;
   for (let j = row0; j < row1; j++) {
     const y = pixelX(j, height, pixel_nm);
     for (let i = 0; i < width; i++, k++) {
       const x = pixelX(i, width, pixel_nm);
-      if (cores !== null && cores.near(x, y, margin)) {
+      at[0] = x;
+      at[1] = y;
+      at[2] = margin;
+      if (cores !== null && cores.nearAt(at)) {
         // average over the pixel's area outside the cores (S x S sub-columns; those inside a core are left out)
         let a = 0;
         let b = 0;
@@ -384,8 +421,13 @@ export function renderRows(job: RenderJob, row0: number, row1: number, bf: Float
           for (let r = 0; r < S; r++) {
             const xs = x + ((r + 0.5) / S - 0.5) * pixel_nm;
             const ys = y + ((q + 0.5) / S - 0.5) * pixel_nm;
-            if (cores.near(xs, ys, 0)) continue;
-            ev.column(out, xs, ys);
+            at[0] = xs;
+            at[1] = ys;
+            at[2] = 0;
+            if (cores.nearAt(at)) continue;
+            out[0] = xs;
+            out[1] = ys;
+            ev.columnAt(out);
             a += out[0] * out[0] + out[1] * out[1];
             b += out[2] * out[2] + out[3] * out[3];
             m++;
@@ -405,7 +447,9 @@ export function renderRows(job: RenderJob, row0: number, row1: number, bf: Float
         df[k] = b / m;
         columns += m;
       } else {
-        ev.column(out, x, y);
+        out[0] = x;
+        out[1] = y;
+        ev.columnAt(out);
         bf[k] = out[0] * out[0] + out[1] * out[1];
         df[k] = out[2] * out[2] + out[3] * out[3];
         columns++;
