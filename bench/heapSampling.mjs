@@ -42,6 +42,14 @@ async function measure(label, f) {
   }
   console.log(`${label}: ${st.columns} columns, ${st.slices} steps; sampled allocation ${(allBytes / 1024).toFixed(1)} KiB = ${(allBytes / st.slices).toFixed(3)} bytes/step, ${(allBytes / st.columns).toFixed(2)} bytes/column`);
   for (const [k, v] of [...bySample].sort((a, b) => b[1] - a[1]).slice(0, 6)) console.log(`   ${(v / 1024).toFixed(1)} KiB  ${k}`);
+  // by module: the stepper and the fields (per step) apart from the per-render set-up (Bloch waves, field constants)
+  const byFile = new Map();
+  for (const [k, v] of bySample) {
+    const file = k.split(' ')[1].split(':')[0] || '(builtin)';
+    byFile.set(file, (byFile.get(file) ?? 0) + v);
+  }
+  const files = [...byFile].sort((a, b) => b[1] - a[1]).slice(0, 5);
+  console.log(`   by module, bytes/step: ${files.map(([f, v]) => `${f} ${(v / st.slices).toFixed(3)}`).join(', ')}`);
 }
 const sc = parseScenario(wb);
 const job = renderJob(sc, resolveCondition(sc, sc.conditions[0]));
