@@ -61,4 +61,8 @@ await measure('7-beam weak beam 128x128, shared columns', () => renderTranslated
 const dsc = parseScenario(DEMO_SCENARIO);
 const djob = renderJob(dsc, resolveCondition(dsc, dsc.conditions[4]));
 await measure('demo g220-wb3 (9 beams), rows 100-108, column by column', () => renderRows(djob, 100, 108, new Float32Array(8 * 256), new Float32Array(8 * 256)));
+// a general beam set (not a systematic row): the stepper takes dR/dz, a 3-vector, from field.gradient
+const gsc = parseScenario({ ...wb, image: { width_px: 64, height_px: 64, pixel_nm: 0.5 }, conditions: [{ id: 'set', g: [2, 2, 0], s_per_nm: 0.01, beams: { set: [[-2, -2, 0], [2, -2, 0], [-2, 2, 0]] } }] });
+const gjob = renderJob(gsc, resolveCondition(gsc, gsc.conditions[0]));
+await measure('4-beam general set 64x64, column by column', () => renderRows(gjob, 0, gjob.height, new Float32Array(64 * 64), new Float32Array(64 * 64)));
 session.disconnect();

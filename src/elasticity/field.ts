@@ -22,6 +22,14 @@ export interface DisplacementField {
    * `directionalProbe` wraps `directional` for a field without it.
    */
   directionalAt?(g: readonly [number, number, number], k: readonly [number, number, number]): DirectionalProbe;
+  /** `gradient` at the point p[0..2] (nothing boxed per call; optional, see `gradientProbe`). */
+  gradientAt?(out: Float64Array, p: Float64Array): void;
+}
+
+/** The field's gradient with the point in an array: its own `gradientAt`, or `gradient` wrapped (which may box per call). */
+export function gradientProbe(field: DisplacementField): (out: Float64Array, p: Float64Array) => void {
+  if (field.gradientAt !== undefined) return field.gradientAt;
+  return (out, p) => field.gradient(out, p[0], p[1], p[2]);
 }
 
 /** Reads a point from p[0..2] (nm), writes a scalar of the field there into p[3]. */
@@ -36,10 +44,31 @@ export function directionalProbe(field: DisplacementField, g: readonly [number, 
   };
 }
 
-/** A field whose `directional` is its `directionalAt` behind a scalar function (the same numbers). */
-export function withDirectional(field: Omit<DisplacementField, 'directional' | 'directionalAt'> & { directionalAt: NonNullable<DisplacementField['directionalAt']> }): DisplacementField {
+/** The parts of a field written in the array forms (`gradient` may be given instead of `gradientAt`). */
+export type ArrayFormField = Omit<DisplacementField, 'directional' | 'directionalAt' | 'gradient'> & {
+  readonly directionalAt: NonNullable<DisplacementField['directionalAt']>;
+  readonly gradient?: DisplacementField['gradient'];
+};
+
+/**
+ * A field whose `directional` (and `gradient`, when only `gradientAt` is given) are its array forms behind
+ * scalar functions (the same numbers).
+ */
+export function withDirectional(field: ArrayFormField): DisplacementField {
+  const gradientAt = field.gradientAt;
+  const q = new Float64Array(3);
+  const gradient: DisplacementField['gradient'] =
+    field.gradient ??
+    ((out, x, y, z) => {
+      q[0] = x;
+      q[1] = y;
+      q[2] = z;
+      gradientAt!(out, q);
+    });
+  if (field.gradient === undefined && gradientAt === undefined) throw new Error('withDirectional: give gradient or gradientAt');
   return {
     ...field,
+    gradient,
     directional(g, k) {
       const probe = field.directionalAt(g, k);
       const p = new Float64Array(4);
@@ -64,6 +93,7 @@ export function superpose(fields: readonly DisplacementField[]): DisplacementFie
   const n = list.length;
   const d = new Float64Array(3);
   const g = new Float64Array(9);
+  const grads = list.map(gradientProbe);
   return withDirectional({
     displacement(out, x, y, z) {
       out[0] = 0;
@@ -76,10 +106,10 @@ export function superpose(fields: readonly DisplacementField[]): DisplacementFie
         out[2] += d[2];
       }
     },
-    gradient(out, x, y, z) {
+    gradientAt(out, p) {
       for (let i = 0; i < 9; i++) out[i] = 0;
       for (let k = 0; k < n; k++) {
-        list[k].gradient(g, x, y, z);
+        grads[k](g, p);
         for (let i = 0; i < 9; i++) out[i] += g[i];
       }
     },

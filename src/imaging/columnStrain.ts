@@ -6,7 +6,7 @@
  * per thread.
  */
 import type { Vec3 } from '../math/vec3.js';
-import { type DisplacementField, directionalProbe } from '../elasticity/field.js';
+import { type DisplacementField, directionalProbe, gradientProbe } from '../elasticity/field.js';
 import type { StrainProbe } from '../dynamics/manyBeam.js';
 
 export interface ColumnStrain {
@@ -37,6 +37,7 @@ export function columnStrain(field: DisplacementField | null, g: Vec3, k: Vec3):
     };
   }
   const dir = directionalProbe(field, g, k);
+  const gradAt = gradientProbe(field);
   const pt = new Float64Array(4);
   const grad = new Float64Array(9);
   return {
@@ -58,7 +59,10 @@ export function columnStrain(field: DisplacementField | null, g: Vec3, k: Vec3):
     },
     dRdzProbe: (io) => {
       const z = io[0];
-      field.gradient(grad, c0[0] + z * kx, c0[1] + z * ky, c0[2] + z * kz);
+      pt[0] = c0[0] + z * kx;
+      pt[1] = c0[1] + z * ky;
+      pt[2] = c0[2] + z * kz;
+      gradAt(grad, pt);
       io[1] = grad[0] * kx + grad[1] * ky + grad[2] * kz;
       io[2] = grad[3] * kx + grad[4] * ky + grad[5] * kz;
       io[3] = grad[6] * kx + grad[7] * ky + grad[8] * kz;
