@@ -269,7 +269,10 @@ export function renderTranslated(job: RenderJob, plan: TranslationPlan, part: nu
     for (let q = 0; q < S; q++) {
       for (let r = 0; r < S; r++) {
         const o = (q * S + r) * maxK;
-        if (uses.subarray(o, o + K).indexOf(1) < 0) continue;
+        // any member using this sub-column (a plain loop: subarray would allocate a view per call)
+        let used = false;
+        for (let k = 0; k < K && !used; k++) used = uses[o + k] === 1;
+        if (!used) continue;
         windows(amp, x0 + ((r + 0.5) / S - 0.5) * pixel_nm, y0 + ((q + 0.5) / S - 0.5) * pixel_nm, K);
         for (let k = 0; k < K; k++) {
           if (uses[o + k] === 0) continue;
@@ -330,7 +333,9 @@ export function renderTranslated(job: RenderJob, plan: TranslationPlan, part: nu
       bf[pixel] = sumB[k] / count[k];
       df[pixel] = sumD[k] / count[k];
     }
-    columns += K + (S * S - 1) * isNear.subarray(0, K).reduce((a, b) => a + b, 0);
+    let nNear = 0;
+    for (let k = 0; k < K; k++) nNear += isNear[k];
+    columns += K + (S * S - 1) * nNear;
   }
   return { slices: windows.stats.slices, columns };
 }

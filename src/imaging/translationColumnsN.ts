@@ -186,7 +186,7 @@ export function classWindowsN(job: RenderJob, plan: TranslationPlan): ClassWindo
       }
       if (a >= frontEnd) {
         if (backEnd > frontEnd) {
-          F.set(E.subarray(nn * (backEnd - 1), nn * backEnd), nn * (backEnd - 1));
+          for (let q = nn * (backEnd - 1); q < nn * backEnd; q++) F[q] = E[q]; // (no subarray view per call)
           for (let t = backEnd - 2; t >= frontEnd; t--) mulN(F, nn * t, F, nn * (t + 1), E, nn * t, n);
         }
         frontEnd = backEnd;
