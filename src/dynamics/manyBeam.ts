@@ -99,7 +99,18 @@ interface Work {
   readonly kr: Float64Array[]; // 7 stages
   readonly ki: Float64Array[];
   readonly d: Float64Array; // per-beam strain term g_j . dR/dz (general beam set)
-  readonly w: Float64Array; // strain components at the last evaluated z (beta', or dR/dz)
+  /**
+   * The probe's array: the depth of the next strain evaluation in io[0], the strain components there in
+   * io[1] (beta') or io[1..3] (dR/dz). Depths and strains pass through it, never as call arguments or
+   * return values: a double crossing a call that V8 does not inline is boxed (a heap allocation).
+   */
+  readonly io: Float64Array;
+  /** the depth of the stepper between steps, and where it stops */
+  readonly depth: Float64Array;
+  /** a step length handed to levelFor */
+  readonly arg: Float64Array;
+  /** the step lengths of the ladder, ladderStep(maxStep_nm, k) for k = 0..LEVELS */
+  readonly ladder: Float64Array;
   readonly vr: Float64Array;
   readonly vi: Float64Array;
   readonly pr: Float64Array;
@@ -127,9 +138,8 @@ interface Work {
   customRotValid: boolean;
   readonly fr: Float64Array; // phase factors of a fault
   readonly fi: Float64Array;
-  /** the strain callback of the running integration */
-  betaPrime: ((z: number) => number) | null;
-  dRdz: ((z: number, out3: Float64Array) => void) | null;
+  /** the strain probe of the running integration */
+  probe: StrainProbe | null;
   /** statistics of the last integration */
   readonly stats: { accepted: number; rejected: number; evaluations: number };
   /** ladder level the last march would have used next (stretchMatrixN can start from it) */
@@ -207,7 +217,10 @@ function prepare(input: ManyBeamInput, factors: Float64Array, strainDim: 1 | 3, 
     kr: Array.from({ length: 7 }, f),
     ki: Array.from({ length: 7 }, f),
     d: f(),
-    w: new Float64Array(strainDim),
+    io: new Float64Array(4),
+    arg: new Float64Array(1),
+    depth: new Float64Array(2),
+    ladder: Float64Array.from({ length: LEVELS + 1 }, (_, k) => ladderStep(maxStep, k)),
     vr: f(),
     vi: f(),
     pr: f(),
@@ -221,8 +234,7 @@ function prepare(input: ManyBeamInput, factors: Float64Array, strainDim: 1 | 3, 
     customRotValid: false,
     fr: f(),
     fi: f(),
-    betaPrime: null,
-    dRdz: null,
+    probe: null,
     stats: { accepted: 0, rejected: 0, evaluations: 0 },
     lastLevel: -1,
     customH: NaN,
@@ -265,8 +277,35 @@ export function integrateColumnN(
   tol = 1e-6,
   faults: Float64Array = NO_JUMPS,
 ): number {
+  return integrateColumnNProbe(out, system, thickness_nm, scalarProbe(betaPrime), tol, faults);
+}
+
+/**
+ * The strain of a column as a probe that allocates nothing per call: it reads the depth io[0] (nm) and
+ * writes beta' into io[1] (systematic row) or dR/dz into io[1..3] (general beam set). Every number passes
+ * through the array: a double passed to or returned from a call that V8 does not inline is boxed (a heap
+ * allocation per call), so the renderer's hot path uses this form.
+ */
+export type StrainProbe = (io: Float64Array) => void;
+
+/** A probe calling betaPrime(z) (for callers with a scalar function; its return value may be boxed per call). */
+function scalarProbe(betaPrime: (z_nm: number) => number): StrainProbe {
+  return (io) => {
+    io[1] = betaPrime(io[0]);
+  };
+}
+
+/** integrateColumnN with the strain given as a probe (io[0] = z in, io[1] = beta' out). */
+export function integrateColumnNProbe(
+  out: Float64Array,
+  system: ColumnSystem,
+  thickness_nm: number,
+  probe: StrainProbe,
+  tol = 1e-6,
+  faults: Float64Array = NO_JUMPS,
+): number {
   if (system.strainDim !== 1) throw new InternalError('this column system was prepared for a general beam set: use integrateColumnNVector.');
-  return integrate(out, system, thickness_nm, betaPrime, null, tol, faults, 2);
+  return integrate(out, system, thickness_nm, probe, tol, faults, 2);
 }
 
 /**
@@ -284,8 +323,27 @@ export function integrateColumnNVector(
   tol = 1e-6,
   faults: Float64Array = NO_JUMPS,
 ): number {
+  const w = new Float64Array(3);
+  const probe: StrainProbe = (io) => {
+    dRdz(io[0], w);
+    io[1] = w[0];
+    io[2] = w[1];
+    io[3] = w[2];
+  };
+  return integrateColumnNVectorProbe(out, system, thickness_nm, probe, tol, faults);
+}
+
+/** integrateColumnNVector with the strain given as a probe (io[0] = z in, io[1..3] = dR/dz out). */
+export function integrateColumnNVectorProbe(
+  out: Float64Array,
+  system: ColumnSystem,
+  thickness_nm: number,
+  probe: StrainProbe,
+  tol = 1e-6,
+  faults: Float64Array = NO_JUMPS,
+): number {
   if (system.strainDim !== 3) throw new InternalError('this column system was prepared for a systematic row: use integrateColumnN.');
-  return integrate(out, system, thickness_nm, null, dRdz, tol, faults, 4);
+  return integrate(out, system, thickness_nm, probe, tol, faults, 4);
 }
 
 const NO_JUMPS = new Float64Array(0);
@@ -302,7 +360,13 @@ const E1 = 71 / 57600, E3 = -71 / 16695, E4 = 71 / 1920, E5 = -17253 / 339200, E
 
 const TWO_PI = 2 * Math.PI;
 
-function strainError(z: number): InternalError {
+/**
+ * The error for a non-finite strain near the depth at[0]. The depth comes in an array: the stepper's depth
+ * variable passed as an argument, even on this throwing branch, would make the optimiser keep it boxed
+ * (a heap number allocated every step).
+ */
+function strainError(at: Float64Array): InternalError {
+  const z = at[0];
   return new InternalError(
     `the strain term (beta' or dR/dz) is not finite near depth ${z.toPrecision(6)} nm: check the displacement field of the defects.`,
   );
@@ -338,10 +402,15 @@ function ladderStep(hmax: number, k: number): number {
   return hmax * Math.pow(2, -k / 4);
 }
 
-/** Ladder level of the largest ladder step not longer than h. */
-function levelFor(hmax: number, h: number): number {
+/**
+ * Ladder level of the largest ladder step not longer than h = at[0] (handed over in an array: a double
+ * argument of a call V8 does not inline is boxed, and this one runs every step).
+ */
+function levelFor(hmax: number, at: Float64Array): number {
+  const h = at[0];
   if (!(h < hmax)) return 0;
-  const k = Math.ceil(-4 * Math.log2(h / hmax) - 1e-9);
+  // an integer in [0, LEVELS]; `| 0` keeps it a small integer for the optimiser (a double level would be boxed)
+  const k = Math.ceil(-4 * Math.log2(h / hmax) - 1e-9) | 0;
   return k > LEVELS ? LEVELS : k;
 }
 
@@ -351,7 +420,7 @@ function levelTable(sys: ColumnSystem, k: number): Float64Array {
   let t = levels[k];
   if (t === null) {
     t = new Float64Array(20 * sys.n);
-    tabulateE(sys, ladderStep(sys.maxStep_nm, k), t);
+    tabulateE(sys, sys.work.ladder[k], t);
     levels[k] = t;
   }
   return t;
@@ -397,23 +466,24 @@ function rotate(sys: ColumnSystem, tab: Float64Array, r: Float64Array): void {
   }
 }
 
-/** General beam set: the strain term g_j . dR/dz of every beam at depth z into work.d. */
-function fillStrain(sys: ColumnSystem, z: number): void {
+/** General beam set: the strain term g_j . dR/dz of every beam at the depth work.io[0] into work.d. */
+function fillStrain(sys: ColumnSystem): void {
   const wk = sys.work;
   const n = sys.n;
   const d = wk.d;
   const f = sys.factors;
-  const w = wk.w;
-  wk.dRdz!(z, w);
-  const w0 = w[0], w1 = w[1], w2 = w[2];
+  const io = wk.io;
+  wk.probe!(io);
+  const w0 = io[1], w1 = io[2], w2 = io[3];
   for (let j = 0; j < n; j++) d[j] = f[3 * j] * w0 + f[3 * j + 1] * w1 + f[3 * j + 2] * w2;
 }
 
 /**
- * Right-hand side f = 2 pi i E^-1 C^-1 D(z) C E u at depth z, with E = E(c_s h)
- * from the table (s = -1: E = I, the start of the step).
+ * Right-hand side f = 2 pi i E^-1 C^-1 D(z) C E u at the depth z = work.io[0] (set by the caller: a depth
+ * passed as an argument would be boxed per call), with E = E(c_s h) from the table (s = -1: E = I, the
+ * start of the step).
  */
-function rhs(sys: ColumnSystem, z: number, s: number, ur: Float64Array, ui: Float64Array, fr: Float64Array, fi: Float64Array): void {
+function rhs(sys: ColumnSystem, s: number, ur: Float64Array, ui: Float64Array, fr: Float64Array, fi: Float64Array): void {
   const wk = sys.work;
   const n = sys.n;
   wk.stats.evaluations++;
@@ -423,8 +493,9 @@ function rhs(sys: ColumnSystem, z: number, s: number, ur: Float64Array, ui: Floa
   let mIm: Float64Array;
   const d = wk.d;
   if (sys.strainDim === 1) {
-    const b = wk.betaPrime!(z);
-    wk.w[0] = b;
+    const io = wk.io;
+    wk.probe!(io);
+    const b = io[1];
     if (b === 0) {
       fr.fill(0);
       fi.fill(0);
@@ -454,7 +525,7 @@ function rhs(sys: ColumnSystem, z: number, s: number, ur: Float64Array, ui: Floa
     mRe = sys.mRe;
     mIm = sys.mIm;
   } else {
-    fillStrain(sys, z);
+    fillStrain(sys);
     let any = false;
     for (let j = 0; j < n; j++) if (d[j] !== 0) any = true; // NaN counts as non-zero
     if (!any) {
@@ -543,8 +614,7 @@ function integrate(
   out: Float64Array,
   sys: ColumnSystem,
   thickness: number,
-  betaPrime: ((z: number) => number) | null,
-  dRdz: ((z: number, out3: Float64Array) => void) | null,
+  probe: StrainProbe,
   tol: number,
   jumps: Float64Array,
   stride: 2 | 4,
@@ -557,8 +627,7 @@ function integrate(
   const n = sys.n;
   const wk = sys.work;
   const { ur, ui } = wk;
-  wk.betaPrime = betaPrime;
-  wk.dRdz = dRdz;
+  wk.probe = probe;
   wk.stats.accepted = 0;
   wk.stats.rejected = 0;
   wk.stats.evaluations = 0;
@@ -583,8 +652,7 @@ function integrate(
   ur.set(sys.psi0Re);
   ui.set(sys.psi0Im);
   const accepted = march(sys, 0, thickness, jumps, nJumps, stride, tol);
-  wk.betaPrime = null;
-  wk.dRdz = null;
+  wk.probe = null;
 
   // phi = C psi
   const { cRe, cIm } = sys;
@@ -607,20 +675,25 @@ function integrate(
 function march(sys: ColumnSystem, zStart: number, zStop: number, jumps: Float64Array, nJumps: number, stride: 2 | 4, tol: number, startLevel = -1): number {
   const n = sys.n;
   const wk = sys.work;
-  const { ur, ui, yr, yi, kr, ki } = wk;
+  const { ur, ui, yr, yi, kr, ki, io, arg, ladder } = wk;
   const hmax = sys.maxStep_nm;
-  let z = zStart;
+  // The depth lives in an array between steps, not in a loop variable: TurboFan kept that variable (a phi
+  // mixing the untyped parameter with doubles) boxed and allocated a heap number for it every step
+  // (seen with --print-opt-code, measured with bench/heapSampling.mjs).
+  const depth = wk.depth;
+  depth[0] = zStart;
+  depth[1] = zStop;
   let jumpIdx = 0;
   let accepted = 0;
   let rejected = 0;
   let fsalValid = false;
-  let level = startLevel; // ladder level of the next step; -1: choose a fresh first step
-  let h = 0;
+  let level = startLevel | 0; // ladder level of the next step; -1: choose a fresh first step
   const k1r = kr[0], k1i = ki[0], k2r = kr[1], k2i = ki[1], k3r = kr[2], k3i = ki[2];
   const k4r = kr[3], k4i = ki[3], k5r = kr[4], k5i = ki[4], k6r = kr[5], k6i = ki[5], k7r = kr[6], k7i = ki[6];
   const tol2 = tol * tol;
 
   for (;;) {
+    const z = depth[0];
     // apply the jumps sitting at the current depth
     while (jumpIdx < nJumps && jumps[jumpIdx * stride] <= z) {
       applyJump(sys, jumps, jumpIdx * stride);
@@ -628,25 +701,31 @@ function march(sys: ColumnSystem, zStart: number, zStop: number, jumps: Float64A
       fsalValid = false;
       level = -1;
     }
-    if (z >= zStop) break;
-    const zEnd = jumpIdx < nJumps ? jumps[jumpIdx * stride] : zStop;
+    const stop = depth[1];
+    if (z >= stop) break;
+    const zEnd = jumpIdx < nJumps ? jumps[jumpIdx * stride] : stop;
 
     if (!fsalValid) {
-      rhs(sys, z, -1, ur, ui, k1r, k1i);
+      io[0] = z;
+      rhs(sys, -1, ur, ui, k1r, k1i);
       if (level < 0) {
         // largest |g_j . dR/dz| at z (left by rhs in w or d)
         let dmax = 0;
         if (sys.strainDim === 1) {
-          for (let j = 0; j < n; j++) dmax = Math.max(dmax, Math.abs(sys.factors[j] * wk.w[0]));
+          for (let j = 0; j < n; j++) dmax = Math.max(dmax, Math.abs(sys.factors[j] * io[1]));
         } else {
           for (let j = 0; j < n; j++) dmax = Math.max(dmax, Math.abs(wk.d[j]));
         }
-        if (!Number.isFinite(dmax)) throw strainError(z);
-        level = levelFor(hmax, 0.05 / (TWO_PI * dmax + 1e-300));
+        if (!Number.isFinite(dmax)) {
+          arg[0] = z;
+          throw strainError(arg);
+        }
+        arg[0] = 0.05 / (TWO_PI * dmax + 1e-300);
+        level = levelFor(hmax, arg);
       }
       fsalValid = true;
     }
-    h = ladderStep(hmax, level);
+    let h = ladder[level];
     let lastStep = false;
     if (z + h >= zEnd || zEnd - (z + h) < 1e-12 * Math.max(1, zEnd)) {
       h = zEnd - z;
@@ -674,33 +753,39 @@ function march(sys: ColumnSystem, zStart: number, zStop: number, jumps: Float64A
       yr[j] = ur[j] + h * A21 * k1r[j];
       yi[j] = ui[j] + h * A21 * k1i[j];
     }
-    rhs(sys, z + C2 * h, 0, yr, yi, k2r, k2i);
+    io[0] = z + C2 * h;
+    rhs(sys, 0, yr, yi, k2r, k2i);
     for (let j = 0; j < n; j++) {
       yr[j] = ur[j] + h * (A31 * k1r[j] + A32 * k2r[j]);
       yi[j] = ui[j] + h * (A31 * k1i[j] + A32 * k2i[j]);
     }
-    rhs(sys, z + C3 * h, 1, yr, yi, k3r, k3i);
+    io[0] = z + C3 * h;
+    rhs(sys, 1, yr, yi, k3r, k3i);
     for (let j = 0; j < n; j++) {
       yr[j] = ur[j] + h * (A41 * k1r[j] + A42 * k2r[j] + A43 * k3r[j]);
       yi[j] = ui[j] + h * (A41 * k1i[j] + A42 * k2i[j] + A43 * k3i[j]);
     }
-    rhs(sys, z + C4 * h, 2, yr, yi, k4r, k4i);
+    io[0] = z + C4 * h;
+    rhs(sys, 2, yr, yi, k4r, k4i);
     for (let j = 0; j < n; j++) {
       yr[j] = ur[j] + h * (A51 * k1r[j] + A52 * k2r[j] + A53 * k3r[j] + A54 * k4r[j]);
       yi[j] = ui[j] + h * (A51 * k1i[j] + A52 * k2i[j] + A53 * k3i[j] + A54 * k4i[j]);
     }
-    rhs(sys, z + C5 * h, 3, yr, yi, k5r, k5i);
+    io[0] = z + C5 * h;
+    rhs(sys, 3, yr, yi, k5r, k5i);
     for (let j = 0; j < n; j++) {
       yr[j] = ur[j] + h * (A61 * k1r[j] + A62 * k2r[j] + A63 * k3r[j] + A64 * k4r[j] + A65 * k5r[j]);
       yi[j] = ui[j] + h * (A61 * k1i[j] + A62 * k2i[j] + A63 * k3i[j] + A64 * k4i[j] + A65 * k5i[j]);
     }
     const zNext = lastStep ? zEnd : z + h;
-    rhs(sys, zNext, 4, yr, yi, k6r, k6i);
+    io[0] = zNext;
+    rhs(sys, 4, yr, yi, k6r, k6i);
     for (let j = 0; j < n; j++) {
       yr[j] = ur[j] + h * (A71 * k1r[j] + A73 * k3r[j] + A74 * k4r[j] + A75 * k5r[j] + A76 * k6r[j]);
       yi[j] = ui[j] + h * (A71 * k1i[j] + A73 * k3i[j] + A74 * k4i[j] + A75 * k5i[j] + A76 * k6i[j]);
     }
-    rhs(sys, zNext, 4, yr, yi, k7r, k7i);
+    io[0] = zNext;
+    rhs(sys, 4, yr, yi, k7r, k7i);
     // local error, weighted by |E(h)| so that it measures the Bloch amplitudes at z + h
     let err2 = 0;
     const off = 4 * n;
@@ -712,7 +797,10 @@ function march(sys: ColumnSystem, zStart: number, zStop: number, jumps: Float64A
       err2 = Math.max(err2, e2); // propagates NaN
     }
     const err = Math.sqrt(err2 / tol2);
-    if (!Number.isFinite(err)) throw strainError(z);
+    if (!Number.isFinite(err)) {
+      arg[0] = z;
+      throw strainError(arg);
+    }
     if (err <= 1 || level >= LEVELS) {
       // accept: re-anchor, psi(z + h) = E(h) u(h); FSAL derivative k7 -> E(h) k7
       for (let j = 0; j < n; j++) {
@@ -726,12 +814,14 @@ function march(sys: ColumnSystem, zStart: number, zStop: number, jumps: Float64A
         k1i[j] = er * e + ei * c;
       }
       accepted++;
-      z = zNext;
+      depth[0] = zNext;
       const fac = err < 3e-4 ? 5 : Math.min(5, 0.9 * Math.pow(err, -0.2));
-      level = levelFor(hmax, h * fac);
+      arg[0] = h * fac;
+      level = levelFor(hmax, arg);
     } else {
       rejected++;
-      level = Math.max(level + 1, levelFor(hmax, h * Math.max(0.2, 0.9 * Math.pow(err, -0.2))));
+      arg[0] = h * Math.max(0.2, 0.9 * Math.pow(err, -0.2));
+      level = Math.max(level + 1, levelFor(hmax, arg));
       if (level > LEVELS) level = LEVELS;
     }
   }
@@ -1054,6 +1144,11 @@ function addState(yr: Float64Array, yi: Float64Array, ur: Float64Array, ui: Floa
  * the matrix of a stretch.
  */
 export function stretchMatrixN(T: Float64Array, to: number, sys: ColumnSystem, a: number, b: number, betaPrime: (z_nm: number) => number, tol: number, startLevel = -1): number {
+  return stretchMatrixNProbe(T, to, sys, a, b, scalarProbe(betaPrime), tol, startLevel);
+}
+
+/** stretchMatrixN with beta' given as a probe (io[0] = z in, io[1] = beta' out; nothing boxed per call). */
+export function stretchMatrixNProbe(T: Float64Array, to: number, sys: ColumnSystem, a: number, b: number, probe: StrainProbe, tol: number, startLevel = -1): number {
   if (sys.strainDim !== 1) throw new InternalError('this column system was prepared for a general beam set: stretchMatrixN takes a systematic row.');
   const n = sys.n;
   const nn = n * n;
@@ -1061,6 +1156,7 @@ export function stretchMatrixN(T: Float64Array, to: number, sys: ColumnSystem, a
   const mw = matrixWork(sys);
   const wk = sys.work;
   const { ur, ui, yr, yi, kr, ki, sr, si, beta } = mw;
+  const { io, arg, ladder } = wk;
   // the state starts as the identity
   ur.fill(0);
   ui.fill(0);
@@ -1070,15 +1166,26 @@ export function stretchMatrixN(T: Float64Array, to: number, sys: ColumnSystem, a
   const k1r = kr[0], k1i = ki[0], k2r = kr[1], k2i = ki[1], k3r = kr[2], k3i = ki[2];
   const k4r = kr[3], k4i = ki[3], k5r = kr[4], k5i = ki[4], k6r = kr[5], k6i = ki[5], k7r = kr[6], k7i = ki[6];
   const tol2 = tol * tol;
-  let z = a;
-  let level = startLevel;
+  // the depth in an array between steps (see march)
+  const depth = wk.depth;
+  depth[0] = a;
+  depth[1] = b;
+  let level = startLevel | 0;
   let accepted = 0;
   let fsalValid = false;
   let written = false; // T holds the result (the last step wrote it)
-  while (z < b) {
+  for (;;) {
+    const z = depth[0];
+    const end = depth[1];
+    if (!(z < end)) break;
     if (!fsalValid) {
-      beta[0] = betaPrime(z);
-      if (!Number.isFinite(beta[0])) throw strainError(z);
+      io[0] = z;
+      probe(io);
+      beta[0] = io[1];
+      if (!Number.isFinite(beta[0])) {
+        arg[0] = z;
+        throw strainError(arg);
+      }
       if (identity) {
         // K1 = i 2 pi beta' M I: no product
         const scale = TWO_PI * beta[0];
@@ -1090,17 +1197,18 @@ export function stretchMatrixN(T: Float64Array, to: number, sys: ColumnSystem, a
       if (level < 0) {
         let dmax = 0;
         for (let j = 0; j < n; j++) dmax = Math.max(dmax, Math.abs(sys.factors[j] * beta[0]));
-        level = levelFor(hmax, 0.05 / (TWO_PI * dmax + 1e-300));
+        arg[0] = 0.05 / (TWO_PI * dmax + 1e-300);
+        level = levelFor(hmax, arg);
       }
       fsalValid = true;
     }
-    let h = ladderStep(hmax, level);
+    let h = ladder[level];
     let lastStep = false;
     let tab: Float64Array;
     let rot: Float64Array;
     let words: Float64Array | null = null;
-    if (z + h >= b || b - (z + h) < 1e-12 * Math.max(1, b)) {
-      h = b - z;
+    if (z + h >= end || end - (z + h) < 1e-12 * Math.max(1, end)) {
+      h = end - z;
       lastStep = true;
       let slot = h === mw.slotH[0] ? 0 : h === mw.slotH[1] ? 1 : -1;
       if (slot < 0) {
@@ -1119,9 +1227,15 @@ export function stretchMatrixN(T: Float64Array, to: number, sys: ColumnSystem, a
       rot = levelRotated(sys, level, tab);
       if (identity) words = mw.levelWords[level] ??= buildWords(sys, rot);
     }
-    beta[1] = betaPrime(z + C2 * h);
-    beta[2] = betaPrime(z + C3 * h);
-    beta[3] = betaPrime(z + C4 * h);
+    io[0] = z + C2 * h;
+    probe(io);
+    beta[1] = io[1];
+    io[0] = z + C3 * h;
+    probe(io);
+    beta[2] = io[1];
+    io[0] = z + C4 * h;
+    probe(io);
+    beta[3] = io[1];
     if (words !== null) {
       // a first step from the identity: K_2 .. K_4 from the words of this step length
       mw.coef[0] = TWO_PI * beta[0];
@@ -1152,15 +1266,19 @@ export function stretchMatrixN(T: Float64Array, to: number, sys: ColumnSystem, a
       yi[q] = h * (A51 * k1i[q] + A52 * k2i[q] + A53 * k3i[q] + A54 * k4i[q]);
     }
     addState(yr, yi, ur, ui, n, identity);
-    beta[4] = betaPrime(z + C5 * h);
+    io[0] = z + C5 * h;
+    probe(io);
+    beta[4] = io[1];
     rhsMatrix(sys, beta, 4, rot, 3, yr, yi, k5r, k5i);
     for (let q = 0; q < nn; q++) {
       yr[q] = h * (A61 * k1r[q] + A62 * k2r[q] + A63 * k3r[q] + A64 * k4r[q] + A65 * k5r[q]);
       yi[q] = h * (A61 * k1i[q] + A62 * k2i[q] + A63 * k3i[q] + A64 * k4i[q] + A65 * k5i[q]);
     }
     addState(yr, yi, ur, ui, n, identity);
-    const zNext = lastStep ? b : z + h;
-    beta[5] = betaPrime(zNext);
+    const zNext = lastStep ? end : z + h;
+    io[0] = zNext;
+    probe(io);
+    beta[5] = io[1];
     rhsMatrix(sys, beta, 5, rot, 4, yr, yi, k6r, k6i);
     // y7, and the error sum of the stages before K7 (the same terms in the same order)
     for (let q = 0; q < nn; q++) {
@@ -1185,7 +1303,10 @@ export function stretchMatrixN(T: Float64Array, to: number, sys: ColumnSystem, a
       }
     }
     const err = Math.sqrt(err2 / tol2);
-    if (!Number.isFinite(err)) throw strainError(z);
+    if (!Number.isFinite(err)) {
+      arg[0] = z;
+      throw strainError(arg);
+    }
     if (err <= 1 || level >= LEVELS) {
       if (lastStep) {
         // the end of the stretch: E(h) u(h) straight into T (no derivative for a next step)
@@ -1217,11 +1338,13 @@ export function stretchMatrixN(T: Float64Array, to: number, sys: ColumnSystem, a
       }
       accepted++;
       identity = false;
-      z = zNext;
+      depth[0] = zNext;
       const fac = err < 3e-4 ? 5 : Math.min(5, 0.9 * Math.pow(err, -0.2));
-      level = levelFor(hmax, h * fac);
+      arg[0] = h * fac;
+      level = levelFor(hmax, arg);
     } else {
-      level = Math.max(level + 1, levelFor(hmax, h * Math.max(0.2, 0.9 * Math.pow(err, -0.2))));
+      arg[0] = h * Math.max(0.2, 0.9 * Math.pow(err, -0.2));
+      level = Math.max(level + 1, levelFor(hmax, arg));
       if (level > LEVELS) level = LEVELS;
     }
   }

@@ -58,7 +58,7 @@
 import { type Vec3, cross, dot, norm, scale, sub } from '../math/vec3.js';
 import { InputError } from '../errors.js';
 import { complexSchur } from '../dynamics/complexEigen.js';
-import type { DisplacementField } from './field.js';
+import { type DisplacementField, withDirectional } from './field.js';
 import { coreRadius, finiteVec3, nonZeroVec3 } from './checks.js';
 import { dislocationFrame } from './straightDislocation.js';
 import { checkVoigt, stiffnessTensor } from './stiffness.js';
@@ -640,9 +640,13 @@ export function anisotropicDislocation(opts: AnisotropicDislocationOptions): Dis
   const v = new Float64Array(6);
   const y = new Float64Array(6);
   const grad = new Float64Array(9);
+  // local coordinates (x1, x2) handed to solve and singularGradient: a double argument is boxed when V8
+  // does not inline the call, and these run at every strain evaluation
+  const xl = new Float64Array(2);
 
-  /** y = (x1 I + x2 T3)^-1 c (back substitution). */
-  const solve = (x1: number, x2: number): void => {
+  /** y = (x1 I + x2 T3)^-1 c (back substitution), (x1, x2) = xl. */
+  const solve = (): void => {
+    const x1 = xl[0], x2 = xl[1];
     const z2r = x1 + x2 * p2r, z2i = x2 * p2i;
     let d = z2r * z2r + z2i * z2i;
     const y2r = (c2r * z2r + c2i * z2i) / d, y2i = (c2i * z2r - c2r * z2i) / d;
@@ -663,9 +667,9 @@ export function anisotropicDislocation(opts: AnisotropicDislocationOptions): Dis
     y[5] = y2i;
   };
 
-  /** The singular field's gradient (plain, no core) into grad, from local coordinates. */
-  const singularGradient = (x1: number, x2: number): void => {
-    solve(x1, x2);
+  /** The singular field's gradient (plain, no core) into grad, from the local coordinates in xl. */
+  const singularGradient = (): void => {
+    solve();
     for (let i = 0; i < 3; i++) {
       let ui = 0, vi = 0;
       for (let k = 0; k < 3; k++) {
@@ -690,13 +694,16 @@ export function anisotropicDislocation(opts: AnisotropicDislocationOptions): Dis
 
   const B0 = Float64Array.of(B0x, B0y, B0z);
   const bb = Float64Array.of(bx, by, bz);
-  const fullGradient = (out: Float64Array, x: number, yy: number, z: number): void => {
+  const fullGradientAt = (out: Float64Array, p: Float64Array): void => {
+    const x = p[0], yy = p[1], z = p[2];
     const dx = x - px, dy = yy - py, dz = z - pz;
     const x1 = mx * dx + my * dy + mz * dz;
     const x2 = nx * dx + ny * dy + nz * dz;
     const r2 = x1 * x1 + x2 * x2;
     if (r2 >= rm2) {
-      singularGradient(x1, x2);
+      xl[0] = x1;
+      xl[1] = x2;
+      singularGradient();
       for (let i = 0; i < 9; i++) out[i] = grad[i];
       return;
     }
@@ -708,7 +715,9 @@ export function anisotropicDislocation(opts: AnisotropicDislocationOptions): Dis
     const q = r2 + rc2 * o * o * o;
     const mq = 1 - 3 * rcm * o * o;
     const f = r2 / q;
-    singularGradient(x1, x2);
+    xl[0] = x1;
+    xl[1] = x2;
+    singularGradient();
     singularDisplacement(x1, x2);
     const lnr2 = Math.log(r2);
     const theta = phiD + Math.atan2(x2, x1);
@@ -726,7 +735,7 @@ export function anisotropicDislocation(opts: AnisotropicDislocationOptions): Dis
     }
   };
 
-  return {
+  return withDirectional({
     displacement(out, x, yy, z) {
       const dx = x - px, dy = yy - py, dz = z - pz;
       const x1 = mx * dx + my * dy + mz * dz;
@@ -755,8 +764,8 @@ export function anisotropicDislocation(opts: AnisotropicDislocationOptions): Dis
       out[1] = B0y * lq + f * (v[1] - B0y * lr);
       out[2] = B0z * lq + f * (v[2] - B0z * lr);
     },
-    gradient: fullGradient,
-    directional(g, kv) {
+    gradientAt: fullGradientAt,
+    directionalAt(g, kv) {
       // r = (g^T A)(m.k) + (g^T A T3)(n.k): value = (1/pi) Im r . (x1 I + x2 T3)^-1 c
       const mk = mx * kv[0] + my * kv[1] + mz * kv[2];
       const nk = nx * kv[0] + ny * kv[1] + nz * kv[2];
@@ -767,8 +776,12 @@ export function anisotropicDislocation(opts: AnisotropicDislocationOptions): Dis
           ri[k] += g[i] * (mk * aIm[i * 3 + k] + nk * ATi[i * 3 + k]);
         }
       const g0 = g[0], g1 = g[1], g2 = g[2], k0 = kv[0], k1 = kv[1], k2 = kv[2];
+      const pc = new Float64Array(3);
       const core = (x1: number, x2: number, x: number, yy: number, z: number): number => {
-        fullGradient(grad, x, yy, z);
+        pc[0] = x;
+        pc[1] = yy;
+        pc[2] = z;
+        fullGradientAt(grad, pc);
         return (
           g0 * (grad[0] * k0 + grad[1] * k1 + grad[2] * k2) +
           g1 * (grad[3] * k0 + grad[4] * k1 + grad[5] * k2) +
@@ -792,7 +805,8 @@ export function anisotropicDislocation(opts: AnisotropicDislocationOptions): Dis
         const gB0 = g0 * B0x + g1 * B0y + g2 * B0z;
         const gb = g0 * bx + g1 * by + g2 * bz;
         const gO = g0 * O0 + g1 * O1 + g2 * O2;
-        return (x, yy, z) => {
+        return (p) => {
+          const x = p[0], yy = p[1], z = p[2];
           const dx = x - px, dy = yy - py, dz = z - pz;
           const x1 = mx * dx + my * dy + mz * dz;
           const x2 = nx * dx + ny * dy + nz * dz;
@@ -801,9 +815,15 @@ export function anisotropicDislocation(opts: AnisotropicDislocationOptions): Dis
           const z1r = x1 + x2 * p1r, z1i = x2 * p1i;
           const z2r = x1 + x2 * p2r, z2i = x2 * p2i;
           const a0 = z0r * z0r + z0i * z0i, a1 = z1r * z1r + z1i * z1i, a2 = z2r * z2r + z2i * z2i;
-          if (r2 >= rm2) return (s0i * z0r - s0r * z0i) / a0 + (s1i * z1r - s1r * z1i) / a1 + (s2i * z2r - s2r * z2i) / a2;
+          if (r2 >= rm2) {
+            p[3] = (s0i * z0r - s0r * z0i) / a0 + (s1i * z1r - s1r * z1i) / a1 + (s2i * z2r - s2r * z2i) / a2;
+            return;
+          }
           // inside the core: the same terms as fullGradient, contracted with g and k
-          if (r2 === 0) return 0;
+          if (r2 === 0) {
+            p[3] = 0;
+            return;
+          }
           const sing = (s0i * z0r - s0r * z0i) / a0 + (s1i * z1r - s1r * z1i) / a1 + (s2i * z2r - s2r * z2i) / a2;
           const gR =
             0.5 * (w0i * Math.log(a0) + w1i * Math.log(a1) + w2i * Math.log(a2)) +
@@ -814,18 +834,24 @@ export function anisotropicDislocation(opts: AnisotropicDislocationOptions): Dis
           const f = r2 / q;
           const psi = gR - gB0 * Math.log(r2) - gb * (phiD + Math.atan2(x2, x1)) * INV_2PI;
           const kr = 2 * (x1 * mk + x2 * nk); // grad(rho^2) . k
-          return f * sing + kr * (gB0 * (mq / q) - (f * gB0) / r2 + psi * ((q - r2 * mq) / (q * q)));
+          p[3] = f * sing + kr * (gB0 * (mq / q) - (f * gB0) / r2 + psi * ((q - r2 * mq) / (q * q)));
         };
       }
       const r0r = rr[0] * INV_PI, r0i = ri[0] * INV_PI, r1r = rr[1] * INV_PI, r1i = ri[1] * INV_PI, r2r = rr[2] * INV_PI, r2i = ri[2] * INV_PI;
-      return (x, yy, z) => {
+      return (p) => {
+        const x = p[0], yy = p[1], z = p[2];
         const dx = x - px, dy = yy - py, dz = z - pz;
         const x1 = mx * dx + my * dy + mz * dz;
         const x2 = nx * dx + ny * dy + nz * dz;
-        if (x1 * x1 + x2 * x2 < rm2) return core(x1, x2, x, yy, z);
-        solve(x1, x2);
-        return r0r * y[1] + r0i * y[0] + r1r * y[3] + r1i * y[2] + r2r * y[5] + r2i * y[4];
+        if (x1 * x1 + x2 * x2 < rm2) {
+          p[3] = core(x1, x2, x, yy, z);
+          return;
+        }
+        xl[0] = x1;
+        xl[1] = x2;
+        solve();
+        p[3] = r0r * y[1] + r0i * y[0] + r1r * y[3] + r1i * y[2] + r2r * y[5] + r2i * y[4];
       };
     },
-  };
+  });
 }

@@ -12,7 +12,7 @@
  */
 import type { Vec3 } from '../math/vec3.js';
 import { InputError } from '../errors.js';
-import type { DisplacementField } from './field.js';
+import { type DisplacementField, withDirectional } from './field.js';
 import { finiteVec3, poisson, positive } from './checks.js';
 
 export interface SphericalInclusionOptions {
@@ -52,7 +52,7 @@ export function sphericalInclusion(opts: SphericalInclusionOptions): Displacemen
   const r02 = r0 * r0;
   const a = eps * r0 * r02; // eps r0^3
 
-  return {
+  return withDirectional({
     displacement(out, x, y, z) {
       const dx = x - cx, dy = y - cy, dz = z - cz;
       const r2 = dx * dx + dy * dy + dz * dz;
@@ -77,20 +77,24 @@ export function sphericalInclusion(opts: SphericalInclusionOptions): Displacemen
       out[3] = xy; out[4] = f + h * dy * dy; out[5] = yz;
       out[6] = xz; out[7] = yz; out[8] = f + h * dz * dz;
     },
-    directional(g, k) {
+    directionalAt(g, k) {
       // g.G.k = eps g.k inside; outside eps r0^3 (g.k / r^3 - 3 (g.r)(k.r) / r^5)
       const [gx, gy, gz] = g;
       const [kx, ky, kz] = k;
       const gk = gx * kx + gy * ky + gz * kz;
-      return (x, y, z) => {
+      return (p) => {
+        const x = p[0], y = p[1], z = p[2];
         const dx = x - cx, dy = y - cy, dz = z - cz;
         const r2 = dx * dx + dy * dy + dz * dz;
-        if (r2 <= r02) return eps * gk;
+        if (r2 <= r02) {
+          p[3] = eps * gk;
+          return;
+        }
         const f = a / (r2 * Math.sqrt(r2));
         const gr = gx * dx + gy * dy + gz * dz;
         const kr = kx * dx + ky * dy + kz * dz;
-        return f * (gk - (3 * gr * kr) / r2);
+        p[3] = f * (gk - (3 * gr * kr) / r2);
       };
     },
-  };
+  });
 }

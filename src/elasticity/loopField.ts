@@ -44,7 +44,7 @@
  */
 import { type Vec3, norm } from '../math/vec3.js';
 import { InputError } from '../errors.js';
-import type { DisplacementField } from './field.js';
+import { type DisplacementField, withDirectional } from './field.js';
 import { coreRadius, nonZeroVec3, poisson } from './checks.js';
 
 export interface LoopFieldOptions {
@@ -260,7 +260,7 @@ export function loopField(opts: LoopFieldOptions): DisplacementField {
     return om;
   };
 
-  return {
+  return withDirectional({
     displacement(out, x, y, z) {
       const f = -solidAngle(x, y, z) / FOUR_PI;
       let ux = f * bx, uy = f * by, uz = f * bz;
@@ -340,7 +340,7 @@ export function loopField(opts: LoopFieldOptions): DisplacementField {
         }
       }
     },
-    directional(gv, kv) {
+    directionalAt(gv, kv) {
       const [g0, g1, g2] = gv;
       const [k0, k1, k2] = kv;
       const gb = (g0 * bx + g1 * by + g2 * bz) / FOUR_PI;
@@ -362,7 +362,8 @@ export function loopField(opts: LoopFieldOptions): DisplacementField {
       const gA = g0 * Ax + g1 * Ay + g2 * Az;
       const kA = k0 * Ax + k1 * Ay + k2 * Az;
       const kb = k0 * bx + k1 * by + k2 * bz;
-      return (x, y, z) => {
+      return (p) => {
+        const x = p[0], y = p[1], z = p[2];
         const X = x - gx, Y = y - gy, Z = z - gz;
         const r2 = X * X + Y * Y + Z * Z;
         if (r2 > far2) {
@@ -375,12 +376,12 @@ export function loopField(opts: LoopFieldOptions): DisplacementField {
           const xk = k0 * X + k1 * Y + k2 * Z;
           const lin = gbd * a + gA * be - bA * ga;
           const cub = ga * be * a;
-          return (
+          p[3] =
             Cd *
             (oneM2nu * ((gbd * kA + gA * kb - bA * gk) * ir3 - 3 * lin * xk * ir5) +
               3 * (gk * be * a + ga * kb * a + ga * be * kA) * ir5 -
-              15 * cub * xk * ir5 * ir2)
-          );
+              15 * cub * xk * ir5 * ir2);
+          return;
         }
         let s = 0;
         let carry = NaN; // |rho| at the start of segment i when the previous segment lay outside every core
@@ -408,10 +409,10 @@ export function loopField(opts: LoopFieldOptions): DisplacementField {
                     3 * gp * (kp * w[S_K5] + kt[i] * w[S_Q5]) +
                     gt[i] * (kA / (RA * RA * RA) - kB / (RB * RB * RB))));
         }
-        return s;
+        p[3] = s;
       };
     },
-  };
+  });
 }
 
 /** The segments of a loop polygon as (start point, unit direction, length), for the core geometry. */

@@ -40,7 +40,7 @@
  */
 import { type Vec3, cross, dot, norm, scale, sub } from '../math/vec3.js';
 import { InputError } from '../errors.js';
-import type { DisplacementField } from './field.js';
+import { type DisplacementField, withDirectional } from './field.js';
 import { coreRadius, finiteVec3, nonZeroVec3, poisson } from './checks.js';
 
 export interface StraightDislocationOptions {
@@ -141,7 +141,7 @@ export function straightDislocation(opts: StraightDislocationOptions): Displacem
   const theta = (lx: number, ly: number): number =>
     phiD + Math.atan2(-lx * sinD + ly * cosD, lx * cosD + ly * sinD);
 
-  return {
+  return withDirectional({
     displacement(out, x, y, z) {
       const dx = x - px, dy = y - py, dz = z - pz;
       const lx = e1x * dx + e1y * dy + e1z * dz;
@@ -201,7 +201,7 @@ export function straightDislocation(opts: StraightDislocationOptions): Displacem
       out[7] = e1z * v1y + e2z * v2y + e3z * v3y;
       out[8] = e1z * v1z + e2z * v2z + e3z * v3z;
     },
-    directional(g, kv) {
+    directionalAt(g, kv) {
       // g.G.k = sum_a (g.e_a) (G_a1 (k.e1) + G_a2 (k.e2)), the same local block as `gradient`
       const ga1 = g[0] * e1x + g[1] * e1y + g[2] * e1z;
       const ga2 = g[0] * e2x + g[1] * e2y + g[2] * e2z;
@@ -210,7 +210,8 @@ export function straightDislocation(opts: StraightDislocationOptions): Displacem
       const k2 = kv[0] * e2x + kv[1] * e2y + kv[2] * e2z;
       // coefficients of the local block entries
       const c1 = ga1 * Be + ga3 * Bs; // multiplies (tx k1 + ty k2)
-      return (x, y, z) => {
+      return (p) => {
+        const x = p[0], y = p[1], z = p[2];
         const dx = x - px, dy = y - py, dz = z - pz;
         const lx = e1x * dx + e1y * dy + e1z * dz;
         const ly = e2x * dx + e2y * dy + e2z * dz;
@@ -231,8 +232,8 @@ export function straightDislocation(opts: StraightDislocationOptions): Displacem
         const e12 = Be2k * lx * (q - 2 * y2 * m) * iq2;
         const g21 = -2 * Bek * lx * (lnC * m * iq + (q - dxy * m) * iq2);
         const g22 = -2 * Bek * ly * (lnC * m * iq - (q + dxy * m) * iq2);
-        return c1 * angular + ga1 * (e11 * k1 + e12 * k2) + ga2 * (g21 * k1 + g22 * k2);
+        p[3] = c1 * angular + ga1 * (e11 * k1 + e12 * k2) + ga2 * (g21 * k1 + g22 * k2);
       };
     },
-  };
+  });
 }

@@ -38,6 +38,8 @@ interface CoreLine {
 export interface CoreGeometry {
   /** True when the column through image point (x, y) passes within `margin` nm of a modified core inside the foil. */
   near(x: number, y: number, margin: number): boolean;
+  /** near(p[0], p[1], p[2]) with the numbers in an array (nothing boxed per call; the renderer's per-pixel form). */
+  nearAt(p: Float64Array): boolean;
   /**
    * For a column inside a core: writes into out the image points (x1, y1, x2, y2) of the two columns just
    * outside the core of the nearest line, on either side of it.
@@ -70,32 +72,45 @@ export function coreGeometry(job: RenderJob): CoreGeometry | null {
   if (lines.length === 0) return null;
   const [ex0, ex1, ex2] = frame.ex;
   const [ey0, ey1, ey2] = frame.ey;
+  // Per-pixel code: the query (x, y, margin) comes in q and the results go out in w and res, so that no
+  // double is passed to or returned from a helper (V8 boxes such a double when it does not inline the call).
   const w = new Float64Array(3);
-  // offset of the column (x, y) from line l: writes w = c0 - p; returns the signed distance (w.n) or, end-on, the distance
-  const offset = (l: CoreLine, x: number, y: number): number => {
-    columnEntryPoint(w, frame, x, y);
+  const q = new Float64Array(3);
+  const res = new Float64Array(1);
+  // offset of the column (q[0], q[1]) from line l: writes w = c0 - p and res[0] = the signed distance (w.n) or, end-on, the distance
+  const offset = (l: CoreLine): void => {
+    columnEntryPoint(w, frame, q[0], q[1]);
     w[0] -= l.p[0];
     w[1] -= l.p[1];
     w[2] -= l.p[2];
-    if (l.n !== null) return w[0] * l.n[0] + w[1] * l.n[1] + w[2] * l.n[2];
+    if (l.n !== null) {
+      res[0] = w[0] * l.n[0] + w[1] * l.n[1] + w[2] * l.n[2];
+      return;
+    }
     const t = w[0] * l.u[0] + w[1] * l.u[1] + w[2] * l.u[2];
-    return Math.hypot(w[0] - t * l.u[0], w[1] - t * l.u[1], w[2] - t * l.u[2]);
+    const ax = w[0] - t * l.u[0], ay = w[1] - t * l.u[1], az = w[2] - t * l.u[2];
+    res[0] = Math.sqrt(ax * ax + ay * ay + az * az);
   };
-  // depth of closest approach of the column to line l (the column runs along k from the entrance surface)
-  const depth = (l: CoreLine): number => {
-    if (l.n === null) return L / 2;
-    const b = k[0] * l.u[0] + k[1] * l.u[1] + k[2] * l.u[2];
-    return (b * (l.u[0] * w[0] + l.u[1] * w[1] + l.u[2] * w[2]) - (k[0] * w[0] + k[1] * w[1] + k[2] * w[2])) / (1 - b * b);
+  // res[0] = the distance of the column (q[0], q[1]) from line l's core when it passes within q[2] of it, else Infinity
+  const reach = (l: CoreLine): void => {
+    offset(l);
+    const d = Math.abs(res[0]);
+    if (l.len !== Infinity) {
+      segmentReach(l);
+      return;
+    }
+    const m = l.r + q[2];
+    // depth of closest approach of the column to the line (the column runs along k from the entrance surface)
+    let z = L / 2;
+    if (l.n !== null) {
+      const b = k[0] * l.u[0] + k[1] * l.u[1] + k[2] * l.u[2];
+      z = (b * (l.u[0] * w[0] + l.u[1] * w[1] + l.u[2] * w[2]) - (k[0] * w[0] + k[1] * w[1] + k[2] * w[2])) / (1 - b * b);
+    }
+    res[0] = d < m && z > -m && z < L + m ? d : Infinity;
   };
-  const reach = (l: CoreLine, x: number, y: number, margin: number): number => {
-    const d = Math.abs(offset(l, x, y));
-    const m = l.r + margin;
-    if (l.len !== Infinity) return segmentReach(l, m);
-    const z = depth(l);
-    return d < m && z > -m && z < L + m ? d : Infinity;
-  };
-  // a finite segment (w = c0 - p left by offset): distance of the column from the nearest point of the segment
-  const segmentReach = (l: CoreLine, m: number): number => {
+  // a finite segment (w = c0 - p left by offset): res[0] = distance of the column from the nearest point of the segment
+  const segmentReach = (l: CoreLine): void => {
+    const m = l.r + q[2];
     const b = k[0] * l.u[0] + k[1] * l.u[1] + k[2] * l.u[2];
     const wu = w[0] * l.u[0] + w[1] * l.u[1] + w[2] * l.u[2];
     const wk = w[0] * k[0] + w[1] * k[1] + w[2] * k[2];
@@ -109,25 +124,47 @@ export function coreGeometry(job: RenderJob): CoreGeometry | null {
     const qy = l.p[1] + s * l.u[1] - (l.p[1] + w[1]);
     const qz = l.p[2] + s * l.u[2] - (l.p[2] + w[2]);
     const z = qx * k[0] + qy * k[1] + qz * k[2];
-    const d = Math.hypot(qx - z * k[0], qy - z * k[1], qz - z * k[2]);
-    return d < m && z > -m && z < L + m ? d : Infinity;
+    const ax = qx - z * k[0], ay = qy - z * k[1], az = qz - z * k[2];
+    const d = Math.sqrt(ax * ax + ay * ay + az * az);
+    res[0] = d < m && z > -m && z < L + m ? d : Infinity;
+  };
+  // whether the query in q reaches a core
+  const nearQ = (): boolean => {
+    for (let i = 0; i < lines.length; i++) {
+      reach(lines[i]);
+      if (res[0] < Infinity) return true;
+    }
+    return false;
   };
   return {
     near(x, y, margin) {
-      for (const l of lines) if (reach(l, x, y, margin) < Infinity) return true;
-      return false;
+      q[0] = x;
+      q[1] = y;
+      q[2] = margin;
+      return nearQ();
+    },
+    nearAt(p) {
+      q[0] = p[0];
+      q[1] = p[1];
+      q[2] = p[2];
+      return nearQ();
     },
     escape(out, x, y) {
+      q[0] = x;
+      q[1] = y;
+      q[2] = 0;
       let best = lines[0];
       let bestD = Infinity;
       for (const l of lines) {
-        const d = reach(l, x, y, 0);
+        reach(l);
+        const d = res[0];
         if (d < bestD) {
           bestD = d;
           best = l;
         }
       }
-      const s = offset(best, x, y);
+      offset(best);
+      const s = res[0];
       const r = best.r * (1 + 1e-6);
       // image-plane direction across the line, and the shifts that put the column at distance r on each side
       let dx: number;

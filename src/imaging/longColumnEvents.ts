@@ -35,7 +35,6 @@ export function longColumnEvents(surfaces: readonly ActiveSurface[], lines: read
   const ref = new Int32Array(n);
   const order = new Int32Array(n);
   const faultAlpha = new Float64Array(surfaces.length);
-  const byPosition = (a: number, b: number): number => pos[a] - pos[b] || code[a] - code[b];
   return {
     pos,
     code,
@@ -70,8 +69,21 @@ export function longColumnEvents(surfaces: readonly ActiveSurface[], lines: read
         code[ne] = LINE;
         ref[ne++] = d;
       }
-      for (let e = 0; e < ne; e++) order[e] = e;
-      order.subarray(0, ne).sort(byPosition);
+      // stable insertion sort by (depth, code), in place: the same order as a stable sort with that comparator
+      // (ties keep the index order), without the temporary copy and boxed keys of TypedArray sort with a comparator
+      for (let i = 0; i < ne; i++) {
+        const pv = pos[i];
+        const cv = code[i];
+        let j = i - 1;
+        while (j >= 0) {
+          const o = order[j];
+          if (pos[o] > pv || (pos[o] === pv && code[o] > cv)) {
+            order[j + 1] = o;
+            j--;
+          } else break;
+        }
+        order[j + 1] = i;
+      }
       return ne;
     },
   };

@@ -14,7 +14,8 @@ import { rk4Column } from '../dynamics/rk4Reference.js';
 import { DEFAULT_MAX_SLICE_NM } from '../dynamics/twoBeamColumn.js';
 import { integrateColumnGaussNodes } from '../dynamics/twoBeamColumnGauss.js';
 import type { ManyBeamInput } from '../dynamics/manyBeamStructureMatrix.js';
-import { integrateColumnN, integrateColumnNVector, prepareColumnSystem, prepareColumnSystemVector } from '../dynamics/manyBeam.js';
+import { integrateColumnNProbe, integrateColumnNVectorProbe, prepareColumnSystem, prepareColumnSystemVector } from '../dynamics/manyBeam.js';
+import { columnStrain, type ColumnStrain } from './columnStrain.js';
 import { buildField, type DefectModel } from './fieldSpecs.js';
 import { CORE_SUBSAMPLES, coreGeometry } from './cores.js';
 
@@ -176,6 +177,11 @@ export function closestApproachDepth(p: Vec3, u: Vec3, cx: number, cy: number, c
 export interface ColumnEvaluator {
   /** Writes (re phi0, im phi0, re phig, im phig) into out; returns nothing. */
   column(out: Float64Array, x: number, y: number): void;
+  /**
+   * The same for the image point (out[0], out[1]), read before out is written: nothing is boxed per call
+   * (V8 boxes the double arguments of a call it does not inline). The renderer's per-pixel form.
+   */
+  columnAt(out: Float64Array): void;
   /** True when the job has no defect at all (every column is the perfect crystal). */
   readonly perfect: boolean;
   readonly stats: { slices: number };
@@ -192,33 +198,18 @@ export function columnEvaluator(job: RenderJob): ColumnEvaluator {
   if (field === null && surfaces.length === 0) {
     const p = new Float64Array(4);
     if (mb === null) perfectCrystal(p, params, L);
-    else mb.integrate(p, L, () => 0, NO_STRAIN, new Float64Array(0));
-    return {
-      perfect: true,
-      stats,
-      column(out) {
-        out.set(p);
-        stats.slices++;
-      },
+    else mb.integrate(p, L, columnStrain(null, g_cart, frame.ez), new Float64Array(0));
+    const columnAt = (out: Float64Array): void => {
+      out.set(p);
+      stats.slices++;
     };
+    return { perfect: true, stats, column: columnAt, columnAt };
   }
-  // beta'(z) = g . (grad R) . ez along the column r(z) = c + z ez
+  // beta'(z) = g . (grad R) . ez along the column r(z) = c0 + z ez (and dR/dz for general beam sets);
+  // the column entry point lives in strain.c0 (a typed array: mutable closure variables would be boxed)
   const [kx, ky, kz] = frame.ez;
-  const dir = field === null ? null : field.directional(g_cart, frame.ez);
-  // column entry point in a typed array: mutable closure variables would be boxed doubles (an allocation each)
-  const c0 = new Float64Array(3);
-  const betaPrime = dir === null ? () => 0 : (z: number): number => dir(c0[0] + z * kx, c0[1] + z * ky, c0[2] + z * kz);
-  // general beam sets need the vector dR/dz = (grad R) . ez
-  const grad = new Float64Array(9);
-  const dRdz =
-    field === null
-      ? NO_STRAIN
-      : (z: number, o: Float64Array): void => {
-          field.gradient(grad, c0[0] + z * kx, c0[1] + z * ky, c0[2] + z * kz);
-          o[0] = grad[0] * kx + grad[1] * ky + grad[2] * kz;
-          o[1] = grad[3] * kx + grad[4] * ky + grad[5] * kz;
-          o[2] = grad[6] * kx + grad[7] * ky + grad[8] * kz;
-        };
+  const strain = columnStrain(field, g_cart, frame.ez);
+  const { c0, betaPrime } = strain;
   // Many-beam only: each dislocation line's depth of closest approach is a breakpoint (a zero phase step),
   // so that the stepper restarts with a small step where the strain peaks.
   const lines = mb === null ? [] : job.model.fields.flatMap((f) => (f.kind === 'dislocation' ? [{ p: f.point_nm, u: f.line }] : []));
@@ -239,74 +230,98 @@ export function columnEvaluator(job: RenderJob): ColumnEvaluator {
   const none = new Float64Array(0);
   const zs = new Float64Array(nMax);
   const as = new Float64Array(nMax);
+  const columnAt = (out: Float64Array): void => {
+    columnEntryPoint(c0, frame, out[0], out[1]);
+    const cx = c0[0];
+    const cy = c0[1];
+    const cz = c0[2];
+    let count = 0;
+    for (let s = 0; s < surfaces.length; s++) {
+      const f = surfaces[s];
+      const zc = crossingDepth(f, cx, cy, cz, kx, ky, kz, L);
+      if (zc !== zc) continue; // NaN: no crossing
+      // vector mode keeps the signed surface number (its jump is looked up below), else the phase
+      zs[count] = zc;
+      as[count] = vector ? (f.kn > 0 ? s + 1 : -(s + 1)) : f.kn > 0 ? f.alpha : -f.alpha;
+      count = insertByDepth(zs, as, count);
+    }
+    for (let d = 0; d < lines.length; d++) {
+      const zc = closestApproachDepth(lines[d].p, lines[d].u, cx, cy, cz, kx, ky, kz, L);
+      if (zc === zc) {
+        zs[count] = zc;
+        as[count] = 0;
+        count = insertByDepth(zs, as, count);
+      }
+    }
+    for (let d = 0; d < spheres.length; d++) {
+      // |c0 + z k - centre|^2 = r0^2  ->  z = -w.k +- sqrt((w.k)^2 - |w|^2 + r0^2), w = c0 - centre
+      const { c, r2 } = spheres[d];
+      const wx = cx - c[0], wy = cy - c[1], wz = cz - c[2];
+      const wk = wx * kx + wy * ky + wz * kz;
+      const disc = wk * wk - (wx * wx + wy * wy + wz * wz) + r2;
+      if (!(disc > 0)) continue; // the column misses the sphere (or touches it)
+      const root = Math.sqrt(disc);
+      const z1 = -wk - root;
+      const z2 = -wk + root;
+      if (z1 > 0 && z1 < L) {
+        zs[count] = z1;
+        as[count] = 0;
+        count = insertByDepth(zs, as, count);
+      }
+      if (z2 > 0 && z2 < L) {
+        zs[count] = z2;
+        as[count] = 0;
+        count = insertByDepth(zs, as, count);
+      }
+    }
+    for (let d = 0; d < loopPlanes.length; d++) {
+      const { p, n, reach2 } = loopPlanes[d];
+      const kn = kx * n[0] + ky * n[1] + kz * n[2];
+      if (Math.abs(kn) < 1e-12) continue;
+      const zc = ((p[0] - cx) * n[0] + (p[1] - cy) * n[1] + (p[2] - cz) * n[2]) / kn;
+      if (!(zc > 0 && zc < L)) continue;
+      const hx = cx + zc * kx - p[0], hy = cy + zc * ky - p[1], hz = cz + zc * kz - p[2];
+      if (hx * hx + hy * hy + hz * hz < reach2) {
+        zs[count] = zc;
+        as[count] = 0;
+        count = insertByDepth(zs, as, count);
+      }
+    }
+    let faults = none;
+    if (count > 0) {
+      faults = crossings[count - 1];
+      for (let q = 0; q < count; q++) {
+        if (!vector) {
+          faults[2 * q] = zs[q];
+          faults[2 * q + 1] = as[q];
+          continue;
+        }
+        const code = as[q];
+        const jump = code === 0 ? ZERO3 : surfaces[Math.abs(code) - 1].jump;
+        const sign = code < 0 ? -1 : 1;
+        faults[4 * q] = zs[q];
+        faults[4 * q + 1] = sign * jump[0];
+        faults[4 * q + 2] = sign * jump[1];
+        faults[4 * q + 3] = sign * jump[2];
+      }
+    }
+    if (mb !== null) stats.slices += mb.integrate(out, L, strain, faults);
+    else if (job.gaussNodes === true) integrateColumnGaussNodes(out, params, L, betaPrime, faults, tol, stats);
+    else if (job.rk4Steps === undefined) integrateColumn(out, params, L, betaPrime, faults, tol, stats, DEFAULT_MAX_SLICE_NM);
+    else {
+      rk4Column(out, params, L, betaPrime, job.rk4Steps);
+      stats.slices += job.rk4Steps;
+    }
+  };
   return {
     perfect: false,
     stats,
     column(out, x, y) {
-      columnEntryPoint(c0, frame, x, y);
-      const cx = c0[0];
-      const cy = c0[1];
-      const cz = c0[2];
-      let count = 0;
-      for (let s = 0; s < surfaces.length; s++) {
-        const f = surfaces[s];
-        const zc = crossingDepth(f, cx, cy, cz, kx, ky, kz, L);
-        if (zc !== zc) continue; // NaN: no crossing
-        // vector mode keeps the signed surface number (its jump is looked up below), else the phase
-        count = insertByDepth(zs, as, count, zc, vector ? (f.kn > 0 ? s + 1 : -(s + 1)) : f.kn > 0 ? f.alpha : -f.alpha);
-      }
-      for (let d = 0; d < lines.length; d++) {
-        const zc = closestApproachDepth(lines[d].p, lines[d].u, cx, cy, cz, kx, ky, kz, L);
-        if (zc === zc) count = insertByDepth(zs, as, count, zc, 0);
-      }
-      for (let d = 0; d < spheres.length; d++) {
-        // |c0 + z k - centre|^2 = r0^2  ->  z = -w.k +- sqrt((w.k)^2 - |w|^2 + r0^2), w = c0 - centre
-        const { c, r2 } = spheres[d];
-        const wx = cx - c[0], wy = cy - c[1], wz = cz - c[2];
-        const wk = wx * kx + wy * ky + wz * kz;
-        const disc = wk * wk - (wx * wx + wy * wy + wz * wz) + r2;
-        if (!(disc > 0)) continue; // the column misses the sphere (or touches it)
-        const root = Math.sqrt(disc);
-        const z1 = -wk - root;
-        const z2 = -wk + root;
-        if (z1 > 0 && z1 < L) count = insertByDepth(zs, as, count, z1, 0);
-        if (z2 > 0 && z2 < L) count = insertByDepth(zs, as, count, z2, 0);
-      }
-      for (let d = 0; d < loopPlanes.length; d++) {
-        const { p, n, reach2 } = loopPlanes[d];
-        const kn = kx * n[0] + ky * n[1] + kz * n[2];
-        if (Math.abs(kn) < 1e-12) continue;
-        const zc = ((p[0] - cx) * n[0] + (p[1] - cy) * n[1] + (p[2] - cz) * n[2]) / kn;
-        if (!(zc > 0 && zc < L)) continue;
-        const hx = cx + zc * kx - p[0], hy = cy + zc * ky - p[1], hz = cz + zc * kz - p[2];
-        if (hx * hx + hy * hy + hz * hz < reach2) count = insertByDepth(zs, as, count, zc, 0);
-      }
-      let faults = none;
-      if (count > 0) {
-        faults = crossings[count - 1];
-        for (let q = 0; q < count; q++) {
-          if (!vector) {
-            faults[2 * q] = zs[q];
-            faults[2 * q + 1] = as[q];
-            continue;
-          }
-          const code = as[q];
-          const jump = code === 0 ? ZERO3 : surfaces[Math.abs(code) - 1].jump;
-          const sign = code < 0 ? -1 : 1;
-          faults[4 * q] = zs[q];
-          faults[4 * q + 1] = sign * jump[0];
-          faults[4 * q + 2] = sign * jump[1];
-          faults[4 * q + 3] = sign * jump[2];
-        }
-      }
-      if (mb !== null) stats.slices += mb.integrate(out, L, betaPrime, dRdz, faults);
-      else if (job.gaussNodes === true) integrateColumnGaussNodes(out, params, L, betaPrime, faults, tol, stats);
-      else if (job.rk4Steps === undefined) integrateColumn(out, params, L, betaPrime, faults, tol, stats, DEFAULT_MAX_SLICE_NM);
-      else {
-        rk4Column(out, params, L, betaPrime, job.rk4Steps);
-        stats.slices += job.rk4Steps;
-      }
+      out[0] = x;
+      out[1] = y;
+      columnAt(out);
     },
+    columnAt,
   };
 }
 
@@ -320,8 +335,14 @@ function loopReach2(p: Vec3, v: readonly number[]): number {
   return LOOP_BREAK_RADII * LOOP_BREAK_RADII * r2;
 }
 
-/** Insert (z, alpha) into the first `count` entries of zs/as kept sorted by z; returns the new count. */
-function insertByDepth(zs: Float64Array, as: Float64Array, count: number, z: number, alpha: number): number {
+/**
+ * Insert the entry (z, alpha) that the caller wrote at index `count` of zs/as into the first `count`
+ * entries kept sorted by z; returns the new count. (Written there rather than passed: a double argument
+ * is boxed when V8 does not inline the call, once per crossing of every column.)
+ */
+function insertByDepth(zs: Float64Array, as: Float64Array, count: number): number {
+  const z = zs[count];
+  const alpha = as[count];
   let q = count;
   while (q > 0 && zs[q - 1] > z) {
     zs[q] = zs[q - 1];
@@ -338,11 +359,6 @@ export const MANY_BEAM_TOL_FACTOR = 0.1;
 
 /** A many-beam column integrator for one job: writes the transmitted and g amplitudes into out[0..3]. */
 const ZERO3: Vec3 = [0, 0, 0];
-const NO_STRAIN = (_z: number, o: Float64Array): void => {
-  o[0] = 0;
-  o[1] = 0;
-  o[2] = 0;
-};
 
 function manyBeamColumn(mb: ManyBeamJob, tol: number) {
   const vector = mb.beamVectors !== undefined;
@@ -356,13 +372,12 @@ function manyBeamColumn(mb: ManyBeamJob, tol: number) {
     integrate(
       out: Float64Array,
       L: number,
-      betaPrime: (z: number) => number,
-      dRdz: (z: number, o: Float64Array) => void,
+      strain: ColumnStrain,
       faults: Float64Array,
     ): number {
       const steps = vector
-        ? integrateColumnNVector(amp, sys, L, dRdz, tol * MANY_BEAM_TOL_FACTOR, faults)
-        : integrateColumnN(amp, sys, L, betaPrime, tol * MANY_BEAM_TOL_FACTOR, faults);
+        ? integrateColumnNVectorProbe(amp, sys, L, strain.dRdzProbe, tol * MANY_BEAM_TOL_FACTOR, faults)
+        : integrateColumnNProbe(amp, sys, L, strain.betaProbe, tol * MANY_BEAM_TOL_FACTOR, faults);
       out[0] = amp[t0];
       out[1] = amp[t0 + 1];
       out[2] = amp[tg];
@@ -392,13 +407,18 @@ export function renderRows(job: RenderJob, row0: number, row1: number, bf: Float
   const margin = Math.SQRT1_2 * pixel_nm;
   const S = CORE_SUBSAMPLES;
   const esc = new Float64Array(4);
+  // the query of cores.nearAt: image point and margin (numbers go through arrays, see columnAt)
+  const at = new Float64Array(3);
   let columns = 0;
   let k = 0;
   for (let j = row0; j < row1; j++) {
     const y = pixelX(j, height, pixel_nm);
     for (let i = 0; i < width; i++, k++) {
       const x = pixelX(i, width, pixel_nm);
-      if (cores !== null && cores.near(x, y, margin)) {
+      at[0] = x;
+      at[1] = y;
+      at[2] = margin;
+      if (cores !== null && cores.nearAt(at)) {
         // average over the pixel's area outside the cores (S x S sub-columns; those inside a core are left out)
         let a = 0;
         let b = 0;
@@ -407,8 +427,13 @@ export function renderRows(job: RenderJob, row0: number, row1: number, bf: Float
           for (let r = 0; r < S; r++) {
             const xs = x + ((r + 0.5) / S - 0.5) * pixel_nm;
             const ys = y + ((q + 0.5) / S - 0.5) * pixel_nm;
-            if (cores.near(xs, ys, 0)) continue;
-            ev.column(out, xs, ys);
+            at[0] = xs;
+            at[1] = ys;
+            at[2] = 0;
+            if (cores.nearAt(at)) continue;
+            out[0] = xs;
+            out[1] = ys;
+            ev.columnAt(out);
             a += out[0] * out[0] + out[1] * out[1];
             b += out[2] * out[2] + out[3] * out[3];
             m++;
@@ -428,7 +453,9 @@ export function renderRows(job: RenderJob, row0: number, row1: number, bf: Float
         df[k] = b / m;
         columns += m;
       } else {
-        ev.column(out, x, y);
+        out[0] = x;
+        out[1] = y;
+        ev.columnAt(out);
         bf[k] = out[0] * out[0] + out[1] * out[1];
         df[k] = out[2] * out[2] + out[3] * out[3];
         columns++;

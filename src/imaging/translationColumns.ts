@@ -35,6 +35,7 @@ import { activeSurfaces, columnEvaluator, type ColumnEvaluator, type RenderJob, 
 import { CORE_SUBSAMPLES, coreGeometry } from './cores.js';
 import { longColumnEvents, WINDOW_END, WINDOW_START } from './longColumnEvents.js';
 import { buildField } from './fieldSpecs.js';
+import { columnStrain } from './columnStrain.js';
 import { invariantAlongLine } from '../elasticity/surfaceRelaxation.js';
 import { classWindowsN } from './translationColumnsN.js';
 
@@ -268,7 +269,10 @@ export function renderTranslated(job: RenderJob, plan: TranslationPlan, part: nu
     for (let q = 0; q < S; q++) {
       for (let r = 0; r < S; r++) {
         const o = (q * S + r) * maxK;
-        if (uses.subarray(o, o + K).indexOf(1) < 0) continue;
+        // any member using this sub-column (a plain loop: subarray would allocate a view per call)
+        let used = false;
+        for (let k = 0; k < K && !used; k++) used = uses[o + k] === 1;
+        if (!used) continue;
         windows(amp, x0 + ((r + 0.5) / S - 0.5) * pixel_nm, y0 + ((q + 0.5) / S - 0.5) * pixel_nm, K);
         for (let k = 0; k < K; k++) {
           if (uses[o + k] === 0) continue;
@@ -329,7 +333,9 @@ export function renderTranslated(job: RenderJob, plan: TranslationPlan, part: nu
       bf[pixel] = sumB[k] / count[k];
       df[pixel] = sumD[k] / count[k];
     }
-    columns += K + (S * S - 1) * isNear.subarray(0, K).reduce((a, b) => a + b, 0);
+    let nNear = 0;
+    for (let k = 0; k < K; k++) nNear += isNear[k];
+    columns += K + (S * S - 1) * nNear;
   }
   return { slices: windows.stats.slices, columns };
 }
@@ -342,14 +348,12 @@ function classWindows(job: RenderJob, plan: TranslationPlan): ClassWindows {
   const { width, height, frame, g_cart, params, tol } = job;
   const L = frame.columnLength_nm;
   const field = buildField(job.model.fields);
-  const dir = field === null ? null : field.directional(g_cart, frame.ez);
   const surfaces = activeSurfaces(job);
   const mp: MatrixParams = { qr: 1 / params.xi_nm, qi: 1 / params.xiAbs_nm, s: params.s_per_nm, invXi0: 1 / params.xiAbs0_nm };
   const tolLen = (0.5 * tol) / L;
   const counters: StretchCounters = { slices: 0, forced: 0 };
   const [kx, ky, kz] = frame.ez;
-  const c0 = new Float64Array(3);
-  const betaPrime = dir === null ? () => 0 : (z: number): number => dir(c0[0] + z * kx, c0[1] + z * ky, c0[2] + z * kz);
+  const { c0, betaPrime } = columnStrain(field, g_cart, frame.ez);
   const { D } = plan;
   const maxK = Math.max(width, height) + 1;
   // events: positions and codes (0 end of window k, 1 fault, 2 start of window k) sorted by (position, code)

@@ -12,7 +12,8 @@
  * window product.
  */
 import { columnEntryPoint } from '../geometry/frames.js';
-import { prepareColumnSystem, stretchMatrixN } from '../dynamics/manyBeam.js';
+import { prepareColumnSystem, stretchMatrixNProbe } from '../dynamics/manyBeam.js';
+import { columnStrain } from './columnStrain.js';
 import { activeSurfaces, MANY_BEAM_TOL_FACTOR, type RenderJob } from './renderRows.js';
 import { buildField } from './fieldSpecs.js';
 import type { TranslationPlan, ClassWindows } from './translationColumns.js';
@@ -70,12 +71,10 @@ export function classWindowsN(job: RenderJob, plan: TranslationPlan): ClassWindo
   const nn = 2 * n * n;
   const stepTol = tol * MANY_BEAM_TOL_FACTOR;
   const field = buildField(job.model.fields);
-  const dir = field === null ? null : field.directional(g_cart, frame.ez);
   const surfaces = activeSurfaces(job);
   const lines = job.model.fields.flatMap((f) => (f.kind === 'dislocation' ? [{ p: f.point_nm, u: f.line }] : []));
   const [kx, ky, kz] = frame.ez;
-  const c0 = new Float64Array(3);
-  const betaPrime = dir === null ? () => 0 : (z: number): number => dir(c0[0] + z * kx, c0[1] + z * ky, c0[2] + z * kz);
+  const { c0, betaProbe } = columnStrain(field, g_cart, frame.ez);
   const { D } = plan;
   const maxK = Math.max(width, height) + 1;
   // events: 0 end of window k, 1 fault (ref = surface), 2 start of window k, 3 breakpoint
@@ -108,7 +107,7 @@ export function classWindowsN(job: RenderJob, plan: TranslationPlan): ClassWindo
    */
   const stretch = (m: number, a: number, b: number, level: number): number => {
     // all N unit Bloch vectors on one step sequence: T(b, a) in one march
-    stats.slices += n * stretchMatrixN(E, nn * m, sys, a, b, betaPrime, stepTol, level);
+    stats.slices += n * stretchMatrixNProbe(E, nn * m, sys, a, b, betaProbe, stepTol, level);
     return sys.work.lastLevel;
   };
   /** Fault matrix C^-1 diag(exp(i n_j alpha)) C into E at element m. */
@@ -187,7 +186,7 @@ export function classWindowsN(job: RenderJob, plan: TranslationPlan): ClassWindo
       }
       if (a >= frontEnd) {
         if (backEnd > frontEnd) {
-          F.set(E.subarray(nn * (backEnd - 1), nn * backEnd), nn * (backEnd - 1));
+          for (let q = nn * (backEnd - 1); q < nn * backEnd; q++) F[q] = E[q]; // (no subarray view per call)
           for (let t = backEnd - 2; t >= frontEnd; t--) mulN(F, nn * t, F, nn * (t + 1), E, nn * t, n);
         }
         frontEnd = backEnd;
