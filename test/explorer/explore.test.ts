@@ -286,7 +286,8 @@ describe('thinfoil explore server (no browser needed)', () => {
     const exited = new Promise<number | null>((resolve) => served.proc.on('exit', (code) => resolve(code)));
     served.proc.kill('SIGINT');
     expect(await exited).toBe(0);
-    await expect(rawGet(served.port, '/')).rejects.toThrow(/ECONNREFUSED/);
+    // No check that the port refuses connections afterwards: files run side by side (vitest.config.ts), so another
+    // test's server may already have been given the freed port (seen once: 'socket hang up' instead of ECONNREFUSED).
   });
 
 });
