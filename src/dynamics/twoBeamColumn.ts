@@ -132,10 +132,6 @@ export const CONTROLLER_SAFETY = 0.8;
 export const END_NUDGE_NM = 1e-7;
 
 const PI = Math.PI;
-/** Two-point Gauss-Legendre nodes on [0, 1] and the commutator coefficient of the fourth-order Magnus step with them (twoBeamColumnGauss.ts). */
-export const G1 = 0.5 - Math.sqrt(3) / 6;
-export const G2 = 0.5 + Math.sqrt(3) / 6;
-export const EPS_K = -(Math.sqrt(3) / 6) * PI;
 /** The commutator coefficient of the fourth-order Magnus step with Simpson nodes: eps = SIMPSON_EPS_K h (beta'(a + h) - beta'(a)). */
 export const SIMPSON_EPS_K = -PI / 6;
 

@@ -19,14 +19,16 @@ import {
   copy4,
   counters,
   driveColumn,
-  EPS_K,
-  G1,
-  G2,
   MAX_SLICES,
   MIN_SLICE_NM,
   W,
   type ColumnStats,
 } from './twoBeamColumn.js';
+
+/** Two-point Gauss-Legendre nodes on [0, 1] and the commutator coefficient of the fourth-order Magnus step with them. */
+const G1 = 0.5 - Math.sqrt(3) / 6;
+const G2 = 0.5 + Math.sqrt(3) / 6;
+const EPS_K = -(Math.sqrt(3) / 6) * Math.PI;
 
 /** The Gauss-node integrator's longest slice (nm): 6 samples per 20 nm (see DEFAULT_MAX_SLICE_NM of twoBeamColumn.ts). */
 export const GAUSS_MAX_SLICE_NM = 20;
