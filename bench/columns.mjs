@@ -19,22 +19,10 @@ import { integrateColumn, DEFAULT_MAX_SLICE_NM } from '../dist/dynamics/twoBeamC
 import { integrateColumnGaussNodes } from '../dist/dynamics/twoBeamColumnGauss.js';
 import { rk4Column } from '../dist/dynamics/rk4Reference.js';
 import { DEMO_IDENTIFY_SCENARIO } from '../dist/scenario/demoIdentify.js';
-import { fmt, inclinedDislocation, lcg, median } from './common.mjs';
+import { fmt, inclinedDislocation, lcg, median, normalScrew } from './common.mjs';
 
 const inclined = inclinedDislocation({ name: 'bench-inclined', size: 128, pixel_nm: 1 });
-const normal = {
-  name: 'bench-normal',
-  material: 'Cu',
-  kV: 200,
-  elasticity: 'isotropic',
-  foil: { thickness_nm: 60, normal: [1, 1, 0] },
-  beam: [1, 1, 0],
-  imageX: [0, 0, 1],
-  image: { width_px: 128, height_px: 128, pixel_nm: 0.5 },
-  conditions: [{ id: 'g', g: [1, -1, 1], w: 0.5, beam: [5, 5, 1] }],
-  defects: [{ type: 'dislocation', b: '1/2[1 1 0]', line: [1, 1, 0], point_nm: [0, 0, 30] }],
-  surfaces: 'relaxed',
-};
+const normal = { ...normalScrew(), surfaces: 'relaxed' };
 // the identification's full-size view of one candidate (the demo's line, b = 1/2[0 -1 1]) at the micrograph's g angle
 const view = { ...DEMO_IDENTIFY_SCENARIO, defects: [{ ...DEMO_IDENTIFY_SCENARIO.defects[0], b: '1/2[0 -1 1]' }] };
 

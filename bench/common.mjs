@@ -18,6 +18,25 @@ export function inclinedDislocation({ name = 'bench', size = 256, pixel_nm = 0.5
   };
 }
 
+/**
+ * The benchmarks' end-on case: a screw 1/2[1 1 0] normal to a 60 nm (1 1 0) Cu foil, isotropic, seen with the
+ * beam tilted to [5 5 1], g 1-11 at w 0.5, 128 x 128 pixels of 0.5 nm. Raw scenario JSON (infinite surfaces).
+ */
+export function normalScrew() {
+  return {
+    name: 'bench-normal',
+    material: 'Cu',
+    kV: 200,
+    elasticity: 'isotropic',
+    foil: { thickness_nm: 60, normal: [1, 1, 0] },
+    beam: [1, 1, 0],
+    imageX: [0, 0, 1],
+    image: { width_px: 128, height_px: 128, pixel_nm: 0.5 },
+    conditions: [{ id: 'g', g: [1, -1, 1], w: 0.5, beam: [5, 5, 1] }],
+    defects: [{ type: 'dislocation', b: '1/2[1 1 0]', line: [1, 1, 0], point_nm: [0, 0, 30] }],
+  };
+}
+
 /** Median of a list of numbers. */
 export const median = (a) => [...a].sort((x, y) => x - y)[Math.floor(a.length / 2)];
 

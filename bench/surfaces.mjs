@@ -27,7 +27,7 @@ import { voigtStiffness } from '../dist/elasticity/stiffness.js';
 import { inclinedHalfSpaceCorrection } from '../dist/elasticity/surfaceHalfSpaceInclined.js';
 import { sphericalInclusion } from '../dist/elasticity/inclusion.js';
 import { inclusionSurfaceCorrection } from '../dist/elasticity/inclusionSurface.js';
-import { fmt, inclinedDislocation, lcg, median, perPointNs } from './common.mjs';
+import { fmt, inclinedDislocation, lcg, median, perPointNs, normalScrew } from './common.mjs';
 
 const parallel = {
   name: 'bench-parallel',
@@ -42,18 +42,7 @@ const parallel = {
   defects: [{ type: 'dislocation', b: '1/2[1 0 1]', line: [1, 1, 0], point_nm: [0, 0, 20] }],
 };
 const inclined = inclinedDislocation({ name: 'bench-inclined', size: 128, pixel_nm: 1 });
-const normal = {
-  name: 'bench-normal',
-  material: 'Cu',
-  kV: 200,
-  elasticity: 'isotropic',
-  foil: { thickness_nm: 60, normal: [1, 1, 0] },
-  beam: [1, 1, 0],
-  imageX: [0, 0, 1],
-  image: { width_px: 128, height_px: 128, pixel_nm: 0.5 },
-  conditions: [{ id: 'g', g: [1, -1, 1], w: 0.5, beam: [5, 5, 1] }],
-  defects: [{ type: 'dislocation', b: '1/2[1 1 0]', line: [1, 1, 0], point_nm: [0, 0, 30] }],
-};
+const normal = normalScrew();
 
 const edgeParallel = { ...parallel, name: 'bench-edge-parallel', defects: [{ type: 'dislocation', b: '1/2[1 -1 0]', line: [1, 1, 0], point_nm: [0, 0, 20] }] };
 const particle = {
