@@ -99,22 +99,27 @@ export function candidateStrips(sc: Scenario, candidates: readonly Candidate[], 
       row[i] = (out[0] * out[0] + out[1] * out[1]) / bg - 1;
     }
   }
+  const keep = Uint8Array.from(x, (s) => (Math.abs(s) < opt.coreExclusion_nm ? 0 : 1));
+  return { x_nm: x, contrast, difference: endOn ? new Float64Array(n * n) : largestDifferences(contrast, keep), endOn };
+}
+
+/** Largest |c_i - c_j| over the points with keep = 1, for every pair of candidates (n x n, symmetric, zero diagonal). */
+function largestDifferences(contrast: readonly Float64Array[], keep: Uint8Array): Float64Array {
+  const n = contrast.length;
   const difference = new Float64Array(n * n);
-  if (!endOn) {
-    for (let i = 0; i < n; i++) {
-      for (let j = i + 1; j < n; j++) {
-        let d = 0;
-        for (let k = 0; k < opt.columns; k++) {
-          if (Math.abs(x[k]) < opt.coreExclusion_nm) continue;
-          const e = Math.abs(contrast[i][k] - contrast[j][k]);
-          if (e > d) d = e;
-        }
-        difference[i * n + j] = d;
-        difference[j * n + i] = d;
+  for (let i = 0; i < n; i++) {
+    for (let j = i + 1; j < n; j++) {
+      let d = 0;
+      for (let q = 0; q < keep.length; q++) {
+        if (keep[q] === 0) continue;
+        const e = Math.abs(contrast[i][q] - contrast[j][q]);
+        if (e > d) d = e;
       }
+      difference[i * n + j] = d;
+      difference[j * n + i] = d;
     }
   }
-  return { x_nm: x, contrast, difference, endOn };
+  return difference;
 }
 
 /** Pairs (i < j) told apart: a bit set as a Uint8Array over the n(n-1)/2 pairs in order (0,1), (0,2), ... */
@@ -158,17 +163,5 @@ function candidatePatches(sc: Scenario, candidates: readonly Candidate[], cond: 
     }
     contrast.push(row);
   }
-  const difference = new Float64Array(n * n);
-  for (let i = 0; i < n; i++) {
-    for (let j = i + 1; j < n; j++) {
-      let d = 0;
-      for (let q = 0; q < keep.length; q++) {
-        const e = Math.abs(contrast[i][q] - contrast[j][q]);
-        if (keep[q] === 1 && e > d) d = e;
-      }
-      difference[i * n + j] = d;
-      difference[j * n + i] = d;
-    }
-  }
-  return { x_nm: new Float64Array(0), contrast, difference, endOn: false };
+  return { x_nm: new Float64Array(0), contrast, difference: largestDifferences(contrast, keep), endOn: false };
 }
