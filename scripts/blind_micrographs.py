@@ -427,7 +427,7 @@ def make_case(rng, idx, out_dir, kind):
         'foil': {'thickness_nm': t_nom, 'normal': NORMAL},
         'beam': NORMAL, 'imageX': IMAGE_X,
         'image': {'width_px': size, 'height_px': size, 'pixel_nm': pixel},
-        'absorption': ABSORPTION_RATIO, 'elasticity': 'isotropic',
+        'absorption': ABSORPTION_RATIO, 'elasticity': 'isotropic', 'surfaces': 'infinite',
         'conditions': scenario_conds,
         'defects': [{'type': 'dislocation', 'b': '1/2[1 1 0]' if kind != 'out' else candidates[0]['b'], 'line': [int(c) for c in line], 'point_nm': [0, 0, depth_nom]}],
         'candidates': candidates,

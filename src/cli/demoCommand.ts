@@ -114,7 +114,11 @@ async function demoIdentification(demoDir: string, pool: RenderPool): Promise<vo
   }
   const scenarioFile = inputs.write('identify-scenario.json', `${jsonText({ ...DEMO_IDENTIFY_SCENARIO, micrographs: settings }, 2)}\n`);
   inputs.commit();
-  process.stdout.write(`${syn.length} synthetic micrographs (signal-to-noise ${DEMO_SYNTHESIS.snr}, blur ${DEMO_SYNTHESIS.blur_nm} nm, 10 % background gradient, random shift and rotation) written to ${dir}\n\n`);
+  process.stdout.write(`${syn.length} synthetic micrographs (signal-to-noise ${DEMO_SYNTHESIS.snr}, blur ${DEMO_SYNTHESIS.blur_nm} nm, 10 % background gradient, random shift and rotation) written to ${dir}\n`);
+  process.stdout.write(
+    'micrographs and identification use infinite-medium fields (no surface relaxation): "surfaces": "infinite" in the scenario keeps\n' +
+      'this part short; relaxed surfaces, the default for your own scenarios, take about 5x the CPU time here\n\n',
+  );
   const out = await runIdentify(scenarioFile, { micrograph: args, out: join(demoDir, 'identify'), pool });
   process.stdout.write(formatIdentify(out));
   const best = out.result.ranking[0]?.candidate;

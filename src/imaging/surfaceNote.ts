@@ -79,7 +79,7 @@ export function describeSurfaces(sc: Scenario): SurfacesDescription {
   }
   if (correctedInclusions > 0) approximations.push(INCLUSION_TEXT);
   if (correctedInclusions < spheres.length) approximations.push('an inclusion that a foil surface cuts is not relaxed at the surfaces (infinite-medium field)');
-  approximations.push('dislocation loops are not relaxed at the surfaces (isotropic infinite-medium field; a loop that a surface cuts is refused)');
+  if (sc.defects.some((d) => d.type === 'loop')) approximations.push('dislocation loops are not relaxed at the surfaces (isotropic infinite-medium field; a loop that a surface cuts is refused)');
   const lineCount = n === 0 ? 'no straight lines in this scenario' : `${corrected} of ${n} straight line${n === 1 ? '' : 's'} corrected`;
   const count = spheres.length === 0 ? lineCount : `${lineCount}, ${correctedInclusions} of ${spheres.length} inclusion${spheres.length === 1 ? '' : 's'} corrected`;
   const SHORT: Readonly<Record<SurfaceCorrectionKind, string>> = {

@@ -128,14 +128,16 @@ function readElasticity(v: unknown): Elasticity {
 }
 
 /**
- * "surfaces": "infinite" (default: infinite-medium fields) or "relaxed" (free-surface corrections,
- * src/elasticity/surfaceRelaxation.ts). Not relaxed by default: the corrections of inclined lines break the
- * shared-column method and make renders of them 7-18x slower (bench/surfaces.mjs; README, Foil surfaces).
+ * "surfaces": "relaxed" (default: free-surface corrections of straight lines and inclusions,
+ * src/elasticity/surfaceRelaxation.ts) or "infinite" (infinite-medium fields). The corrections of inclined
+ * lines break the shared-column method: such renders are about 3x slower than the infinite medium column by
+ * column and up to 16x slower than with shared columns (bench/surfaces.mjs; README, Foil surfaces), which
+ * is what "infinite" is still for (fast previews, fits of many candidates, generators without surfaces).
  */
 function readSurfaces(v: unknown): Surfaces {
-  if (v === undefined) return 'infinite';
+  if (v === undefined) return 'relaxed';
   if (v === 'relaxed' || v === 'infinite') return v;
-  return fail('surfaces', `must be "infinite" (infinite-medium fields, the default) or "relaxed" (free-surface corrections of straight dislocation fields), got ${JSON.stringify(v)}${wordHint(v, ['infinite', 'relaxed'])}`);
+  return fail('surfaces', `must be "relaxed" (free-surface corrections of straight dislocations and inclusions, the default) or "infinite" (infinite-medium fields), got ${JSON.stringify(v)}${wordHint(v, ['relaxed', 'infinite'])}`);
 }
 
 function readMaterial(v: unknown): Material {

@@ -61,7 +61,7 @@ export interface ImageSpec {
 
 export type Elasticity = 'anisotropic' | 'isotropic';
 
-/** Foil surfaces: "infinite" (infinite-medium fields, the default) or "relaxed" (free-surface corrections of straight lines). */
+/** Foil surfaces: "relaxed" (free-surface corrections of straight lines and inclusions, the default) or "infinite" (infinite-medium fields). */
 export type Surfaces = 'relaxed' | 'infinite';
 
 export interface Scenario {
@@ -86,8 +86,9 @@ export interface Scenario {
   readonly elasticity: Elasticity;
   /**
    * Free-surface relaxation of straight dislocation fields (src/elasticity/surfaceRelaxation.ts):
-   * "infinite" (the default) uses the infinite-medium fields; "relaxed" adds a surface correction to
-   * every straight line (see README, Foil surfaces, for what is exact and what is approximated).
+   * "relaxed" (the default) adds a surface correction to every straight line and to every inclusion wholly
+   * inside the foil (see README, Foil surfaces, for what is exact and what is approximated; loops are not
+   * relaxed); "infinite" uses the infinite-medium fields.
    */
   readonly surfaces: Surfaces;
   readonly conditions: readonly Condition[];

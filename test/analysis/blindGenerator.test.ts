@@ -38,6 +38,7 @@ const RAW = {
   image: { width_px: 48, height_px: 40, pixel_nm: 1.2 },
   absorption: 0.1,
   elasticity: 'isotropic',
+  surfaces: 'infinite', // the generator's field has no free surfaces
   conditions: [{ id: 'g1m11', g: [1, -1, 1], w: 0.6, beam: [0, 1, 1] }],
   defects: [{ type: 'dislocation', b: '1/2[1 0 -1]', line: [2, -1, 1], point_nm: [3, -2, 40] }],
 };

@@ -111,8 +111,8 @@ describe('absolute image side (Hirsch et al. 1965; sign fixed by s + beta\' = 0)
 
 describe('image width (common practice)', () => {
   it('at s = 0 and g.b = 1 the image is of the order of xi_g/3 wide, and exactly as wide as an independent integration', async () => {
-    // the reference integrates the isotropic Hirth & Lothe field
-    const sc = parallel('1/2[1 0 1]', [0, 1, 0], [2, 0, 0], { s_per_nm: 0 }, { elasticity: 'isotropic', image: { width_px: 400, height_px: 2, pixel_nm: 0.25 }, foil: { thickness_nm: 160, normal: [0, 0, 1] } });
+    // the reference integrates the isotropic Hirth & Lothe field of the infinite medium
+    const sc = parallel('1/2[1 0 1]', [0, 1, 0], [2, 0, 0], { s_per_nm: 0 }, { elasticity: 'isotropic', surfaces: 'infinite', image: { width_px: 400, height_px: 2, pixel_nm: 0.25 }, foil: { thickness_nm: 160, normal: [0, 0, 1] } });
     const [ci] = await render(sc);
     const ref = JSON.parse(readFileSync(join(import.meta.dirname, '..', 'reference', 'dislocation-profiles.json'), 'utf8')).width as { df: number[]; dfBackground: number };
     const width = (df: readonly number[], bg: number) => {

@@ -47,6 +47,7 @@ function inclusionScenario(beams: unknown) {
     foil: { thickness_nm: ref.thickness_nm, normal: [0, 0, 1] },
     image: { width_px: ref.width_px, height_px: ref.height_px, pixel_nm: ref.pixel_nm },
     absorption: 0.1,
+    surfaces: 'infinite', // the scipy reference integrates the infinite-medium field
     conditions: [{ id: 'g200', g: [2, 0, 0], w: 0, beams }],
     defects: [{ type: 'inclusion', centre_nm: [0, 0, ref.centreDepth_nm], radius_nm: ref.radius_nm, misfit: ref.misfit }],
   });

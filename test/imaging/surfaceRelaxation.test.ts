@@ -1,5 +1,5 @@
 /**
- * Images with relaxed foil surfaces ("surfaces": "relaxed"; the default is "infinite") against the infinite medium.
+ * Images with relaxed foil surfaces ("surfaces": "relaxed", the default) against the infinite medium.
  * The correction field itself is checked in test/elasticity/surfaceRelaxation.test.ts (tractions,
  * equilibrium, Burgers circuit, Eshelby & Stroh 1951, scipy); here: that every rendering path uses it,
  * and what it does to images where the line meets (or runs near) a surface.
@@ -13,10 +13,10 @@ import { describeSurfaces } from '../../src/imaging/surfaceNote.js';
 import type { Scenario } from '../../src/scenario/types.js';
 
 describe('"surfaces" scenario key', () => {
-  it('defaults to "infinite", accepts "relaxed", refuses anything else naming the field', () => {
-    expect(scenario({}).surfaces).toBe('infinite');
-    expect(scenario({ surfaces: 'relaxed' }).surfaces).toBe('relaxed');
-    expect(() => scenario({ surfaces: 'free' })).toThrow(/^surfaces: must be "infinite" .* or "relaxed"/);
+  it('defaults to "relaxed", accepts "infinite", refuses anything else naming the field', () => {
+    expect(scenario({}).surfaces).toBe('relaxed');
+    expect(scenario({ surfaces: 'infinite' }).surfaces).toBe('infinite');
+    expect(() => scenario({ surfaces: 'free' })).toThrow(/^surfaces: must be "relaxed" .* or "infinite"/);
     expect(() => scenario({ surfaces: 'Relaxed' })).toThrow(/got "Relaxed"; did you mean "relaxed"\?$/);
   });
   it('the description counts the corrected lines and names the approximations', () => {
