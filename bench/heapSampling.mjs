@@ -15,6 +15,7 @@ import { DEMO_SCENARIO } from '../dist/scenario/demo.js';
 const wb = {
   name: 'wb', material: 'Cu', kV: 200, foil: { thickness_nm: 100, normal: [0, 0, 1] }, beam: [0, 0, 1], imageX: [1, 0, 0],
   image: { width_px: 128, height_px: 128, pixel_nm: 0.5 },
+  surfaces: 'infinite',
   conditions: [{ id: 'wb', g: [2, 2, 0], weakBeam: 3, beams: { row: [-2, 4] } }],
   defects: [{ type: 'dislocation', b: '1/2[1 1 0]', line: [1, -1, 2], point_nm: [0, 0, 50] }],
 };

@@ -14,6 +14,7 @@ const base = {
   beam: [0, 0, 1],
   imageX: [1, 0, 0],
   image: { width_px: 256, height_px: 256, pixel_nm: 0.25 },
+  surfaces: 'infinite',
   defects: [{ type: 'dislocation', b: '1/2[1 1 0]', line: [1, -1, 2], point_nm: [0, 0, 50] }],
 };
 const job = (beams) => {
