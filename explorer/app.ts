@@ -1,6 +1,6 @@
 /**
  * The explorer page: reads the served scenario, lets the user change one
- * condition's g, deviation and beams, the foil thickness, a defect's depth
+ * condition's g, deviation and beams, the foil thickness and surfaces, a defect's depth
  * and Burgers vector, and re-renders with the command line's own renderer
  * (bundled; bands of rows in Web Workers). Every setting is applied to a copy
  * of the scenario JSON, which is parsed by the same parser as the CLI: the
@@ -38,6 +38,8 @@ interface Settings {
   b: number;
   /** 2, an odd systematic-row count, or 0: the beam set of the file. */
   beams: number;
+  /** Foil surfaces: relaxed (the default) or the infinite medium (keeps inclined lines on shared columns: faster). */
+  surfaces: 'relaxed' | 'infinite';
 }
 
 interface Reflection {
@@ -82,6 +84,7 @@ const el = {
   depthValue: $<HTMLInputElement>('depth-value'),
   burgers: $<HTMLSelectElement>('burgers'),
   beams: $<HTMLSelectElement>('beams'),
+  surfaces: $<HTMLSelectElement>('surfaces'),
   info: $('info'),
   status: $('status'),
   figure: $<HTMLCanvasElement>('figure'),
@@ -163,9 +166,9 @@ class BandPool {
 
 let raw: Raw = {};
 let base: Scenario;
-const settings: Settings = { cond: 0, mode: 'w', value: 0, thickness: 100, defect: -1, depth: 0, g: [0, 0, 0], b: -1, beams: 2 };
+const settings: Settings = { cond: 0, mode: 'w', value: 0, thickness: 100, defect: -1, depth: 0, g: [0, 0, 0], b: -1, beams: 2, surfaces: 'relaxed' };
 /** Settings the user has changed: only these are written into the scenario copy, so untouched entries keep the file's own form (weakBeam, 4 indices, ...). */
-const touched = { deviation: false, g: false, beams: false, thickness: false, depth: false };
+const touched = { deviation: false, g: false, beams: false, thickness: false, depth: false, surfaces: false };
 let reflections: Reflection[] = [];
 let burgersChoices: Vec3[] = [];
 
@@ -177,6 +180,7 @@ function defectDepthKey(d: Raw): string {
 export function variantRaw(): Raw {
   const r = structuredClone(raw);
   if (touched.thickness) r.foil.thickness_nm = settings.thickness;
+  if (touched.surfaces) r.surfaces = settings.surfaces;
   const c = r.conditions[settings.cond];
   if (touched.deviation) {
     delete c.s_per_nm;
@@ -671,6 +675,8 @@ async function main(): Promise<void> {
   fourIndices = usesFourIndices(base.material.lattice);
   el.name.textContent = base.name;
   settings.thickness = base.thickness_nm;
+  settings.surfaces = base.surfaces;
+  el.surfaces.value = base.surfaces;
   base.conditions.forEach((c, i) => option(el.condition, String(i), `${c.id}  (g = ${idx(c.g)})`));
   option(el.defect, '-1', '(none chosen)');
   base.defects.forEach((d, i) => option(el.defect, String(i), `${d.label} (${d.type})`));
@@ -729,6 +735,11 @@ async function main(): Promise<void> {
   el.beams.addEventListener('change', () => {
     settings.beams = Number(el.beams.value);
     touched.beams = true;
+    update();
+  });
+  el.surfaces.addEventListener('change', () => {
+    settings.surfaces = el.surfaces.value === 'infinite' ? 'infinite' : 'relaxed';
+    touched.surfaces = true;
     update();
   });
   $('controls').addEventListener('submit', (e) => e.preventDefault());

@@ -423,6 +423,26 @@ describe.skipIf(!HAVE_CHROMIUM)(SUITE, () => {
     expect(maxAbsDiff(shown.df, cli.df)).toBeLessThanOrEqual(1e-6);
   });
 
+  it('"foil surfaces: infinite medium" in the page equals the CLI render of the saved scenario, and differs from relaxed', async () => {
+    const relaxed = await images(page);
+    const n = await renders(page);
+    await setInput(page, 'surfaces', 'infinite', 'change');
+    await waitRender(page, n);
+    const shown = await images(page);
+    const [download] = await Promise.all([page.waitForEvent('download'), page.click('#save')]);
+    const savedPath = join(dir, 'saved-infinite.json');
+    await download.saveAs(savedPath);
+    expect(JSON.parse(readFileSync(savedPath, 'utf8')).surfaces).toBe('infinite');
+    const cli = cliRender(savedPath, join(dir, 'cli-infinite'), 'g200');
+    expect(maxAbsDiff(shown.bf, cli.bf)).toBeLessThanOrEqual(1e-6);
+    expect(maxAbsDiff(shown.df, cli.df)).toBeLessThanOrEqual(1e-6);
+    // the scenario's inclined line with and without the surface corrections
+    expect(maxAbsDiff(shown.bf, relaxed.bf)).toBeGreaterThan(1e-3);
+    const m = await renders(page);
+    await setInput(page, 'surfaces', 'relaxed', 'change');
+    await waitRender(page, m);
+  });
+
   it('exports the figure as PNG and SVG', async () => {
     const [png] = await Promise.all([page.waitForEvent('download'), page.click('#export-png')]);
     const pngPath = join(dir, 'figure.png');
