@@ -4,7 +4,11 @@
  * and, where the line direction is known, the verdict of a simulated strip of
  * columns across the line (for a loop: a patch of columns over it;
  * lineContrast.ts); the simulated verdict is the one the table shows, the rule
- * stands beside it.
+ * stands beside it. With relaxed foil surfaces every simulated entry also carries
+ * the same strip or patch in the infinite medium: the two half-space corrections
+ * of an inclined line are approximate away from where it meets the surfaces
+ * (README, Foil surfaces), and a verdict that only the corrections change (a
+ * g.b = 0 screw, say) must be seen as such.
  */
 import type { Vec3 } from '../math/vec3.js';
 import type { DefectSpec, Scenario } from '../scenario/types.js';
@@ -23,6 +27,8 @@ export interface VisibilityTableEntry extends Omit<VisibilityEntry, 'verdict'> {
   readonly verdict: SimulatedVerdict | Verdict;
   /** The simulated strip across the line, or patch over a loop (absent when nothing could be simulated: a candidate without a line direction). */
   readonly simulated?: LineContrast;
+  /** With relaxed surfaces: the same simulation in the infinite medium ("surfaces": "infinite"). */
+  readonly infiniteMedium?: LineContrast;
 }
 
 export interface VisibilityRow {
@@ -47,7 +53,19 @@ export function only(m: DefectModel, k: number): Simulation {
 }
 
 export function visibilityTable(sc: Scenario, options: { simulate?: boolean } = {}): VisibilityRow[] {
-  const simulate = options.simulate ?? true;
+  const rows = tableOf(sc, options.simulate ?? true);
+  if (sc.surfaces !== 'relaxed' || options.simulate === false) return rows;
+  const inf = tableOf({ ...sc, surfaces: 'infinite' }, true);
+  return rows.map((r, i) => ({
+    ...r,
+    entries: r.entries.map((e, j) => {
+      const s = inf[i].entries[j].simulated;
+      return s === undefined ? e : { ...e, infiniteMedium: s };
+    }),
+  }));
+}
+
+function tableOf(sc: Scenario, simulate: boolean): VisibilityRow[] {
   const rows: VisibilityRow[] = [];
   const l = sc.material.lattice;
   const conditions: ResolvedCondition[] = simulate ? sc.conditions.map((c) => resolveCondition(sc, c)) : [];

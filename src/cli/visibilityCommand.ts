@@ -12,15 +12,24 @@ function cell(e: VisibilityTableEntry): string {
   const gbxu = e.gbxu !== undefined && e.gb === 0 ? ` (${frac(e.gbxu)})` : '';
   if (e.simulated === undefined) return `${frac(e.gb)}${gbxu} ${MARK[e.verdict]} rule`;
   const peak = Math.max(e.simulated.bf, e.simulated.df);
-  return `${frac(e.gb)}${gbxu} ${MARK[e.verdict]} ${Math.round(100 * peak)}% (rule ${MARK[e.ruleVerdict]})`;
+  const inf = e.infiniteMedium;
+  // the infinite medium's verdict only where it differs (the JSON has it always)
+  const other = inf === undefined || inf.verdict === e.verdict ? '' : ` [inf. ${MARK[inf.verdict]} ${Math.round(100 * Math.max(inf.bf, inf.df))}%]`;
+  return `${frac(e.gb)}${gbxu} ${MARK[e.verdict]} ${Math.round(100 * peak)}%${other} (rule ${MARK[e.ruleVerdict]})`;
 }
 
 export function formatVisibility(sc: Scenario, rows: readonly VisibilityRow[]): string {
   const l = sc.material.lattice;
   const header = ['defect / candidate', 'b', 'u', ...sc.conditions.map((c) => `${c.id} ${formatPlaneIn(l, c.g)}`)];
   const body = rows.map((r) => [r.subject, formatDirectionIn(l, r.b), r.line ? formatDirectionIn(l, r.line) : '-', ...r.entries.map(cell)]);
+  const fields =
+    sc.surfaces === 'relaxed'
+      ? 'fields: relaxed foil surfaces (the scenario\'s setting; "[inf. ...]": the infinite medium gives another verdict: the\n' +
+        '       corrections of an inclined line are approximate away from where it meets the surfaces, README Foil surfaces)\n'
+      : 'fields: infinite medium ("surfaces": "infinite")\n';
   return (
     table(header, body) +
+    fields +
     'cells: g.b (for g.b = 0 then g.(b x u) in brackets), the verdict from a simulated strip of columns across the line\n' +
     '       (for a loop: a patch of columns over it, against the perfect crystal)\n' +
     `       (two-beam at the condition's s, the scenario's thickness, the line's depth; candidates at mid-depth),\n` +
