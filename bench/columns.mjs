@@ -30,7 +30,7 @@ const rows = [
   ['inclined mixed 1/2[101] along [112], Cu, 128 x 128 px of 1 nm, g 200, w 0.5, t 100 nm (render --each-column)', inclined, 0],
   ['the same with relaxed foil surfaces', { ...inclined, surfaces: 'relaxed' }, 0],
   ['screw 1/2[110] normal to a (110) foil, beam tilted to [551], relaxed surfaces, 128 x 128 px, g 1-11', normal, 0],
-  ['demo scenario (3 lines, a fault ribbon, an inclusion, 2 loops), 128 x 128 px, condition g200', DEMO_SCENARIO, 0],
+  ['demo scenario (3 lines, a fault ribbon, an inclusion, 2 loops), 128 x 128 px, condition g200, infinite medium', { ...DEMO_SCENARIO, surfaces: 'infinite' }, 0],
   ['identification view: demo line, candidate 1/2[0-11], 64 x 64 px, condition g11m1 (beam [011])', view, 2],
 ];
 

@@ -117,7 +117,8 @@ async function demoIdentification(demoDir: string, pool: RenderPool): Promise<vo
   process.stdout.write(`${syn.length} synthetic micrographs (signal-to-noise ${DEMO_SYNTHESIS.snr}, blur ${DEMO_SYNTHESIS.blur_nm} nm, 10 % background gradient, random shift and rotation) written to ${dir}\n`);
   process.stdout.write(
     'micrographs and identification use infinite-medium fields (no surface relaxation): "surfaces": "infinite" in the scenario keeps\n' +
-      'this part short; relaxed surfaces, the default for your own scenarios, take about 5x the CPU time here\n\n',
+      'this part short; relaxed surfaces, the default for your own scenarios, take several times the CPU time here\n' +
+      '(the whole demo with this part relaxed: about 5x; README, Foil surfaces)\n\n',
   );
   const out = await runIdentify(scenarioFile, { micrograph: args, out: join(demoDir, 'identify'), pool });
   process.stdout.write(formatIdentify(out));

@@ -17,6 +17,7 @@ import { beamInSpecimenFrame, checkRange, orientation, orientationFromBeam, with
 import { plan, PLAN_DEFAULTS, type PlanResult } from '../planning/plan.js';
 import { numberOption } from './options.js';
 import { loadScenario } from './loadScenario.js';
+import type { Scenario } from '../scenario/types.js';
 import { slug } from './slug.js';
 import { printJson, sig, table } from './run.js';
 
@@ -145,7 +146,7 @@ export async function planCommand(scenarioPath: string, opts: PlanCommandOptions
     printJson(json);
     return;
   }
-  printPlan({ ...result, zeroTiltNormal: o.Z, zeroTiltAxis: o.X }, files, sc.material.lattice);
+  printPlan({ ...result, zeroTiltNormal: o.Z, zeroTiltAxis: o.X }, files, sc.material.lattice, sc.surfaces);
 }
 
 function planJson(name: string, holder: Holder, r: PlanResult, files: string[]) {
@@ -180,14 +181,14 @@ function planJson(name: string, holder: Holder, r: PlanResult, files: string[]) 
   };
 }
 
-function printPlan(r: PlanResult & { zeroTiltNormal: Vec3; zeroTiltAxis: Vec3 }, files: string[], lattice: Lattice): void {
+function printPlan(r: PlanResult & { zeroTiltNormal: Vec3; zeroTiltAxis: Vec3 }, files: string[], lattice: Lattice, surfaces: Scenario['surfaces']): void {
   const w = process.stdout;
   const bText = (b: Vec3) => formatDirectionIn(lattice, b);
   const z = r.zeroTiltNormal;
   w.write(`beam direction at zero tilt: [${z.map((x) => sig(x, 3)).join(' ')}] (Cartesian, crystal frame); primary tilt axis along [${r.zeroTiltAxis.map((x) => sig(x, 3)).join(' ')}]\n`);
   w.write(`candidates: ${r.candidates.length} (${r.candidates.map((c) => bText(c.b!)).join(', ')}), ${r.nPairs} pairs to tell apart\n\n`);
   const loop = r.candidates[0].defect.type === 'loop';
-  w.write(`reachable two-beam conditions (simulated bright-field ${loop ? 'patches over the loop' : 'strips across the line'}):\n`);
+  w.write(`reachable two-beam conditions (simulated bright-field ${loop ? 'patches over the loop' : 'strips across the line'}, ${surfaces === 'relaxed' ? 'relaxed foil surfaces' : 'infinite medium'}):\n`);
   w.write(table(
     ['g', '|g| nm^-1', 'xi_g nm', 'near zone', 'zone tilts', 'g tilts', 'pairs told apart', 'g.b of the candidates'],
     r.conditions.map((c) => [

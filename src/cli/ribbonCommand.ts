@@ -186,7 +186,7 @@ export function ribbonCommand(scenarioPath: string, opts: RibbonOptions): void {
   o.push(`peaks across the line at ${peaks.peaks.map((p) => `${sig(p.x_nm, 4)} nm`).join(' and ')} (profile bins ${sig(bin, 3)} nm)`);
   o.push(`measured peak separation ${sig(peaks.separation_nm, 4)} +- ${sig(sepError, 2)} nm (profile noise and one bin of sampling)`);
   o.push('');
-  o.push('simulated peak separation for ribbon widths (the correction for each partial\'s image shift):');
+  o.push(`simulated peak separation for ribbon widths (the correction for each partial's image shift; ${sc.surfaces === 'relaxed' ? 'relaxed foil surfaces' : 'infinite medium'}):`);
   o.push(
     table(
       ['width (nm)', 'peak separation (nm)'],

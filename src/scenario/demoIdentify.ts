@@ -17,8 +17,8 @@ export const DEMO_IDENTIFY_SCENARIO = {
   imageX: [1, 0, 0],
   image: { width_px: 64, height_px: 64, pixel_nm: 1 },
   absorption: 0.1,
-  // infinite medium: with relaxed surfaces (the default) this identification takes about 5x the CPU time
-  // (about 70 s more on 2 cores); the demo says so, and the synthetic micrographs are made with the same setting
+  // infinite medium: with relaxed surfaces (the default) the whole demo took 176 instead of 37 CPU s (README,
+  // Foil surfaces); the demo says so, and the synthetic micrographs are made with the same setting
   surfaces: 'infinite',
   conditions: [
     { id: 'g200', g: [2, 0, 0], w: 0.5 },

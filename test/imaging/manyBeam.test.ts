@@ -120,6 +120,7 @@ describe('many-beam engine in the renderer', () => {
         // the kinematical reference integrates the isotropic screw field R = b theta / 2 pi; in anisotropic Cu the
         // <110> screw's angular field is stretched by sqrt(C44 / ((C11 - C12)/2)) ~ 1.8 and the peak moves
         elasticity: 'isotropic',
+        surfaces: 'infinite', // and of the infinite medium
         imageX: [1, 1, 0],
         foil: { thickness_nm: 60, normal: [0, 0, 1] },
         image: { width_px: 200, height_px: 1, pixel_nm: 0.04 },

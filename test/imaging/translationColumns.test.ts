@@ -66,7 +66,7 @@ describe('translation method equals column-by-column integration (exact identity
       'Shockley partial with its fault running to the exit surface',
       { conditions: [{ id: 'g', g: [2, 2, 0], w: 0.3 }], defects: [{ type: 'partial', b: '1/6[1 1 -2]', line: [1, -1, 0], faultPlane: [1, 1, 1], faultSide: [-1, -1, 2], point_nm: [0, 0, 50] }] },
     ],
-    // relaxed surfaces (not the default): the image screws of a parallel line keep the field invariant along the line
+    // relaxed surfaces (the default, written out here): the image screws of a parallel line keep the field invariant along the line
     ['screw parallel to the surfaces 10 nm deep, with its surface images (relaxed)', { surfaces: 'relaxed', defects: [{ type: 'dislocation', b: '1/2[1 1 0]', line: [1, 1, 0], point_nm: [0, 0, 10] }] }],
     [
       'isotropic mixed line parallel to the surfaces with its screw images and edge half-space images (relaxed), tilted beam [0 1 8]',
