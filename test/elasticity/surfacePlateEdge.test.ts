@@ -315,7 +315,7 @@ describe('plate correction: the far field, the kink and the limits', () => {
 });
 
 describe('plate correction against an independent evaluation (scripts/ref_plate_edge.py: Hirth & Lothe stresses transformed in closed form, the 4 x 4 strip system by mpmath, scipy quad_vec)', () => {
-  const py = needPython('scipy');
+  const py = needPython('scipy', 'numpy', 'mpmath');
   const script = readFileSync(new URL('../../scripts/ref_plate_edge.py', import.meta.url), 'utf8');
   it('12 points (both surfaces, the line, far out), mixed edge line 8 nm deep in a 60 nm foil: the 2 x 2 gradient agrees to 1e-6 of its largest value; the reference uses the same sign convention for the infinite line (its stress at one point)', (ctx) => {
     py.require(ctx);
