@@ -406,6 +406,24 @@ export function plateEdgeLocal(p: PlateEdgeProblem, tb: PlateEdgeTable, x: numbe
 
 const GL16 = gaussLegendre(16);
 
+/**
+ * Tables already built in this thread, by line (b_x, b_y, depth, thickness, nu): a render cut into parts or bands
+ * rebuilds its fields for each, and a worker keeps its tables from one part to the next (about 0.9 MB each).
+ */
+const TABLES = new Map<string, PlateEdgeTable>();
+const TABLES_KEPT = 16;
+
+function cachedTable(p: PlateEdgeProblem): PlateEdgeTable {
+  const key = `${p.bx},${p.by},${p.d},${p.t},${p.nu}`;
+  let tb = TABLES.get(key);
+  if (tb === undefined) {
+    tb = plateEdgeTable(p);
+    if (TABLES.size >= TABLES_KEPT) TABLES.delete(TABLES.keys().next().value as string);
+  } else TABLES.delete(key); // re-inserted below: most recently used last
+  TABLES.set(key, tb);
+  return tb;
+}
+
 /** The correction field of the edge component (b - (b.u) u) of a line parallel to the surfaces. */
 export function plateEdgeCorrection(o: PlateEdgeOptions): DisplacementField {
   const u = unit(o.line);
@@ -413,7 +431,7 @@ export function plateEdgeCorrection(o: PlateEdgeOptions): DisplacementField {
   const m = cross(n, u);
   const t = o.thickness_nm;
   const p = plateEdgeProblem(dot(o.b_nm, m), dot(o.b_nm, n), dot(o.point_nm, n), t, o.poissonRatio);
-  const tb = plateEdgeTable(p);
+  const tb = cachedTable(p);
   const xi0 = dot(o.point_nm, m);
   const [m0, m1, m2] = m;
   const [n0, n1, n2] = n;
