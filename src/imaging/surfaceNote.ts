@@ -75,7 +75,7 @@ export function describeSurfaces(sc: Scenario): SurfacesDescription {
   }
   const approximations: string[] = [...kinds].map((k) => KIND_TEXT[k]);
   if (sc.elasticity === 'anisotropic' && (kinds.has('parallel-screw-images') || kinds.has('parallel-edge-plate') || kinds.has('normal-screw-twist') || kinds.has('normal-edge-half-space') || kinds.has('inclined-half-space'))) {
-    approximations.push('the screw image series, the edge images of parallel lines, the plate twist and the half-space correction of inclined lines are isotropic (for inclined lines: the anisotropic field\'s own surface tractions, an isotropic response with the Voigt-average shear modulus), added to the anisotropic (Stroh) infinite field: the surface tractions are reduced, not exactly cancelled');
+    approximations.push('the screw image series, the plate correction of the edge of parallel lines, the plate twist and the half-space correction of inclined lines are isotropic (for inclined lines: the anisotropic field\'s own surface tractions, an isotropic response with the Voigt-average shear modulus), added to the anisotropic (Stroh) infinite field: the surface tractions are reduced, not exactly cancelled');
   }
   if (correctedInclusions > 0) approximations.push(INCLUSION_TEXT);
   if (correctedInclusions < spheres.length) approximations.push('an inclusion that a foil surface cuts is not relaxed at the surfaces (infinite-medium field)');
