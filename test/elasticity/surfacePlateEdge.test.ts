@@ -78,6 +78,7 @@ describe('exact plate correction of the edge component of a line parallel to the
         for (let i = 0; i < 9; i++) fd[i] += g[i];
         worstFd = Math.max(worstFd, norm(traction(fd, N)));
       }
+      console.log(`${label}: largest surface traction / largest unrelaxed: ${(worstR / worstI).toExponential(1)} (analytic gradient), ${(worstFd / worstI).toExponential(1)} (differences of the displacement)`);
       expect(worstI).toBeGreaterThan((0.1 * MU * BL) / (2 * Math.PI * Math.min(depth, T - depth)));
       expect(worstR / worstI).toBeLessThan(1e-6);
       expect(worstFd / worstI).toBeLessThan(1e-5);
