@@ -54,9 +54,11 @@
  *    +-Delta omega / 2, in closed form. Interpolation error against the direct
  *    k integral: measured in test/elasticity/surfacePlateEdge.test.ts.
  *
- * The displacement (tests and tools; the renderer uses only the gradient) is the
- * images' closed form plus the residual's gradient integrated from the line along
- * a straight path (Gauss-Legendre panels).
+ * The displacement (tests and tools; the renderer uses only the gradient, so it is
+ * built on first use) is the images' closed form plus a bicubic Hermite table of
+ * the residual's displacement whose derivatives are the gradient table and whose
+ * values are its integral; beyond |x| = 6 t minus the line's displacement plus the
+ * rotation -+kink/2 and a translation that meets the table; zero at the line.
  */
 import { type Vec3, cross, dot, unit } from '../math/vec3.js';
 import { type DirectionalProbe, type DisplacementField, withDirectional } from './field.js';
@@ -355,25 +357,28 @@ export function plateEdgeTable(p: PlateEdgeProblem): PlateEdgeTable {
 
 /** Bicubic Hermite interpolation of the table at (x, y) (|x| <= 6 t, 0 <= y <= t) into out[0..3]. */
 export function plateEdgeInterpolate(tb: PlateEdgeTable, x: number, y: number, out: Float64Array): void {
-  let fx = (x - tb.x0) / tb.hx, fy = y / tb.hy;
+  hermite(tb, tb.data, 4, x, y, out);
+}
+
+/** Bicubic Hermite interpolation on the table's grid of `ncomp` components stored as (f, f_x, f_y, f_xy) each. */
+function hermite(tb: PlateEdgeTable, d: Float64Array, ncomp: number, x: number, y: number, out: Float64Array): void {
+  const fx = (x - tb.x0) / tb.hx, fy = y / tb.hy;
   let i = Math.floor(fx), j = Math.floor(fy);
   if (i < 0) i = 0;
   if (i > tb.nx - 2) i = tb.nx - 2;
   if (j < 0) j = 0;
   if (j > tb.ny - 2) j = tb.ny - 2;
   const s = fx - i, r = fy - j;
-  fx = 0;
-  fy = 0;
   const s2 = s * s, s3 = s2 * s, r2 = r * r, r3 = r2 * r;
   const H0s = 2 * s3 - 3 * s2 + 1, H1s = -2 * s3 + 3 * s2, D0s = (s3 - 2 * s2 + s) * tb.hx, D1s = (s3 - s2) * tb.hx;
   const H0r = 2 * r3 - 3 * r2 + 1, H1r = -2 * r3 + 3 * r2, D0r = (r3 - 2 * r2 + r) * tb.hy, D1r = (r3 - r2) * tb.hy;
-  const d = tb.data;
-  const q00 = 16 * (j * tb.nx + i), q10 = q00 + 16, q01 = q00 + 16 * tb.nx, q11 = q01 + 16;
+  const stride = 4 * ncomp;
+  const q00 = stride * (j * tb.nx + i), q10 = q00 + stride, q01 = q00 + stride * tb.nx, q11 = q01 + stride;
   const a00 = H0s * H0r, a10 = H1s * H0r, a01 = H0s * H1r, a11 = H1s * H1r;
   const bx00 = D0s * H0r, bx10 = D1s * H0r, bx01 = D0s * H1r, bx11 = D1s * H1r;
   const by00 = H0s * D0r, by10 = H1s * D0r, by01 = H0s * D1r, by11 = H1s * D1r;
   const c00 = D0s * D0r, c10 = D1s * D0r, c01 = D0s * D1r, c11 = D1s * D1r;
-  for (let c = 0; c < 4; c++) {
+  for (let c = 0; c < ncomp; c++) {
     const o = 4 * c;
     out[c] =
       a00 * d[q00 + o] + a10 * d[q10 + o] + a01 * d[q01 + o] + a11 * d[q11 + o] +
@@ -381,6 +386,38 @@ export function plateEdgeInterpolate(tb: PlateEdgeTable, x: number, y: number, o
       by00 * d[q00 + o + 2] + by10 * d[q10 + o + 2] + by01 * d[q01 + o + 2] + by11 * d[q11 + o + 2] +
       c00 * d[q00 + o + 3] + c10 * d[q10 + o + 3] + c01 * d[q01 + o + 3] + c11 * d[q11 + o + 3];
   }
+}
+
+/**
+ * The residual's displacement (u_x, u_y) on the table's grid, as (f, f_x, f_y, f_xy) per component (8 per node):
+ * the derivatives are the gradient table's values (u_a,x = G_a0, u_a,y = G_a1, u_a,xy = d G_a0 / dy), the values
+ * its integral, exact for the cubic Hermite interpolant (h (f0 + f1)/2 + h^2 (f0' - f1')/12 per step), along the
+ * entrance-surface row from the middle column and from there along every column (up to a constant).
+ */
+function displacementTable(tb: PlateEdgeTable): Float64Array {
+  const { nx, ny, hx, hy, data } = tb;
+  const u = new Float64Array(8 * nx * ny);
+  const i0 = (nx - 1) >> 1;
+  for (let n = 0; n < nx * ny; n++)
+    for (let a = 0; a < 2; a++) {
+      const gx = 16 * n + 4 * (2 * a), gy = 16 * n + 4 * (2 * a + 1);
+      const o = 8 * n + 4 * a;
+      u[o + 1] = data[gx];
+      u[o + 2] = data[gy];
+      u[o + 3] = data[gx + 2];
+    }
+  const step = (f0: number, d0: number, f1: number, d1: number, h: number) => 0.5 * h * (f0 + f1) + (h * h * (d0 - d1)) / 12;
+  for (let a = 0; a < 2; a++) {
+    const cx = 4 * (2 * a), cy = 4 * (2 * a + 1), o = 4 * a;
+    for (let i = i0; i + 1 < nx; i++) u[8 * (i + 1) + o] = u[8 * i + o] + step(data[16 * i + cx], data[16 * i + cx + 1], data[16 * (i + 1) + cx], data[16 * (i + 1) + cx + 1], hx);
+    for (let i = i0; i > 0; i--) u[8 * (i - 1) + o] = u[8 * i + o] - step(data[16 * (i - 1) + cx], data[16 * (i - 1) + cx + 1], data[16 * i + cx], data[16 * i + cx + 1], hx);
+    for (let i = 0; i < nx; i++)
+      for (let j = 0; j + 1 < ny; j++) {
+        const q0 = 16 * (j * nx + i), q1 = 16 * ((j + 1) * nx + i);
+        u[8 * ((j + 1) * nx + i) + o] = u[8 * (j * nx + i) + o] + step(data[q0 + cy], data[q0 + cy + 2], data[q1 + cy], data[q1 + cy + 2], hy);
+      }
+  }
+  return u;
 }
 
 /**
@@ -404,13 +441,21 @@ export function plateEdgeLocal(p: PlateEdgeProblem, tb: PlateEdgeTable, x: numbe
   out[3] = -G[3];
 }
 
-const GL16 = gaussLegendre(16);
-
 /**
  * Tables already built in this thread, by line (b_x, b_y, depth, thickness, nu): a render cut into parts or bands
  * rebuilds its fields for each, and a worker keeps its tables from one part to the next (about 0.9 MB each).
  */
 const TABLES = new Map<string, PlateEdgeTable>();
+const DISPLACEMENT_TABLES = new WeakMap<PlateEdgeTable, Float64Array>();
+
+function cachedDisplacementTable(tb: PlateEdgeTable): Float64Array {
+  let u = DISPLACEMENT_TABLES.get(tb);
+  if (u === undefined) {
+    u = displacementTable(tb);
+    DISPLACEMENT_TABLES.set(tb, u);
+  }
+  return u;
+}
 const TABLES_KEPT = 16;
 
 function cachedTable(p: PlateEdgeProblem): PlateEdgeTable {
@@ -435,24 +480,12 @@ export function plateEdgeCorrection(o: PlateEdgeOptions): DisplacementField {
   const xi0 = dot(o.point_nm, m);
   const [m0, m1, m2] = m;
   const [n0, n1, n2] = n;
-  const H = new Float64Array(4), G = new Float64Array(4), U = new Float64Array(2);
+  const H = new Float64Array(4), G = new Float64Array(4);
   const local = (px: number, py: number, pz: number): void => {
     plateEdgeLocal(p, tb, px * m0 + py * m1 + pz * m2 - xi0, px * n0 + py * n1 + pz * n2, H, G);
   };
-  /** residual gradient (correction minus both images) at (x, y), any x */
-  const R = new Float64Array(4);
-  const residual = (x: number, y: number): void => {
-    if (Math.abs(x) <= -tb.x0) {
-      plateEdgeInterpolate(tb, x, y, R);
-      return;
-    }
-    plateEdgeLocal(p, tb, x, y, R, G);
-    halfPlaneGradient(p.top, x, y, G);
-    R[0] -= G[0]; R[1] -= G[1]; R[2] -= G[2]; R[3] -= G[3];
-    halfPlaneGradient(p.bottom, -x, t - y, G);
-    R[0] -= G[0]; R[1] -= G[1]; R[2] -= G[2]; R[3] -= G[3];
-  };
   /** images' displacement (local x, y components) into U */
+  const U = new Float64Array(2), V = new Float64Array(2);
   const images = (x: number, y: number): void => {
     halfPlaneDisplacement(p.top, x, y, U);
     const ux = U[0], uy = U[1];
@@ -460,8 +493,49 @@ export function plateEdgeCorrection(o: PlateEdgeOptions): DisplacementField {
     U[0] = ux - U[0];
     U[1] = uy - U[1];
   };
-  images(0, p.d);
-  const ux0 = U[0], uy0 = U[1];
+  const X = -tb.x0;
+  /** the infinite line's displacement into V, its cut moved off the far field (to x = 0, y < d) */
+  const lineDisp = (x: number, y: number, J: readonly [number, number]): void => {
+    halfPlaneDisplacement(p.line, x, y, V);
+    if (x < 0 && y < p.d) {
+      V[0] += J[0];
+      V[1] += J[1];
+    }
+  };
+  /** images plus the residual's displacement table at (x, y) (|x| <= X) into U */
+  const inside = (u: Float64Array, x: number, y: number): void => {
+    hermite(tb, u, 2, x, y, V);
+    const vx = V[0], vy = V[1];
+    images(x, y);
+    U[0] += vx;
+    U[1] += vy;
+  };
+  // built on first use (tests and tools; the renderer needs only the gradient)
+  interface Disp { u: Float64Array; c0x: number; c0y: number; J: [number, number]; far: [number, number, number, number] }
+  let disp: Disp | null = null;
+  const setup = (): Disp => {
+    const u = cachedDisplacementTable(tb);
+    inside(u, 0, p.d);
+    const c0x = U[0], c0y = U[1];
+    // the jump of the line's displacement across its cut (y = d, x < 0)
+    halfPlaneDisplacement(p.line, -1, p.d + 1e-12, V);
+    const ax = V[0], ay = V[1];
+    halfPlaneDisplacement(p.line, -1, p.d - 1e-12, V);
+    const J: [number, number] = [ax - V[0], ay - V[1]];
+    // far field: minus the line, the rotation -+kink/2, a translation that meets the table at (-+X, d)
+    const far: [number, number, number, number] = [0, 0, 0, 0];
+    for (const side of [0, 1]) {
+      const x = side === 0 ? -X : X;
+      const om = side === 0 ? -0.5 * p.kink : 0.5 * p.kink;
+      inside(u, x, p.d);
+      const wx = U[0], wy = U[1];
+      lineDisp(x, p.d, J);
+      far[2 * side] = wx + V[0] + om * p.d;
+      far[2 * side + 1] = wy + V[1] - om * x;
+    }
+    disp = { u, c0x, c0y, J, far };
+    return disp;
+  };
   const gradient = (out: Float64Array, px: number, py: number, pz: number): void => {
     local(px, py, pz);
     for (let i = 0; i < 3; i++) {
@@ -474,27 +548,21 @@ export function plateEdgeCorrection(o: PlateEdgeOptions): DisplacementField {
   };
   return withDirectional({
     displacement(out, px, py, pz) {
+      const D = disp ?? setup();
       const x = px * m0 + py * m1 + pz * m2 - xi0;
       const y = px * n0 + py * n1 + pz * n2;
-      // the residual's gradient integrated from the line (0, d) to (x, y): panels ending where |x| passes t/2, t, 2t, 4t, ...
-      const breaks = [0];
-      const ax = Math.abs(x);
-      for (let b = 0.5 * t; b < ax; b *= 2) breaks.push(b / ax);
-      breaks.push(1);
-      let sx = 0, sy = 0;
-      const dy = y - p.d;
-      for (let q = 0; q + 1 < breaks.length; q++) {
-        const a = breaks[q], c = breaks[q + 1];
-        for (let g = 0; g < 16; g++) {
-          const s = 0.5 * (a + c) + 0.5 * (c - a) * GL16.x[g];
-          const wq = 0.5 * (c - a) * GL16.w[g];
-          residual(s * x, p.d + s * dy);
-          sx += wq * (R[0] * x + R[1] * dy);
-          sy += wq * (R[2] * x + R[3] * dy);
-        }
+      let ux: number, uy: number;
+      if (Math.abs(x) <= X) {
+        inside(D.u, x, y);
+        ux = U[0] - D.c0x;
+        uy = U[1] - D.c0y;
+      } else {
+        const side = x < 0 ? 0 : 1;
+        const om = side === 0 ? -0.5 * p.kink : 0.5 * p.kink;
+        lineDisp(x, y, D.J);
+        ux = -V[0] - om * y + D.far[2 * side] - D.c0x;
+        uy = -V[1] + om * x + D.far[2 * side + 1] - D.c0y;
       }
-      images(x, y);
-      const ux = U[0] - ux0 + sx, uy = U[1] - uy0 + sy;
       out[0] = ux * m0 + uy * n0;
       out[1] = ux * m1 + uy * n1;
       out[2] = ux * m2 + uy * n2;
