@@ -574,9 +574,29 @@ export function plateEdgeCorrection(o: PlateEdgeOptions): DisplacementField {
       const km = k[0] * m0 + k[1] * m1 + k[2] * m2;
       const kn = k[0] * n0 + k[1] * n1 + k[2] * n2;
       if ((gm === 0 && gn === 0) || (km === 0 && kn === 0)) return (q) => { q[3] = 0; };
+      const w0 = gm * km, w1 = gm * kn, w2 = gn * km, w3 = gn * kn;
+      // the table contracted to the one scalar g.(grad R).k (linear in the four components): one interpolation per point
+      const nn = tb.nx * tb.ny;
+      const scalar = new Float64Array(4 * nn);
+      const dt = tb.data;
+      for (let q = 0; q < nn; q++)
+        for (let e = 0; e < 4; e++) scalar[4 * q + e] = w0 * dt[16 * q + e] + w1 * dt[16 * q + 4 + e] + w2 * dt[16 * q + 8 + e] + w3 * dt[16 * q + 12 + e];
+      const S = new Float64Array(1), Gi = new Float64Array(4);
+      const X = -tb.x0, t = p.t;
       return (q) => {
+        const x = q[0] * m0 + q[1] * m1 + q[2] * m2 - xi0;
+        const y = q[0] * n0 + q[1] * n1 + q[2] * n2;
+        if (Math.abs(x) <= X) {
+          hermite(tb, scalar, 1, x, y, S);
+          halfPlaneGradient(p.top, x, y, Gi);
+          let v = S[0] + w0 * Gi[0] + w1 * Gi[1] + w2 * Gi[2] + w3 * Gi[3];
+          halfPlaneGradient(p.bottom, -x, t - y, Gi);
+          v += w0 * Gi[0] + w1 * Gi[1] + w2 * Gi[2] + w3 * Gi[3];
+          q[3] = v;
+          return;
+        }
         local(q[0], q[1], q[2]);
-        q[3] = gm * (H[0] * km + H[1] * kn) + gn * (H[2] * km + H[3] * kn);
+        q[3] = w0 * H[0] + w1 * H[1] + w2 * H[2] + w3 * H[3];
       };
     },
     gradientAt(out, q) {
