@@ -27,9 +27,11 @@
  * The exit surface y = t gets the same construction in the frame turned by
  * pi about u (x' = -x, y' = t - y, b' = -b_edge); a turn by pi leaves the
  * 2 x 2 gradient unchanged and negates the displacement. As with the
- * anisotropic images (surfaceImagesStroh.ts), the two images are added
+ * anisotropic images (surfaceImagesStroh.ts), the two images here are added
  * independently (no repeated reflections): each frees its own surface exactly
- * and leaves a traction on the other (measured in the tests, stated in README).
+ * and leaves a traction on the other. surfacePlateEdge.ts uses them as the
+ * singular part of the exact plate correction and removes that leftover with
+ * the strip solution; edgeHalfSpaceImages (both images alone) serves the tests.
  */
 import { type Vec3, cross, dot, unit } from '../math/vec3.js';
 import type { DisplacementField } from './field.js';

@@ -3,7 +3,7 @@
  * field that, added to the infinite-medium field, makes the surfaces
  * r.n = 0 and r.n = t of the foil free of traction. Here: isotropic
  * elasticity, the screw component B = b.u (the whole correction of a pure
- * screw; edge components get surfaceEdgeImages.ts or the half-space correction
+ * screw; edge components get surfacePlateEdge.ts or the half-space correction
  * of surfaceHalfSpaceInclined.ts); two geometries, both exact for a screw in an
  * isotropic plate:
  *
