@@ -40,11 +40,12 @@
  *    the strip's poles lie off the real axis) and is integrated by Gauss-Legendre
  *    panels up to k t = 36 (the integrand falls as e^{-k t}).
  *    Convention (rigid-body part): the Fourier inverse gives the two far halves
- *    rotated by +-Delta omega / 2 (no mean rotation), and the displacement is
- *    fixed to 0 at the line itself. The renderer's background (perfect crystal at
- *    the scenario's s) thus holds at the line; far from it the foil is turned by
- *    +-Delta omega/2 (a change of s of g . (that rotation) . k per unit depth... i.e. a
- *    tilt: beta' = g.(grad R).k sees it).
+ *    rotated by +-Delta omega / 2 (no mean rotation; the rotation from b_x is odd
+ *    in x, none at the line), and the displacement is fixed to 0 at the line
+ *    itself. The renderer's background (perfect crystal at the scenario's s) thus
+ *    holds at the line; far from it each half is perfect crystal tilted by
+ *    +-Delta omega/2, which beta' = g.(grad R).k sees as a change of s (for a
+ *    beam along n: -omega g.m).
  * 4. Tabulation: the residual's 2 x 2 gradient and its x, y and xy derivatives
  *    (all from the same transforms) on a grid |x| <= 6 t, 0 <= y <= t (spacing
  *    t/24 by t/24), bicubic Hermite interpolation. Beyond |x| = 6 t the field in a
