@@ -7,11 +7,12 @@
 //       relaxed, shared columns when infinite; also against the infinite medium column by column);
 //    c. screw normal to the foil seen with a tilted beam (the Eshelby-Stroh twist changes along the line:
 //       translationPlan declines it, so the relaxed render goes column by column);
-//    d. pure edge parallel to the surfaces, isotropic (half-space images of the edge component, shared columns);
+//    d. pure edge parallel to the surfaces, isotropic (exact plate correction of the edge component, shared columns;
+//       its table is built once per line and thread and kept, so after the warm-up this times the columns alone);
 //    e. a spherical inclusion 12 nm deep (Mindlin & Cheng half-space corrections; column by column in both);
 //    f. an edge normal to the foil (half-space corrections of the edge component: column by column when relaxed).
 // 2. Per-point cost of beta' = g.(grad R).k for a line alone and for each correction.
-// 3. Set-up of the inclined-line correction: building the two surface tables for a new line direction (they do
+// 3. Set-up of the plate correction of a parallel edge line (its residual table, once per line), and of the inclined-line correction: building the two surface tables for a new line direction (they do
 //    not depend on the line's point or the foil thickness, so only a new direction, b or material pays this), and
 //    making the scalar g.F.k of both for a new condition.
 // Run with `npm run bench` (builds dist/ first) or `node bench/surfaces.mjs` after a build. Never a timed test.
@@ -27,6 +28,8 @@ import { voigtStiffness } from '../dist/elasticity/stiffness.js';
 import { inclinedHalfSpaceCorrection } from '../dist/elasticity/surfaceHalfSpaceInclined.js';
 import { sphericalInclusion } from '../dist/elasticity/inclusion.js';
 import { inclusionSurfaceCorrection } from '../dist/elasticity/inclusionSurface.js';
+import { edgeHalfSpaceImages } from '../dist/elasticity/surfaceEdgeImages.js';
+import { plateEdgeCorrection } from '../dist/elasticity/surfacePlateEdge.js';
 import { fmt, inclinedDislocation, lcg, median, perPointNs, normalScrew } from './common.mjs';
 
 const parallel = {
@@ -76,7 +79,7 @@ function renderOnce(spec, surfaces) {
 for (const [label, spec] of [
   ['isotropic, mixed 1/2[101] along [110], parallel to the surfaces 20 nm deep, 256 x 256, g = 200, w = 0.5, t = 100 nm', parallel],
   ['anisotropic, the same line', { ...parallel, elasticity: 'anisotropic' }],
-  ['isotropic, pure edge 1/2[1-10] along [110], parallel to the surfaces 20 nm deep (screw-free: edge half-space images only), 256 x 256', edgeParallel],
+  ['isotropic, pure edge 1/2[1-10] along [110], parallel to the surfaces 20 nm deep (screw-free: the plate correction of the edge only), 256 x 256', edgeParallel],
   ['isotropic, spherical inclusion radius 6 nm, misfit 0.02, centre 12 nm deep, 128 x 128, g = 200, w = 0.5, t = 60 nm', particle],
   ['anisotropic, the same line, 128 x 128, column by column (render --each-column; general beam sets)', { ...parallel, elasticity: 'anisotropic', image: { width_px: 128, height_px: 128, pixel_nm: 1 }, eachColumn: true }],
   ['anisotropic, inclined mixed 1/2[101] along [112], 128 x 128, g = 200, w = 0.5, t = 100 nm', inclined],
@@ -120,7 +123,8 @@ const fields = {
   'anisotropic line (Cu)': anisotropicDislocation({ b_nm: [0.18, 0.18, 0], line: [1, 1, 0], point_nm: [0, 0, 20], stiffness_GPa: cu, coreRadius_nm: 0.01 }),
   'parallel: Stroh images (Cu)': surfaceCorrection({ b_nm: [0.18, 0, 0.18], line: [1, 1, 0], point_nm: [0, 0, 20], correction: { kind: 'parallel-stroh-images', normal: [0, 0, 1], thickness_nm: t }, stiffness_GPa: cu }),
   'inclined: half-space tables': inclinedHalfSpaceCorrection({ b_nm: [0.18, 0, 0.18], line: [1, 1, 2], point_nm: [0, 0, 30], normal: [0, 0, 1], thickness_nm: t, poissonRatio: 0.34 }),
-  'parallel: edge images': surfaceCorrection({ b_nm: [0.18, -0.18, 0], line: [1, 1, 0], point_nm: [0, 0, 20], correction: { kind: 'parallel-edge-images', normal: [0, 0, 1], thickness_nm: t }, poissonRatio: 0.34 }),
+  'parallel: edge plate': surfaceCorrection({ b_nm: [0.18, -0.18, 0], line: [1, 1, 0], point_nm: [0, 0, 20], correction: { kind: 'parallel-edge-plate', normal: [0, 0, 1], thickness_nm: t }, poissonRatio: 0.34 }),
+  '  (its two Head images)': edgeHalfSpaceImages({ b_nm: [0.18, -0.18, 0], line: [1, 1, 0], point_nm: [0, 0, 20], normal: [0, 0, 1], thickness_nm: t, poissonRatio: 0.34 }),
   'inclusion (its own field)': sphericalInclusion({ centre_nm: [0, 0, 20], radius_nm: 3, strain: 0.01, poissonRatio: 0.34 }),
   'inclusion: half-space corr.': inclusionSurfaceCorrection({ centre_nm: [0, 0, 20], strength_nm3: 0.27, normal: [0, 0, 1], thickness_nm: t, poissonRatio: 0.34 }),
   'normal: plate twist': surfaceCorrection({ b_nm: [0, 0, 0.25], line: [0, 0, 1], point_nm: [0, 0, 0], correction: { kind: 'normal-screw-twist', normal: [0, 0, 1], thickness_nm: t } }),
@@ -131,6 +135,16 @@ for (let r = 0; r < 3; r++) for (const [name, f] of Object.entries(fields)) (res
 console.log('directional derivative g.(grad R).k per point, CPU time (median of 3):');
 const ref = median(res['isotropic line (reference)']);
 for (const name of Object.keys(fields)) console.log(`  ${name.padEnd(27)}: ${fmt(median(res[name]))} ns  (${fmt(median(res[name]) / ref)}x the line)`);
+
+// set-up cost of the plate correction of a parallel edge line (the residual table: 384 k values x 289 x 25 nodes)
+const plateBuild = [];
+for (let r = 0; r < 5; r++) {
+  const c0 = process.cpuUsage();
+  plateEdgeCorrection({ b_nm: [0.18, -0.18, 0], line: [1, 1, 0], point_nm: [0, 0, 20 + r], normal: [0, 0, 1], thickness_nm: t, poissonRatio: 0.34 });
+  const c1 = process.cpuUsage();
+  if (r >= 2) plateBuild.push((c1.user + c1.system - c0.user - c0.system) / 1e3);
+}
+console.log(`plate correction of a parallel edge line, set-up (table) per line, CPU time (median of 3): ${fmt(median(plateBuild))} ms`);
 
 // set-up cost of the inclined-line tables (a new direction each time: the tables are cached per direction and b)
 const build = [], contract = [];

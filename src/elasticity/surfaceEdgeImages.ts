@@ -27,9 +27,11 @@
  * The exit surface y = t gets the same construction in the frame turned by
  * pi about u (x' = -x, y' = t - y, b' = -b_edge); a turn by pi leaves the
  * 2 x 2 gradient unchanged and negates the displacement. As with the
- * anisotropic images (surfaceImagesStroh.ts), the two images are added
+ * anisotropic images (surfaceImagesStroh.ts), the two images here are added
  * independently (no repeated reflections): each frees its own surface exactly
- * and leaves a traction on the other (measured in the tests, stated in README).
+ * and leaves a traction on the other. surfacePlateEdge.ts uses them as the
+ * singular part of the exact plate correction and removes that leftover with
+ * the strip solution; edgeHalfSpaceImages (both images alone) serves the tests.
  */
 import { type Vec3, cross, dot, unit } from '../math/vec3.js';
 import type { DisplacementField } from './field.js';
@@ -47,7 +49,7 @@ export interface EdgeImagesOptions {
 }
 
 /** The coefficients of one half-space image (complex numbers as re, im pairs; mu = 1). */
-interface HalfPlane {
+export interface HalfPlane {
   readonly kappa: number;
   /** Depth of the line below this surface. */
   readonly d: number;
@@ -58,7 +60,7 @@ interface HalfPlane {
   readonly zR: number; readonly zI: number; // zeta
 }
 
-function halfPlane(bx: number, by: number, d: number, nu: number): HalfPlane {
+export function halfPlane(bx: number, by: number, d: number, nu: number): HalfPlane {
   const kappa = 3 - 4 * nu;
   // gamma = (bx + i by) / (pi i (kappa + 1)) = (by - i bx) / (pi (kappa + 1))
   const s = 1 / (Math.PI * (kappa + 1));
@@ -76,7 +78,7 @@ function halfPlane(bx: number, by: number, d: number, nu: number): HalfPlane {
  * The 2 x 2 displacement gradient of one image at (x, y) (y the depth below its surface)
  * into G[0..3] = (u_x,x, u_x,y, u_y,x, u_y,y).
  */
-function gradient2(h: HalfPlane, x: number, y: number, G: Float64Array): void {
+export function halfPlaneGradient(h: HalfPlane, x: number, y: number, G: Float64Array): void {
   // w = z - conj(a) = x + i (y + d); 1/w, 1/w^2, 1/w^3
   const wR = x, wI = y + h.d;
   const m2 = 1 / (wR * wR + wI * wI);
@@ -104,7 +106,7 @@ function gradient2(h: HalfPlane, x: number, y: number, G: Float64Array): void {
 }
 
 /** The displacement (u_x, u_y) of one image at (x, y) into U[0..1]. */
-function displacement2(h: HalfPlane, x: number, y: number, U: Float64Array): void {
+export function halfPlaneDisplacement(h: HalfPlane, x: number, y: number, U: Float64Array): void {
   const wR = x, wI = y + h.d; // wI > 0 in the material: arg w in (0, pi), no branch cut crossed
   const m2 = 1 / (wR * wR + wI * wI);
   const i1R = wR * m2, i1I = -wI * m2;
@@ -144,11 +146,11 @@ export function edgeHalfSpaceImages(o: EdgeImagesOptions): DisplacementField {
     const y = px * n0 + py * n1 + pz * n2;
     H[0] = 0; H[1] = 0; H[2] = 0; H[3] = 0;
     if (top !== null) {
-      gradient2(top, x, y, G);
+      halfPlaneGradient(top, x, y, G);
       H[0] += G[0]; H[1] += G[1]; H[2] += G[2]; H[3] += G[3];
     }
     if (bottom !== null) {
-      gradient2(bottom, -x, t - y, G);
+      halfPlaneGradient(bottom, -x, t - y, G);
       H[0] += G[0]; H[1] += G[1]; H[2] += G[2]; H[3] += G[3];
     }
   };
@@ -159,12 +161,12 @@ export function edgeHalfSpaceImages(o: EdgeImagesOptions): DisplacementField {
       const y = px * n0 + py * n1 + pz * n2;
       let ux = 0, uy = 0;
       if (top !== null) {
-        displacement2(top, x, y, U);
+        halfPlaneDisplacement(top, x, y, U);
         ux += U[0];
         uy += U[1];
       }
       if (bottom !== null) {
-        displacement2(bottom, -x, t - y, U);
+        halfPlaneDisplacement(bottom, -x, t - y, U);
         ux -= U[0];
         uy -= U[1];
       }

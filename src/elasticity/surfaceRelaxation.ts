@@ -3,7 +3,7 @@
  * field that, added to the infinite-medium field, makes the surfaces
  * r.n = 0 and r.n = t of the foil free of traction. Here: isotropic
  * elasticity, the screw component B = b.u (the whole correction of a pure
- * screw; edge components get surfaceEdgeImages.ts or the half-space correction
+ * screw; edge components get surfacePlateEdge.ts or the half-space correction
  * of surfaceHalfSpaceInclined.ts); two geometries, both exact for a screw in an
  * isotropic plate:
  *
@@ -16,9 +16,10 @@
  *    L = 2 t, and the like for the other derivative). The correction is that
  *    sum less the real line, so it is smooth in the foil and invariant along
  *    the line. It makes sigma_nz (the antiplane traction) vanish on both
- *    surfaces. The edge component of b gets the isotropic half-space image of
- *    each surface (Head 1953, surfaceEdgeImages.ts; kind 'parallel-edge-images'):
- *    each frees its own surface exactly, no repeated reflections.
+ *    surfaces. The edge component of b gets the exact isotropic plate correction
+ *    (surfacePlateEdge.ts; kind 'parallel-edge-plate': the half-space image of each
+ *    surface, Head 1953, plus the Fourier solution of the strip for what each
+ *    leaves on the other surface; both surfaces free everywhere).
  * 2. Line normal to the surfaces (u x n = 0). The edge component of b gets the
  *    half-space correction of each surface of surfaceHalfSpaceInclined.ts (kind
  *    'normal-edge-half-space', with the twist below for the screw component). The twist of Eshelby & Stroh
@@ -43,14 +44,14 @@
  */
 import { type Vec3, cross, dot, norm, unit } from '../math/vec3.js';
 import { type DisplacementField, superpose } from './field.js';
-import { edgeHalfSpaceImages } from './surfaceEdgeImages.js';
+import { plateEdgeCorrection } from './surfacePlateEdge.js';
 import { strohHalfSpaceImages, strohImagesApply } from './surfaceImagesStroh.js';
 import { inclinedHalfSpaceCorrection } from './surfaceHalfSpaceInclined.js';
 import { plateTwistScratch, plateTwistSeries, plateTwistTabulated } from './surfacePlateTwist.js';
 
 export type SurfaceCorrectionKind =
   | 'parallel-screw-images'
-  | 'parallel-edge-images'
+  | 'parallel-edge-plate'
   | 'parallel-stroh-images'
   | 'normal-screw-twist'
   | 'normal-edge-half-space'
@@ -58,7 +59,7 @@ export type SurfaceCorrectionKind =
 
 /** Whether a correction keeps the field invariant along the line (the shared-column method needs that). */
 export function invariantAlongLine(kind: SurfaceCorrectionKind): boolean {
-  return kind === 'parallel-screw-images' || kind === 'parallel-edge-images' || kind === 'parallel-stroh-images';
+  return kind === 'parallel-screw-images' || kind === 'parallel-edge-plate' || kind === 'parallel-stroh-images';
 }
 
 /** Plain data (worker threads rebuild the field from it). */
@@ -81,8 +82,8 @@ export const GEOMETRY_TOLERANCE = 1e-9;
  * parallel line gets the anisotropic half-space images of both surfaces
  * (surfaceImagesStroh.ts, every Burgers vector) when its Stroh eigenvalues are
  * well separated, else the isotropic images: the screw image series for a pure
- * screw ('parallel-screw-images'), that series plus the half-space images of the
- * edge component (surfaceEdgeImages.ts) otherwise ('parallel-edge-images'). A line inclined to the
+ * screw ('parallel-screw-images'), that series plus the exact plate correction of the
+ * edge component (surfacePlateEdge.ts) otherwise ('parallel-edge-plate'). A line inclined to the
  * surfaces gets the half-space corrections of both surfaces (surfaceHalfSpaceInclined.ts); a line
  * normal to them the plate twist of its screw component and, with an edge component,
  * the half-space corrections of that component ('normal-edge-half-space').
@@ -104,7 +105,7 @@ export function surfaceCorrectionFor(
     if (!(z0 > 1e-9 * thickness_nm && z0 < (1 - 1e-9) * thickness_nm)) return null;
     if (stiffness_GPa !== undefined && strohImagesApply(stiffness_GPa, u, n)) return { kind: 'parallel-stroh-images', normal: n, thickness_nm };
     const edge = norm(cross(b_nm, u)) >= 1e-12 * norm(b_nm);
-    return edge ? { kind: 'parallel-edge-images', normal: n, thickness_nm } : { kind: 'parallel-screw-images', normal: n, thickness_nm };
+    return edge ? { kind: 'parallel-edge-plate', normal: n, thickness_nm } : { kind: 'parallel-screw-images', normal: n, thickness_nm };
   }
   if (geometry === 'normal') {
     const edge = norm(cross(b_nm, u)) >= 1e-12 * norm(b_nm);
@@ -170,9 +171,9 @@ export function surfaceCorrection(o: SurfaceCorrectionOptions): DisplacementFiel
     });
     return Math.abs(bs) < 1e-12 * norm(o.b_nm) ? edge : superpose([normalScrewTwist(o), edge]);
   }
-  if (c.kind === 'parallel-edge-images') {
-    if (o.poissonRatio === undefined) throw new Error('internal: the edge images need the Poisson ratio');
-    const edge = edgeHalfSpaceImages({ b_nm: o.b_nm, line: o.line, point_nm: o.point_nm, normal: c.normal, thickness_nm: c.thickness_nm, poissonRatio: o.poissonRatio });
+  if (c.kind === 'parallel-edge-plate') {
+    if (o.poissonRatio === undefined) throw new Error('internal: the plate correction of the edge component needs the Poisson ratio');
+    const edge = plateEdgeCorrection({ b_nm: o.b_nm, line: o.line, point_nm: o.point_nm, normal: c.normal, thickness_nm: c.thickness_nm, poissonRatio: o.poissonRatio });
     return Math.abs(dot(o.b_nm, unit(o.line))) < 1e-12 * norm(o.b_nm) ? edge : superpose([parallelScrewImages(o), edge]);
   }
   return c.kind === 'parallel-screw-images' ? parallelScrewImages(o) : normalScrewTwist(o);

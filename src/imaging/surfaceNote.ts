@@ -28,8 +28,8 @@ export interface SurfacesDescription {
 const KIND_TEXT: Readonly<Record<SurfaceCorrectionKind, string>> = {
   'parallel-screw-images':
     'lines parallel to the surfaces: the screw component gets its infinite series of image screws (closed form; exact for a screw in an isotropic plate); chosen for pure screws, so nothing else is left to correct',
-  'parallel-edge-images':
-    'lines parallel to the surfaces: the screw component gets its infinite series of image screws (exact for a screw in an isotropic plate), the edge component the isotropic half-space image of each surface (Head 1953; each surface is freed exactly on its own, but the image of one surface leaves a traction on the other, no repeated reflections: the largest residual is about 10-18 % of the largest unrelaxed traction for an edge 7-12 nm deep in a 60 nm foil, 50 % at mid-foil, but point by point the relief fades within about one foil thickness of the line and beyond about two the images do not reduce the traction)',
+  'parallel-edge-plate':
+    "lines parallel to the surfaces: the screw component gets its infinite series of image screws (exact for a screw in an isotropic plate), the edge component the exact isotropic plate correction (half-space image of each surface, Head 1953, plus the Fourier solution of the strip for what each image leaves on the other surface; both surfaces traction-free to about 1e-6 of the unrelaxed traction at any distance; the far halves of the foil turn by -+ half the kink 6 b_x d (t - d)/t^3, none at the line)",
   'parallel-stroh-images':
     'lines parallel to the surfaces: the anisotropic half-space image of each surface (Stroh formalism, every Burgers vector; each surface is freed exactly on its own, but the image of one surface leaves a traction on the other, no repeated reflections: about 9-15 % of the unrelaxed traction for a line 10 nm deep in a 60 nm foil; beyond about two foil thicknesses from the line the images do not reduce the traction)',
   'normal-screw-twist':
@@ -74,8 +74,8 @@ export function describeSurfaces(sc: Scenario): SurfacesDescription {
     };
   }
   const approximations: string[] = [...kinds].map((k) => KIND_TEXT[k]);
-  if (sc.elasticity === 'anisotropic' && (kinds.has('parallel-screw-images') || kinds.has('parallel-edge-images') || kinds.has('normal-screw-twist') || kinds.has('normal-edge-half-space') || kinds.has('inclined-half-space'))) {
-    approximations.push('the screw image series, the edge images of parallel lines, the plate twist and the half-space correction of inclined lines are isotropic (for inclined lines: the anisotropic field\'s own surface tractions, an isotropic response with the Voigt-average shear modulus), added to the anisotropic (Stroh) infinite field: the surface tractions are reduced, not exactly cancelled');
+  if (sc.elasticity === 'anisotropic' && (kinds.has('parallel-screw-images') || kinds.has('parallel-edge-plate') || kinds.has('normal-screw-twist') || kinds.has('normal-edge-half-space') || kinds.has('inclined-half-space'))) {
+    approximations.push('the screw image series, the plate correction of the edge of parallel lines, the plate twist and the half-space correction of inclined lines are isotropic (for inclined lines: the anisotropic field\'s own surface tractions, an isotropic response with the Voigt-average shear modulus), added to the anisotropic (Stroh) infinite field: the surface tractions are reduced, not exactly cancelled');
   }
   if (correctedInclusions > 0) approximations.push(INCLUSION_TEXT);
   if (correctedInclusions < spheres.length) approximations.push('an inclusion that a foil surface cuts is not relaxed at the surfaces (infinite-medium field)');
@@ -85,7 +85,7 @@ export function describeSurfaces(sc: Scenario): SurfacesDescription {
   const SHORT: Readonly<Record<SurfaceCorrectionKind, string>> = {
     'parallel-stroh-images': ' (anisotropic half-space images of each surface)',
     'parallel-screw-images': ' (screw image series)',
-    'parallel-edge-images': ' (screw image series and half-space images of the edge component)',
+    'parallel-edge-plate': ' (screw image series and exact plate correction of the edge component)',
     'normal-screw-twist': ' (screw plate twist)',
     'normal-edge-half-space': ' (screw plate twist and half-space corrections of the edge component)',
     'inclined-half-space': ' (isotropic half-space correction of each surface)',

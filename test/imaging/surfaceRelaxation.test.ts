@@ -196,26 +196,29 @@ describe('inclined dislocation meeting both surfaces (half-space corrections)', 
   });
 });
 
-describe('edge dislocation parallel to the surfaces, isotropic (half-space images of the edge component, Head 1953)', () => {
+describe('edge dislocation parallel to the surfaces, isotropic (exact plate correction of the edge component, surfacePlateEdge.ts)', () => {
   // Cu, beam [001], b = 1/2[1 -1 0] (pure edge) along [1 1 0], 8 nm below the entrance surface of a 60 nm foil,
   // g = 200 (g.b = 1). Before, this line got no correction; now the two half-space images change its image near the line.
-  const make = (surfaces: string) =>
+  const make = (surfaces: string, s_per_nm = 0.01, withLine = true) =>
     scenario({
       surfaces,
       elasticity: 'isotropic',
       foil: { thickness_nm: 60, normal: [0, 0, 1] },
       imageX: [1, -1, 0],
       image: { width_px: 240, height_px: 1, pixel_nm: 1.25 },
-      conditions: [{ id: 'g', g: [2, 0, 0], s_per_nm: 0.01 }],
-      defects: [{ type: 'dislocation', b: '1/2[1 -1 0]', line: [1, 1, 0], point_nm: [0, 0, 8] }],
+      conditions: [{ id: 'g', g: [2, 0, 0], s_per_nm }],
+      defects: withLine ? [{ type: 'dislocation', b: '1/2[1 -1 0]', line: [1, 1, 0], point_nm: [0, 0, 8] }] : [],
     });
-  // Far from the line (beyond about two foil thicknesses) the two half-space images do not free the surfaces: each
-  // tends to minus the line's own long-range field there, so their sum does too (README, Foil surfaces). The images
-  // therefore differ far from the line as well (measured when written: 0.021 within 20 nm, 0.070 beyond 120 nm).
-  it('is corrected (render.json note) and its relaxed image differs from the infinite one near the line', async () => {
+  // Far from the line the exact plate solution is two rigid halves of the foil, turned against each other by the
+  // kink 6 b_x d (t - d)/t^3 (surfacePlateEdge.ts; here 2.95 mrad), each by half of it from the crystal at the line:
+  // beta' = g.(grad R).k = -omega g.m there, a change of s by -+3.912 nm^-1 x 1.48e-3 = -+0.0058 per nm on the two
+  // sides. So far out the relaxed image is perfect crystal at those s (the infinite medium's is not: its 1/r field
+  // still shifts s by about 15 % at 150 nm). Before (two half-space images added, no plate solution) the far
+  // difference was 0.070; measured now: 0.041 within 20 nm, 0.148 beyond 120 nm.
+  it('is corrected (render.json note), its relaxed image differs from the infinite one near the line, and far out each side is perfect crystal turned by half the kink', async () => {
     const d = describeSurfaces(make('relaxed'));
     expect(d.correctedLines).toBe(1);
-    expect(d.text).toMatch(/half-space images of the edge component/);
+    expect(d.text).toMatch(/exact plate correction of the edge component/);
     const [inf] = await render(make('infinite'));
     const [rel] = await render(make('relaxed'));
     const a = row(inf.bf, inf.width, 0);
@@ -228,8 +231,24 @@ describe('edge dislocation parallel to the surfaces, isotropic (half-space image
       if (x > 1.5 && x < 20) near = Math.max(near, dd);
       if (x > 120) far = Math.max(far, dd);
     });
-    console.log('parallel edge, relaxed - infinite BF: near', near.toFixed(4), 'far', far.toFixed(4));
+    console.log('parallel edge, relaxed - infinite BF: near', near.toFixed(4), 'far', far.toFixed(4), '; relaxed image ends', b[0].toFixed(4), b[b.length - 1].toFixed(4));
     expect(near).toBeGreaterThan(0.015);
+    // perfect crystal at s = 0.01 -+ beta' (the image's two ends, 150 nm = 2.5 t from the line: the plate's
+    // Papkovich-Fadle terms have decayed to e^{-10.5})
+    const a0 = 0.3615, bLen = (a0 / 2) * Math.SQRT2;
+    const kink = (6 * bLen * 8 * 52) / 60 ** 3;
+    const gm = 2 / a0 / Math.SQRT2;
+    const perfect = async (s: number) => {
+      const [c] = await render(make('infinite', s, false));
+      return c.background.bf;
+    };
+    const lo = await perfect(0.01 - 0.5 * kink * gm), hi = await perfect(0.01 + 0.5 * kink * gm);
+    const ends = [b[0], b[b.length - 1]].sort((p, q) => p - q);
+    const want = [lo, hi].sort((p, q) => p - q);
+    console.log('perfect crystal at s -+ g.m kink/2:', want.map((v) => v.toFixed(4)).join(' '));
+    expect(Math.abs(ends[0] - want[0])).toBeLessThan(5e-4);
+    expect(Math.abs(ends[1] - want[1])).toBeLessThan(5e-4);
+    expect(far).toBeGreaterThan(0.1);
   });
 });
 
