@@ -1,7 +1,7 @@
 /**
  * The one way tests call Debian's Python reference libraries
  * (/usr/bin/python3 with python3-gemmi, python3-scipy, python3-numpy,
- * python3-pil).
+ * python3-pil, python3-tifffile, python3-mpmath).
  *
  *   const py = needPython('gemmi');              // probed once per test file
  *   it('agrees with gemmi', (ctx) => {
@@ -37,6 +37,7 @@ const DEBIAN_PACKAGE: Readonly<Record<string, string>> = {
   numpy: 'python3-numpy',
   PIL: 'python3-pil',
   tifffile: 'python3-tifffile',
+  mpmath: 'python3-mpmath',
 };
 
 export function debianPackageOf(module: string): string {
