@@ -30,7 +30,7 @@
  * stays isotropic (Voigt-average shear modulus of the Cij, the material's nu).
  */
 import { type Vec3, cross, dot, norm, scale, unit } from '../math/vec3.js';
-import type { DisplacementField } from './field.js';
+import type { DirectionalProbe, DisplacementField } from './field.js';
 import { straightDislocation } from './straightDislocation.js';
 import { anisotropicDislocation } from './anisotropicDislocation.js';
 import { isotropicVoigt, stiffnessTensor } from './stiffness.js';
@@ -456,6 +456,34 @@ function contract(tb: SurfaceTable, g: readonly number[], k: readonly number[]):
   return S;
 }
 
+/** atan(j / 64), j = 0 .. 64, in units of the scalar grid's azimuth step 2 pi / S_AZ. */
+const ATAN_NODES = Float64Array.from({ length: 65 }, (_, j) => (Math.atan(j / 64) * S_AZ) / (2 * Math.PI));
+const NODES_PER_RADIAN = S_AZ / (2 * Math.PI);
+
+/**
+ * The azimuth atan2(Y, X) in [0, 2 pi] in units of 2 pi / S_AZ (the scalar grid's azimuth step), without
+ * Math.atan2: reduced to the first octant, t = min/max in [0, 1]; atan t = atan(t_j) + atan u with t_j the
+ * nearest of j/64 and u = (t - t_j)/(1 + t t_j), |u| <= 1/128, whose series stops after u^7 (the next term,
+ * u^9/9 < 2e-20, is below rounding). Agrees with Math.atan2 to rounding (test/elasticity/surfaceHalfSpaceInclined.test.ts).
+ */
+export function azimuthNodes(X: number, Y: number): number {
+  const ax = X < 0 ? -X : X;
+  const ay = Y < 0 ? -Y : Y;
+  const swap = ay > ax;
+  const mn = swap ? ax : ay;
+  const mx = swap ? ay : ax;
+  if (mx === 0) return 0;
+  const j = ((mn / mx) * 64 + 0.5) | 0;
+  const tj = j * (1 / 64);
+  const u = (mn - tj * mx) / (mx + tj * mn);
+  const u2 = u * u;
+  let a = ATAN_NODES[j] + NODES_PER_RADIAN * u * (1 - u2 * (1 / 3 - u2 * (1 / 5 - u2 * (1 / 7))));
+  if (swap) a = S_AZ / 4 - a;
+  if (X < 0) a = S_AZ / 2 - a;
+  if (Y < 0) a = S_AZ - a;
+  return a;
+}
+
 /**
  * Tables already built in this thread. A render builds the same line once per condition: the table
  * of each b is kept. The correction is linear in b: when a second Burgers vector comes for the same
@@ -554,12 +582,8 @@ export function inclinedHalfSpaceCorrection(o: InclinedHalfSpaceOptions): Displa
   // the last point located: 1/R, the padded grid's stencil corner (node index) and the Catmull-Rom weights
   const at = new Float64Array(9);
   const corner = new Int32Array(1);
-  /** For a grid of nP x nA nodes: locates (x, y, z) relative to surface q, sets `at` and `corner`. */
-  const locator = (nP: number, nA: number) => {
-  const invDP = nP - 1;
-  const invDA = nA / (2 * Math.PI);
-  const padW = nA + 3;
-  return (q: number, x: number, y: number, z: number): void => {
+  /** Locates (x, y, z) relative to surface q on the 9-component grid (N_POLAR x N_AZ), sets `at` and `corner`. */
+  const locate = (q: number, x: number, y: number, z: number): void => {
     const b = 12 * q;
     const rx = x - geo[b], ry = y - geo[b + 1], rz = z - geo[b + 2];
     const X = rx * geo[b + 3] + ry * geo[b + 4] + rz * geo[b + 5];
@@ -569,16 +593,14 @@ export function inclinedHalfSpaceCorrection(o: InclinedHalfSpaceOptions): Displa
     const rho = Math.sqrt(rho2);
     const R = Math.sqrt(rho2 + Z * Z);
     const sv = R > 0 ? rho / (R + (Z > 0 ? Z : 0)) : 0; // s = tan(polar / 2)
-    let ph = Math.atan2(Y, X);
-    if (ph < 0) ph += 2 * Math.PI;
-    const fp = sv * invDP;
+    const fp = sv * (N_POLAR - 1);
     let i = Math.floor(fp);
-    if (i > nP - 2) i = nP - 2;
-    const fa = ph * invDA;
+    if (i > N_POLAR - 2) i = N_POLAR - 2;
+    const fa = azimuthNodes(X, Y) * (N_AZ / S_AZ);
     let a = Math.floor(fa);
     const f = fp - i;
     const g = fa - a;
-    if (a >= nA) a -= nA; // ph rounded up to 2 pi
+    if (a >= N_AZ) a -= N_AZ; // the azimuth rounded up to 2 pi
     // Catmull-Rom weights of both fractions
     const f2 = f * f, f3 = f2 * f, g2 = g * g, g3 = g2 * g;
     at[0] = 1 / (R > 1e-9 ? R : 1e-9);
@@ -590,12 +612,8 @@ export function inclinedHalfSpaceCorrection(o: InclinedHalfSpaceOptions): Displa
     at[6] = 0.5 * (3 * g3 - 5 * g2 + 2);
     at[7] = 0.5 * (-3 * g3 + 4 * g2 + g);
     at[8] = 0.5 * (g3 - g2);
-    corner[0] = i * padW + a; // padded row i is polar node i - 1, padded column a is azimuth node a - 1
+    corner[0] = i * PAD_W + a; // padded row i is polar node i - 1, padded column a is azimuth node a - 1
   };
-  };
-  const locate = locator(N_POLAR, N_AZ);
-  const locateS = locator(S_POLAR, S_AZ);
-  const S_PAD_W = S_AZ + 3;
   const addGradient = (out: Float64Array, x: number, y: number, z: number): void => {
     for (let q = 0; q < nT; q++) {
       locate(q, x, y, z);
@@ -610,6 +628,62 @@ export function inclinedHalfSpaceCorrection(o: InclinedHalfSpaceOptions): Displa
         }
       }
     }
+  };
+  /**
+   * The renderer's hot path: g.F.k of each surface from its contracted scalar grid (made once per condition,
+   * kept with the table), both surfaces in one loop without calls. The azimuth comes from `azimuthNodes`
+   * (no Math.atan2, which V8 does not inline); s = tan(polar / 2) and 1/R share one division.
+   */
+  const directionalAt = (gv: readonly [number, number, number], kv: readonly [number, number, number]): DirectionalProbe => {
+    const S0 = contract(tables[0], gv, kv);
+    const S1 = nT > 1 ? contract(tables[1], gv, kv) : S0;
+    const W = S_AZ + 3;
+    const sP = S_POLAR - 1;
+    const iMax = S_POLAR - 2;
+    return (p) => {
+      const x = p[0], y = p[1], z = p[2];
+      let sum = 0;
+      for (let q = 0; q < nT; q++) {
+        const b = 12 * q;
+        const rx = x - geo[b], ry = y - geo[b + 1], rz = z - geo[b + 2];
+        const X = rx * geo[b + 3] + ry * geo[b + 4] + rz * geo[b + 5];
+        const Y = rx * geo[b + 6] + ry * geo[b + 7] + rz * geo[b + 8];
+        const Z = rx * geo[b + 9] + ry * geo[b + 10] + rz * geo[b + 11];
+        const rho2 = X * X + Y * Y;
+        const R = Math.sqrt(rho2 + Z * Z);
+        let sv: number, invR: number;
+        if (R > 1e-9) {
+          const Rz = R + (Z > 0 ? Z : 0);
+          const d = 1 / (R * Rz);
+          sv = Math.sqrt(rho2) * R * d; // rho / (R + z)
+          invR = Rz * d;
+        } else {
+          sv = R > 0 ? Math.sqrt(rho2) / (R + (Z > 0 ? Z : 0)) : 0;
+          invR = 1e9;
+        }
+        const fa = azimuthNodes(X, Y);
+        const fp = sv * sP;
+        let i = Math.floor(fp);
+        if (i > iMax) i = iMax;
+        let a = Math.floor(fa);
+        const f = fp - i;
+        const g = fa - a;
+        if (a >= S_AZ) a -= S_AZ; // the azimuth rounded up to 2 pi
+        const f2 = f * f, f3 = f2 * f, g2 = g * g, g3 = g2 * g;
+        const w0 = 0.5 * (-f3 + 2 * f2 - f), w1 = 0.5 * (3 * f3 - 5 * f2 + 2), w2 = 0.5 * (-3 * f3 + 4 * f2 + f), w3 = 0.5 * (f3 - f2);
+        const v0 = 0.5 * (-g3 + 2 * g2 - g), v1 = 0.5 * (3 * g3 - 5 * g2 + 2), v2 = 0.5 * (-3 * g3 + 4 * g2 + g), v3 = 0.5 * (g3 - g2);
+        const S = q === 0 ? S0 : S1;
+        // padded row i is polar node i - 1, padded column a is azimuth node a - 1: the stencil starts there
+        const r0 = i * W + a, r1 = r0 + W, r2 = r1 + W, r3 = r2 + W;
+        const s =
+          w0 * (v0 * S[r0] + v1 * S[r0 + 1] + v2 * S[r0 + 2] + v3 * S[r0 + 3]) +
+          w1 * (v0 * S[r1] + v1 * S[r1 + 1] + v2 * S[r1 + 2] + v3 * S[r1 + 3]) +
+          w2 * (v0 * S[r2] + v1 * S[r2 + 1] + v2 * S[r2 + 2] + v3 * S[r2 + 3]) +
+          w3 * (v0 * S[r3] + v1 * S[r3 + 1] + v2 * S[r3 + 2] + v3 * S[r3 + 3]);
+        sum += s * invR;
+      }
+      p[3] = sum;
+    };
   };
   return {
     displacement(out, x, y, z) {
@@ -639,29 +713,16 @@ export function inclinedHalfSpaceCorrection(o: InclinedHalfSpaceOptions): Displa
       addGradient(out, x, y, z);
     },
     directional(gv, kv) {
-      // each table contracted to the scalar g.F.k once (kept with the table for the next band of rows)
-      const S0 = contract(tables[0], gv, kv);
-      const S1 = nT > 1 ? contract(tables[1], gv, kv) : S0;
-      const one = (S: Float64Array): number => {
-        const c = corner[0];
-        let s = 0;
-        for (let p = 0; p < 4; p++) {
-          const r = c + p * S_PAD_W;
-          s += at[1 + p] * (at[5] * S[r] + at[6] * S[r + 1] + at[7] * S[r + 2] + at[8] * S[r + 3]);
-        }
-        return s * at[0];
-      };
-      if (nT === 1)
-        return (x, y, z) => {
-          locateS(0, x, y, z);
-          return one(S0);
-        };
+      const probe = directionalAt(gv, kv);
+      const p = new Float64Array(4);
       return (x, y, z) => {
-        locateS(0, x, y, z);
-        const a = one(S0);
-        locateS(1, x, y, z);
-        return a + one(S1);
+        p[0] = x;
+        p[1] = y;
+        p[2] = z;
+        probe(p);
+        return p[3];
       };
     },
+    directionalAt,
   };
 }
