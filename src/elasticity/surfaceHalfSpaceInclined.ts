@@ -69,9 +69,10 @@ interface SurfaceTable {
   readonly ez: Vec3;
   /**
    * F in the crystal Cartesian frame, 9 components (i row: displacement, j column: derivative), on the
-   * padded grid (see `padded`): [node * 9 + 3 i + j].
+   * padded grid (see `padded`): [node * 9 + 3 i + j]. Made from the harmonics when `gradient` first needs
+   * it (`gridOf`): the renderer's two-beam path reads only the contracted scalar grids.
    */
-  readonly F: Float64Array;
+  F: Float64Array | null;
   /** Contractions g.F.k already made (padded scalar grids), by "g,k". */
   readonly contracted: Map<string, Float64Array>;
   /** The harmonics m kept and their coefficients p0_m, p1_m (9 complex each), for the direct (untabulated) sum. */
@@ -245,13 +246,15 @@ function buildTable(o: InclinedHalfSpaceOptions, which: 'entrance' | 'exit'): Su
       c1i.push(a[27 + k]);
     }
   }
+  return { e1, e2, ez, F: null, contracted: new Map(), ms, c0r, c0i, c1r, c1i };
+}
+
+/** The 9-component padded grid of a table (made once, on first use). */
+function gridOf(tb: SurfaceTable): Float64Array {
+  if (tb.F !== null) return tb.F;
+  const { ms, c0r, c0i, c1r, c1i } = tb;
   // table F(polar, azimuth): F = (1/2pi) Re sum_m e^{i m phi} (i s)^|m| [p0_m + p1_m (c^2 + |m| c)]
   const F = new Float64Array(N_POLAR * N_AZ * 9);
-  const cosA = new Float64Array(N_AZ), sinA = new Float64Array(N_AZ);
-  for (let k = 0; k < N_AZ; k++) {
-    cosA[k] = Math.cos((2 * Math.PI * k) / N_AZ);
-    sinA[k] = Math.sin((2 * Math.PI * k) / N_AZ);
-  }
   const re = new Float64Array(N_AZ), im = new Float64Array(N_AZ);
   const coef = new Float64Array(ms.length * 18); // per harmonic: complex 9-vector at this polar angle, times (i s)^|m| / 2pi
   for (let ip = 0; ip < N_POLAR; ip++) {
@@ -286,7 +289,8 @@ function buildTable(o: InclinedHalfSpaceOptions, which: 'entrance' | 'exit'): Su
       for (let ia = 0; ia < N_AZ; ia++) F[(ip * N_AZ + ia) * 9 + k] = re[ia];
     }
   }
-  return { e1, e2, ez, F: padded(cartesian(F, [e1, e2, ez]), 9), contracted: new Map(), ms, c0r, c0i, c1r, c1i };
+  tb.F = padded(cartesian(F, [tb.e1, tb.e2, tb.ez]), 9);
+  return tb.F;
 }
 
 /**
@@ -492,10 +496,11 @@ export function azimuthNodes(X: number, Y: number): number {
  */
 const byB = new Map<string, SurfaceTable>();
 const byGeometry = new Map<string, SurfaceTable[] | 'seen'>();
-// a table holds 65 x 256 x 9 numbers (1.2 MB): at most 16 per b and 8 geometries (x 3 unit b) per thread
+// a table holds its harmonics (a few kB), once `gradient` has been used its 9-component grid (67 x 259 x 9 numbers,
+// 1.2 MB): at most 16 per b and 8 geometries (x 3 unit b) per thread
 const BY_B_SIZE = 16;
 const BY_GEOMETRY_SIZE = 8;
-// contracted scalar grids (136 kB each) kept per table: the conditions of one scenario or identification
+// contracted scalar grids (131 x 515 numbers, 540 kB each) kept per table: the conditions of one scenario or identification
 const CONTRACTED_SIZE = 8;
 
 function remember<V>(m: Map<string, V>, size: number, key: string, v: V): void {
@@ -531,9 +536,7 @@ function tableFor(o: InclinedHalfSpaceOptions, which: 'entrance' | 'exit'): Surf
     remember(byGeometry, BY_GEOMETRY_SIZE, gKey, bs);
   } else bs = basis;
   const b = o.b_nm;
-  const [t0, t1, t2] = bs;
-  const F = new Float64Array(t0.F.length);
-  for (let k = 0; k < F.length; k++) F[k] = b[0] * t0.F[k] + b[1] * t1.F[k] + b[2] * t2.F[k];
+  const t0 = bs[0];
   // the harmonic coefficients of the three combined, one entry per harmonic m
   const ms: number[] = [];
   const c0r: number[] = [], c0i: number[] = [], c1r: number[] = [], c1i: number[] = [];
@@ -560,7 +563,7 @@ function tableFor(o: InclinedHalfSpaceOptions, which: 'entrance' | 'exit'): Surf
       }
     });
   });
-  const tb: SurfaceTable = { e1: t0.e1, e2: t0.e2, ez: t0.ez, F, contracted: new Map(), ms, c0r, c0i, c1r, c1i };
+  const tb: SurfaceTable = { e1: t0.e1, e2: t0.e2, ez: t0.ez, F: null, contracted: new Map(), ms, c0r, c0i, c1r, c1i };
   remember(byB, BY_B_SIZE, bKey, tb);
   return tb;
 }
@@ -617,7 +620,7 @@ export function inclinedHalfSpaceCorrection(o: InclinedHalfSpaceOptions): Displa
   const addGradient = (out: Float64Array, x: number, y: number, z: number): void => {
     for (let q = 0; q < nT; q++) {
       locate(q, x, y, z);
-      const F = tables[q].F;
+      const F = gridOf(tables[q]);
       for (let p = 0; p < 4; p++) {
         const wp = at[1 + p] * at[0];
         const row = (corner[0] + p * PAD_W) * 9;

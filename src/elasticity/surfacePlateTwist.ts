@@ -61,11 +61,16 @@ function firstTerms(r2: number, Z: number, t: number, s: Float64Array): void {
   const a2 = Z;
   const q1 = Math.sqrt(r2 + a1 * a1);
   const q2 = Math.sqrt(r2 + a2 * a2);
-  const h1 = 1 / (q1 + a1);
-  const h2 = 1 / (q2 + a2);
+  // h = 1/(q + a) and 1/q from one division each: d = 1/(q (q + a)), h = q d, 1/q = (q + a) d
+  const p1 = q1 + a1;
+  const p2 = q2 + a2;
+  const d1 = 1 / (q1 * p1);
+  const d2 = 1 / (q2 * p2);
+  const h1 = q1 * d1, i1 = p1 * d1;
+  const h2 = q2 * d2, i2 = p2 * d2;
   s[0] += h1 - h2;
-  s[1] += -(h1 * h1) / q1 + (h2 * h2) / q2;
-  s[2] += h1 / q1 + h2 / q2;
+  s[1] += -(h1 * h1) * i1 + h2 * h2 * i2;
+  s[2] += h1 * i1 + h2 * i2;
 }
 
 // The table of the rest (m >= 1), t = 1: nodes uniform in v = r/(r + t) on [0, 1] (v = 1 is r = infinity,
