@@ -128,6 +128,7 @@ const fields = {
   'inclusion (its own field)': sphericalInclusion({ centre_nm: [0, 0, 20], radius_nm: 3, strain: 0.01, poissonRatio: 0.34 }),
   'inclusion: half-space corr.': inclusionSurfaceCorrection({ centre_nm: [0, 0, 20], strength_nm3: 0.27, normal: [0, 0, 1], thickness_nm: t, poissonRatio: 0.34 }),
   'normal: plate twist': surfaceCorrection({ b_nm: [0, 0, 0.25], line: [0, 0, 1], point_nm: [0, 0, 0], correction: { kind: 'normal-screw-twist', normal: [0, 0, 1], thickness_nm: t } }),
+  'normal: twist + edge tables': surfaceCorrection({ b_nm: [0.1, 0.05, 0.25], line: [0, 0, 1], point_nm: [3, 1, 0], correction: { kind: 'normal-edge-half-space', normal: [0, 0, 1], thickness_nm: t }, poissonRatio: 0.34 }),
 };
 const perPoint = (f) => perPointNs(f, g, k, pts, N);
 const res = {};

@@ -666,9 +666,10 @@ export function inclinedHalfSpaceCorrection(o: InclinedHalfSpaceOptions): Displa
         }
         const fa = azimuthNodes(X, Y);
         const fp = sv * sP;
-        let i = Math.floor(fp);
+        // both fractions are >= 0 (s in [0, 1], azimuth in [0, S_AZ]): truncation is the floor, in int32
+        let i = fp | 0;
         if (i > iMax) i = iMax;
-        let a = Math.floor(fa);
+        let a = fa | 0;
         const f = fp - i;
         const g = fa - a;
         if (a >= S_AZ) a -= S_AZ; // the azimuth rounded up to 2 pi
