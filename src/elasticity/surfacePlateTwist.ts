@@ -111,14 +111,18 @@ function restTable(): Float64Array {
 export function plateTwistTabulated(r2: number, Z: number, t: number, s: Float64Array): void {
   const T = table ?? restTable();
   const r = Math.sqrt(r2);
-  const fv = (r / (r + t)) * (NV - 1);
-  let zt = Z / t;
+  // r/(r + t) and 1/t from one division
+  const d = 1 / (t * (r + t));
+  const it = (r + t) * d;
+  const fv = r * t * d * (NV - 1);
+  let zt = Z * it;
   if (zt < 0) zt = 0;
   else if (zt > 1) zt = 1;
   const fz = zt * (NZ - 1);
-  let i = Math.floor(fv);
+  // both fractions are >= 0: truncation is the floor, in int32
+  let i = fv | 0;
   if (i > NV - 2) i = NV - 2;
-  let j = Math.floor(fz);
+  let j = fz | 0;
   if (j > NZ - 2) j = NZ - 2;
   const f = fv - i, g = fz - j;
   const f2 = f * f, f3 = f2 * f, g2 = g * g, g3 = g2 * g;
@@ -134,7 +138,6 @@ export function plateTwistTabulated(r2: number, Z: number, t: number, s: Float64
     c += wp * (wb0 * T[o + 2] + wb1 * T[o + 5] + wb2 * T[o + 8] + wb3 * T[o + 11]);
   }
   // the table is for t = 1: g ~ 1/length, gr ~ 1/length^3, gz ~ 1/length^2
-  const it = 1 / t;
   s[0] = a * it;
   s[1] = b * it * it * it;
   s[2] = c * it * it;
