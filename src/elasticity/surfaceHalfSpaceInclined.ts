@@ -716,6 +716,10 @@ export function inclinedHalfSpaceCorrection(o: InclinedHalfSpaceOptions): Displa
       out.fill(0);
       addGradient(out, x, y, z);
     },
+    gradientAt(out, p) {
+      for (let k = 0; k < 9; k++) out[k] = 0;
+      addGradient(out, p[0], p[1], p[2]);
+    },
     directional(gv, kv) {
       const probe = directionalAt(gv, kv);
       const p = new Float64Array(4);
