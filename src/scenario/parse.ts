@@ -130,8 +130,8 @@ function readElasticity(v: unknown): Elasticity {
 /**
  * "surfaces": "relaxed" (default: free-surface corrections of straight lines and inclusions,
  * src/elasticity/surfaceRelaxation.ts) or "infinite" (infinite-medium fields). The corrections of inclined
- * lines break the shared-column method: such renders are about 3x slower than the infinite medium column by
- * column and up to 16x slower than with shared columns (bench/surfaces.mjs; README, Foil surfaces), which
+ * lines break the shared-column method: such renders are about 2.7x slower than the infinite medium column by
+ * column and about 14x slower than with shared columns (bench/surfaces.mjs; README, Foil surfaces), which
  * is what "infinite" is still for (fast previews, fits of many candidates, generators without surfaces).
  */
 function readSurfaces(v: unknown): Surfaces {

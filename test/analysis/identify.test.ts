@@ -40,7 +40,7 @@ const CU = {
   beam: [0, 0, 1],
   // the constant ratio these cases were set up with (the default is now the thermal-diffuse model)
   absorption: 0.1,
-  surfaces: 'infinite', // the identification's statistics, not the field: relaxed inclined lines render 3-16x slower (README, Foil surfaces)
+  surfaces: 'infinite', // the identification's statistics, not the field: relaxed inclined lines render 3-14x slower (README, Foil surfaces)
   candidates: ['1/2<110>'],
 };
 

@@ -32,7 +32,7 @@ const raw = (t: number, depth: number, w: number, b: string, candidates: readonl
   foil: { thickness_nm: t, normal: [0, 0, 1] },
   beam: [0, 0, 1],
   absorption: 0.1,
-  surfaces: 'infinite', // the identification's statistics, not the field: relaxed inclined lines render 3-16x slower (README, Foil surfaces)
+  surfaces: 'infinite', // the identification's statistics, not the field: relaxed inclined lines render 3-14x slower (README, Foil surfaces)
   conditions: [
     { id: 'g200', g: [2, 0, 0], w },
     { id: 'g020', g: [0, 2, 0], w },

@@ -30,7 +30,7 @@ const RAW = {
   kV: 200,
   foil: { thickness_nm: 60, normal: [0, 0, 1] },
   beam: [0, 0, 1],
-  surfaces: 'infinite', // the command, not the field: relaxed inclined lines render 3-16x slower (README, Foil surfaces)
+  surfaces: 'infinite', // the command, not the field: relaxed inclined lines render 3-14x slower (README, Foil surfaces)
   conditions: [
     { id: 'g200', g: [2, 0, 0], w: 0.5 },
     { id: 'g020', g: [0, 2, 0], w: 0.5 },

@@ -29,7 +29,7 @@ const RAW = {
   foil: { thickness_nm: 60, normal: [0, 0, 1] },
   beam: [0, 0, 1],
   image: { width_px: 40, height_px: 36, pixel_nm: 1 },
-  surfaces: 'infinite', // sharding, not the field: relaxed inclined lines render 3-16x slower (README, Foil surfaces)
+  surfaces: 'infinite', // sharding, not the field: relaxed inclined lines render 3-14x slower (README, Foil surfaces)
   conditions: [
     { id: 'g200', g: [2, 0, 0], w: 0.5 },
     { id: 'g020', g: [0, 2, 0], w: 0.5 },
