@@ -50,15 +50,18 @@ export interface StrohImagesOptions {
   readonly only?: 'entrance' | 'exit';
 }
 
-export function strohHalfSpaceImages(o: StrohImagesOptions): DisplacementField {
-  const md = modesFor(o.stiffness_GPa, o.line, o.normal);
-  if (!md.diagonal) throw new Error('internal: strohHalfSpaceImages needs well separated Stroh eigenvalues');
-  const n = unit(o.normal);
-  if (dot(md.n, n) < 1 - 1e-9) throw new Error('internal: the Stroh frame must have n along the foil normal');
-  const m = md.m;
-  const b = o.b_nm;
-  const t = o.thickness_nm;
-  const { aRe, aIm, lRe, lIm, giRe, giIm, pRe, pIm } = md;
+/** The image coefficients of a line: its Stroh modes (frame m = n x u, n) and C[:, b] = B^-1 conj(B_b c_b) (row-major, alpha, beta). */
+export interface StrohImageCoefficients {
+  readonly modes: StrohModes;
+  readonly Cr: Float64Array;
+  readonly Ci: Float64Array;
+}
+
+export function strohImageCoefficients(b: Vec3, line: Vec3, normal: Vec3, stiffness_GPa: readonly number[]): StrohImageCoefficients {
+  const md = modesFor(stiffness_GPa, line, normal);
+  if (!md.diagonal) throw new Error('internal: the Stroh surface images need well separated Stroh eigenvalues');
+  if (dot(md.n, unit(normal)) < 1 - 1e-9) throw new Error('internal: the Stroh frame must have n along the foil normal');
+  const { lRe, lIm, giRe, giIm } = md;
   // c = G^-1 (B^T b)
   const lbr = [0, 0, 0], lbi = [0, 0, 0];
   for (let j = 0; j < 3; j++)
@@ -81,6 +84,15 @@ export function strohHalfSpaceImages(o: StrohImagesOptions): DisplacementField {
     }
   const [BinvR, BinvI] = cinv3(Float64Array.from(lRe), Float64Array.from(lIm));
   const [Cr, Ci] = cmul3(BinvR, BinvI, Rr, Ri);
+  return { modes: md, Cr, Ci };
+}
+
+export function strohHalfSpaceImages(o: StrohImagesOptions): DisplacementField {
+  const { modes: md, Cr, Ci } = strohImageCoefficients(o.b_nm, o.line, o.normal, o.stiffness_GPa);
+  const n = unit(o.normal);
+  const m = md.m;
+  const t = o.thickness_nm;
+  const { aRe, aIm, pRe, pIm } = md;
   const P = o.point_nm;
   const xi0 = dot(P, m);
   const d = dot(P, n);
