@@ -502,7 +502,7 @@ export function plateStrohCorrection(o: PlateStrohOptions): DisplacementField {
   const tb = cachedTable(p, key);
   const images = strohHalfSpaceImages({ b_nm: o.b_nm, line: o.line, point_nm: o.point_nm, normal: o.normal, thickness_nm: o.thickness_nm, stiffness_GPa: o.stiffness_GPa });
   // the infinite line (far field: the correction is minus it plus the rigid turn); core radius irrelevant there
-  const line = anisotropicDislocation({ b_nm: o.b_nm, line: o.line, point_nm: o.point_nm, stiffness_GPa: o.stiffness_GPa });
+  const line = anisotropicDislocation({ b_nm: o.b_nm, line: o.line, point_nm: o.point_nm, stiffness_GPa: o.stiffness_GPa, coreRadius_nm: 1e-6 });
   const { m, n } = p;
   const xi0 = dot(o.point_nm, m);
   const X = -tb.x0;

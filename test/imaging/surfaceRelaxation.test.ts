@@ -32,7 +32,7 @@ describe('"surfaces" scenario key', () => {
     expect(d.correctedLines).toBe(3);
     expect(d.lines).toBe(3);
     expect(d.geometry).toEqual({ parallel: 1, normal: 1, inclined: 1 });
-    expect(d.text).toMatch(/^relaxed foil surfaces \(3 of 3 straight lines corrected: lines parallel to the surfaces \(anisotropic half-space images of each surface\); lines inclined to the surfaces \(isotropic half-space correction of each surface\); lines normal to the surfaces with an edge component \(screw plate twist and half-space corrections of the edge component\)\)$/);
+    expect(d.text).toMatch(/^relaxed foil surfaces \(3 of 3 straight lines corrected: lines parallel to the surfaces \(exact anisotropic plate correction\); lines inclined to the surfaces \(isotropic half-space correction of each surface\); lines normal to the surfaces with an edge component \(screw plate twist and half-space corrections of the edge component\)\)$/);
     expect(d.approximations.join(' ')).toMatch(/each surface is freed exactly on its own/);
     expect(d.approximations.join(' ')).toMatch(/lines inclined to the surfaces: the isotropic half-space correction of each surface/);
     expect(d.approximations.join(' ')).toMatch(/are isotropic .* added to the anisotropic \(Stroh\) infinite field/);
