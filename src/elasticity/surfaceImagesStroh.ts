@@ -12,15 +12,15 @@
  * makes phi vanish on eta = 0 (each term equals the conjugate of an infinite-field
  * term there), so the surface eta = 0 is traction-free: exact for a half-space,
  * for every Burgers vector (screw and edge components). The same with d -> d - t,
- * eta -> eta - t frees the exit surface. The two images are added independently:
- * each cancels the traction on its own surface exactly, and each leaves a traction
- * on the other surface (no repeated reflections): an approximation for the plate,
- * stated in README and render.json (test/elasticity/surfaceRelaxation.test.ts
- * measures the residual).
+ * eta -> eta - t frees the exit surface. Each image cancels the traction on its
+ * own surface exactly and leaves a traction on the other surface; the renderer
+ * uses them as the first step of the exact plate correction (surfacePlateStroh.ts,
+ * which adds the strip's Fourier solution for those leftover tractions). Alone
+ * (tests) they are the two half-space corrections without repeated reflections.
  *
  * Needs well separated Stroh eigenvalues p (the diagonal form); for degenerate
  * ones (isotropic or nearly isotropic crystals) `strohImagesApply` is false and
- * the isotropic screw images (surfaceRelaxation.ts) are used instead.
+ * the isotropic corrections (surfaceRelaxation.ts) are used instead.
  */
 import { type Vec3, cross, dot, unit } from '../math/vec3.js';
 import type { DisplacementField } from './field.js';

@@ -33,7 +33,8 @@ describe('"surfaces" scenario key', () => {
     expect(d.lines).toBe(3);
     expect(d.geometry).toEqual({ parallel: 1, normal: 1, inclined: 1 });
     expect(d.text).toMatch(/^relaxed foil surfaces \(3 of 3 straight lines corrected: lines parallel to the surfaces \(exact anisotropic plate correction\); lines inclined to the surfaces \(isotropic half-space correction of each surface\); lines normal to the surfaces with an edge component \(screw plate twist and half-space corrections of the edge component\)\)$/);
-    expect(d.approximations.join(' ')).toMatch(/each surface is freed exactly on its own/);
+    // the parallel anisotropic line now gets the exact plate correction (surfacePlateStroh.ts), not two independent images
+    expect(d.approximations.join(' ')).toMatch(/exact anisotropic plate correction .* both surfaces traction-free to about 1e-6 of the unrelaxed traction at any distance/);
     expect(d.approximations.join(' ')).toMatch(/lines inclined to the surfaces: the isotropic half-space correction of each surface/);
     expect(d.approximations.join(' ')).toMatch(/are isotropic .* added to the anisotropic \(Stroh\) infinite field/);
     const iso = describeSurfaces({ ...sc, elasticity: 'isotropic' });
