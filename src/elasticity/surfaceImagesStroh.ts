@@ -139,7 +139,7 @@ export function strohHalfSpaceImages(o: StrohImagesOptions): DisplacementField {
     }
   };
   // per mode alpha and Cartesian component i: E[i][al] = sum_b A[i][al] C[al][b] S[al][b]
-  return {
+  const field: DisplacementField = {
     displacement(out, x, y, z) {
       const xi = x * m0 + y * m1 + z * m2 - xi0;
       const eta = x * n0 + y * n1 + z * n2;
@@ -190,24 +190,17 @@ export function strohHalfSpaceImages(o: StrohImagesOptions): DisplacementField {
         }
       }
     },
+    directionalAt(g, k) {
+      const [Kr, Ki] = contraction(g, k);
+      return (q) => {
+        sums(q[0], q[1], q[2]);
+        let s = 0;
+        for (let r = 0; r < 9; r++) s += Kr[r] * si[r] + Ki[r] * sr[r];
+        q[3] = s;
+      };
+    },
     directional(g, k) {
-      // K[al][b] = (g . A_al)(m.k + p_al n.k) C[al][b] / pi
-      const mk = dot(m, k as unknown as Vec3);
-      const nk = dot(n, k as unknown as Vec3);
-      const Kr = new Float64Array(9), Ki = new Float64Array(9);
-      for (let al = 0; al < 3; al++) {
-        const gar = g[0] * aRe[al] + g[1] * aRe[3 + al] + g[2] * aRe[6 + al];
-        const gai = g[0] * aIm[al] + g[1] * aIm[3 + al] + g[2] * aIm[6 + al];
-        const fr = mk + pRe[al] * nk;
-        const fi = pIm[al] * nk;
-        const er = gar * fr - gai * fi;
-        const ei = gar * fi + gai * fr;
-        for (let be = 0; be < 3; be++) {
-          const q = al * 3 + be;
-          Kr[q] = (er * Cr[q] - ei * Ci[q]) / Math.PI;
-          Ki[q] = (er * Ci[q] + ei * Cr[q]) / Math.PI;
-        }
-      }
+      const [Kr, Ki] = contraction(g, k);
       return (x, y, z) => {
         sums(x, y, z);
         let s = 0;
@@ -216,4 +209,27 @@ export function strohHalfSpaceImages(o: StrohImagesOptions): DisplacementField {
       };
     },
   };
+  return field;
+
+  /** K[al][b] = (g . A_al)(m.k + p_al n.k) C[al][b] / pi: g.(grad R).k = sum K_r Im S_r + K_i Re S_r. */
+  function contraction(g: readonly [number, number, number], k: readonly [number, number, number]): [Float64Array, Float64Array] {
+    // K[al][b] = (g . A_al)(m.k + p_al n.k) C[al][b] / pi
+    const mk = dot(m, k as unknown as Vec3);
+    const nk = dot(n, k as unknown as Vec3);
+    const Kr = new Float64Array(9), Ki = new Float64Array(9);
+    for (let al = 0; al < 3; al++) {
+      const gar = g[0] * aRe[al] + g[1] * aRe[3 + al] + g[2] * aRe[6 + al];
+      const gai = g[0] * aIm[al] + g[1] * aIm[3 + al] + g[2] * aIm[6 + al];
+      const fr = mk + pRe[al] * nk;
+      const fi = pIm[al] * nk;
+      const er = gar * fr - gai * fi;
+      const ei = gar * fi + gai * fr;
+      for (let be = 0; be < 3; be++) {
+        const q = al * 3 + be;
+        Kr[q] = (er * Cr[q] - ei * Ci[q]) / Math.PI;
+        Ki[q] = (er * Ci[q] + ei * Cr[q]) / Math.PI;
+      }
+    }
+    return [Kr, Ki];
+  }
 }

@@ -44,14 +44,14 @@
  * 4. Table: the residual's six gradient components (u_i,x and u_i,y, i Cartesian)
  *    and their x, y, xy derivatives on |x| <= X, 0 <= y <= t (t/24 steps),
  *    bicubic Hermite; beyond X the correction is minus the infinite field plus
- *    the rigid turn +-Delta omega/2 (X = 6 t / min(1, min Im p); mismatch at the
+ *    the rigid turn +-Delta omega/2 (X = 6 t / sqrt(min(1, min Im p)); mismatch at the
  *    seam measured in the tests).
  *
  * The displacement (tests and tools only) is the path integral of the gradient
  * from the line (Gauss-Legendre on the straight segment, inside the foil).
  */
 import { type Vec3, dot, unit } from '../math/vec3.js';
-import { type DirectionalProbe, type DisplacementField, withDirectional } from './field.js';
+import { type DirectionalProbe, type DisplacementField, directionalProbe, withDirectional } from './field.js';
 import { stiffnessTensor } from './stiffness.js';
 import { anisotropicDislocation } from './anisotropicDislocation.js';
 import { strohHalfSpaceImages, strohImageCoefficients } from './surfaceImagesStroh.js';
@@ -69,7 +69,7 @@ export interface PlateStrohOptions {
 
 /** Numerical parameters (in units of the thickness t). */
 export const PLATE_STROH_GRID = {
-  /** Half-width of the tabulated x range, divided by min(1, min Im p). */
+  /** Half-width of the tabulated x range, divided by sqrt(min(1, min Im p)) (a margin: the seam is measured in the tests). */
   xRange: 6,
   /** Grid steps per thickness, in x and in y. */
   perThickness: 24,
@@ -397,7 +397,7 @@ export interface PlateStrohTable {
 export function plateStrohTable(p: PlateStrohProblem): PlateStrohTable {
   const G = PLATE_STROH_GRID;
   const t = p.t;
-  const half = Math.ceil(G.xRange / Math.min(1, p.minImP));
+  const half = Math.ceil(G.xRange / Math.sqrt(Math.min(1, p.minImP)));
   const X = half * t;
   const nx = 2 * half * G.perThickness + 1;
   const ny = G.perThickness + 1;
@@ -550,19 +550,39 @@ export function plateStrohCorrection(o: PlateStrohOptions): DisplacementField {
           for (let c = 0; c < 6; c++) s += w[c] * dt[24 * q + 4 * c + e];
           scalar[4 * q + e] = s;
         }
-      const img = images.directional(g, k);
-      const lineProbe = line.directional(g, k);
+      const img = images.directionalAt!(g, k);
+      const lineProbe = directionalProbe(line, g, k);
       const rot = dot(g as unknown as Vec3, n) * km - dot(g as unknown as Vec3, m) * kn;
-      const S = new Float64Array(1);
+      const m0 = m[0], m1 = m[1], m2 = m[2], n0 = n[0], n1 = n[1], n2 = n[2];
+      const { nx, ny, x0, hx, hy } = tb;
       return (q) => {
-        const x = q[0] * m[0] + q[1] * m[1] + q[2] * m[2] - xi0;
+        const x = q[0] * m0 + q[1] * m1 + q[2] * m2 - xi0;
         if (Math.abs(x) <= X) {
-          const y = q[0] * n[0] + q[1] * n[1] + q[2] * n[2];
-          hermite(tb, scalar, 1, x, y, S);
-          q[3] = S[0] + img(q[0], q[1], q[2]);
+          const y = q[0] * n0 + q[1] * n1 + q[2] * n2;
+          // bicubic Hermite of the one contracted component (hermite() written out for the hot path)
+          const fx = (x - x0) / hx, fy = y / hy;
+          let i = Math.floor(fx), j = Math.floor(fy);
+          if (i < 0) i = 0;
+          if (i > nx - 2) i = nx - 2;
+          if (j < 0) j = 0;
+          if (j > ny - 2) j = ny - 2;
+          const s = fx - i, r = fy - j;
+          const s2 = s * s, s3 = s2 * s, r2 = r * r, r3 = r2 * r;
+          const H0s = 2 * s3 - 3 * s2 + 1, H1s = 1 - H0s, D0s = (s3 - 2 * s2 + s) * hx, D1s = (s3 - s2) * hx;
+          const H0r = 2 * r3 - 3 * r2 + 1, H1r = 1 - H0r, D0r = (r3 - 2 * r2 + r) * hy, D1r = (r3 - r2) * hy;
+          const q00 = 4 * (j * nx + i), q10 = q00 + 4, q01 = q00 + 4 * nx, q11 = q01 + 4;
+          const c = scalar;
+          const v =
+            H0r * (H0s * c[q00] + H1s * c[q10] + D0s * c[q00 + 1] + D1s * c[q10 + 1]) +
+            H1r * (H0s * c[q01] + H1s * c[q11] + D0s * c[q01 + 1] + D1s * c[q11 + 1]) +
+            D0r * (H0s * c[q00 + 2] + H1s * c[q10 + 2] + D0s * c[q00 + 3] + D1s * c[q10 + 3]) +
+            D1r * (H0s * c[q01 + 2] + H1s * c[q11 + 2] + D0s * c[q01 + 3] + D1s * c[q11 + 3]);
+          img(q);
+          q[3] += v;
           return;
         }
-        q[3] = -lineProbe(q[0], q[1], q[2]) + (x > 0 ? 0.5 : -0.5) * p.kink * rot;
+        lineProbe(q);
+        q[3] = -q[3] + (x > 0 ? 0.5 : -0.5) * p.kink * rot;
       };
     },
     gradientAt(out, q) {
