@@ -1,8 +1,8 @@
 // Benchmark: cost of relaxed foil surfaces ("surfaces": "relaxed") against the infinite medium, same run.
 // 1. Renders (one thread, the path the renderer would take: shared columns when translationPlan accepts
 //    the job, else column by column), "relaxed" vs "infinite", interleaved, median of 3 each:
-//    a. mixed dislocation parallel to the surfaces, isotropic (screw image series) and anisotropic (Stroh
-//       half-space images of both surfaces): invariant along the line, shared columns in both;
+//    a. mixed dislocation parallel to the surfaces, isotropic (screw image series) and anisotropic (exact Stroh
+//       plate correction, its table built once per line and thread): invariant along the line, shared columns in both;
 //    b. inclined mixed dislocation (the half-space corrections change along the line: column by column when
 //       relaxed, shared columns when infinite; also against the infinite medium column by column);
 //    c. screw normal to the foil seen with a tilted beam (the Eshelby-Stroh twist changes along the line:
@@ -12,7 +12,7 @@
 //    e. a spherical inclusion 12 nm deep (Mindlin & Cheng half-space corrections; column by column in both);
 //    f. an edge normal to the foil (half-space corrections of the edge component: column by column when relaxed).
 // 2. Per-point cost of beta' = g.(grad R).k for a line alone and for each correction.
-// 3. Set-up of the plate correction of a parallel edge line (its residual table, once per line), and of the inclined-line correction: building the two surface tables for a new line direction (they do
+// 3. Set-up of the plate corrections of a parallel line, isotropic edge and anisotropic (their residual tables, once per line), and of the inclined-line correction: building the two surface tables for a new line direction (they do
 //    not depend on the line's point or the foil thickness, so only a new direction, b or material pays this), and
 //    making the scalar g.F.k of both for a new condition.
 // Run with `npm run bench` (builds dist/ first) or `node bench/surfaces.mjs` after a build. Never a timed test.
@@ -30,6 +30,8 @@ import { sphericalInclusion } from '../dist/elasticity/inclusion.js';
 import { inclusionSurfaceCorrection } from '../dist/elasticity/inclusionSurface.js';
 import { edgeHalfSpaceImages } from '../dist/elasticity/surfaceEdgeImages.js';
 import { plateEdgeCorrection } from '../dist/elasticity/surfacePlateEdge.js';
+import { plateStrohCorrection } from '../dist/elasticity/surfacePlateStroh.js';
+import { strohHalfSpaceImages } from '../dist/elasticity/surfaceImagesStroh.js';
 import { fmt, inclinedDislocation, lcg, median, perPointNs, normalScrew } from './common.mjs';
 
 const parallel = {
@@ -121,7 +123,8 @@ const fields = {
   'isotropic line (reference)': straightDislocation({ b_nm: [0.18, 0.18, 0], line: [1, 1, 0], point_nm: [0, 0, 20], poissonRatio: 0.34, coreRadius_nm: 0.01 }),
   'parallel: image screws': surfaceCorrection({ b_nm: [0.18, 0.18, 0], line: [1, 1, 0], point_nm: [0, 0, 20], correction: { kind: 'parallel-screw-images', normal: [0, 0, 1], thickness_nm: t } }),
   'anisotropic line (Cu)': anisotropicDislocation({ b_nm: [0.18, 0.18, 0], line: [1, 1, 0], point_nm: [0, 0, 20], stiffness_GPa: cu, coreRadius_nm: 0.01 }),
-  'parallel: Stroh images (Cu)': surfaceCorrection({ b_nm: [0.18, 0, 0.18], line: [1, 1, 0], point_nm: [0, 0, 20], correction: { kind: 'parallel-stroh-images', normal: [0, 0, 1], thickness_nm: t }, stiffness_GPa: cu }),
+  'parallel: Stroh plate (Cu)': surfaceCorrection({ b_nm: [0.18, 0, 0.18], line: [1, 1, 0], point_nm: [0, 0, 20], correction: { kind: 'parallel-stroh-plate', normal: [0, 0, 1], thickness_nm: t }, stiffness_GPa: cu }),
+  '  (its two Stroh images)': strohHalfSpaceImages({ b_nm: [0.18, 0, 0.18], line: [1, 1, 0], point_nm: [0, 0, 20], normal: [0, 0, 1], thickness_nm: t, stiffness_GPa: cu }),
   'inclined: half-space tables': inclinedHalfSpaceCorrection({ b_nm: [0.18, 0, 0.18], line: [1, 1, 2], point_nm: [0, 0, 30], normal: [0, 0, 1], thickness_nm: t, poissonRatio: 0.34 }),
   'parallel: edge plate': surfaceCorrection({ b_nm: [0.18, -0.18, 0], line: [1, 1, 0], point_nm: [0, 0, 20], correction: { kind: 'parallel-edge-plate', normal: [0, 0, 1], thickness_nm: t }, poissonRatio: 0.34 }),
   '  (its two Head images)': edgeHalfSpaceImages({ b_nm: [0.18, -0.18, 0], line: [1, 1, 0], point_nm: [0, 0, 20], normal: [0, 0, 1], thickness_nm: t, poissonRatio: 0.34 }),
@@ -146,6 +149,16 @@ for (let r = 0; r < 5; r++) {
   if (r >= 2) plateBuild.push((c1.user + c1.system - c0.user - c0.system) / 1e3);
 }
 console.log(`plate correction of a parallel edge line, set-up (table) per line, CPU time (median of 3): ${fmt(median(plateBuild))} ms`);
+
+// set-up cost of the anisotropic plate correction of a parallel line (the residual table, once per line and thread)
+const strohBuild = [];
+for (let r = 0; r < 5; r++) {
+  const c0 = process.cpuUsage();
+  plateStrohCorrection({ b_nm: [0.18, 0, 0.18], line: [1, 1, 0], point_nm: [0, 0, 20 + r], normal: [0, 0, 1], thickness_nm: t, stiffness_GPa: cu });
+  const c1 = process.cpuUsage();
+  if (r >= 2) strohBuild.push((c1.user + c1.system - c0.user - c0.system) / 1e3);
+}
+console.log(`anisotropic plate correction of a parallel line (Cu), set-up (table) per line, CPU time (median of 3): ${fmt(median(strohBuild))} ms`);
 
 // set-up cost of the inclined-line tables (a new direction each time: the tables are cached per direction and b)
 const build = [], contract = [];

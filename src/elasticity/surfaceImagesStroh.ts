@@ -12,15 +12,15 @@
  * makes phi vanish on eta = 0 (each term equals the conjugate of an infinite-field
  * term there), so the surface eta = 0 is traction-free: exact for a half-space,
  * for every Burgers vector (screw and edge components). The same with d -> d - t,
- * eta -> eta - t frees the exit surface. The two images are added independently:
- * each cancels the traction on its own surface exactly, and each leaves a traction
- * on the other surface (no repeated reflections): an approximation for the plate,
- * stated in README and render.json (test/elasticity/surfaceRelaxation.test.ts
- * measures the residual).
+ * eta -> eta - t frees the exit surface. Each image cancels the traction on its
+ * own surface exactly and leaves a traction on the other surface; the renderer
+ * uses them as the first step of the exact plate correction (surfacePlateStroh.ts,
+ * which adds the strip's Fourier solution for those leftover tractions). Alone
+ * (tests) they are the two half-space corrections without repeated reflections.
  *
  * Needs well separated Stroh eigenvalues p (the diagonal form); for degenerate
  * ones (isotropic or nearly isotropic crystals) `strohImagesApply` is false and
- * the isotropic screw images (surfaceRelaxation.ts) are used instead.
+ * the isotropic corrections (surfaceRelaxation.ts) are used instead.
  */
 import { type Vec3, cross, dot, unit } from '../math/vec3.js';
 import type { DisplacementField } from './field.js';
@@ -50,15 +50,18 @@ export interface StrohImagesOptions {
   readonly only?: 'entrance' | 'exit';
 }
 
-export function strohHalfSpaceImages(o: StrohImagesOptions): DisplacementField {
-  const md = modesFor(o.stiffness_GPa, o.line, o.normal);
-  if (!md.diagonal) throw new Error('internal: strohHalfSpaceImages needs well separated Stroh eigenvalues');
-  const n = unit(o.normal);
-  if (dot(md.n, n) < 1 - 1e-9) throw new Error('internal: the Stroh frame must have n along the foil normal');
-  const m = md.m;
-  const b = o.b_nm;
-  const t = o.thickness_nm;
-  const { aRe, aIm, lRe, lIm, giRe, giIm, pRe, pIm } = md;
+/** The image coefficients of a line: its Stroh modes (frame m = n x u, n) and C[:, b] = B^-1 conj(B_b c_b) (row-major, alpha, beta). */
+export interface StrohImageCoefficients {
+  readonly modes: StrohModes;
+  readonly Cr: Float64Array;
+  readonly Ci: Float64Array;
+}
+
+export function strohImageCoefficients(b: Vec3, line: Vec3, normal: Vec3, stiffness_GPa: readonly number[]): StrohImageCoefficients {
+  const md = modesFor(stiffness_GPa, line, normal);
+  if (!md.diagonal) throw new Error('internal: the Stroh surface images need well separated Stroh eigenvalues');
+  if (dot(md.n, unit(normal)) < 1 - 1e-9) throw new Error('internal: the Stroh frame must have n along the foil normal');
+  const { lRe, lIm, giRe, giIm } = md;
   // c = G^-1 (B^T b)
   const lbr = [0, 0, 0], lbi = [0, 0, 0];
   for (let j = 0; j < 3; j++)
@@ -81,6 +84,15 @@ export function strohHalfSpaceImages(o: StrohImagesOptions): DisplacementField {
     }
   const [BinvR, BinvI] = cinv3(Float64Array.from(lRe), Float64Array.from(lIm));
   const [Cr, Ci] = cmul3(BinvR, BinvI, Rr, Ri);
+  return { modes: md, Cr, Ci };
+}
+
+export function strohHalfSpaceImages(o: StrohImagesOptions): DisplacementField {
+  const { modes: md, Cr, Ci } = strohImageCoefficients(o.b_nm, o.line, o.normal, o.stiffness_GPa);
+  const n = unit(o.normal);
+  const m = md.m;
+  const t = o.thickness_nm;
+  const { aRe, aIm, pRe, pIm } = md;
   const P = o.point_nm;
   const xi0 = dot(P, m);
   const d = dot(P, n);
@@ -127,7 +139,7 @@ export function strohHalfSpaceImages(o: StrohImagesOptions): DisplacementField {
     }
   };
   // per mode alpha and Cartesian component i: E[i][al] = sum_b A[i][al] C[al][b] S[al][b]
-  return {
+  const field: DisplacementField = {
     displacement(out, x, y, z) {
       const xi = x * m0 + y * m1 + z * m2 - xi0;
       const eta = x * n0 + y * n1 + z * n2;
@@ -178,24 +190,17 @@ export function strohHalfSpaceImages(o: StrohImagesOptions): DisplacementField {
         }
       }
     },
+    directionalAt(g, k) {
+      const [Kr, Ki] = contraction(g, k);
+      return (q) => {
+        sums(q[0], q[1], q[2]);
+        let s = 0;
+        for (let r = 0; r < 9; r++) s += Kr[r] * si[r] + Ki[r] * sr[r];
+        q[3] = s;
+      };
+    },
     directional(g, k) {
-      // K[al][b] = (g . A_al)(m.k + p_al n.k) C[al][b] / pi
-      const mk = dot(m, k as unknown as Vec3);
-      const nk = dot(n, k as unknown as Vec3);
-      const Kr = new Float64Array(9), Ki = new Float64Array(9);
-      for (let al = 0; al < 3; al++) {
-        const gar = g[0] * aRe[al] + g[1] * aRe[3 + al] + g[2] * aRe[6 + al];
-        const gai = g[0] * aIm[al] + g[1] * aIm[3 + al] + g[2] * aIm[6 + al];
-        const fr = mk + pRe[al] * nk;
-        const fi = pIm[al] * nk;
-        const er = gar * fr - gai * fi;
-        const ei = gar * fi + gai * fr;
-        for (let be = 0; be < 3; be++) {
-          const q = al * 3 + be;
-          Kr[q] = (er * Cr[q] - ei * Ci[q]) / Math.PI;
-          Ki[q] = (er * Ci[q] + ei * Cr[q]) / Math.PI;
-        }
-      }
+      const [Kr, Ki] = contraction(g, k);
       return (x, y, z) => {
         sums(x, y, z);
         let s = 0;
@@ -204,4 +209,27 @@ export function strohHalfSpaceImages(o: StrohImagesOptions): DisplacementField {
       };
     },
   };
+  return field;
+
+  /** K[al][b] = (g . A_al)(m.k + p_al n.k) C[al][b] / pi: g.(grad R).k = sum K_r Im S_r + K_i Re S_r. */
+  function contraction(g: readonly [number, number, number], k: readonly [number, number, number]): [Float64Array, Float64Array] {
+    // K[al][b] = (g . A_al)(m.k + p_al n.k) C[al][b] / pi
+    const mk = dot(m, k as unknown as Vec3);
+    const nk = dot(n, k as unknown as Vec3);
+    const Kr = new Float64Array(9), Ki = new Float64Array(9);
+    for (let al = 0; al < 3; al++) {
+      const gar = g[0] * aRe[al] + g[1] * aRe[3 + al] + g[2] * aRe[6 + al];
+      const gai = g[0] * aIm[al] + g[1] * aIm[3 + al] + g[2] * aIm[6 + al];
+      const fr = mk + pRe[al] * nk;
+      const fi = pIm[al] * nk;
+      const er = gar * fr - gai * fi;
+      const ei = gar * fi + gai * fr;
+      for (let be = 0; be < 3; be++) {
+        const q = al * 3 + be;
+        Kr[q] = (er * Cr[q] - ei * Ci[q]) / Math.PI;
+        Ki[q] = (er * Ci[q] + ei * Cr[q]) / Math.PI;
+      }
+    }
+    return [Kr, Ki];
+  }
 }

@@ -31,9 +31,12 @@
  *    each term the half-space twist (sqrt(r^2+a^2) - a)/r of Eshelby & Stroh.
  *    The correction depends on depth along the line (not invariant).
  *
- * With anisotropic elasticity a line parallel to the surfaces gets the
- * anisotropic half-space images of surfaceImagesStroh.ts instead (all of b, each
- * surface freed on its own), when its Stroh eigenvalues are well separated.
+ * With anisotropic elasticity a line parallel to the surfaces gets the exact
+ * anisotropic plate correction of surfacePlateStroh.ts instead (kind
+ * 'parallel-stroh-plate': the two Stroh half-space images of surfaceImagesStroh.ts
+ * plus the Fourier solution of the strip for what each leaves on the other
+ * surface; all of b, both surfaces free everywhere), when its Stroh eigenvalues
+ * are well separated.
  * Lines inclined to the surfaces get the half-space corrections of
  * surfaceHalfSpaceInclined.ts (each surface freed on its own, isotropic response).
  * Added to the anisotropic (Stroh) infinite field the screw corrections above
@@ -45,21 +48,22 @@
 import { type Vec3, cross, dot, norm, unit } from '../math/vec3.js';
 import { type DisplacementField, superpose } from './field.js';
 import { plateEdgeCorrection } from './surfacePlateEdge.js';
-import { strohHalfSpaceImages, strohImagesApply } from './surfaceImagesStroh.js';
+import { strohImagesApply } from './surfaceImagesStroh.js';
+import { plateStrohCorrection } from './surfacePlateStroh.js';
 import { inclinedHalfSpaceCorrection } from './surfaceHalfSpaceInclined.js';
 import { plateTwistScratch, plateTwistSeries, plateTwistTabulated } from './surfacePlateTwist.js';
 
 export type SurfaceCorrectionKind =
   | 'parallel-screw-images'
   | 'parallel-edge-plate'
-  | 'parallel-stroh-images'
+  | 'parallel-stroh-plate'
   | 'normal-screw-twist'
   | 'normal-edge-half-space'
   | 'inclined-half-space';
 
 /** Whether a correction keeps the field invariant along the line (the shared-column method needs that). */
 export function invariantAlongLine(kind: SurfaceCorrectionKind): boolean {
-  return kind === 'parallel-screw-images' || kind === 'parallel-edge-plate' || kind === 'parallel-stroh-images';
+  return kind === 'parallel-screw-images' || kind === 'parallel-edge-plate' || kind === 'parallel-stroh-plate';
 }
 
 /** Plain data (worker threads rebuild the field from it). */
@@ -79,8 +83,8 @@ export const GEOMETRY_TOLERANCE = 1e-9;
  * to the surfaces that does not lie strictly inside the foil (one lying in a
  * surface, or a partial of a ribbon placed outside the foil: its images would
  * not be outside the foil). With `stiffness_GPa` (anisotropic elasticity) a
- * parallel line gets the anisotropic half-space images of both surfaces
- * (surfaceImagesStroh.ts, every Burgers vector) when its Stroh eigenvalues are
+ * parallel line gets the exact anisotropic plate correction
+ * (surfacePlateStroh.ts, every Burgers vector) when its Stroh eigenvalues are
  * well separated, else the isotropic images: the screw image series for a pure
  * screw ('parallel-screw-images'), that series plus the exact plate correction of the
  * edge component (surfacePlateEdge.ts) otherwise ('parallel-edge-plate'). A line inclined to the
@@ -103,7 +107,7 @@ export function surfaceCorrectionFor(
   if (geometry === 'parallel') {
     const z0 = dot(point_nm, n);
     if (!(z0 > 1e-9 * thickness_nm && z0 < (1 - 1e-9) * thickness_nm)) return null;
-    if (stiffness_GPa !== undefined && strohImagesApply(stiffness_GPa, u, n)) return { kind: 'parallel-stroh-images', normal: n, thickness_nm };
+    if (stiffness_GPa !== undefined && strohImagesApply(stiffness_GPa, u, n)) return { kind: 'parallel-stroh-plate', normal: n, thickness_nm };
     const edge = norm(cross(b_nm, u)) >= 1e-12 * norm(b_nm);
     return edge ? { kind: 'parallel-edge-plate', normal: n, thickness_nm } : { kind: 'parallel-screw-images', normal: n, thickness_nm };
   }
@@ -128,7 +132,7 @@ export interface SurfaceCorrectionOptions {
   readonly line: Vec3;
   readonly point_nm: Vec3;
   readonly correction: SurfaceCorrectionSpec;
-  /** The Voigt stiffness of the line's own field when it is anisotropic (needed for 'parallel-stroh-images'). */
+  /** The Voigt stiffness of the line's own field when it is anisotropic (needed for 'parallel-stroh-plate'). */
   readonly stiffness_GPa?: readonly number[];
   /** Poisson ratio of the isotropic response (needed for 'inclined-half-space'). */
   readonly poissonRatio?: number;
@@ -137,9 +141,9 @@ export interface SurfaceCorrectionOptions {
 /** The correction field (to be added to the infinite-medium field of the same line). */
 export function surfaceCorrection(o: SurfaceCorrectionOptions): DisplacementField {
   const c = o.correction;
-  if (c.kind === 'parallel-stroh-images') {
-    if (o.stiffness_GPa === undefined) throw new Error('internal: anisotropic surface images need the stiffness');
-    return strohHalfSpaceImages({ b_nm: o.b_nm, line: o.line, point_nm: o.point_nm, normal: c.normal, thickness_nm: c.thickness_nm, stiffness_GPa: o.stiffness_GPa });
+  if (c.kind === 'parallel-stroh-plate') {
+    if (o.stiffness_GPa === undefined) throw new Error('internal: the anisotropic plate correction needs the stiffness');
+    return plateStrohCorrection({ b_nm: o.b_nm, line: o.line, point_nm: o.point_nm, normal: c.normal, thickness_nm: c.thickness_nm, stiffness_GPa: o.stiffness_GPa });
   }
   if (c.kind === 'inclined-half-space') {
     if (o.poissonRatio === undefined) throw new Error('internal: the half-space correction needs the Poisson ratio');

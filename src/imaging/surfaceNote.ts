@@ -30,8 +30,8 @@ const KIND_TEXT: Readonly<Record<SurfaceCorrectionKind, string>> = {
     'lines parallel to the surfaces: the screw component gets its infinite series of image screws (closed form; exact for a screw in an isotropic plate); chosen for pure screws, so nothing else is left to correct',
   'parallel-edge-plate':
     "lines parallel to the surfaces: the screw component gets its infinite series of image screws (exact for a screw in an isotropic plate), the edge component the exact isotropic plate correction (half-space image of each surface, Head 1953, plus the Fourier solution of the strip for what each image leaves on the other surface; both surfaces traction-free to about 1e-6 of the unrelaxed traction at any distance; the far halves of the foil turn by -+ half the kink 6 b_x d (t - d)/t^3, none at the line)",
-  'parallel-stroh-images':
-    'lines parallel to the surfaces: the anisotropic half-space image of each surface (Stroh formalism, every Burgers vector; each surface is freed exactly on its own, but the image of one surface leaves a traction on the other, no repeated reflections: about 9-15 % of the unrelaxed traction for a line 10 nm deep in a 60 nm foil; beyond about two foil thicknesses from the line the images do not reduce the traction)',
+  'parallel-stroh-plate':
+    'lines parallel to the surfaces: the exact anisotropic plate correction (Stroh formalism, every Burgers vector: the anisotropic half-space image of each surface plus the Fourier solution of the anisotropic strip for what each image leaves on the other surface; both surfaces traction-free to about 1e-6 of the unrelaxed traction at any distance; the far halves of the foil turn by -+ half the kink 6 (b_x + lambda b_z) d (t - d)/t^3 of anisotropic pure bending, none at the line)',
   'normal-screw-twist':
     'lines normal to the surfaces: the Eshelby & Stroh (1951) plate twist (exact for a screw in an isotropic plate); chosen for pure screws, so nothing else is left to correct',
   'normal-edge-half-space':
@@ -83,7 +83,7 @@ export function describeSurfaces(sc: Scenario): SurfacesDescription {
   const lineCount = n === 0 ? 'no straight lines in this scenario' : `${corrected} of ${n} straight line${n === 1 ? '' : 's'} corrected`;
   const count = spheres.length === 0 ? lineCount : `${lineCount}, ${correctedInclusions} of ${spheres.length} inclusion${spheres.length === 1 ? '' : 's'} corrected`;
   const SHORT: Readonly<Record<SurfaceCorrectionKind, string>> = {
-    'parallel-stroh-images': ' (anisotropic half-space images of each surface)',
+    'parallel-stroh-plate': ' (exact anisotropic plate correction)',
     'parallel-screw-images': ' (screw image series)',
     'parallel-edge-plate': ' (screw image series and exact plate correction of the edge component)',
     'normal-screw-twist': ' (screw plate twist)',
