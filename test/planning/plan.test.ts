@@ -29,6 +29,10 @@ const sc = parseScenario({
   imageX: [1, 0, 0],
   image: { width_px: 64, height_px: 64, pixel_nm: 1 },
   absorption: 0.1,
+  // the rule checked below is infinite-medium physics; with relaxed surfaces this line (parallel to the surfaces,
+  // with an edge part) bends the plate, and the far halves' turn (-+ kink/2) changes the strip's background on
+  // each side by up to 0.15 for g.b = 0 candidates (README, Foil surfaces)
+  surfaces: 'infinite',
   conditions: [{ id: 'g200', g: [2, 0, 0], w: 1 }],
   defects: [{ type: 'dislocation', b: '1/2[1 1 0]', line: [1, -2, 0], point_nm: [0, 0, 50] }],
   candidates: ['1/2<110>'],
