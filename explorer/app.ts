@@ -85,6 +85,7 @@ const el = {
   burgers: $<HTMLSelectElement>('burgers'),
   beams: $<HTMLSelectElement>('beams'),
   surfaces: $<HTMLSelectElement>('surfaces'),
+  modelNote: $('model-note'),
   info: $('info'),
   status: $('status'),
   figure: $<HTMLCanvasElement>('figure'),
@@ -412,6 +413,8 @@ function showInfo(sc: Scenario, c: ResolvedCondition): void {
     }
   }
   el.info.textContent = lines.join('\n');
+  // what the images are: the same words as render.json's note
+  el.modelNote.textContent = `Simulated images (column approximation, ${sc.elasticity} elasticity, ${sc.surfaces === 'relaxed' ? 'relaxed foil surfaces' : 'infinite medium'}): a model, not a measurement.`;
 }
 
 interface Rocking {

@@ -425,9 +425,13 @@ describe.skipIf(!HAVE_CHROMIUM)(SUITE, () => {
 
   it('"foil surfaces: infinite medium" in the page equals the CLI render of the saved scenario, and differs from relaxed', async () => {
     const relaxed = await images(page);
+    const note = () => page.evaluate(() => document.getElementById('model-note')!.textContent);
+    // the page says what the images are (the scenario has Cu's Cij and no "surfaces": the defaults)
+    expect(await note()).toMatch(/anisotropic elasticity, relaxed foil surfaces\): a model, not a measurement/);
     const n = await renders(page);
     await setInput(page, 'surfaces', 'infinite', 'change');
     await waitRender(page, n);
+    expect(await note()).toMatch(/anisotropic elasticity, infinite medium\)/);
     const shown = await images(page);
     const [download] = await Promise.all([page.waitForEvent('download'), page.click('#save')]);
     const savedPath = join(dir, 'saved-infinite.json');
