@@ -62,6 +62,8 @@
  * rotation -+kink/2 and a translation that meets the table; zero at the line.
  */
 import { type Vec3, cross, dot, unit } from '../math/vec3.js';
+import { gaussLegendre } from '../math/gaussLegendre.js';
+import { hermiteGrid } from '../math/hermiteGrid.js';
 import { type DirectionalProbe, type DisplacementField, withDirectional } from './field.js';
 import { type HalfPlane, halfPlane, halfPlaneDisplacement, halfPlaneGradient } from './surfaceEdgeImages.js';
 
@@ -93,29 +95,6 @@ export const PLATE_EDGE_GRID = {
   order: 16,
 } as const;
 
-/** Gauss-Legendre nodes and weights on [-1, 1] (Newton on P_n). */
-function gaussLegendre(n: number): { x: Float64Array; w: Float64Array } {
-  const x = new Float64Array(n), w = new Float64Array(n);
-  for (let i = 0; i < n; i++) {
-    let z = Math.cos((Math.PI * (i + 0.75)) / (n + 0.5));
-    let dp = 0;
-    for (let it = 0; it < 100; it++) {
-      let p0 = 1, p1 = z;
-      for (let k = 2; k <= n; k++) {
-        const p2 = ((2 * k - 1) * z * p1 - (k - 1) * p0) / k;
-        p0 = p1;
-        p1 = p2;
-      }
-      dp = (n * (z * p1 - p0)) / (z * z - 1);
-      const dz = p1 / dp;
-      z -= dz;
-      if (Math.abs(dz) < 1e-16) break;
-    }
-    x[i] = z;
-    w[i] = 2 / ((1 - z * z) * dp * dp);
-  }
-  return { x, w };
-}
 
 /**
  * Transform (k > 0) of the traction sigma_yy + i sigma_xy of a half-space image on the line
@@ -358,36 +337,9 @@ export function plateEdgeTable(p: PlateEdgeProblem): PlateEdgeTable {
 
 /** Bicubic Hermite interpolation of the table at (x, y) (|x| <= 6 t, 0 <= y <= t) into out[0..3]. */
 export function plateEdgeInterpolate(tb: PlateEdgeTable, x: number, y: number, out: Float64Array): void {
-  hermite(tb, tb.data, 4, x, y, out);
+  hermiteGrid(tb, tb.data, 4, x, y, out);
 }
 
-/** Bicubic Hermite interpolation on the table's grid of `ncomp` components stored as (f, f_x, f_y, f_xy) each. */
-function hermite(tb: PlateEdgeTable, d: Float64Array, ncomp: number, x: number, y: number, out: Float64Array): void {
-  const fx = (x - tb.x0) / tb.hx, fy = y / tb.hy;
-  let i = Math.floor(fx), j = Math.floor(fy);
-  if (i < 0) i = 0;
-  if (i > tb.nx - 2) i = tb.nx - 2;
-  if (j < 0) j = 0;
-  if (j > tb.ny - 2) j = tb.ny - 2;
-  const s = fx - i, r = fy - j;
-  const s2 = s * s, s3 = s2 * s, r2 = r * r, r3 = r2 * r;
-  const H0s = 2 * s3 - 3 * s2 + 1, H1s = -2 * s3 + 3 * s2, D0s = (s3 - 2 * s2 + s) * tb.hx, D1s = (s3 - s2) * tb.hx;
-  const H0r = 2 * r3 - 3 * r2 + 1, H1r = -2 * r3 + 3 * r2, D0r = (r3 - 2 * r2 + r) * tb.hy, D1r = (r3 - r2) * tb.hy;
-  const stride = 4 * ncomp;
-  const q00 = stride * (j * tb.nx + i), q10 = q00 + stride, q01 = q00 + stride * tb.nx, q11 = q01 + stride;
-  const a00 = H0s * H0r, a10 = H1s * H0r, a01 = H0s * H1r, a11 = H1s * H1r;
-  const bx00 = D0s * H0r, bx10 = D1s * H0r, bx01 = D0s * H1r, bx11 = D1s * H1r;
-  const by00 = H0s * D0r, by10 = H1s * D0r, by01 = H0s * D1r, by11 = H1s * D1r;
-  const c00 = D0s * D0r, c10 = D1s * D0r, c01 = D0s * D1r, c11 = D1s * D1r;
-  for (let c = 0; c < ncomp; c++) {
-    const o = 4 * c;
-    out[c] =
-      a00 * d[q00 + o] + a10 * d[q10 + o] + a01 * d[q01 + o] + a11 * d[q11 + o] +
-      bx00 * d[q00 + o + 1] + bx10 * d[q10 + o + 1] + bx01 * d[q01 + o + 1] + bx11 * d[q11 + o + 1] +
-      by00 * d[q00 + o + 2] + by10 * d[q10 + o + 2] + by01 * d[q01 + o + 2] + by11 * d[q11 + o + 2] +
-      c00 * d[q00 + o + 3] + c10 * d[q10 + o + 3] + c01 * d[q01 + o + 3] + c11 * d[q11 + o + 3];
-  }
-}
 
 /**
  * The residual's displacement (u_x, u_y) on the table's grid, as (f, f_x, f_y, f_xy) per component (8 per node):
@@ -505,7 +457,7 @@ export function plateEdgeCorrection(o: PlateEdgeOptions): DisplacementField {
   };
   /** images plus the residual's displacement table at (x, y) (|x| <= X) into U */
   const inside = (u: Float64Array, x: number, y: number): void => {
-    hermite(tb, u, 2, x, y, V);
+    hermiteGrid(tb, u, 2, x, y, V);
     const vx = V[0], vy = V[1];
     images(x, y);
     U[0] += vx;
@@ -588,7 +540,7 @@ export function plateEdgeCorrection(o: PlateEdgeOptions): DisplacementField {
         const x = q[0] * m0 + q[1] * m1 + q[2] * m2 - xi0;
         const y = q[0] * n0 + q[1] * n1 + q[2] * n2;
         if (Math.abs(x) <= X) {
-          hermite(tb, scalar, 1, x, y, S);
+          hermiteGrid(tb, scalar, 1, x, y, S);
           halfPlaneGradient(p.top, x, y, Gi);
           let v = S[0] + w0 * Gi[0] + w1 * Gi[1] + w2 * Gi[2] + w3 * Gi[3];
           halfPlaneGradient(p.bottom, -x, t - y, Gi);

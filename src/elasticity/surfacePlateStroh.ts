@@ -51,6 +51,8 @@
  * from the line (Gauss-Legendre on the straight segment, inside the foil).
  */
 import { type Vec3, dot, unit } from '../math/vec3.js';
+import { gaussLegendre } from '../math/gaussLegendre.js';
+import { hermiteGrid } from '../math/hermiteGrid.js';
 import { type DirectionalProbe, type DisplacementField, directionalProbe, withDirectional } from './field.js';
 import { stiffnessTensor } from './stiffness.js';
 import { anisotropicDislocation } from './anisotropicDislocation.js';
@@ -321,29 +323,6 @@ export function plateStrohSpectrum(p: PlateStrohProblem, k: number, ys: ArrayLik
   }
 }
 
-/** Gauss-Legendre nodes and weights on [-1, 1] (Newton on P_n). */
-function gaussLegendre(n: number): { x: Float64Array; w: Float64Array } {
-  const x = new Float64Array(n), w = new Float64Array(n);
-  for (let i = 0; i < n; i++) {
-    let z = Math.cos((Math.PI * (i + 0.75)) / (n + 0.5));
-    let dp = 0;
-    for (let it = 0; it < 100; it++) {
-      let p0 = 1, p1 = z;
-      for (let k = 2; k <= n; k++) {
-        const p2 = ((2 * k - 1) * z * p1 - (k - 1) * p0) / k;
-        p0 = p1;
-        p1 = p2;
-      }
-      dp = (n * (z * p1 - p0)) / (z * z - 1);
-      const dz = p1 / dp;
-      z -= dz;
-      if (Math.abs(dz) < 1e-16) break;
-    }
-    x[i] = z;
-    w[i] = 2 / ((1 - z * z) * dp * dp);
-  }
-  return { x, w };
-}
 
 /** k nodes and weights (weights include the 1/pi of the one-sided inverse transform). */
 function kNodes(p: PlateStrohProblem): { k: Float64Array; w: Float64Array } {
@@ -448,37 +427,10 @@ export function plateStrohTable(p: PlateStrohProblem): PlateStrohTable {
   return { nx, ny, x0: -X, hx, hy, data };
 }
 
-/** Bicubic Hermite interpolation on the table's grid of `ncomp` components stored as (f, f_x, f_y, f_xy) each. */
-function hermite(tb: PlateStrohTable, d: Float64Array, ncomp: number, x: number, y: number, out: Float64Array): void {
-  const fx = (x - tb.x0) / tb.hx, fy = y / tb.hy;
-  let i = Math.floor(fx), j = Math.floor(fy);
-  if (i < 0) i = 0;
-  if (i > tb.nx - 2) i = tb.nx - 2;
-  if (j < 0) j = 0;
-  if (j > tb.ny - 2) j = tb.ny - 2;
-  const s = fx - i, r = fy - j;
-  const s2 = s * s, s3 = s2 * s, r2 = r * r, r3 = r2 * r;
-  const H0s = 2 * s3 - 3 * s2 + 1, H1s = -2 * s3 + 3 * s2, D0s = (s3 - 2 * s2 + s) * tb.hx, D1s = (s3 - s2) * tb.hx;
-  const H0r = 2 * r3 - 3 * r2 + 1, H1r = -2 * r3 + 3 * r2, D0r = (r3 - 2 * r2 + r) * tb.hy, D1r = (r3 - r2) * tb.hy;
-  const stride = 4 * ncomp;
-  const q00 = stride * (j * tb.nx + i), q10 = q00 + stride, q01 = q00 + stride * tb.nx, q11 = q01 + stride;
-  const a00 = H0s * H0r, a10 = H1s * H0r, a01 = H0s * H1r, a11 = H1s * H1r;
-  const bx00 = D0s * H0r, bx10 = D1s * H0r, bx01 = D0s * H1r, bx11 = D1s * H1r;
-  const by00 = H0s * D0r, by10 = H1s * D0r, by01 = H0s * D1r, by11 = H1s * D1r;
-  const c00 = D0s * D0r, c10 = D1s * D0r, c01 = D0s * D1r, c11 = D1s * D1r;
-  for (let c = 0; c < ncomp; c++) {
-    const o = 4 * c;
-    out[c] =
-      a00 * d[q00 + o] + a10 * d[q10 + o] + a01 * d[q01 + o] + a11 * d[q11 + o] +
-      bx00 * d[q00 + o + 1] + bx10 * d[q10 + o + 1] + bx01 * d[q01 + o + 1] + bx11 * d[q11 + o + 1] +
-      by00 * d[q00 + o + 2] + by10 * d[q10 + o + 2] + by01 * d[q01 + o + 2] + by11 * d[q11 + o + 2] +
-      c00 * d[q00 + o + 3] + c10 * d[q10 + o + 3] + c01 * d[q01 + o + 3] + c11 * d[q11 + o + 3];
-  }
-}
 
 /** Interpolated residual (six components) at (x, y), |x| <= X. */
 export function plateStrohInterpolate(tb: PlateStrohTable, x: number, y: number, out: Float64Array): void {
-  hermite(tb, tb.data, 6, x, y, out);
+  hermiteGrid(tb, tb.data, 6, x, y, out);
 }
 
 /** Tables already built in this thread, by line (a render cut into parts rebuilds its fields for each). */
@@ -511,7 +463,7 @@ export function plateStrohCorrection(o: PlateStrohOptions): DisplacementField {
     const x = px * m[0] + py * m[1] + pz * m[2] - xi0;
     const y = px * n[0] + py * n[1] + pz * n[2];
     if (Math.abs(x) <= X) {
-      hermite(tb, tb.data, 6, x, y, H);
+      hermiteGrid(tb, tb.data, 6, x, y, H);
       images.gradient(Gi, px, py, pz);
       for (let i = 0; i < 3; i++) for (let j = 0; j < 3; j++) out[3 * i + j] = Gi[3 * i + j] + H[i] * m[j] + H[3 + i] * n[j];
       return;
@@ -559,7 +511,7 @@ export function plateStrohCorrection(o: PlateStrohOptions): DisplacementField {
         const x = q[0] * m0 + q[1] * m1 + q[2] * m2 - xi0;
         if (Math.abs(x) <= X) {
           const y = q[0] * n0 + q[1] * n1 + q[2] * n2;
-          // bicubic Hermite of the one contracted component (hermite() written out for the hot path)
+          // bicubic Hermite of the one contracted component (hermiteGrid() written out for the hot path)
           const fx = (x - x0) / hx, fy = y / hy;
           let i = Math.floor(fx), j = Math.floor(fy);
           if (i < 0) i = 0;
