@@ -21,7 +21,7 @@
  * THINFOIL_TEST_PYTHON=/some/path replaces /usr/bin/python3 (used to check the
  * skip and CI paths with THINFOIL_TEST_PYTHON=/nonexistent; see DEVELOPERS.md).
  */
-import { spawn, spawnSync } from 'node:child_process';
+import { spawnSync } from 'node:child_process';
 import type { TestContext } from 'vitest';
 
 export const PYTHON = process.env.THINFOIL_TEST_PYTHON || '/usr/bin/python3';
@@ -153,31 +153,6 @@ export function runPython(args: readonly string[], input?: unknown): PythonRun {
 /** Runs Python code with `input` as JSON on stdin (and extra argv) and parses its stdout as JSON. */
 export function pythonJson<T>(code: string, input: unknown = null, args: readonly string[] = []): T {
   return JSON.parse(runPython(['-c', code, ...args], input).stdout) as T;
-}
-
-/**
- * pythonJson without blocking the test worker: for long reference runs that `it.concurrent` tests of one file
- * start side by side (the machine's cores work on them at once). Same timeout and errors as runPython.
- */
-export function pythonJsonAsync<T>(code: string, input: unknown = null): Promise<T> {
-  return new Promise((resolve, reject) => {
-    const child = spawn(PYTHON, ['-c', code], { stdio: ['pipe', 'pipe', 'pipe'] });
-    let out = '';
-    let err = '';
-    const timer = setTimeout(() => child.kill(), 120_000);
-    child.stdout.setEncoding('utf8').on('data', (d: string) => (out += d));
-    child.stderr.setEncoding('utf8').on('data', (d: string) => (err += d));
-    child.on('error', (e) => {
-      clearTimeout(timer);
-      reject(new Error(`${PYTHON} -c <code> could not run: ${e.message}`));
-    });
-    child.on('close', (status) => {
-      clearTimeout(timer);
-      if (status === 0) resolve(JSON.parse(out) as T);
-      else reject(new Error(`${PYTHON} -c <code> failed (exit ${status}): ${err}`));
-    });
-    child.stdin.end(typeof input === 'string' ? input : JSON.stringify(input));
-  });
 }
 
 /** Memoised value, so several tests share one Python run. */

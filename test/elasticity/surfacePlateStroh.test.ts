@@ -17,7 +17,7 @@ import {
   plateStrohTable,
 } from '../../src/elasticity/surfacePlateStroh.js';
 import { fdGradient, maxAbs, maxAbsDiff, polygonIntegral, rng } from './helpers.js';
-import { needPython, pythonJsonAsync } from '../python.js';
+import { needPython, pythonJson } from '../python.js';
 
 /** Hooke's law with the crystal's own stiffness tensor: the traction C_ijkl u_k,l n_j. */
 const tractionC = (C: Float64Array, g: ArrayLike<number>, n: Vec3): Vec3 => {
@@ -268,13 +268,11 @@ describe('anisotropic plate correction against an independent evaluation (script
   const py = needPython('scipy', 'numpy', 'mpmath');
   const script = readFileSync(new URL('../../scripts/ref_plate_stroh.py', import.meta.url), 'utf8');
   for (const [label, mat, nrm, line, bdir, depth] of [cases[0], cases[4]]) {
-    // the two reference runs take about 40 s each: they run side by side
-    it.concurrent(`${label}: 10 points (both surfaces, the line, far out): the gradient agrees to 1e-5 of its largest value (the table's bicubic interpolation, measured 2e-6), the kink (the reference takes it from its own spectrum) to 1e-5 of itself`, async (ctx) => {
-      const expect = ctx.expect;
+    it(`${label}: 10 points (both surfaces, the line, far out): the gradient agrees to 1e-5 of its largest value (the table's bicubic interpolation, measured 2e-6), the kink (the reference takes it from its own spectrum) to 1e-5 of itself`, (ctx) => {
       py.require(ctx);
       const s = setUp(mat, nrm, line, bdir, depth);
       const local: [number, number][] = [[3, 0], [-2, 0], [0.5, 1], [0.3, depth + 0.5], [15, 30], [-40, 59], [7, 60], [-120, 20], [300, 0], [1, 4]];
-      const ref = await pythonJsonAsync<{ grad: number[][]; W: number }>(script, { voigt: s.voigt, m: s.m, n: s.n, u: s.u, b: s.b, d: depth, t: T, points: local });
+      const ref = pythonJson<{ grad: number[][]; W: number }>(script, { voigt: s.voigt, m: s.m, n: s.n, u: s.u, b: s.b, d: depth, t: T, points: local });
       const p = plateStrohProblem({ b_nm: s.b, line: s.u, point_nm: s.P, normal: s.n, thickness_nm: T, stiffness_GPa: s.voigt });
       expect(Math.abs(ref.W - p.kink)).toBeLessThan(1e-5 * Math.abs(p.kink) + 1e-10);
       const g = new Float64Array(9);
