@@ -63,7 +63,7 @@
  */
 import { type Vec3, cross, dot, unit } from '../math/vec3.js';
 import { gaussLegendre } from '../math/gaussLegendre.js';
-import { hermiteGrid } from '../math/hermiteGrid.js';
+import { type HermiteGrid, hermiteGrid } from '../math/hermiteGrid.js';
 import { type DirectionalProbe, type DisplacementField, withDirectional } from './field.js';
 import { type HalfPlane, halfPlane, halfPlaneDisplacement, halfPlaneGradient } from './surfaceEdgeImages.js';
 
@@ -269,12 +269,7 @@ export function plateEdgeResidualDirect(p: PlateEdgeProblem, x: number, y: numbe
 }
 
 /** The tabulated residual: 4 components x (f, f_x, f_y, f_xy) per node. */
-export interface PlateEdgeTable {
-  readonly nx: number;
-  readonly ny: number;
-  readonly x0: number;
-  readonly hx: number;
-  readonly hy: number;
+export interface PlateEdgeTable extends HermiteGrid {
   /** node (i, j) at 16 (j nx + i): component c at 4 c + (0 f, 1 f_x, 2 f_y, 3 f_xy). */
   readonly data: Float64Array;
 }

@@ -52,7 +52,7 @@
  */
 import { type Vec3, dot, unit } from '../math/vec3.js';
 import { gaussLegendre } from '../math/gaussLegendre.js';
-import { hermiteGrid } from '../math/hermiteGrid.js';
+import { type HermiteGrid, hermiteGrid } from '../math/hermiteGrid.js';
 import { type DirectionalProbe, type DisplacementField, directionalProbe, withDirectional } from './field.js';
 import { stiffnessTensor } from './stiffness.js';
 import { anisotropicDislocation } from './anisotropicDislocation.js';
@@ -363,12 +363,7 @@ export function plateStrohResidualDirect(p: PlateStrohProblem, x: number, y: num
 }
 
 /** The tabulated residual: 6 components x (f, f_x, f_y, f_xy) per node. */
-export interface PlateStrohTable {
-  readonly nx: number;
-  readonly ny: number;
-  readonly x0: number;
-  readonly hx: number;
-  readonly hy: number;
+export interface PlateStrohTable extends HermiteGrid {
   /** node (i, j) at 24 (j nx + i): component c at 4 c + (0 f, 1 f_x, 2 f_y, 3 f_xy). */
   readonly data: Float64Array;
 }

@@ -2,6 +2,7 @@
 import type { Vec3 } from '../../src/math/vec3.js';
 import type { DisplacementField } from '../../src/elasticity/field.js';
 import { seededRandom } from '../../src/analysis/identifyRandom.js';
+import { gaussLegendre } from '../../src/math/gaussLegendre.js';
 
 /** Deterministic pseudo-random numbers in [0, 1) (mulberry32, the project's seeded generator). */
 export function rng(seed: number): () => number {
@@ -44,35 +45,6 @@ export const maxAbsDiff = (a: ArrayLike<number>, b: ArrayLike<number>): number =
   for (let i = 0; i < a.length; i++) m = Math.max(m, Math.abs(a[i] - b[i]));
   return m;
 };
-
-/**
- * Gauss-Legendre nodes and weights on [-1, 1] (Newton iteration on the
- * three-term recurrence; Abramowitz & Stegun 25.4.29).
- */
-export function gaussLegendre(n: number): { x: number[]; w: number[] } {
-  const x: number[] = [];
-  const w: number[] = [];
-  for (let i = 1; i <= n; i++) {
-    let t = Math.cos((Math.PI * (i - 0.25)) / (n + 0.5));
-    let dp = 0;
-    for (let it = 0; it < 100; it++) {
-      let p0 = 1;
-      let p1 = t;
-      for (let k = 2; k <= n; k++) {
-        const p2 = ((2 * k - 1) * t * p1 - (k - 1) * p0) / k;
-        p0 = p1;
-        p1 = p2;
-      }
-      dp = (n * (t * p1 - p0)) / (t * t - 1);
-      const dt = p1 / dp;
-      t -= dt;
-      if (Math.abs(dt) < 1e-16) break;
-    }
-    x.push(t);
-    w.push(2 / ((1 - t * t) * dp * dp));
-  }
-  return { x, w };
-}
 
 /**
  * Closed line integral of dR = (grad R) dl along a closed curve c(s), s in [0, 1),
