@@ -113,6 +113,13 @@ export function lineWarnings(d: LineLike, ctx: WarningContext): string[] {
     if (z < 0 || z > t) {
       out.push(`${where}: point_nm is at depth ${z} nm, outside the ${t} nm foil; the line is drawn where it crosses the foil, from (${sig(dot(a, ref.ex), 3)}, ${sig(dot(a, ref.ey), 3)}) to (${sig(dot(b, ref.ex), 3)}, ${sig(dot(b, ref.ey), 3)}) nm in the image`);
     }
+    // nearly parallel to the surfaces: relaxed, it gets the corrections of an inclined line about where it meets
+    // the surfaces, which free little beyond a fraction of a thickness from there (README, Foil surfaces)
+    const near = Math.min(Math.abs(l0), Math.abs(l1));
+    if (ctx.sc.surfaces === 'relaxed' && z >= 0 && z <= t && near > 3 * t) {
+      const deg = (Math.asin(Math.min(1, Math.abs(un))) * 180) / Math.PI;
+      out.push(`${where}: the line runs ${sig(deg, 2)} degrees from the foil surfaces and meets them ${sig(near / t, 2)} foil thicknesses from point_nm: with relaxed surfaces it gets the half-space corrections of where it meets them, which relax little this far away; a line exactly parallel to the surfaces (line . normal = 0) gets the exact plate correction (README, Foil surfaces)`);
+    }
   } else {
     // parallel to the surfaces: the line is infinite in the image
     const big = 1e7;

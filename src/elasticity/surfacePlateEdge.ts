@@ -30,7 +30,7 @@
  * 3. k -> 0: a free plate with a dislocation inside is, far from the line, two
  *    rigid halves; the edge component across the line (b_x: an extra half-plane
  *    through part of the thickness) turns them against each other by the kink
- *      Delta omega = omega(+inf) - omega(-inf) = 6 b_x d (t - d) / t^3
+ *      Delta omega = omega(+inf) - omega(-inf) = -6 b_x d (t - d) / t^3
  *    (d the depth of the line: Betti's reciprocity with the pure-bending state
  *    sigma_xx = M (y - t/2)/I, which is an exact plane-strain solution, gives exactly
  *    the beam-theory value; the component along n gives none). So omega^ has the pole

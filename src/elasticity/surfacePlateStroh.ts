@@ -71,7 +71,12 @@ export interface PlateStrohOptions {
 
 /** Numerical parameters (in units of the thickness t). */
 export const PLATE_STROH_GRID = {
-  /** Half-width of the tabulated x range, divided by sqrt(min(1, min Im p)) (a margin: the seam is measured in the tests). */
+  /**
+   * Half-width of the tabulated x range, divided by sqrt(min(1, min Im p)) (a margin: the seam is measured in the tests).
+   * The strip's own terms settle over a length that grows with the LARGEST Im p, so orientations with max Im p near 2
+   * (Pb, NiAl, Zn [100] in a [001] foil) leave a seam of 1e-6 to 6e-6 of b/(2 pi t) (a review's measurement; about
+   * 1e-9 in beta'); a range of 6 t max(1, max Im p) would remove it at about twice the table time.
+   */
   xRange: 6,
   /** Grid steps per thickness, in x and in y. */
   perThickness: 24,

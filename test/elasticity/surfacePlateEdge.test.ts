@@ -204,7 +204,7 @@ function fdSurfaceGradient(f: DisplacementField, p: Vec3, inward: 1 | -1, h: num
 }
 
 describe('plate correction: the far field, the kink and the limits', () => {
-  it('the Fourier k -> 0 limit of the rotation equals the beam-theory kink 6 b_x d (t - d)/t^3 (Betti reciprocity with pure bending, exact in plane strain; e.g. Timoshenko & Goodier, Theory of Elasticity, pure bending of a beam), with the sign of the side of the extra half-plane', () => {
+  it('the Fourier k -> 0 limit of the rotation equals the beam-theory kink -6 b_x d (t - d)/t^3 (b_x = b.m, m = n x u) (Betti reciprocity with pure bending, exact in plane strain; e.g. Timoshenko & Goodier, Theory of Elasticity, pure bending of a beam), with the sign of the side of the extra half-plane', () => {
     // the side of the extra half-plane: where the infinite line's sigma_xx (along m) is compressive, just above or below it
     const bx = 0.25;
     const P = pointAt([0, 0, 0], 20, 0);

@@ -186,7 +186,10 @@ describe('exact anisotropic plate correction of a line parallel to the surfaces 
         seam = Math.max(seam, maxAbsDiff(g1, g2));
       }
       console.log(`${label}: seam at |x| = ${X} nm: ${(seam / unitG).toExponential(2)} of b/(2 pi t)`);
-      expect(seam).toBeLessThan(1e-6 * unitG); // measured 1e-8 to 1e-7
+      // measured 1e-8 to 1e-7 for the lines here; a review measured 1e-6 to 6e-6 for other orientations (Pb, NiAl,
+      // Zn [100] in a [001] foil: the settling length grows with the largest Im p, the range with 1/sqrt(min Im p)),
+      // about 1e-9 in beta', below any image effect
+      expect(seam).toBeLessThan(1e-6 * unitG);
       const gv: [number, number, number] = [2.1, -1.3, 0.6], kv: [number, number, number] = [0.2, -0.1, 0.97];
       const probe = directionalProbe(s.corr, gv, kv);
       const pt = new Float64Array(4);
@@ -202,7 +205,7 @@ describe('exact anisotropic plate correction of a line parallel to the surfaces 
     });
   }
 
-  it('thick-plate limit (Cu, 60-degree line 10 nm below the entrance surface): near that surface the plate correction tends to the single Stroh half-space image of that surface (Ting 1996 ch. 8), the difference falling about as 1/t', () => {
+  it('thick-plate limit (Cu, 60-degree line 10 nm below the entrance surface): near that surface the plate correction tends to the single Stroh half-space image of that surface (Ting 1996 ch. 8), the difference falling faster than 1/t (measured 3.7e-3 -> 1.5e-4 for 5x the thickness)', () => {
     const diffs: number[] = [];
     for (const t of [600, 3000]) {
       const voigt = materialStiffness(getMaterial('Cu'));
@@ -265,7 +268,7 @@ describe('exact anisotropic plate correction of a line parallel to the surfaces 
 });
 
 describe('anisotropic plate correction against an independent evaluation (scripts/ref_plate_stroh.py: numpy eig of the Stroh matrix, the strip loaded with the line\'s own tractions, 6 x 6 by mpmath, the pole from the spectrum, scipy quad_vec)', () => {
-  const py = needPython('scipy', 'numpy', 'mpmath');
+  const py = needPython('scipy', 'numpy');
   const script = readFileSync(new URL('../../scripts/ref_plate_stroh.py', import.meta.url), 'utf8');
   for (const [label, mat, nrm, line, bdir, depth] of [cases[0], cases[4]]) {
     it(`${label}: 10 points (both surfaces, the line, far out): the gradient agrees to 1e-5 of its largest value (the table's bicubic interpolation, measured 2e-6), the kink (the reference takes it from its own spectrum) to 1e-5 of itself`, (ctx) => {

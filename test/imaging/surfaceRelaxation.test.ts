@@ -211,7 +211,7 @@ describe('edge dislocation parallel to the surfaces, isotropic (exact plate corr
       defects: withLine ? [{ type: 'dislocation', b: '1/2[1 -1 0]', line: [1, 1, 0], point_nm: [0, 0, 8] }] : [],
     });
   // Far from the line the exact plate solution is two rigid halves of the foil, turned against each other by the
-  // kink 6 b_x d (t - d)/t^3 (surfacePlateEdge.ts; here 2.95 mrad), each by half of it from the crystal at the line:
+  // kink of size 6 |b_x| d (t - d)/t^3 (surfacePlateEdge.ts; here 2.95 mrad), each by half of it from the crystal at the line:
   // beta' = g.(grad R).k = -omega g.m there, a change of s by -+3.912 nm^-1 x 1.48e-3 = -+0.0058 per nm on the two
   // sides. So far out the relaxed image is perfect crystal at those s (the infinite medium's is not: its 1/r field
   // still shifts s by about 15 % at 150 nm). Before (two half-space images added, no plate solution) the far

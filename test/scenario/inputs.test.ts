@@ -118,6 +118,20 @@ describe('implausible values are warned about, impossible ones refused (threshol
     expect(warningsOf((o) => (o.image.pixel_nm = 50))[0]).toMatch(/^image\.pixel_nm is 50 nm/);
     expect(warningsOf((o) => (o.image.pixel_nm = 0.02))[0]).toMatch(/^image\.pixel_nm is 0\.02 nm/);
   });
+  it('a line 0.4 degrees from the surfaces with relaxed surfaces (the default): warned that its corrections relax little so far from where it meets them, not with the infinite medium nor when exactly parallel', () => {
+    // tan(0.4 deg) = 0.007: a line [1 1 0.01] at depth 60 nm meets the surfaces 60 / 0.007 nm = 71 foil thicknesses away
+    // (the measured residual traction of the inclined-line corrections: 18-73 % at 0.4 t, about all beyond 1.5 t;
+    // test/elasticity/surfaceInclinedPlate.test.ts)
+    const w = warningsOf((o) => {
+      o.defects[0].line = [1, 1, 0.01];
+      o.defects[0].point_nm = [0, 0, 60];
+    });
+    expect(w.some((s) => /^defects\[0\] .*runs 0\.41 degrees from the foil surfaces .*relax little this far away; a line exactly parallel/.test(s))).toBe(true);
+    const quiet = (edit: (o: Json) => void) => warningsOf(edit).some((s) => /relax little/.test(s));
+    expect(quiet((o) => { o.defects[0].line = [1, 1, 0.01]; o.defects[0].point_nm = [0, 0, 60]; o.surfaces = 'infinite'; })).toBe(false);
+    expect(quiet((o) => { o.defects[0].line = [1, 1, 0]; o.defects[0].point_nm = [0, 0, 60]; })).toBe(false);
+    expect(quiet((o) => { o.defects[0].line = [1, -1, 2]; })).toBe(false);
+  });
   it('a dislocation point at depth 500 nm in a 120 nm foil: where the line crosses the foil, and that it misses the view', () => {
     // line [1 -1 2] in an untilted (001) foil: it rises 2 nm in depth per sqrt(2) nm sideways, so from depth 500 nm
     // it reaches the exit surface (120 nm) 380 / sqrt(2) = 269 nm away along [-1 1 0] and the entrance 354 nm away
