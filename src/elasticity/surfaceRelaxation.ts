@@ -52,6 +52,7 @@ import { strohImagesApply } from './surfaceImagesStroh.js';
 import { plateStrohCorrection } from './surfacePlateStroh.js';
 import { inclinedHalfSpaceCorrection } from './surfaceHalfSpaceInclined.js';
 import { plateTwistScratch, plateTwistSeries, plateTwistTabulated } from './surfacePlateTwist.js';
+import { stiffnessTensor } from './stiffness.js';
 
 export type SurfaceCorrectionKind =
   | 'parallel-screw-images'
@@ -177,10 +178,37 @@ export function surfaceCorrection(o: SurfaceCorrectionOptions): DisplacementFiel
   }
   if (c.kind === 'parallel-edge-plate') {
     if (o.poissonRatio === undefined) throw new Error('internal: the plate correction of the edge component needs the Poisson ratio');
-    const edge = plateEdgeCorrection({ b_nm: o.b_nm, line: o.line, point_nm: o.point_nm, normal: c.normal, thickness_nm: c.thickness_nm, poissonRatio: o.poissonRatio });
+    // an anisotropic line here has (nearly) degenerate Stroh eigenvalues: isotropic across the line (e.g. along c
+    // of a hexagonal crystal), so the plane-strain Poisson ratio of that plane is the one that frees the surfaces
+    const nu = o.stiffness_GPa === undefined ? o.poissonRatio : inPlanePoissonRatio(o.stiffness_GPa, o.line, c.normal);
+    const edge = plateEdgeCorrection({ b_nm: o.b_nm, line: o.line, point_nm: o.point_nm, normal: c.normal, thickness_nm: c.thickness_nm, poissonRatio: nu });
     return Math.abs(dot(o.b_nm, unit(o.line))) < 1e-12 * norm(o.b_nm) ? edge : superpose([parallelScrewImages(o), edge]);
   }
   return c.kind === 'parallel-screw-images' ? parallelScrewImages(o) : normalScrewTwist(o);
+}
+
+/**
+ * The Poisson ratio of plane strain in the plane across a line u (frame m = n x u, n) of an anisotropic crystal
+ * taken as isotropic in that plane: lambda = C'_mmnn, mu = C'_mnmn, nu = lambda / (2 (lambda + mu)) (isotropic
+ * elasticity, e.g. Hirth & Lothe 1982 ch. 2). Exact for a transversely isotropic crystal along its axis
+ * (hexagonal along c: nu = C12 / (C11 + C12)); for an isotropic C the material's own nu.
+ */
+export function inPlanePoissonRatio(stiffness_GPa: readonly number[], line: Vec3, normal: Vec3): number {
+  const C = stiffnessTensor(stiffness_GPa);
+  const u = unit(line);
+  const n = unit(normal);
+  const m = unit(cross(n, u));
+  let lambda = 0;
+  let mu = 0;
+  for (let i = 0; i < 3; i++)
+    for (let j = 0; j < 3; j++)
+      for (let k = 0; k < 3; k++)
+        for (let l = 0; l < 3; l++) {
+          const c = C[((i * 3 + j) * 3 + k) * 3 + l];
+          lambda += m[i] * m[j] * n[k] * n[l] * c;
+          mu += m[i] * n[j] * m[k] * n[l] * c;
+        }
+  return lambda / (2 * (lambda + mu));
 }
 
 /** arg(z) wrapped into (-pi, pi]. */
