@@ -47,6 +47,21 @@ export const maxAbsDiff = (a: ArrayLike<number>, b: ArrayLike<number>): number =
 };
 
 /**
+ * The circle centre + rad (cos 2 pi s a + sin 2 pi s b), 0 <= s < 1, with its tangent dc/ds: right-handed about
+ * a x b (a, b orthonormal), the curve argument of `loopIntegral`.
+ */
+export function circle(centre: Vec3, a: Vec3, b: Vec3, rad: number): (s: number) => { p: Vec3; t: Vec3 } {
+  return (s) => {
+    const ph = 2 * Math.PI * s;
+    const cs = Math.cos(ph), sn = Math.sin(ph);
+    return {
+      p: [0, 1, 2].map((i) => centre[i] + rad * (cs * a[i] + sn * b[i])) as unknown as Vec3,
+      t: [0, 1, 2].map((i) => 2 * Math.PI * rad * (-sn * a[i] + cs * b[i])) as unknown as Vec3,
+    };
+  };
+}
+
+/**
  * Closed line integral of dR = (grad R) dl along a closed curve c(s), s in [0, 1),
  * with tangent dc/ds, by the trapezoid rule with n points (spectrally accurate for
  * a smooth periodic curve).

@@ -15,7 +15,7 @@ import {
   plateEdgeTable,
   residualSpectrum,
 } from '../../src/elasticity/surfacePlateEdge.js';
-import { fdGradient, loopIntegral, maxAbs, maxAbsDiff, rng } from './helpers.js';
+import { circle, fdGradient, loopIntegral, maxAbs, maxAbsDiff, rng } from './helpers.js';
 import { needPython, pythonJson } from '../python.js';
 
 // A 60 nm foil with a tilted normal (any orientation must do), isotropic, mu = 1.
@@ -141,14 +141,7 @@ describe('exact plate correction of the edge component of a line parallel to the
       for (const rad of [Math.min(1.5, 0.5 * depth, 0.5 * (T - depth)), Math.min(20, 0.9 * depth, 0.9 * (T - depth))]) {
         const loop = loopIntegral(
           total,
-          (s) => {
-            const ph = 2 * Math.PI * s;
-            const cs = Math.cos(ph), sn = Math.sin(ph);
-            return {
-              p: [0, 1, 2].map((i) => P[i] + rad * (cs * a[i] + sn * bb[i])) as unknown as Vec3,
-              t: [0, 1, 2].map((i) => 2 * Math.PI * rad * (-sn * a[i] + cs * bb[i])) as unknown as Vec3,
-            };
-          },
+          circle(P, a, bb, rad),
           4096,
         );
         expect(maxAbsDiff(loop, b)).toBeLessThan(1e-7);

@@ -4,7 +4,7 @@ import { type Vec3, cross, dot, norm, scale, unit } from '../../src/math/vec3.js
 import { correctableGeometry, surfaceCorrection, surfaceCorrectionFor, type SurfaceCorrectionSpec } from '../../src/elasticity/surfaceRelaxation.js';
 import { buildField, type DislocationFieldSpec } from '../../src/imaging/fieldSpecs.js';
 import type { DisplacementField } from '../../src/elasticity/field.js';
-import { fdGradient, loopIntegral, maxAbs, maxAbsDiff, rng } from './helpers.js';
+import { circle, fdGradient, loopIntegral, maxAbs, maxAbsDiff, rng } from './helpers.js';
 import { needPython, pythonJson } from '../python.js';
 import { getMaterial } from '../../src/crystal/materials.js';
 import { materialStiffness, stiffnessTensor } from '../../src/elasticity/stiffness.js';
@@ -210,14 +210,7 @@ describe('surface relaxation: the correction is an elastic field', () => {
       const rad = normalLine ? 2.5 : Math.min(2.5, 0.5 * c.depth);
       const loop = loopIntegral(
         f,
-        (s) => {
-          const ph = 2 * Math.PI * s;
-          const cs = Math.cos(ph), sn = Math.sin(ph);
-          return {
-            p: [centre[0] + rad * (cs * a[0] + sn * bb[0]), centre[1] + rad * (cs * a[1] + sn * bb[1]), centre[2] + rad * (cs * a[2] + sn * bb[2])],
-            t: [2 * Math.PI * rad * (-sn * a[0] + cs * bb[0]), 2 * Math.PI * rad * (-sn * a[1] + cs * bb[1]), 2 * Math.PI * rad * (-sn * a[2] + cs * bb[2])],
-          };
-        },
+        circle(centre, a, bb, rad),
         2048,
       );
       expect(maxAbsDiff(loop, c.b)).toBeLessThan(1e-9);
@@ -511,14 +504,7 @@ describe('surface relaxation of inclined lines: isotropic half-space correction 
       const rad = 2;
       const loop = loopIntegral(
         f,
-        (sv) => {
-          const ph = 2 * Math.PI * sv;
-          const cs = Math.cos(ph), sn = Math.sin(ph);
-          return {
-            p: [centre[0] + rad * (cs * a[0] + sn * bb[0]), centre[1] + rad * (cs * a[1] + sn * bb[1]), centre[2] + rad * (cs * a[2] + sn * bb[2])],
-            t: [2 * Math.PI * rad * (-sn * a[0] + cs * bb[0]), 2 * Math.PI * rad * (-sn * a[1] + cs * bb[1]), 2 * Math.PI * rad * (-sn * a[2] + cs * bb[2])],
-          };
-        },
+        circle(centre, a, bb, rad),
         2048,
       );
       // the correction is single-valued; its tabulated (interpolated) gradient integrates round the loop to ~1e-6 nm
@@ -781,14 +767,7 @@ describe('surface relaxation of the edge component of a line parallel to the sur
       const rad = Math.min(1.5, 0.5 * depth);
       const loop = loopIntegral(
         full,
-        (s) => {
-          const ph = 2 * Math.PI * s;
-          const cs = Math.cos(ph), sn = Math.sin(ph);
-          return {
-            p: [0, 1, 2].map((i) => P[i] + rad * (cs * a[i] + sn * bb[i])) as unknown as Vec3,
-            t: [0, 1, 2].map((i) => 2 * Math.PI * rad * (-sn * a[i] + cs * bb[i])) as unknown as Vec3,
-          };
-        },
+        circle(P, a, bb, rad),
         2048,
       );
       expect(maxAbsDiff(loop, b)).toBeLessThan(1e-9);
@@ -915,14 +894,7 @@ describe('surface relaxation of the edge component of a line normal to the surfa
       const rad = 2;
       const loop = loopIntegral(
         relaxed,
-        (sv) => {
-          const ph = 2 * Math.PI * sv;
-          const cs = Math.cos(ph), sn = Math.sin(ph);
-          return {
-            p: [0, 1, 2].map((i) => Pn[i] + rad * (cs * E1[i] + sn * E2[i])) as unknown as Vec3,
-            t: [0, 1, 2].map((i) => 2 * Math.PI * rad * (-sn * E1[i] + cs * E2[i])) as unknown as Vec3,
-          };
-        },
+        circle(Pn, E1, E2, rad),
         2048,
       );
       // E1 x E2 = N: the circuit is right-handed about the line; the tabulated correction integrates to ~1e-6 nm
