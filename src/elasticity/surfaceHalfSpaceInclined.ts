@@ -30,11 +30,15 @@
  * stays isotropic (Voigt-average shear modulus of the Cij, the material's nu).
  */
 import { type Vec3, cross, dot, norm, scale, unit } from '../math/vec3.js';
-import type { DirectionalProbe, DisplacementField } from './field.js';
+import { type DirectionalProbe, type DisplacementField, withDirectional } from './field.js';
 import { straightDislocation } from './straightDislocation.js';
 import { anisotropicDislocation } from './anisotropicDislocation.js';
 import { isotropicVoigt, stiffnessTensor } from './stiffness.js';
 import { fftPlusInPlace } from '../math/fft1d.js';
+import { gaussLegendre } from '../math/gaussLegendre.js';
+
+/** 8-point Gauss-Legendre rule of the displacement's path integral (tests and tools only). */
+const GL8 = gaussLegendre(8);
 
 export interface InclinedHalfSpaceOptions {
   readonly b_nm: Vec3;
@@ -689,7 +693,7 @@ export function inclinedHalfSpaceCorrection(o: InclinedHalfSpaceOptions): Displa
       p[3] = sum;
     };
   };
-  return {
+  return withDirectional({
     displacement(out, x, y, z) {
       // not used by the renderer: the path integral of the gradient from the foil's mid-plane above the entrance point
       out[0] = 0;
@@ -698,8 +702,7 @@ export function inclinedHalfSpaceCorrection(o: InclinedHalfSpaceOptions): Displa
       const t0 = tables[0];
       const mid = scale(t0.ez, o.thickness_nm / 2);
       const ref: Vec3 = [Os[0][0] + mid[0], Os[0][1] + mid[1], Os[0][2] + mid[2]];
-      const gl = [-0.9602898564975363, -0.7966664774136267, -0.5255324099163290, -0.1834346424956498, 0.1834346424956498, 0.5255324099163290, 0.7966664774136267, 0.9602898564975363];
-      const gw = [0.1012285362903763, 0.2223810344533745, 0.3137066458778873, 0.3626837833783620, 0.3626837833783620, 0.3137066458778873, 0.2223810344533745, 0.1012285362903763];
+      const { x: gl, w: gw } = GL8;
       const g = new Float64Array(9);
       const d: Vec3 = [x - ref[0], y - ref[1], z - ref[2]];
       const panels = 16;
@@ -720,17 +723,6 @@ export function inclinedHalfSpaceCorrection(o: InclinedHalfSpaceOptions): Displa
       for (let k = 0; k < 9; k++) out[k] = 0;
       addGradient(out, p[0], p[1], p[2]);
     },
-    directional(gv, kv) {
-      const probe = directionalAt(gv, kv);
-      const p = new Float64Array(4);
-      return (x, y, z) => {
-        p[0] = x;
-        p[1] = y;
-        p[2] = z;
-        probe(p);
-        return p[3];
-      };
-    },
     directionalAt,
-  };
+  });
 }
