@@ -146,10 +146,11 @@ export function surfaceCorrection(o: SurfaceCorrectionOptions): DisplacementFiel
     if (o.stiffness_GPa === undefined) throw new Error('internal: the anisotropic plate correction needs the stiffness');
     return plateStrohCorrection({ b_nm: o.b_nm, line: o.line, point_nm: o.point_nm, normal: c.normal, thickness_nm: c.thickness_nm, stiffness_GPa: o.stiffness_GPa });
   }
-  if (c.kind === 'inclined-half-space') {
+  // the half-space correction of each surface (surfaceHalfSpaceInclined.ts) of a line, or of part of its b
+  const halfSpace = (b_nm: Vec3): DisplacementField => {
     if (o.poissonRatio === undefined) throw new Error('internal: the half-space correction needs the Poisson ratio');
     return inclinedHalfSpaceCorrection({
-      b_nm: o.b_nm,
+      b_nm,
       line: o.line,
       point_nm: o.point_nm,
       normal: c.normal,
@@ -157,23 +158,14 @@ export function surfaceCorrection(o: SurfaceCorrectionOptions): DisplacementFiel
       poissonRatio: o.poissonRatio,
       ...(o.stiffness_GPa === undefined ? {} : { stiffness_GPa: o.stiffness_GPa }),
     });
-  }
+  };
+  if (c.kind === 'inclined-half-space') return halfSpace(o.b_nm);
   if (c.kind === 'normal-edge-half-space') {
     // the screw part: the plate twist (exact in an isotropic plate); the edge part b - (b.u) u: the half-space
     // correction of each surface (surfaceHalfSpaceInclined.ts, which holds for a line at any angle to the surface)
-    if (o.poissonRatio === undefined) throw new Error('internal: the half-space correction needs the Poisson ratio');
     const u = unit(o.line);
     const bs = dot(o.b_nm, u);
-    const be: Vec3 = [o.b_nm[0] - bs * u[0], o.b_nm[1] - bs * u[1], o.b_nm[2] - bs * u[2]];
-    const edge = inclinedHalfSpaceCorrection({
-      b_nm: be,
-      line: o.line,
-      point_nm: o.point_nm,
-      normal: c.normal,
-      thickness_nm: c.thickness_nm,
-      poissonRatio: o.poissonRatio,
-      ...(o.stiffness_GPa === undefined ? {} : { stiffness_GPa: o.stiffness_GPa }),
-    });
+    const edge = halfSpace([o.b_nm[0] - bs * u[0], o.b_nm[1] - bs * u[1], o.b_nm[2] - bs * u[2]]);
     return Math.abs(bs) < 1e-12 * norm(o.b_nm) ? edge : superpose([normalScrewTwist(o), edge]);
   }
   if (c.kind === 'parallel-edge-plate') {
