@@ -65,17 +65,10 @@ import { type Vec3, cross, dot, unit } from '../math/vec3.js';
 import { gaussLegendre } from '../math/gaussLegendre.js';
 import { type HermiteGrid, hermiteGrid } from '../math/hermiteGrid.js';
 import { type DirectionalProbe, type DisplacementField, withDirectional } from './field.js';
-import { type HalfPlane, halfPlane, halfPlaneDisplacement, halfPlaneGradient } from './surfaceEdgeImages.js';
+import { type EdgeImagesOptions, type HalfPlane, halfPlane, halfPlaneDisplacement, halfPlaneGradient } from './surfaceEdgeImages.js';
 
-export interface PlateEdgeOptions {
-  readonly b_nm: Vec3;
-  readonly line: Vec3;
-  readonly point_nm: Vec3;
-  /** Unit foil normal; the foil is 0 <= r.n <= thickness_nm. */
-  readonly normal: Vec3;
-  readonly thickness_nm: number;
-  readonly poissonRatio: number;
-}
+/** The line, foil and Poisson ratio of the two half-space images it builds on. */
+export type PlateEdgeOptions = Omit<EdgeImagesOptions, 'only'>;
 
 /** The kink Delta omega = omega(+inf) - omega(-inf) of the far halves (rad) for b_x across the line at depth d. */
 export function plateEdgeKink(bx: number, d: number, t: number): number {

@@ -56,18 +56,10 @@ import { type HermiteGrid, hermiteGrid } from '../math/hermiteGrid.js';
 import { type DirectionalProbe, type DisplacementField, directionalProbe, withDirectional } from './field.js';
 import { stiffnessTensor } from './stiffness.js';
 import { anisotropicDislocation } from './anisotropicDislocation.js';
-import { strohHalfSpaceImages, strohImageCoefficients } from './surfaceImagesStroh.js';
+import { type StrohImagesOptions, strohHalfSpaceImages, strohImageCoefficients } from './surfaceImagesStroh.js';
 
-export interface PlateStrohOptions {
-  readonly b_nm: Vec3;
-  readonly line: Vec3;
-  readonly point_nm: Vec3;
-  /** Unit foil normal; the foil is 0 <= r.n <= thickness_nm. */
-  readonly normal: Vec3;
-  readonly thickness_nm: number;
-  /** Voigt stiffness (GPa, crystal frame) with well separated Stroh eigenvalues for this line (strohImagesApply). */
-  readonly stiffness_GPa: readonly number[];
-}
+/** The line and foil of the half-space images; the stiffness must have well separated Stroh eigenvalues for this line (strohImagesApply). */
+export type PlateStrohOptions = Omit<StrohImagesOptions, 'only'>;
 
 /** Numerical parameters (in units of the thickness t). */
 export const PLATE_STROH_GRID = {
